@@ -1,0 +1,6 @@
+//! Host tests of the firmware library: drivers against bus mocks, and the safety scenarios
+//! run through the real control loop with fake sensors, a fake plant and a fake clock.
+
+mod drivers;
+mod safety_scenarios;
+mod util;

@@ -1,0 +1,177 @@
+//! The whole virtual fixture: thermal network, magnet, probe, converter chips and faults,
+//! advanced in time by the caller and read by the simulated peripherals.
+
+use remanent_protocol::thermo_word::ThermoFault;
+use remanent_protocol::ThermoWord;
+use serde::{Deserialize, Serialize};
+
+use crate::magnet::{Magnet, MagnetState};
+use crate::probe::{adc_code, HallParams, NtcParams};
+use crate::rng::Rng;
+use crate::thermal::{ambient_c, ThermalParams, ThermalState};
+use crate::type_k;
+
+/// Everything fixed about a rig.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct RigParams {
+    /// Thermal network.
+    pub thermal: ThermalParams,
+    /// Hall probe.
+    pub hall: HallParams,
+    /// Probe thermistor.
+    pub ntc: NtcParams,
+    /// Full scale of the Hall ADC range, mV.
+    pub hall_full_scale_mv: f64,
+    /// Full scale of the thermistor ADC range, mV.
+    pub probe_full_scale_mv: f64,
+    /// Cold junction sits this far above ambient (board self-heating), K.
+    pub cold_junction_rise_k: f64,
+    /// Thermocouple converter noise, °C RMS.
+    pub tc_noise_c: f64,
+}
+
+impl RigParams {
+    /// The reference rig.
+    pub const REFERENCE: RigParams = RigParams {
+        thermal: ThermalParams::REFERENCE,
+        hall: HallParams::REFERENCE,
+        ntc: NtcParams::REFERENCE,
+        hall_full_scale_mv: 2048.0,
+        probe_full_scale_mv: 4096.0,
+        cold_junction_rise_k: 3.0,
+        tc_noise_c: 0.08,
+    };
+}
+
+/// Faults a test or a user can inject.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct RigFaults {
+    /// The thermocouple reads open from this time on, s.
+    pub thermocouple_open_at_s: Option<f64>,
+    /// The heater delivers nothing from this time on, s.
+    pub heater_detached_at_s: Option<f64>,
+}
+
+/// The virtual fixture with a magnet in it.
+#[derive(Debug, Clone)]
+pub struct Rig {
+    /// Fixed parameters.
+    pub params: RigParams,
+    /// The magnet.
+    pub magnet: Magnet,
+    /// What has happened to the magnet.
+    pub magnet_state: MagnetState,
+    /// Temperatures.
+    pub thermal: ThermalState,
+    /// Injected faults.
+    pub faults: RigFaults,
+    /// Heater PWM duty, 0..=1.
+    pub duty: f64,
+    /// Heater enable pin.
+    pub enabled: bool,
+    time_s: f64,
+    rng: Rng,
+}
+
+impl Rig {
+    /// A rig at ambient with `magnet` in it.
+    pub fn new(params: RigParams, magnet: Magnet, seed: u64) -> Self {
+        let t0 = ambient_c(&params.thermal, 0.0);
+        Rig {
+            params,
+            magnet,
+            magnet_state: MagnetState::new(t0),
+            thermal: ThermalState::uniform(t0),
+            faults: RigFaults::default(),
+            duty: 0.0,
+            enabled: false,
+            time_s: 0.0,
+            rng: Rng::new(seed),
+        }
+    }
+
+    /// Simulated time, s.
+    pub fn time_s(&self) -> f64 {
+        self.time_s
+    }
+
+    /// Simulated time, ms (the device clock).
+    pub fn time_ms(&self) -> u32 {
+        (self.time_s * 1000.0) as u64 as u32
+    }
+
+    /// Ambient now, °C.
+    pub fn ambient_c(&self) -> f64 {
+        ambient_c(&self.params.thermal, self.time_s)
+    }
+
+    /// Heater power now, W.
+    pub fn heater_power_w(&self) -> f64 {
+        let detached = self.faults.heater_detached_at_s.is_some_and(|t| self.time_s >= t);
+        if self.enabled && !detached {
+            self.duty.clamp(0.0, 1.0) * self.params.thermal.heater_w
+        } else {
+            0.0
+        }
+    }
+
+    /// Advance by `dt_s`, in steps of at most 50 ms.
+    pub fn advance(&mut self, dt_s: f64) {
+        let mut left = dt_s;
+        while left > 1e-12 {
+            let h = left.min(0.05);
+            let amb = self.ambient_c();
+            let power = self.heater_power_w();
+            self.thermal.advance(&self.params.thermal, amb, power, h);
+            self.magnet_state.advance(&self.magnet, self.thermal.magnet_c, h);
+            self.time_s += h;
+            left -= h;
+        }
+    }
+
+    /// Br now, T.
+    pub fn br_t(&self) -> f64 {
+        self.magnet_state.br_t(&self.magnet, self.thermal.magnet_c)
+    }
+
+    /// Standoff temperature (mean of its two ends), °C.
+    pub fn standoff_c(&self) -> f64 {
+        0.5 * (self.thermal.plate_c + self.thermal.probe_c)
+    }
+
+    /// True field at the sensing element, mT.
+    pub fn field_mt(&self) -> f64 {
+        let gap = self.params.hall.gap_at_mm(self.standoff_c());
+        self.br_t() * 1000.0 * self.magnet.shape.bz_per_br(gap)
+    }
+
+    /// One Hall conversion, with noise.
+    pub fn hall_code(&mut self) -> i16 {
+        let mv = self.params.hall.output_mv(self.field_mt(), self.thermal.probe_c)
+            + self.params.hall.noise_mv * self.rng.gauss();
+        adc_code(mv, self.params.hall_full_scale_mv)
+    }
+
+    /// One thermistor conversion.
+    pub fn probe_code(&mut self) -> i16 {
+        let mv = self.params.ntc.divider_mv(self.thermal.probe_c) + 0.05 * self.rng.gauss();
+        adc_code(mv, self.params.probe_full_scale_mv)
+    }
+
+    /// Cold-junction temperature, °C.
+    pub fn cold_junction_c(&self) -> f64 {
+        self.ambient_c() + self.params.cold_junction_rise_k
+    }
+
+    /// The thermocouple converter's word: its linear approximation, quantized, with faults.
+    pub fn thermo_word(&mut self) -> ThermoWord {
+        let cj = self.cold_junction_c() + 0.03 * self.rng.gauss();
+        let open = self.faults.thermocouple_open_at_s.is_some_and(|t| self.time_s >= t);
+        let cj_counts = libm::round(cj * 16.0) as i16;
+        if open {
+            return ThermoWord::from_parts(0, cj_counts, Some(ThermoFault::Open));
+        }
+        let reported = type_k::chip_reading_c(self.thermal.plate_c, cj) + self.params.tc_noise_c * self.rng.gauss();
+        ThermoWord::from_parts(libm::round(reported * 4.0) as i16, cj_counts, None)
+    }
+}
