@@ -167,3 +167,5 @@ impl HostDecoder {
         Self::new(None)
     }
 }
+
+impl core::error::Error for FrameError {}

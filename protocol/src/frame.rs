@@ -75,3 +75,5 @@ mod tests {
         assert_eq!(FRAME_CRC.checksum(b"123456789"), 0x29B1);
     }
 }
+
+impl core::error::Error for EncodeError {}

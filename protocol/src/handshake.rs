@@ -52,3 +52,5 @@ pub fn check_compatible(host: Version, device: Version) -> Result<(), HandshakeE
         Err(HandshakeError { host, device })
     }
 }
+
+impl core::error::Error for HandshakeError {}

@@ -11,7 +11,7 @@ use heapless::Deque;
 use remanent_protocol::decoder::HostDecoder;
 use remanent_protocol::{
     encode, Ack, Command, DeviceHello, DeviceMsg, Fault, FaultReport, HostMsg, Label, Profile,
-    RefuseReason, Refusal, RunState, SamplingConfig, SensorSetup, StateReport, ThermoKind,
+    Refusal, RefuseReason, RunState, SamplingConfig, SensorSetup, StateReport, ThermoKind,
     ThermoWord, MAX_DEVICE_FRAME, VERSION,
 };
 
@@ -95,7 +95,14 @@ where
     O: OutputPin,
 {
     /// A device with the heater off, waiting for the host's hello.
-    pub fn new(cfg: FirmwareConfig, board: BoardInfo, adc: A, tc: T, heater: Heater<P, O>, now_ms: u32) -> Self {
+    pub fn new(
+        cfg: FirmwareConfig,
+        board: BoardInfo,
+        adc: A,
+        tc: T,
+        heater: Heater<P, O>,
+        now_ms: u32,
+    ) -> Self {
         let mut heater = heater;
         let _ = heater.off();
         Device {
@@ -231,7 +238,15 @@ where
         match (acq.thermo, acq.adc_failed) {
             (Some(word), false) => {
                 let faulted = matches!(self.mode, Mode::Faulted(_));
-                let sample = Sampler::sample(seq, late_ms, &acq, word, self.heater.duty(), self.heater.duty() > 0.0, faulted);
+                let sample = Sampler::sample(
+                    seq,
+                    late_ms,
+                    &acq,
+                    word,
+                    self.heater.duty(),
+                    self.heater.duty() > 0.0,
+                    faulted,
+                );
                 self.sampler.enqueue(sample);
             }
             _ => self.sampler.skip(),
@@ -246,7 +261,11 @@ where
         if !already {
             self.mode = Mode::Faulted(fault);
             let temp_tenth_c = self.interlocks.last_temp_tenth_c().unwrap_or(0);
-            self.push(DeviceMsg::Fault(FaultReport { time_ms: now_ms, fault, temp_tenth_c }));
+            self.push(DeviceMsg::Fault(FaultReport {
+                time_ms: now_ms,
+                fault,
+                temp_tenth_c,
+            }));
             self.report_state(now_ms);
         }
     }
@@ -266,7 +285,11 @@ where
             Mode::Profile(run) => run.segment_index() as u8,
             _ => 0,
         };
-        self.push(DeviceMsg::State(StateReport { time_ms: now_ms, state: self.mode.state(), segment }));
+        self.push(DeviceMsg::State(StateReport {
+            time_ms: now_ms,
+            state: self.mode.state(),
+            segment,
+        }));
     }
 
     fn push(&mut self, msg: DeviceMsg) {
@@ -311,7 +334,11 @@ where
             if !self.handshaken {
                 // the host's record starts here: first slot one period from now
                 let (period, oversample) = (self.sampler.period_ms(), self.sampler.oversample());
-                self.sampler.reconfigure(now_ms.wrapping_add(u32::from(period)), period, oversample);
+                self.sampler.reconfigure(
+                    now_ms.wrapping_add(u32::from(period)),
+                    period,
+                    oversample,
+                );
             }
             self.handshaken = true;
             self.interlocks.host_seen(now_ms);
@@ -330,7 +357,10 @@ where
             Command::Hello(_) => Ok(()),
             Command::Heartbeat => Ok(()),
             Command::Start(profile) => self.start_profile(now_ms, profile),
-            Command::Manual { setpoint_tenth_c, limit_tenth_c } => self.start_manual(now_ms, setpoint_tenth_c, limit_tenth_c),
+            Command::Manual {
+                setpoint_tenth_c,
+                limit_tenth_c,
+            } => self.start_manual(now_ms, setpoint_tenth_c, limit_tenth_c),
             Command::Stop => {
                 if !matches!(self.mode, Mode::Faulted(_)) {
                     self.enter(now_ms, Mode::Idle);
@@ -384,19 +414,39 @@ where
         for seg in profile.segments.0.iter() {
             self.check_limit(seg.target_tenth_c)?;
             if seg.target_tenth_c > profile.limit_tenth_c {
-                return Err(RefuseReason::AboveRunLimit { limit_tenth_c: profile.limit_tenth_c });
+                return Err(RefuseReason::AboveRunLimit {
+                    limit_tenth_c: profile.limit_tenth_c,
+                });
             }
         }
-        let temp = self.interlocks.last_temp_tenth_c().ok_or(RefuseReason::FaultLatched(Fault::SensorBus))?;
+        // the profile starts from the temperature now
+        let temp = match self.tc.read_word() {
+            Ok(w) => match w.fault() {
+                None => w.tc_tenth_c(),
+                Some(f) => return Err(RefuseReason::FaultLatched(crate::safety::thermo_fault(f))),
+            },
+            Err(_) => return Err(RefuseReason::FaultLatched(Fault::SensorBus)),
+        };
         self.interlocks.set_run_limit(profile.limit_tenth_c);
         self.interlocks.restart_detectors();
         self.pi.reset();
-        let run = ProfileRunner::start(profile, now_ms, temp, self.cfg.soak_band_tenth_c, self.cfg.soak_wait_max_ms);
+        let run = ProfileRunner::start(
+            profile,
+            now_ms,
+            temp,
+            self.cfg.soak_band_tenth_c,
+            self.cfg.soak_wait_max_ms,
+        );
         self.enter(now_ms, Mode::Profile(run));
         Ok(())
     }
 
-    fn start_manual(&mut self, now_ms: u32, setpoint_tenth_c: i16, limit_tenth_c: i16) -> Result<(), RefuseReason> {
+    fn start_manual(
+        &mut self,
+        now_ms: u32,
+        setpoint_tenth_c: i16,
+        limit_tenth_c: i16,
+    ) -> Result<(), RefuseReason> {
         self.ready_for_run()?;
         self.check_limit(limit_tenth_c)?;
         self.check_limit(setpoint_tenth_c)?;
@@ -416,10 +466,12 @@ where
         if !matches!(self.mode, Mode::Idle) {
             return Err(RefuseReason::Busy);
         }
-        if !PERIOD_RANGE_MS.contains(&cfg.period_ms) || !OVERSAMPLE_RANGE.contains(&cfg.oversample) {
+        if !PERIOD_RANGE_MS.contains(&cfg.period_ms) || !OVERSAMPLE_RANGE.contains(&cfg.oversample)
+        {
             return Err(RefuseReason::Invalid);
         }
-        self.sampler.reconfigure(now_ms, cfg.period_ms, cfg.oversample);
+        self.sampler
+            .reconfigure(now_ms, cfg.period_ms, cfg.oversample);
         self.send_beacon();
         Ok(())
     }
@@ -429,17 +481,29 @@ where
             Mode::Faulted(f) => f,
             _ => return Err(RefuseReason::NoFaultLatched),
         };
-        let word_ok = self.tc.read_word().ok().filter(|w: &ThermoWord| w.fault().is_none());
+        let word_ok = self
+            .tc
+            .read_word()
+            .ok()
+            .filter(|w: &ThermoWord| w.fault().is_none());
         match fault {
             Fault::OverTemperature => {
                 let limit = self.interlocks.run_limit_tenth_c();
                 let below_tenth_c = limit - self.cfg.limits.reset_margin_tenth_c;
-                let temp_tenth_c = word_ok.ok_or(RefuseReason::FaultLatched(fault))?.tc_tenth_c();
+                let temp_tenth_c = word_ok
+                    .ok_or(RefuseReason::FaultLatched(fault))?
+                    .tc_tenth_c();
                 if temp_tenth_c >= below_tenth_c {
-                    return Err(RefuseReason::TooHotToClear { temp_tenth_c, below_tenth_c });
+                    return Err(RefuseReason::TooHotToClear {
+                        temp_tenth_c,
+                        below_tenth_c,
+                    });
                 }
             }
-            Fault::ThermocoupleOpen | Fault::ThermocoupleShortGnd | Fault::ThermocoupleShortVcc | Fault::SensorBus => {
+            Fault::ThermocoupleOpen
+            | Fault::ThermocoupleShortGnd
+            | Fault::ThermocoupleShortVcc
+            | Fault::SensorBus => {
                 word_ok.ok_or(RefuseReason::FaultLatched(fault))?;
             }
             _ => {}
@@ -455,7 +519,10 @@ use remanent_protocol::SafetyLimits;
 
 impl From<FirmwareConfig> for SafetyLimits {
     fn from(cfg: FirmwareConfig) -> Self {
-        SafetyLimits { ceiling_tenth_c: cfg.ceiling_tenth_c(), ..cfg.limits }
+        SafetyLimits {
+            ceiling_tenth_c: cfg.ceiling_tenth_c(),
+            ..cfg.limits
+        }
     }
 }
 

@@ -107,7 +107,9 @@ impl Interlocks {
         }
         self.check_rise_rate(now_ms, temp)?;
         if heating_wanted {
-            if now_ms.wrapping_sub(self.last_host_ms) > u32::from(self.cfg.limits.heartbeat_timeout_ms) {
+            if now_ms.wrapping_sub(self.last_host_ms)
+                > u32::from(self.cfg.limits.heartbeat_timeout_ms)
+            {
                 return Err(Fault::HeartbeatLost);
             }
             self.check_stuck(now_ms, word, applied_duty)?;

@@ -72,8 +72,10 @@ impl Sampler {
     }
 
     fn slot_ms(&self, seq: u32) -> u32 {
-        self.epoch_ms
-            .wrapping_add(seq.wrapping_sub(self.epoch_seq).wrapping_mul(u32::from(self.period_ms)))
+        self.epoch_ms.wrapping_add(
+            seq.wrapping_sub(self.epoch_seq)
+                .wrapping_mul(u32::from(self.period_ms)),
+        )
     }
 
     /// If a slot is due at `now_ms`: its sequence number and lateness, ms. Slots missed

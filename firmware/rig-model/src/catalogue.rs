@@ -16,7 +16,10 @@ pub struct DemoPart {
     pub magnet: Magnet,
 }
 
-const DISC_10X5: Shape = Shape::Cylinder { diameter_mm: 10.0, length_mm: 5.0 };
+const DISC_10X5: Shape = Shape::Cylinder {
+    diameter_mm: 10.0,
+    length_mm: 5.0,
+};
 
 /// The built-in demo parts.
 pub const PARTS: [DemoPart; 6] = [
@@ -27,8 +30,8 @@ pub const PARTS: [DemoPart; 6] = [
         magnet: Magnet {
             shape: DISC_10X5,
             br_20_t: 1.30,
-            alpha_pct_per_c: -0.115,
-            gamma_pct_per_c2: -0.00020,
+            alpha_pct_per_c: -0.105,
+            gamma_pct_per_c2: -0.00010,
             irreversible_onset_c: 85.0,
             irreversible_pct_per_c: 0.08,
             curie_c: 320.0,
@@ -42,8 +45,8 @@ pub const PARTS: [DemoPart; 6] = [
         magnet: Magnet {
             shape: DISC_10X5,
             br_20_t: 1.31,
-            alpha_pct_per_c: -0.110,
-            gamma_pct_per_c2: -0.00018,
+            alpha_pct_per_c: -0.108,
+            gamma_pct_per_c2: -0.00008,
             irreversible_onset_c: 160.0,
             irreversible_pct_per_c: 0.06,
             curie_c: 340.0,
@@ -55,10 +58,13 @@ pub const PARTS: [DemoPart; 6] = [
         description: "thin sintered NdFeB disc, grade N35, Ø10 × 2 mm (low permeance)",
         grade: "N35",
         magnet: Magnet {
-            shape: Shape::Cylinder { diameter_mm: 10.0, length_mm: 2.0 },
+            shape: Shape::Cylinder {
+                diameter_mm: 10.0,
+                length_mm: 2.0,
+            },
             br_20_t: 1.19,
-            alpha_pct_per_c: -0.120,
-            gamma_pct_per_c2: -0.00020,
+            alpha_pct_per_c: -0.110,
+            gamma_pct_per_c2: -0.00010,
             irreversible_onset_c: 85.0,
             irreversible_pct_per_c: 0.10,
             curie_c: 315.0,
@@ -85,7 +91,11 @@ pub const PARTS: [DemoPart; 6] = [
         description: "sintered hard ferrite block, 20 × 15 × 5 mm",
         grade: "Y30",
         magnet: Magnet {
-            shape: Shape::Block { a_mm: 20.0, b_mm: 15.0, length_mm: 5.0 },
+            shape: Shape::Block {
+                a_mm: 20.0,
+                b_mm: 15.0,
+                length_mm: 5.0,
+            },
             br_20_t: 0.39,
             alpha_pct_per_c: -0.190,
             gamma_pct_per_c2: 0.0,
@@ -100,7 +110,10 @@ pub const PARTS: [DemoPart; 6] = [
         description: "cast AlNiCo 5 rod, Ø10 × 10 mm",
         grade: "AlNiCo5",
         magnet: Magnet {
-            shape: Shape::Cylinder { diameter_mm: 10.0, length_mm: 10.0 },
+            shape: Shape::Cylinder {
+                diameter_mm: 10.0,
+                length_mm: 10.0,
+            },
             br_20_t: 1.25,
             alpha_pct_per_c: -0.020,
             gamma_pct_per_c2: 0.0,

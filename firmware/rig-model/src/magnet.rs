@@ -36,8 +36,15 @@ impl Shape {
     /// Bz on the axis at `gap_mm` from the pole face, per tesla of Br.
     pub fn bz_per_br(&self, gap_mm: f64) -> f64 {
         match *self {
-            Shape::Cylinder { diameter_mm, length_mm } => field::cylinder_bz_per_br(diameter_mm, length_mm, gap_mm),
-            Shape::Block { a_mm, b_mm, length_mm } => field::block_bz_per_br(a_mm, b_mm, length_mm, gap_mm),
+            Shape::Cylinder {
+                diameter_mm,
+                length_mm,
+            } => field::cylinder_bz_per_br(diameter_mm, length_mm, gap_mm),
+            Shape::Block {
+                a_mm,
+                b_mm,
+                length_mm,
+            } => field::block_bz_per_br(a_mm, b_mm, length_mm, gap_mm),
         }
     }
 
@@ -45,8 +52,15 @@ impl Shape {
     /// the usual stand-in for the permeance coefficient.
     pub fn l_over_d(&self) -> f64 {
         match *self {
-            Shape::Cylinder { diameter_mm, length_mm } => length_mm / diameter_mm,
-            Shape::Block { a_mm, b_mm, length_mm } => {
+            Shape::Cylinder {
+                diameter_mm,
+                length_mm,
+            } => length_mm / diameter_mm,
+            Shape::Block {
+                a_mm,
+                b_mm,
+                length_mm,
+            } => {
                 let d = libm::sqrt(4.0 * a_mm * b_mm / core::f64::consts::PI);
                 length_mm / d
             }
@@ -92,7 +106,11 @@ impl Magnet {
     pub fn reversible_factor(&self, t_c: f64) -> f64 {
         let d = t_c - 20.0;
         let poly = 1.0 + self.alpha_pct_per_c / 100.0 * d + self.gamma_pct_per_c2 / 100.0 * d * d;
-        let curie = if t_c >= self.curie_c { 0.0 } else { 1.0 - libm::exp(-(self.curie_c - t_c) / 12.0) };
+        let curie = if t_c >= self.curie_c {
+            0.0
+        } else {
+            1.0 - libm::exp(-(self.curie_c - t_c) / 12.0)
+        };
         (poly * curie).max(0.0)
     }
 
@@ -118,7 +136,10 @@ pub struct MagnetState {
 impl MagnetState {
     /// A fresh magnet at `t_c`.
     pub fn new(t_c: f64) -> Self {
-        MagnetState { max_c: t_c, irreversible: 0.0 }
+        MagnetState {
+            max_c: t_c,
+            irreversible: 0.0,
+        }
     }
 
     /// Advance by `dt_s` at temperature `t_c`.

@@ -9,7 +9,9 @@ use embedded_hal::digital::{ErrorType as PinErrorType, OutputPin};
 use embedded_hal::i2c::{ErrorType as I2cErrorType, I2c, Operation as I2cOp, SevenBitAddress};
 use embedded_hal::pwm::{ErrorType as PwmErrorType, SetDutyCycle};
 use embedded_hal::spi::{ErrorType as SpiErrorType, Operation as SpiOp, SpiDevice};
-use remanent_firmware::drivers::ads1115::{MUX_AIN0_AIN1, MUX_AIN2_GND, OS_START, REG_CONFIG, REG_CONVERSION};
+use remanent_firmware::drivers::ads1115::{
+    MUX_AIN0_AIN1, MUX_AIN2_GND, OS_START, REG_CONFIG, REG_CONVERSION,
+};
 use remanent_firmware::Clock;
 
 use crate::rig::Rig;
@@ -25,7 +27,12 @@ pub struct SimAdcBus<'a> {
 impl<'a> SimAdcBus<'a> {
     /// The ADC bus of `rig`.
     pub fn new(rig: &'a RefCell<Rig>) -> Self {
-        SimAdcBus { rig, config: 0x8583, conversion: 0, pointer: 0 }
+        SimAdcBus {
+            rig,
+            config: 0x8583,
+            conversion: 0,
+            pointer: 0,
+        }
     }
 }
 
@@ -34,7 +41,11 @@ impl I2cErrorType for SimAdcBus<'_> {
 }
 
 impl I2c<SevenBitAddress> for SimAdcBus<'_> {
-    fn transaction(&mut self, _address: u8, operations: &mut [I2cOp<'_>]) -> Result<(), Infallible> {
+    fn transaction(
+        &mut self,
+        _address: u8,
+        operations: &mut [I2cOp<'_>],
+    ) -> Result<(), Infallible> {
         for op in operations {
             match op {
                 I2cOp::Write(bytes) => {

@@ -64,7 +64,12 @@ pub struct NtcParams {
 
 impl NtcParams {
     /// The reference thermistor: 10 kΩ, B = 3950 K, 10 kΩ series, 3.3 V.
-    pub const REFERENCE: NtcParams = NtcParams { r25_ohm: 10_000.0, beta_k: 3950.0, series_ohm: 10_000.0, supply_mv: 3300.0 };
+    pub const REFERENCE: NtcParams = NtcParams {
+        r25_ohm: 10_000.0,
+        beta_k: 3950.0,
+        series_ohm: 10_000.0,
+        supply_mv: 3300.0,
+    };
 
     /// Resistance at `t_c`, Ω (Beta equation).
     pub fn resistance_ohm(&self, t_c: f64) -> f64 {

@@ -107,7 +107,10 @@ impl Rig {
 
     /// Heater power now, W.
     pub fn heater_power_w(&self) -> f64 {
-        let detached = self.faults.heater_detached_at_s.is_some_and(|t| self.time_s >= t);
+        let detached = self
+            .faults
+            .heater_detached_at_s
+            .is_some_and(|t| self.time_s >= t);
         if self.enabled && !detached {
             self.duty.clamp(0.0, 1.0) * self.params.thermal.heater_w
         } else {
@@ -123,7 +126,8 @@ impl Rig {
             let amb = self.ambient_c();
             let power = self.heater_power_w();
             self.thermal.advance(&self.params.thermal, amb, power, h);
-            self.magnet_state.advance(&self.magnet, self.thermal.magnet_c, h);
+            self.magnet_state
+                .advance(&self.magnet, self.thermal.magnet_c, h);
             self.time_s += h;
             left -= h;
         }
@@ -147,7 +151,10 @@ impl Rig {
 
     /// One Hall conversion, with noise.
     pub fn hall_code(&mut self) -> i16 {
-        let mv = self.params.hall.output_mv(self.field_mt(), self.thermal.probe_c)
+        let mv = self
+            .params
+            .hall
+            .output_mv(self.field_mt(), self.thermal.probe_c)
             + self.params.hall.noise_mv * self.rng.gauss();
         adc_code(mv, self.params.hall_full_scale_mv)
     }
@@ -166,12 +173,16 @@ impl Rig {
     /// The thermocouple converter's word: its linear approximation, quantized, with faults.
     pub fn thermo_word(&mut self) -> ThermoWord {
         let cj = self.cold_junction_c() + 0.03 * self.rng.gauss();
-        let open = self.faults.thermocouple_open_at_s.is_some_and(|t| self.time_s >= t);
+        let open = self
+            .faults
+            .thermocouple_open_at_s
+            .is_some_and(|t| self.time_s >= t);
         let cj_counts = libm::round(cj * 16.0) as i16;
         if open {
             return ThermoWord::from_parts(0, cj_counts, Some(ThermoFault::Open));
         }
-        let reported = type_k::chip_reading_c(self.thermal.plate_c, cj) + self.params.tc_noise_c * self.rng.gauss();
+        let reported = type_k::chip_reading_c(self.thermal.plate_c, cj)
+            + self.params.tc_noise_c * self.rng.gauss();
         ThermoWord::from_parts(libm::round(reported * 4.0) as i16, cj_counts, None)
     }
 }

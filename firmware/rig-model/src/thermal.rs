@@ -55,7 +55,11 @@ pub struct ThermalState {
 impl ThermalState {
     /// Everything at `t_c`.
     pub fn uniform(t_c: f64) -> Self {
-        ThermalState { plate_c: t_c, magnet_c: t_c, probe_c: t_c }
+        ThermalState {
+            plate_c: t_c,
+            magnet_c: t_c,
+            probe_c: t_c,
+        }
     }
 
     /// Advance by `dt_s` (keep it ≤ 0.1 s) with `power_w` into the plate.

@@ -1,12 +1,12 @@
 //! Drivers against embedded-hal-mock: exact bus transactions, fault bits, bus errors.
 
+use embedded_hal::i2c::ErrorKind as I2cErrorKind;
 use embedded_hal::spi::{ErrorKind as SpiErrorKind, ErrorType, Operation, SpiDevice};
 use embedded_hal_mock::eh1::delay::NoopDelay;
 use embedded_hal_mock::eh1::digital::{Mock as PinMock, State, Transaction as PinTx};
 use embedded_hal_mock::eh1::i2c::{Mock as I2cMock, Transaction as I2cTx};
 use embedded_hal_mock::eh1::pwm::{Mock as PwmMock, Transaction as PwmTx};
 use embedded_hal_mock::eh1::spi::{Mock as SpiMock, Transaction as SpiTx};
-use embedded_hal::i2c::ErrorKind as I2cErrorKind;
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::heater::Heater;
 use remanent_firmware::{Adc, AdcInput, Thermocouple};
@@ -22,7 +22,10 @@ const PROBE_CONFIG: [u8; 2] = [0b1110_0011, 0b1110_0011]; // MUX 110, PGA 001 (Â
 #[test]
 fn adc_converts_the_hall_input_with_exact_transactions() {
     let expectations = [
-        I2cTx::write(ADDR, vec![ads1115::REG_CONFIG, HALL_CONFIG[0], HALL_CONFIG[1]]),
+        I2cTx::write(
+            ADDR,
+            vec![ads1115::REG_CONFIG, HALL_CONFIG[0], HALL_CONFIG[1]],
+        ),
         I2cTx::write_read(ADDR, vec![ads1115::REG_CONFIG], vec![0x85, 0xe3]), // ready
         I2cTx::write_read(ADDR, vec![ads1115::REG_CONVERSION], vec![0xf0, 0x00]),
     ];
@@ -35,7 +38,10 @@ fn adc_converts_the_hall_input_with_exact_transactions() {
 #[test]
 fn adc_waits_for_the_ready_bit_and_reads_the_thermistor_input() {
     let expectations = [
-        I2cTx::write(ADDR, vec![ads1115::REG_CONFIG, PROBE_CONFIG[0], PROBE_CONFIG[1]]),
+        I2cTx::write(
+            ADDR,
+            vec![ads1115::REG_CONFIG, PROBE_CONFIG[0], PROBE_CONFIG[1]],
+        ),
         I2cTx::write_read(ADDR, vec![ads1115::REG_CONFIG], vec![0x63, 0xe3]), // busy (OS=0)
         I2cTx::write_read(ADDR, vec![ads1115::REG_CONFIG], vec![0xe3, 0xe3]), // ready
         I2cTx::write_read(ADDR, vec![ads1115::REG_CONVERSION], vec![0x3e, 0x80]),
@@ -48,20 +54,40 @@ fn adc_waits_for_the_ready_bit_and_reads_the_thermistor_input() {
 
 #[test]
 fn adc_reports_a_converter_that_never_finishes_and_bus_errors() {
-    let mut expectations = vec![I2cTx::write(ADDR, vec![ads1115::REG_CONFIG, HALL_CONFIG[0], HALL_CONFIG[1]])];
+    let mut expectations = vec![I2cTx::write(
+        ADDR,
+        vec![ads1115::REG_CONFIG, HALL_CONFIG[0], HALL_CONFIG[1]],
+    )];
     for _ in 0..ads1115::READY_POLLS {
-        expectations.push(I2cTx::write_read(ADDR, vec![ads1115::REG_CONFIG], vec![0x05, 0xe3]));
+        expectations.push(I2cTx::write_read(
+            ADDR,
+            vec![ads1115::REG_CONFIG],
+            vec![0x05, 0xe3],
+        ));
     }
-    expectations.push(I2cTx::write(ADDR, vec![ads1115::REG_CONFIG, HALL_CONFIG[0], HALL_CONFIG[1]]).with_error(I2cErrorKind::Other));
+    expectations.push(
+        I2cTx::write(
+            ADDR,
+            vec![ads1115::REG_CONFIG, HALL_CONFIG[0], HALL_CONFIG[1]],
+        )
+        .with_error(I2cErrorKind::Other),
+    );
     let mut adc = ads1115::Ads1115::new(I2cMock::new(&expectations), NoopDelay::new(), ADDR);
     assert_eq!(adc.convert(AdcInput::Hall), Err(ads1115::Error::NotReady));
-    assert_eq!(adc.convert(AdcInput::Hall), Err(ads1115::Error::Bus(I2cErrorKind::Other)));
+    assert_eq!(
+        adc.convert(AdcInput::Hall),
+        Err(ads1115::Error::Bus(I2cErrorKind::Other))
+    );
     let (mut i2c, _) = adc.release();
     i2c.done();
 }
 
 fn spi_read(bytes: [u8; 4]) -> Vec<SpiTx<u8>> {
-    vec![SpiTx::transaction_start(), SpiTx::read_vec(bytes.to_vec()), SpiTx::transaction_end()]
+    vec![
+        SpiTx::transaction_start(),
+        SpiTx::read_vec(bytes.to_vec()),
+        SpiTx::transaction_end(),
+    ]
 }
 
 #[test]
@@ -81,7 +107,10 @@ fn thermocouple_converter_reads_temperature_and_fault_bits() {
     assert_eq!((w.tc_c(), w.cj_c(), w.fault()), (100.0, 25.0, None));
     let w = tc.read_word().unwrap();
     assert_eq!((w.tc_c(), w.fault()), (-250.0, Some(ThermoFault::Open)));
-    assert_eq!(tc.read_word().unwrap().fault(), Some(ThermoFault::ShortToVcc));
+    assert_eq!(
+        tc.read_word().unwrap().fault(),
+        Some(ThermoFault::ShortToVcc)
+    );
     assert_eq!(tc.read_word(), Err(max31855::Error::NoDevice));
     tc.release().done();
 }
@@ -100,7 +129,10 @@ impl SpiDevice for BrokenSpi {
 #[test]
 fn thermocouple_converter_passes_bus_errors_on() {
     let mut tc = max31855::Max31855::new(BrokenSpi);
-    assert_eq!(tc.read_word(), Err(max31855::Error::Bus(SpiErrorKind::ModeFault)));
+    assert_eq!(
+        tc.read_word(),
+        Err(max31855::Error::Bus(SpiErrorKind::ModeFault))
+    );
 }
 
 #[test]
@@ -115,15 +147,28 @@ fn heater_drives_pwm_and_enable_and_turns_both_off() {
         // off
         PwmTx::set_duty_cycle(0),
     ];
-    let pin_tx = [PinTx::set(State::High), PinTx::set(State::High), PinTx::set(State::Low)];
+    let pin_tx = [
+        PinTx::set(State::High),
+        PinTx::set(State::High),
+        PinTx::set(State::Low),
+    ];
     let heater = Heater::new(PwmMock::new(&pwm_tx), PinMock::new(&pin_tx), 85);
     // The permit can only come from the interlocks: run one check on a healthy reading.
     let mut heater = heater;
-    let mut interlocks = remanent_firmware::safety::Interlocks::new(remanent_firmware::FirmwareConfig::REFERENCE, 0);
-    let reading = remanent_firmware::safety::Reading::Word(remanent_protocol::ThermoWord::from_parts(100, 400, None));
-    let permit = interlocks.check(0, reading, 0.0, 0.85, true).unwrap().unwrap();
+    let mut interlocks =
+        remanent_firmware::safety::Interlocks::new(remanent_firmware::FirmwareConfig::REFERENCE, 0);
+    let reading = remanent_firmware::safety::Reading::Word(
+        remanent_protocol::ThermoWord::from_parts(100, 400, None),
+    );
+    let permit = interlocks
+        .check(0, reading, 0.0, 0.85, true)
+        .unwrap()
+        .unwrap();
     heater.drive(permit, 0.5).unwrap();
-    let permit = interlocks.check(100, reading, 0.5, 0.85, true).unwrap().unwrap();
+    let permit = interlocks
+        .check(100, reading, 0.5, 0.85, true)
+        .unwrap()
+        .unwrap();
     heater.drive(permit, 1.0).unwrap();
     assert!((heater.duty() - 0.85).abs() < 1e-6);
     heater.off().unwrap();

@@ -21,7 +21,11 @@ fn heating_bench(above_c: f64) -> Bench {
 }
 
 fn assert_latched(b: &Bench, fault: Fault) {
-    assert!(matches!(b.device.mode(), Mode::Faulted(f) if *f == fault), "mode {:?}", b.device.mode());
+    assert!(
+        matches!(b.device.mode(), Mode::Faulted(f) if *f == fault),
+        "mode {:?}",
+        b.device.mode()
+    );
     assert_eq!(b.faults(), vec![fault], "exactly one fault report");
     assert!(b.heater_off());
 }
@@ -88,14 +92,23 @@ fn every_interlock_turns_the_heater_off_by_its_deadline_and_latches() {
         let mut b = heating_bench(60.0);
         (s.cause)(&mut b);
         let took = b.run_until(s.deadline_ms, |b| b.heater_off());
-        assert!(took <= s.deadline_ms, "{}: heater off after {took} ms", s.name);
+        assert!(
+            took <= s.deadline_ms,
+            "{}: heater off after {took} ms",
+            s.name
+        );
         // it stays off and latched
         b.run_for(3_000);
         assert!(b.heater_off(), "{}: heater came back", s.name);
         assert_latched(&b, s.fault);
         // a new run is refused while latched
         let id = b.send(Command::Start(profile(150.0, &[(100.0, 30.0, 60)])));
-        assert_eq!(b.reply_to(id), Some(Err(RefuseReason::FaultLatched(s.fault))), "{}", s.name);
+        assert_eq!(
+            b.reply_to(id),
+            Some(Err(RefuseReason::FaultLatched(s.fault))),
+            "{}",
+            s.name
+        );
         b.run_for(1_000);
         assert!(b.heater_off(), "{}", s.name);
     }
@@ -110,13 +123,19 @@ fn over_temperature_clears_only_below_the_reset_margin() {
     // still hot: refused, with the numbers
     let id = b.send(Command::ClearFault);
     match b.reply_to(id) {
-        Some(Err(RefuseReason::TooHotToClear { temp_tenth_c, below_tenth_c })) => {
+        Some(Err(RefuseReason::TooHotToClear {
+            temp_tenth_c,
+            below_tenth_c,
+        })) => {
             assert!(temp_tenth_c > 1500);
             assert_eq!(below_tenth_c, 1500 - CFG.limits.reset_margin_tenth_c);
         }
         other => panic!("clear while hot: {other:?}"),
     }
-    assert!(matches!(b.device.mode(), Mode::Faulted(Fault::OverTemperature)));
+    assert!(matches!(
+        b.device.mode(),
+        Mode::Faulted(Fault::OverTemperature)
+    ));
     // cool down below the margin, then clear
     b.plant.borrow_mut().external_heat_w = 0.0;
     b.plant.borrow_mut().temp_c = 130.0;
@@ -132,7 +151,10 @@ fn thermocouple_fault_cannot_be_cleared_while_open() {
     b.plant.borrow_mut().tc_fault = Some(ThermoFault::Open);
     b.run_for(200);
     let id = b.send(Command::ClearFault);
-    assert_eq!(b.reply_to(id), Some(Err(RefuseReason::FaultLatched(Fault::ThermocoupleOpen))));
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::FaultLatched(Fault::ThermocoupleOpen)))
+    );
     b.plant.borrow_mut().tc_fault = None;
     let id = b.send(Command::ClearFault);
     assert_eq!(b.reply_to(id), Some(Ok(())));
@@ -144,17 +166,38 @@ fn commands_beyond_the_limits_are_refused_not_clamped() {
     let ceiling = CFG.limits.ceiling_tenth_c;
     // setpoint above the compiled-in ceiling
     let id = b.start_manual(400.0, 400.0);
-    assert_eq!(b.reply_to(id), Some(Err(RefuseReason::AboveCeiling { ceiling_tenth_c: ceiling })));
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::AboveCeiling {
+            ceiling_tenth_c: ceiling
+        }))
+    );
     // setpoint above the run's own limit
     let id = b.start_manual(120.0, 100.0);
-    assert_eq!(b.reply_to(id), Some(Err(RefuseReason::AboveRunLimit { limit_tenth_c: 1000 })));
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::AboveRunLimit {
+            limit_tenth_c: 1000
+        }))
+    );
     // profile target above its limit
-    let id = b.send(Command::Start(profile(100.0, &[(80.0, 10.0, 10), (110.0, 10.0, 10)])));
-    assert_eq!(b.reply_to(id), Some(Err(RefuseReason::AboveRunLimit { limit_tenth_c: 1000 })));
+    let id = b.send(Command::Start(profile(
+        100.0,
+        &[(80.0, 10.0, 10), (110.0, 10.0, 10)],
+    )));
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::AboveRunLimit {
+            limit_tenth_c: 1000
+        }))
+    );
     // empty profile, bad sampling settings
     let id = b.send(Command::Start(profile(100.0, &[])));
     assert_eq!(b.reply_to(id), Some(Err(RefuseReason::Invalid)));
-    let id = b.send(Command::Configure(SamplingConfig { period_ms: 1, oversample: 4 }));
+    let id = b.send(Command::Configure(SamplingConfig {
+        period_ms: 1,
+        oversample: 4,
+    }));
     assert_eq!(b.reply_to(id), Some(Err(RefuseReason::Invalid)));
     b.run_for(2_000);
     assert!(b.heater_off(), "nothing refused may heat");
@@ -164,15 +207,24 @@ fn commands_beyond_the_limits_are_refused_not_clamped() {
 #[test]
 fn commands_before_the_handshake_or_from_another_version_are_refused() {
     let mut b = Bench::new();
-    let other = Version { protocol: VERSION.protocol + 1, schema: 1 };
+    let other = Version {
+        protocol: VERSION.protocol + 1,
+        schema: 1,
+    };
     let id = b.send(Command::Hello(other));
-    assert_eq!(b.reply_to(id), Some(Err(RefuseReason::VersionMismatch(VERSION))));
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::VersionMismatch(VERSION)))
+    );
 }
 
 #[test]
 fn a_profile_runs_to_the_end_and_turns_the_heater_off() {
     let mut b = Bench::new();
-    let id = b.send(Command::Start(profile(120.0, &[(60.0, 60.0, 30), (40.0, 60.0, 10)])));
+    let id = b.send(Command::Start(profile(
+        120.0,
+        &[(60.0, 60.0, 30), (40.0, 60.0, 10)],
+    )));
     assert_eq!(b.reply_to(id), Some(Ok(())));
     let mut max_c: f64 = 0.0;
     b.run_until(3_600_000, |b| {

@@ -49,7 +49,11 @@ impl Thermocouple for FakeTc {
         }
         // the cold junction dithers by one count, as a real one does
         let cj = 25 * 16 + (p.ticks % 2) as i16;
-        Ok(ThermoWord::from_parts((p.temp_c * 4.0).round() as i16, cj, p.tc_fault))
+        Ok(ThermoWord::from_parts(
+            (p.temp_c * 4.0).round() as i16,
+            cj,
+            p.tc_fault,
+        ))
     }
 }
 
@@ -104,9 +108,20 @@ impl Bench {
             heater_attached: true,
             ..Plant::default()
         }));
-        let board = BoardInfo { name: "bench-test", supply_mv: 3300, ntc_series_ohm: 10_000 };
+        let board = BoardInfo {
+            name: "bench-test",
+            supply_mv: 3300,
+            ntc_series_ohm: 10_000,
+        };
         let heater = Heater::new(FakePwm(plant.clone()), FakePin(plant.clone()), 85);
-        let device = Device::new(FirmwareConfig::REFERENCE, board, FakeAdc, FakeTc(plant.clone()), heater, 0);
+        let device = Device::new(
+            FirmwareConfig::REFERENCE,
+            board,
+            FakeAdc,
+            FakeTc(plant.clone()),
+            heater,
+            0,
+        );
         let mut bench = Bench {
             plant,
             device,
@@ -136,7 +151,8 @@ impl Bench {
         while let Some(frame) = self.device.next_frame(&mut buf) {
             let frame = frame.to_vec();
             let received = &mut self.received;
-            self.decoder.feed(&frame, |r| received.push(r.expect("device frames decode")));
+            self.decoder
+                .feed(&frame, |r| received.push(r.expect("device frames decode")));
         }
     }
 
@@ -145,7 +161,11 @@ impl Bench {
         self.now_ms += STEP_MS;
         {
             let mut p = self.plant.borrow_mut();
-            let power_w = if p.enabled && p.heater_attached { p.duty * 150.0 } else { 0.0 };
+            let power_w = if p.enabled && p.heater_attached {
+                p.duty * 150.0
+            } else {
+                0.0
+            };
             let dt = f64::from(STEP_MS) / 1000.0;
             p.temp_c += (power_w + p.external_heat_w - 0.5 * (p.temp_c - 22.0)) / 150.0 * dt;
             p.ticks += 1;
@@ -167,7 +187,10 @@ impl Bench {
     pub fn run_until(&mut self, limit_ms: u32, mut cond: impl FnMut(&Bench) -> bool) -> u32 {
         let start = self.now_ms;
         while !cond(self) {
-            assert!(self.now_ms - start <= limit_ms, "condition not reached within {limit_ms} ms");
+            assert!(
+                self.now_ms - start <= limit_ms,
+                "condition not reached within {limit_ms} ms"
+            );
             self.step();
         }
         self.now_ms - start
@@ -215,5 +238,8 @@ pub fn profile(limit_c: f64, segments: &[(f64, f64, u32)]) -> Profile {
             })
             .unwrap();
     }
-    Profile { limit_tenth_c: (limit_c * 10.0) as i16, segments: segs }
+    Profile {
+        limit_tenth_c: (limit_c * 10.0) as i16,
+        segments: segs,
+    }
 }

@@ -1,0 +1,335 @@
+//! The analysis input: a time series of temperature and flux density (and the probe's
+//! temperature when known), from a run directory (re-converted from raw codes) or a CSV log.
+
+use std::collections::HashMap;
+use std::path::Path;
+
+use remanent_protocol::ThermoWord;
+
+use crate::calibration::Calibration;
+use crate::conversion;
+use crate::magnets::MagnetInfo;
+use crate::run_dir::{self, RunMeta, SAMPLES_FILE};
+
+/// Time series, equal lengths, strictly increasing time.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Series {
+    /// Time, s.
+    pub time_s: Vec<f64>,
+    /// Thermocouple temperature, °C.
+    pub temp_c: Vec<f64>,
+    /// Flux density, mT.
+    pub flux_mt: Vec<f64>,
+    /// Probe temperature, °C, when known.
+    pub probe_c: Option<Vec<f64>>,
+    /// Heater duty, %, when known (for plots).
+    pub duty_pct: Option<Vec<f64>>,
+    /// Rows left out (thermocouple faults, saturated Hall readings), with why.
+    pub skipped: Vec<(usize, String)>,
+}
+
+/// Where the series came from and what is known about it.
+#[derive(Debug, Clone)]
+pub struct Source {
+    /// File or directory.
+    pub path: String,
+    /// Run metadata, for a run directory.
+    pub meta: Option<RunMeta>,
+    /// Calibration used.
+    pub calibration: Option<Calibration>,
+    /// Magnet facts.
+    pub magnet: Option<MagnetInfo>,
+}
+
+/// Input problems, naming the file, line and column.
+#[derive(Debug, thiserror::Error)]
+pub enum InputError {
+    /// Unreadable.
+    #[error("cannot read {path}: {reason}")]
+    Io {
+        /// File.
+        path: String,
+        /// Why.
+        reason: String,
+    },
+    /// A required column is missing.
+    #[error("{path}: line 1: no `{column}` column (columns found: {found})")]
+    MissingColumn {
+        /// File.
+        path: String,
+        /// Column wanted.
+        column: String,
+        /// Columns present.
+        found: String,
+    },
+    /// A cell is not a number.
+    #[error("{path}: line {line}, column `{column}`: `{value}` is not a number")]
+    NotANumber {
+        /// File.
+        path: String,
+        /// 1-based line.
+        line: usize,
+        /// Column.
+        column: String,
+        /// The cell.
+        value: String,
+    },
+    /// Time goes backwards or repeats.
+    #[error("{path}: line {line}, column `time_s`: time {value} s does not increase (previous {previous} s)")]
+    TimeOrder {
+        /// File.
+        path: String,
+        /// 1-based line.
+        line: usize,
+        /// This time.
+        value: f64,
+        /// Previous time.
+        previous: f64,
+    },
+    /// A row has the wrong number of fields.
+    #[error("{path}: line {line}: {reason}")]
+    Row {
+        /// File.
+        path: String,
+        /// 1-based line.
+        line: usize,
+        /// Why.
+        reason: String,
+    },
+    /// Not enough rows.
+    #[error("{path}: only {n} usable rows; at least {min} are needed")]
+    TooFew {
+        /// File.
+        path: String,
+        /// Rows.
+        n: usize,
+        /// Needed.
+        min: usize,
+    },
+    /// Metadata problem.
+    #[error(transparent)]
+    Run(#[from] run_dir::RunDirError),
+}
+
+/// Fewest rows worth analysing.
+pub const MIN_ROWS: usize = 20;
+
+/// Options for plain CSV logs.
+#[derive(Debug, Clone, Default)]
+pub struct CsvOptions {
+    /// Our column name → the file's column name.
+    pub rename: HashMap<String, String>,
+    /// Probe sensitivity coefficient, %/°C, to correct flux with `probe_temp_C`.
+    pub probe_tc_pct_per_c: Option<f64>,
+}
+
+fn csv_reader(path: &Path) -> Result<csv::Reader<std::fs::File>, InputError> {
+    csv::ReaderBuilder::new()
+        .trim(csv::Trim::All)
+        .comment(Some(b'#'))
+        .from_path(path)
+        .map_err(|e| InputError::Io {
+            path: path.display().to_string(),
+            reason: e.to_string(),
+        })
+}
+
+fn row_err(path: &str, e: csv::Error) -> InputError {
+    let line = e.position().map(|p| p.line() as usize).unwrap_or(0);
+    InputError::Row {
+        path: path.into(),
+        line,
+        reason: e.to_string(),
+    }
+}
+
+fn check_time(path: &str, line: usize, t: f64, times: &[f64]) -> Result<(), InputError> {
+    if let Some(&prev) = times.last() {
+        if t <= prev {
+            return Err(InputError::TimeOrder {
+                path: path.into(),
+                line,
+                value: t,
+                previous: prev,
+            });
+        }
+    }
+    Ok(())
+}
+
+/// Load a plain CSV log: `time_s`, `temp_C`, one of `flux_mT` / `flux_T` / `flux_G`, and
+/// optionally `probe_temp_C`.
+pub fn load_csv(path: &Path, opts: &CsvOptions) -> Result<Series, InputError> {
+    let p = path.display().to_string();
+    let mut rdr = csv_reader(path)?;
+    let headers = rdr.headers().map_err(|e| row_err(&p, e))?.clone();
+    let name = |ours: &str| {
+        opts.rename
+            .get(ours)
+            .cloned()
+            .unwrap_or_else(|| ours.to_string())
+    };
+    let find = |col: &str| headers.iter().position(|h| h == col);
+    let need = |ours: &str| {
+        let col = name(ours);
+        find(&col).ok_or_else(|| InputError::MissingColumn {
+            path: p.clone(),
+            column: col,
+            found: headers.iter().collect::<Vec<_>>().join(", "),
+        })
+    };
+    let time_i = need("time_s")?;
+    let temp_i = need("temp_C")?;
+    let (flux_i, to_mt) = [("flux_mT", 1.0), ("flux_T", 1000.0), ("flux_G", 0.1)]
+        .iter()
+        .find_map(|(c, f)| find(&name(c)).map(|i| (i, *f)))
+        .ok_or_else(|| InputError::MissingColumn {
+            path: p.clone(),
+            column: "flux_mT (or flux_T, flux_G)".into(),
+            found: headers.iter().collect::<Vec<_>>().join(", "),
+        })?;
+    let probe_i = find(&name("probe_temp_C"));
+    let mut s = Series::default();
+    let mut probe = Vec::new();
+    for rec in rdr.records() {
+        let rec = rec.map_err(|e| row_err(&p, e))?;
+        let line = rec.position().map(|q| q.line() as usize).unwrap_or(0);
+        let num = |i: usize| -> Result<f64, InputError> {
+            let v = rec.get(i).unwrap_or("");
+            v.parse::<f64>()
+                .ok()
+                .filter(|x| x.is_finite())
+                .ok_or_else(|| InputError::NotANumber {
+                    path: p.clone(),
+                    line,
+                    column: headers.get(i).unwrap_or("?").to_string(),
+                    value: v.to_string(),
+                })
+        };
+        let t = num(time_i)?;
+        check_time(&p, line, t, &s.time_s)?;
+        let mut b = num(flux_i)? * to_mt;
+        let tp = probe_i.map(num).transpose()?;
+        if let (Some(tc), Some(tp)) = (opts.probe_tc_pct_per_c, tp) {
+            b /= 1.0 + tc / 100.0 * (tp - 25.0);
+        }
+        s.time_s.push(t);
+        s.temp_c.push(num(temp_i)?);
+        s.flux_mt.push(b);
+        if let Some(tp) = tp {
+            probe.push(tp);
+        }
+    }
+    if probe_i.is_some() {
+        s.probe_c = Some(probe);
+    }
+    if s.time_s.len() < MIN_ROWS {
+        return Err(InputError::TooFew {
+            path: p,
+            n: s.time_s.len(),
+            min: MIN_ROWS,
+        });
+    }
+    Ok(s)
+}
+
+/// Load a run directory, converting the raw codes again with `calibration` (default: the one
+/// recorded with the run).
+pub fn load_run(
+    dir: &Path,
+    calibration: Option<Calibration>,
+) -> Result<(Series, Source), InputError> {
+    let meta = run_dir::read_meta(dir)?;
+    let cal = calibration.unwrap_or(meta.calibration);
+    let path = dir.join(SAMPLES_FILE);
+    let p = path.display().to_string();
+    let mut rdr = csv_reader(&path)?;
+    let headers = rdr.headers().map_err(|e| row_err(&p, e))?.clone();
+    let col = |c: &str| {
+        headers
+            .iter()
+            .position(|h| h == c)
+            .ok_or_else(|| InputError::MissingColumn {
+                path: p.clone(),
+                column: c.into(),
+                found: headers.iter().collect::<Vec<_>>().join(", "),
+            })
+    };
+    let (ti, hi, pi, wi, di) = (
+        col("device_time_s")?,
+        col("hall_code")?,
+        col("probe_code")?,
+        col("thermo_word")?,
+        col("heater_duty_pct")?,
+    );
+    let mut s = Series::default();
+    let mut probe = Vec::new();
+    let mut duty = Vec::new();
+    for (row, rec) in rdr.records().enumerate() {
+        let rec = rec.map_err(|e| row_err(&p, e))?;
+        let line = row + 2;
+        let field = |i: usize, name: &str| -> Result<&str, InputError> {
+            rec.get(i).ok_or_else(|| InputError::Row {
+                path: p.clone(),
+                line,
+                reason: format!("no `{name}` field"),
+            })
+        };
+        let bad = |i: usize, v: &str| InputError::NotANumber {
+            path: p.clone(),
+            line,
+            column: headers.get(i).unwrap_or("?").into(),
+            value: v.into(),
+        };
+        let t_txt = field(ti, "device_time_s")?;
+        let t: f64 = t_txt.parse().map_err(|_| bad(ti, t_txt))?;
+        let h_txt = field(hi, "hall_code")?;
+        let hall: i16 = h_txt.parse().map_err(|_| bad(hi, h_txt))?;
+        let pr_txt = field(pi, "probe_code")?;
+        let probe_code: i16 = pr_txt.parse().map_err(|_| bad(pi, pr_txt))?;
+        let w_txt = field(wi, "thermo_word")?;
+        let word = ThermoWord(u32::from_str_radix(w_txt, 16).map_err(|_| bad(wi, w_txt))?);
+        let d_txt = field(di, "heater_duty_pct")?;
+        let d: f64 = d_txt.parse().map_err(|_| bad(di, d_txt))?;
+        check_time(&p, line, t, &s.time_s)?;
+        let Some(tc) = conversion::thermocouple_c(word, &cal) else {
+            s.skipped
+                .push((line, format!("thermocouple fault {:?}", word.fault())));
+            continue;
+        };
+        let Some(tp) = conversion::probe_c(probe_code, &cal.ntc) else {
+            s.skipped
+                .push((line, "probe thermistor open or shorted".into()));
+            continue;
+        };
+        if conversion::hall_saturated(hall) {
+            s.skipped
+                .push((line, "Hall reading at the converter's limit".into()));
+            continue;
+        }
+        s.time_s.push(t);
+        s.temp_c.push(tc);
+        s.flux_mt.push(conversion::flux_mt(hall, tp, &cal.hall));
+        probe.push(tp);
+        duty.push(d);
+    }
+    s.probe_c = Some(probe);
+    s.duty_pct = Some(duty);
+    if s.time_s.len() < MIN_ROWS {
+        return Err(InputError::TooFew {
+            path: p,
+            n: s.time_s.len(),
+            min: MIN_ROWS,
+        });
+    }
+    let magnet = Some(meta.magnet.clone());
+    Ok((
+        s,
+        Source {
+            path: dir.display().to_string(),
+            meta: Some(meta),
+            calibration: Some(cal),
+            magnet,
+        },
+    ))
+}

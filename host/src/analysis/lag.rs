@@ -1,0 +1,65 @@
+//! Thermal lag: the magnet follows the thermocouple as a first-order system. Its time
+//! constant is the one that makes the heating and cooling branches coincide.
+
+/// The thermocouple series filtered by a first-order lag of `tau_s` (exact discretization).
+pub fn lagged(time_s: &[f64], temp_c: &[f64], tau_s: f64) -> Vec<f64> {
+    let mut out = Vec::with_capacity(temp_c.len());
+    let Some(&first) = temp_c.first() else {
+        return out;
+    };
+    let mut m = first;
+    out.push(m);
+    for i in 1..temp_c.len() {
+        if tau_s <= 0.0 {
+            m = temp_c[i];
+        } else {
+            let k = 1.0 - (-(time_s[i] - time_s[i - 1]) / tau_s).exp();
+            // trapezoid on the input: the magnet sees the mean over the step
+            m += k * (0.5 * (temp_c[i] + temp_c[i - 1]) - m);
+        }
+        out.push(m);
+    }
+    out
+}
+
+/// Minimize `cost(τ)` over `[0, max_s]`: a coarse grid, then golden-section refinement.
+pub fn minimize(max_s: f64, mut cost: impl FnMut(f64) -> f64) -> (f64, f64) {
+    let grid: Vec<f64> = (0..=60).map(|i| max_s * f64::from(i) / 60.0).collect();
+    let costs: Vec<f64> = grid.iter().map(|&t| cost(t)).collect();
+    let best = costs
+        .iter()
+        .enumerate()
+        .min_by(|a, b| a.1.total_cmp(b.1))
+        .map(|(i, _)| i)
+        .unwrap_or(0);
+    let (mut a, mut b) = (
+        grid[best.saturating_sub(1)],
+        grid[(best + 1).min(grid.len() - 1)],
+    );
+    let g = (5f64.sqrt() - 1.0) / 2.0;
+    let mut c = b - g * (b - a);
+    let mut d = a + g * (b - a);
+    let (mut fc, mut fd) = (cost(c), cost(d));
+    for _ in 0..40 {
+        if fc < fd {
+            b = d;
+            d = c;
+            fd = fc;
+            c = b - g * (b - a);
+            fc = cost(c);
+        } else {
+            a = c;
+            c = d;
+            fc = fd;
+            d = a + g * (b - a);
+            fd = cost(d);
+        }
+    }
+    let tau = 0.5 * (a + b);
+    let best_cost = cost(tau).min(costs[best]);
+    if costs[best] < cost(tau) {
+        (grid[best], best_cost)
+    } else {
+        (tau, best_cost)
+    }
+}

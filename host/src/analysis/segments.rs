@@ -1,0 +1,90 @@
+//! Finding the parts of a heat cycle: the reference readings before and after the excursion,
+//! the peak, the heating and cooling branches, and the soaks.
+
+use std::ops::Range;
+
+/// The parts of a cycle, as index ranges into the series.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Segments {
+    /// Settled readings before heating began.
+    pub before: Range<usize>,
+    /// Settled readings after the return, if the record has them.
+    pub after: Option<Range<usize>>,
+    /// Index of the highest temperature.
+    pub peak: usize,
+    /// From the end of `before` to the peak.
+    pub heating: Range<usize>,
+    /// From the peak to the start of `after` (or the end).
+    pub cooling: Range<usize>,
+    /// Stretches where the temperature held still.
+    pub soaks: Vec<Range<usize>>,
+}
+
+/// How far the temperature may stray and still count as the reference, K.
+pub const REFERENCE_BAND_K: f64 = 0.6;
+/// Soaks: slower than this, °C/min …
+pub const SOAK_RATE_C_PER_MIN: f64 = 0.15;
+/// … for at least this long, s.
+pub const SOAK_MIN_S: f64 = 60.0;
+
+/// Split a series into its parts; `temp_c` should already be the lag-corrected magnet
+/// temperature when that is known.
+pub fn find(time_s: &[f64], temp_c: &[f64]) -> Segments {
+    let n = temp_c.len();
+    let start = temp_c[..n.min(20)].iter().sum::<f64>() / n.min(20) as f64;
+    let rise = temp_c
+        .iter()
+        .position(|&t| t > start + REFERENCE_BAND_K)
+        .unwrap_or(n);
+    let before = 0..rise.max(1);
+    let peak = temp_c
+        .iter()
+        .enumerate()
+        .max_by(|a, b| a.1.total_cmp(b.1))
+        .map(|(i, _)| i)
+        .unwrap_or(0);
+    let end_t = temp_c[n - 1];
+    // the settled tail: back from the end while within the band of the final value
+    let mut tail = n - 1;
+    while tail > peak && (temp_c[tail - 1] - end_t).abs() < REFERENCE_BAND_K * 0.5 {
+        tail -= 1;
+    }
+    let returned =
+        (end_t - start).abs() < 3.0 && peak < tail && time_s[n - 1] - time_s[tail] >= 30.0;
+    let after = returned.then_some(tail..n);
+    let heating = before.end.min(peak)..peak;
+    let cooling = peak..after.as_ref().map(|a| a.start).unwrap_or(n);
+    Segments {
+        before,
+        after,
+        peak,
+        heating,
+        cooling,
+        soaks: soaks(time_s, temp_c),
+    }
+}
+
+fn soaks(time_s: &[f64], temp_c: &[f64]) -> Vec<Range<usize>> {
+    let n = temp_c.len();
+    let mut out = Vec::new();
+    let mut i = 0;
+    while i < n {
+        let mut j = i;
+        // extend while the drift from the window's start stays below the rate bound
+        while j + 1 < n {
+            let dt = time_s[j + 1] - time_s[i];
+            let allowed = SOAK_RATE_C_PER_MIN / 60.0 * dt.max(SOAK_MIN_S);
+            if (temp_c[j + 1] - temp_c[i]).abs() > allowed {
+                break;
+            }
+            j += 1;
+        }
+        if time_s[j] - time_s[i] >= SOAK_MIN_S {
+            out.push(i..j + 1);
+            i = j + 1;
+        } else {
+            i += ((j - i) / 2).max(1);
+        }
+    }
+    out
+}

@@ -1,0 +1,58 @@
+//! Command-line front end: one module per subcommand, clap derive, anyhow at the edge.
+
+use clap::{Parser, Subcommand};
+
+mod analyze;
+mod demo;
+mod magnets;
+mod ports;
+mod progress;
+mod record;
+mod report;
+mod virtual_rig;
+
+/// Remanent: temperature behaviour of permanent magnets on a heated bench fixture.
+#[derive(Parser)]
+#[command(name = "remanent", version, about)]
+struct Cli {
+    #[command(subcommand)]
+    command: Cmd,
+}
+
+#[derive(Subcommand)]
+enum Cmd {
+    /// Run the whole job on the built-in virtual rig: record, analyse, plot, report.
+    Demo(demo::Args),
+    /// Record a heat cycle from a bench (or a virtual rig) into a new run directory.
+    Record(record::Args),
+    /// Serve a virtual rig on a pseudo-terminal for any program to open.
+    VirtualRig(virtual_rig::Args),
+    /// List serial ports.
+    Ports,
+    /// List the built-in demo magnets.
+    Magnets,
+    /// Analyse a run directory or a CSV log: α, irreversible loss, verdict.
+    Analyze(analyze::Args),
+    /// Write plots and an HTML and Markdown report for a run.
+    Report(report::Args),
+}
+
+pub fn main() -> std::process::ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Cmd::Demo(a) => demo::run(a),
+        Cmd::Record(a) => record::run(a),
+        Cmd::VirtualRig(a) => virtual_rig::run(a),
+        Cmd::Ports => ports::run(),
+        Cmd::Magnets => magnets::run(),
+        Cmd::Analyze(a) => analyze::run(a),
+        Cmd::Report(a) => report::run(a),
+    };
+    match result {
+        Ok(code) => code,
+        Err(e) => {
+            eprintln!("error: {e:#}");
+            std::process::ExitCode::from(2)
+        }
+    }
+}

@@ -1,0 +1,58 @@
+//! Live progress of a record on the terminal, with indicatif.
+
+use std::time::Duration;
+
+use indicatif::{ProgressBar, ProgressStyle};
+use remanent::record::{LiveStatus, Progress};
+
+pub struct Bar {
+    bar: ProgressBar,
+}
+
+impl Bar {
+    pub fn new(nominal_s: f64) -> Bar {
+        let bar = ProgressBar::new(nominal_s.max(1.0) as u64);
+        bar.set_style(
+            ProgressStyle::with_template("{spinner} [{bar:28}] {msg}")
+                .expect("valid template")
+                .progress_chars("=> "),
+        );
+        bar.enable_steady_tick(Duration::from_millis(200));
+        Bar { bar }
+    }
+
+    pub fn finish(&self) {
+        self.bar.finish_and_clear();
+    }
+}
+
+fn fmt_opt(v: Option<f64>, unit: &str, prec: usize) -> String {
+    v.map(|x| format!("{x:.prec$} {unit}"))
+        .unwrap_or_else(|| format!("— {unit}"))
+}
+
+impl Progress for Bar {
+    fn update(&mut self, s: &LiveStatus) {
+        self.bar.set_position(s.elapsed_s as u64);
+        let fault = s
+            .fault
+            .map(|f| format!("  FAULT {f:?}"))
+            .unwrap_or_default();
+        self.bar.set_message(format!(
+            "{:>5.0} s elapsed, ~{:>5.0} s left | {} | {} | heater {:>3.0} % | {} | {} samples, {} missing, {} bad frames{fault}",
+            s.elapsed_s,
+            s.remaining_s,
+            fmt_opt(s.temp_c, "°C", 1),
+            fmt_opt(s.flux_mt, "mT", 2),
+            s.duty_pct,
+            fmt_opt(s.ramp_c_per_min, "°C/min", 1),
+            s.samples,
+            s.gap_samples,
+            s.bad_frames,
+        ));
+    }
+
+    fn note(&mut self, message: &str) {
+        self.bar.println(message);
+    }
+}

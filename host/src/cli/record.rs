@@ -1,0 +1,113 @@
+//! `remanent record`: one heat cycle from a port into a new run directory.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Arc;
+use std::time::Duration;
+
+use anyhow::Context;
+use remanent::calibration::Calibration;
+use remanent::record::{record, RecordEnd, RecordOptions, RecordSummary};
+use remanent::{magnets, profiles::ProfileSpec};
+use remanent_rig_model::RigParams;
+
+use super::progress::Bar;
+
+#[derive(clap::Args)]
+pub struct Args {
+    /// Serial port of the bench (or the path `remanent virtual-rig` printed).
+    #[arg(long)]
+    port: String,
+    /// Profile: a built-in name (quick-alpha, exposure, curie-sweep) or a TOML file.
+    #[arg(long, default_value = "quick-alpha")]
+    profile: String,
+    /// Magnet: a demo part id (`remanent magnets`) or a magnet TOML file.
+    #[arg(long)]
+    magnet: String,
+    /// New run directory (must not exist).
+    #[arg(long)]
+    out: PathBuf,
+    /// Rig calibration TOML (default: the virtual rig's constants).
+    #[arg(long)]
+    calibration: Option<PathBuf>,
+    /// Run a profile that exceeds the magnet's rated maximum temperature.
+    #[arg(long)]
+    allow_over_rating: bool,
+}
+
+/// Ctrl-C sets the flag; the recorder then stops the heater and closes the record.
+pub fn stop_flag() -> anyhow::Result<Arc<AtomicBool>> {
+    let stop = Arc::new(AtomicBool::new(false));
+    let s = stop.clone();
+    ctrlc::set_handler(move || s.store(true, Ordering::Relaxed))
+        .context("installing the Ctrl-C handler")?;
+    Ok(stop)
+}
+
+pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+    let magnet = magnets::resolve(&a.magnet)?;
+    let profile = ProfileSpec::resolve(&a.profile)?;
+    profile.check_rating(
+        &magnet.info.id,
+        magnet.info.max_working_c,
+        a.allow_over_rating,
+    )?;
+    let calibration = match &a.calibration {
+        Some(p) => Calibration::load(p)?,
+        None => {
+            eprintln!("note: no --calibration given; converting with the virtual rig's constants");
+            Calibration::virtual_rig(&RigParams::REFERENCE)
+        }
+    };
+    let port = remanent::link::port::open(&a.port)?;
+    let opts = RecordOptions {
+        port_label: a.port.clone(),
+        magnet: magnet.info,
+        profile,
+        calibration,
+        out: a.out,
+        silence_timeout: Duration::from_secs(3),
+        stop: stop_flag()?,
+    };
+    let summary = record_with_bar(port, opts)?;
+    Ok(report_end(&summary))
+}
+
+pub fn record_with_bar(
+    port: Box<dyn serialport::SerialPort>,
+    opts: RecordOptions,
+) -> anyhow::Result<RecordSummary> {
+    let mut bar = Bar::new(opts.profile.nominal_duration_s(22.0));
+    let result = record(port, opts, &mut bar);
+    bar.finish();
+    Ok(result?)
+}
+
+/// Print how the record ended; the exit code says whether it is complete.
+pub fn report_end(s: &RecordSummary) -> ExitCode {
+    let c = &s.counts;
+    println!(
+        "record {}: {} samples, {} gaps ({} samples missing), {} rejected frames, {} dropped on the device",
+        s.dir.display(),
+        c.samples,
+        c.gaps,
+        c.gap_samples,
+        c.frames_bad_crc + c.frames_bad_cobs + c.frames_other,
+        c.device_dropped
+    );
+    match &s.end {
+        RecordEnd::Finished => {
+            println!("ended: {}", s.end.describe());
+            ExitCode::SUCCESS
+        }
+        other => {
+            eprintln!(
+                "ended early: {}; everything received is kept in {}",
+                other.describe(),
+                s.dir.display()
+            );
+            ExitCode::from(3)
+        }
+    }
+}

@@ -1,0 +1,61 @@
+//! `remanent virtual-rig`: serve the simulated bench on a pseudo-terminal until Ctrl-C.
+
+use std::process::ExitCode;
+use std::sync::atomic::Ordering;
+use std::time::Duration;
+
+use remanent::magnets;
+use remanent::virtual_rig::{VirtualRig, VirtualRigOptions};
+use remanent_rig_model::RigFaults;
+
+#[derive(clap::Args)]
+pub struct Args {
+    /// Magnet in the fixture: a demo part id or a magnet TOML file with a [model] section.
+    #[arg(long, default_value = "RM-N42SH-D10x5")]
+    magnet: String,
+    /// Simulated seconds per wall-clock second.
+    #[arg(long, default_value_t = 60.0)]
+    speed: f64,
+    /// Noise seed.
+    #[arg(long, default_value_t = 1)]
+    seed: u64,
+    /// The thermocouple goes open after this many simulated seconds.
+    #[arg(long)]
+    thermocouple_open_at_s: Option<f64>,
+    /// The heater is detached after this many simulated seconds.
+    #[arg(long)]
+    heater_detached_at_s: Option<f64>,
+    /// Probability that a byte to the host has a bit flipped.
+    #[arg(long, default_value_t = 0.0)]
+    link_flip_probability: f64,
+}
+
+pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+    let m = magnets::resolve(&a.magnet)?;
+    let model = m.model.ok_or_else(|| {
+        anyhow::anyhow!(
+            "magnet {} has no [model] section for the virtual rig",
+            m.info.id
+        )
+    })?;
+    let mut opts = VirtualRigOptions::new(model);
+    opts.speed = a.speed;
+    opts.seed = a.seed;
+    opts.faults = RigFaults {
+        thermocouple_open_at_s: a.thermocouple_open_at_s,
+        heater_detached_at_s: a.heater_detached_at_s,
+    };
+    opts.link_flip_probability = a.link_flip_probability;
+    let rig = VirtualRig::start(opts)?;
+    println!("{}", rig.path());
+    eprintln!(
+        "virtual rig with {} at {}× speed; open the port above (Ctrl-C to stop)",
+        m.info.id, a.speed
+    );
+    let stop = super::record::stop_flag()?;
+    while !stop.load(Ordering::Relaxed) {
+        std::thread::sleep(Duration::from_millis(100));
+    }
+    rig.stop()?;
+    Ok(ExitCode::SUCCESS)
+}

@@ -1,0 +1,17 @@
+//! Remanent host library: talk to the bench over a serial port (or to the built-in virtual
+//! rig), record heat cycles into run directories, convert raw codes with the rig's
+//! calibration, fit the reversible temperature coefficient with its uncertainty, measure
+//! irreversible loss, judge the magnet, and plot and report it.
+
+pub mod analysis;
+pub mod calibration;
+pub mod conversion;
+pub mod link;
+pub mod magnets;
+pub mod plots;
+pub mod profiles;
+pub mod record;
+pub mod report;
+pub mod run_dir;
+pub mod specs;
+pub mod virtual_rig;

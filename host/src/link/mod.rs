@@ -1,0 +1,9 @@
+//! The serial link to a device: framing both ways, the handshake, commands with their
+//! acknowledgements, and rebuilding full sequence numbers and device times from the beacons.
+
+pub mod port;
+pub mod session;
+pub mod timeline;
+
+pub use session::{LinkError, Session};
+pub use timeline::{PlacedSample, Timeline};

@@ -1,0 +1,76 @@
+//! Which magnet is in the fixture: an entry of the built-in demo catalogue, or a TOML file.
+
+use std::path::Path;
+
+use remanent_rig_model::catalogue;
+use remanent_rig_model::{Magnet, Shape};
+use serde::{Deserialize, Serialize};
+
+/// What the user states about the magnet under test.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct MagnetInfo {
+    /// The user's id for this piece.
+    pub id: String,
+    /// The grade it is sold as (looked up in the spec table).
+    pub grade: String,
+    /// Free text.
+    #[serde(default)]
+    pub description: String,
+    /// Rated maximum working temperature, °C.
+    #[serde(rename = "max_working_C")]
+    pub max_working_c: f64,
+    /// Geometry.
+    pub shape: Shape,
+}
+
+/// A magnet file: the facts, plus (for the virtual rig) a model of how it behaves.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct MagnetFile {
+    /// The stated facts.
+    #[serde(flatten)]
+    pub info: MagnetInfo,
+    /// How the virtual rig should make it behave.
+    pub model: Option<Magnet>,
+}
+
+/// A magnet could not be found.
+#[derive(Debug, thiserror::Error)]
+pub enum MagnetError {
+    /// Neither a catalogue id nor a readable file.
+    #[error("no demo magnet or file called `{0}`; `remanent magnets` lists the demo parts")]
+    Unknown(String),
+    /// The file is malformed.
+    #[error("magnet file {path} is not valid: {reason}")]
+    Parse {
+        /// The file.
+        path: String,
+        /// Why.
+        reason: String,
+    },
+}
+
+/// Resolve a catalogue id or a TOML file.
+pub fn resolve(id_or_path: &str) -> Result<MagnetFile, MagnetError> {
+    if let Some(p) = catalogue::find(id_or_path) {
+        return Ok(MagnetFile {
+            info: MagnetInfo {
+                id: p.id.into(),
+                grade: p.grade.into(),
+                description: p.description.into(),
+                max_working_c: p.magnet.max_working_c,
+                shape: p.magnet.shape,
+            },
+            model: Some(p.magnet),
+        });
+    }
+    let path = Path::new(id_or_path);
+    if !path.is_file() {
+        return Err(MagnetError::Unknown(id_or_path.into()));
+    }
+    let err = |reason: String| MagnetError::Parse {
+        path: path.display().to_string(),
+        reason,
+    };
+    let text = std::fs::read_to_string(path).map_err(|e| err(e.to_string()))?;
+    toml::from_str(&text).map_err(|e| err(e.to_string()))
+}

@@ -1,0 +1,415 @@
+//! Plots of a run, PNG and SVG, with a bundled font (no system fonts): flux against
+//! temperature with the fit, the residuals, and the time series. Large records are decimated
+//! for drawing by keeping each bin's minimum and maximum, so outliers stay visible.
+
+use std::path::{Path, PathBuf};
+use std::sync::Once;
+
+use plotters::coord::Shift;
+use plotters::prelude::*;
+
+use crate::analysis::dataset::Series;
+use crate::analysis::Analysis;
+use crate::report::ReportError;
+
+/// Pixel size of every plot.
+pub const SIZE: (u32, u32) = (1100, 700);
+
+const HEATING: RGBColor = RGBColor(200, 70, 30);
+const COOLING: RGBColor = RGBColor(30, 100, 190);
+const REFERENCE: RGBColor = RGBColor(20, 20, 20);
+const FIT: RGBColor = RGBColor(40, 150, 60);
+const DUTY: RGBColor = RGBColor(150, 90, 170);
+
+static FONT: Once = Once::new();
+
+/// Register the bundled DejaVu Sans as "sans-serif" (once).
+pub fn ensure_font() {
+    FONT.call_once(|| {
+        let _ = plotters::style::register_font(
+            "sans-serif",
+            FontStyle::Normal,
+            dejavu::sans::regular(),
+        );
+        let _ = plotters::style::register_font("sans-serif", FontStyle::Bold, dejavu::sans::bold());
+    });
+}
+
+/// Keep the minimum and maximum of `y` in each of `bins` equal slices (in order).
+pub fn decimate_minmax(x: &[f64], y: &[f64], bins: usize) -> Vec<(f64, f64)> {
+    let n = x.len();
+    if n <= 2 * bins {
+        return x.iter().copied().zip(y.iter().copied()).collect();
+    }
+    let mut out = Vec::with_capacity(2 * bins);
+    for b in 0..bins {
+        let (lo, hi) = (b * n / bins, ((b + 1) * n / bins).max(b * n / bins + 1));
+        let (mut imin, mut imax) = (lo, lo);
+        for i in lo..hi {
+            if y[i] < y[imin] {
+                imin = i;
+            }
+            if y[i] > y[imax] {
+                imax = i;
+            }
+        }
+        let (a, c) = if imin <= imax {
+            (imin, imax)
+        } else {
+            (imax, imin)
+        };
+        out.push((x[a], y[a]));
+        if c != a {
+            out.push((x[c], y[c]));
+        }
+    }
+    out
+}
+
+fn every(n: usize, max: usize) -> usize {
+    (n / max).max(1)
+}
+
+fn range(v: impl Iterator<Item = f64>) -> (f64, f64) {
+    let (lo, hi) = v.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
+        (a.min(x), b.max(x))
+    });
+    let pad = ((hi - lo) * 0.05).max(1e-6);
+    (lo - pad, hi + pad)
+}
+
+type DrawResult = Result<(), String>;
+
+fn flux_vs_temp<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    s: &Series,
+    a: &Analysis,
+    title: &str,
+) -> DrawResult {
+    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    root.fill(&WHITE).map_err(e)?;
+    let seg = a.segments.as_ref().ok_or("no segments")?;
+    let tm = &a.magnet_temp_c;
+    let b = &a.flux_corrected_mt;
+    let (tlo, thi) = range(tm.iter().copied());
+    let (blo, bhi) = range(b.iter().copied());
+    let mut chart = ChartBuilder::on(root)
+        .caption(
+            format!("Flux density against magnet temperature — {title}"),
+            ("sans-serif", 24),
+        )
+        .margin(20)
+        .x_label_area_size(50)
+        .y_label_area_size(80)
+        .build_cartesian_2d(tlo..thi, blo..bhi)
+        .map_err(e)?;
+    chart
+        .configure_mesh()
+        .x_desc("magnet temperature (lag-corrected), °C")
+        .y_desc("flux density at the probe, mT")
+        .label_style(("sans-serif", 16))
+        .axis_desc_style(("sans-serif", 18))
+        .draw()
+        .map_err(e)?;
+    let step = every(s.time_s.len(), 4000);
+    let pts =
+        |r: std::ops::Range<usize>| r.step_by(step).map(|i| (tm[i], b[i])).collect::<Vec<_>>();
+    chart
+        .draw_series(
+            pts(seg.heating.clone())
+                .into_iter()
+                .map(|p| Circle::new(p, 2, HEATING.filled())),
+        )
+        .map_err(e)?
+        .label("heating")
+        .legend(|(x, y)| Circle::new((x + 10, y), 4, HEATING.filled()));
+    chart
+        .draw_series(
+            pts(seg.cooling.clone())
+                .into_iter()
+                .map(|p| Circle::new(p, 2, COOLING.filled())),
+        )
+        .map_err(e)?
+        .label("cooling")
+        .legend(|(x, y)| Circle::new((x + 10, y), 4, COOLING.filled()));
+    let mut refs = pts(seg.before.clone());
+    if let Some(after) = &seg.after {
+        refs.extend(pts(after.clone()));
+    }
+    chart
+        .draw_series(
+            refs.into_iter()
+                .map(|p| TriangleMarker::new(p, 5, REFERENCE.filled())),
+        )
+        .map_err(e)?
+        .label(match a.irreversible_loss_pct {
+            Some(l) => format!("reference readings (loss {l:.2} %)"),
+            None => "reference readings".into(),
+        })
+        .legend(|(x, y)| TriangleMarker::new((x + 10, y), 5, REFERENCE.filled()));
+    let (f0, f1) = (a.fit_range_c[0], a.fit_range_c[1]);
+    chart
+        .draw_series(LineSeries::new(
+            (0..=200).map(|k| {
+                let t = f0 + (f1 - f0) * f64::from(k) / 200.0;
+                (t, a.fitted_mt(t))
+            }),
+            FIT.stroke_width(3),
+        ))
+        .map_err(e)?
+        .label(format!(
+            "fit: α = {:+.4} ± {:.4} %/°C (k = 2), {:.0}…{:.0} °C",
+            a.alpha_pct_per_c, a.alpha_u95_pct_per_c, f0, f1
+        ))
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FIT.stroke_width(3)));
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::UpperRight)
+        .label_font(("sans-serif", 16))
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(e)?;
+    root.present().map_err(e)
+}
+
+fn residuals<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    s: &Series,
+    a: &Analysis,
+    title: &str,
+) -> DrawResult {
+    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    root.fill(&WHITE).map_err(e)?;
+    let tm = &a.magnet_temp_c;
+    let seg = a.segments.as_ref().ok_or("no segments")?;
+    let loss = a.irreversible_loss_pct.unwrap_or(0.0).max(0.0) / 100.0;
+    let res: Vec<(f64, f64, bool)> = (0..s.time_s.len())
+        .step_by(every(s.time_s.len(), 5000))
+        .filter(|&i| tm[i] >= a.fit_range_c[0] && tm[i] <= a.fit_range_c[1])
+        .map(|i| {
+            let cooling = i > seg.peak;
+            let b = if cooling {
+                a.flux_corrected_mt[i] / (1.0 - loss)
+            } else {
+                a.flux_corrected_mt[i]
+            };
+            (tm[i], b - a.fitted_mt(tm[i]), cooling)
+        })
+        .collect();
+    let (tlo, thi) = range(res.iter().map(|r| r.0));
+    let lim = res.iter().map(|r| r.1.abs()).fold(0.0, f64::max).max(1e-3) * 1.1;
+    let mut chart = ChartBuilder::on(root)
+        .caption(format!("Fit residuals — {title}"), ("sans-serif", 24))
+        .margin(20)
+        .x_label_area_size(50)
+        .y_label_area_size(80)
+        .build_cartesian_2d(tlo..thi, -lim..lim)
+        .map_err(e)?;
+    chart
+        .configure_mesh()
+        .x_desc("magnet temperature (lag-corrected), °C")
+        .y_desc("measured − fitted, mT")
+        .label_style(("sans-serif", 16))
+        .axis_desc_style(("sans-serif", 18))
+        .draw()
+        .map_err(e)?;
+    chart
+        .draw_series(
+            res.iter()
+                .filter(|r| !r.2)
+                .map(|r| Circle::new((r.0, r.1), 2, HEATING.filled())),
+        )
+        .map_err(e)?
+        .label("heating")
+        .legend(|(x, y)| Circle::new((x + 10, y), 4, HEATING.filled()));
+    chart
+        .draw_series(
+            res.iter()
+                .filter(|r| r.2)
+                .map(|r| Circle::new((r.0, r.1), 2, COOLING.filled())),
+        )
+        .map_err(e)?
+        .label("cooling (scaled by the loss)")
+        .legend(|(x, y)| Circle::new((x + 10, y), 4, COOLING.filled()));
+    chart
+        .draw_series(LineSeries::new([(tlo, 0.0), (thi, 0.0)], BLACK))
+        .map_err(e)?;
+    chart
+        .configure_series_labels()
+        .label_font(("sans-serif", 16))
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(e)?;
+    root.present().map_err(e)
+}
+
+fn timeline<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    s: &Series,
+    a: &Analysis,
+    title: &str,
+) -> DrawResult {
+    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    root.fill(&WHITE).map_err(e)?;
+    let root = root
+        .titled(&format!("Time series — {title}"), ("sans-serif", 24))
+        .map_err(e)?;
+    let panels = root.split_evenly((3, 1));
+    let t_min: Vec<f64> = s.time_s.iter().map(|t| (t - s.time_s[0]) / 60.0).collect();
+    let (x0, x1) = (0.0, *t_min.last().unwrap_or(&1.0));
+    let bins = 1500;
+    // temperature: thermocouple and lag-corrected magnet
+    let tc = decimate_minmax(&t_min, &s.temp_c, bins);
+    let mag = decimate_minmax(&t_min, &a.magnet_temp_c, bins);
+    let (lo, hi) = range(s.temp_c.iter().copied());
+    let mut c = ChartBuilder::on(&panels[0])
+        .margin(10)
+        .x_label_area_size(30)
+        .y_label_area_size(80)
+        .build_cartesian_2d(x0..x1, lo..hi)
+        .map_err(e)?;
+    c.configure_mesh()
+        .y_desc("temperature, °C")
+        .label_style(("sans-serif", 14))
+        .axis_desc_style(("sans-serif", 16))
+        .draw()
+        .map_err(e)?;
+    c.draw_series(LineSeries::new(tc, HEATING.stroke_width(2)))
+        .map_err(e)?
+        .label("thermocouple")
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], HEATING));
+    c.draw_series(LineSeries::new(mag, COOLING.stroke_width(2)))
+        .map_err(e)?
+        .label("magnet (lag-corrected)")
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], COOLING));
+    if let Some(p) = &s.probe_c {
+        let probe = decimate_minmax(&t_min, p, bins);
+        c.draw_series(LineSeries::new(probe, FIT.stroke_width(2)))
+            .map_err(e)?
+            .label("Hall probe")
+            .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FIT));
+    }
+    c.configure_series_labels()
+        .label_font(("sans-serif", 14))
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(e)?;
+    // flux
+    let fx = decimate_minmax(&t_min, &s.flux_mt, bins);
+    let (lo, hi) = range(s.flux_mt.iter().copied());
+    let mut c = ChartBuilder::on(&panels[1])
+        .margin(10)
+        .x_label_area_size(30)
+        .y_label_area_size(80)
+        .build_cartesian_2d(x0..x1, lo..hi)
+        .map_err(e)?;
+    c.configure_mesh()
+        .y_desc("flux density, mT")
+        .label_style(("sans-serif", 14))
+        .axis_desc_style(("sans-serif", 16))
+        .draw()
+        .map_err(e)?;
+    c.draw_series(LineSeries::new(fx, REFERENCE.stroke_width(1)))
+        .map_err(e)?;
+    // gaps: mark any step in time over three periods
+    let period = if s.time_s.len() > 1 {
+        (s.time_s[s.time_s.len() - 1] - s.time_s[0]) / (s.time_s.len() - 1) as f64
+    } else {
+        1.0
+    };
+    let gaps: Vec<f64> = s
+        .time_s
+        .windows(2)
+        .filter(|w| w[1] - w[0] > 3.0 * period)
+        .map(|w| (w[0] - s.time_s[0]) / 60.0)
+        .collect();
+    c.draw_series(
+        gaps.iter()
+            .map(|&g| PathElement::new(vec![(g, lo), (g, hi)], RED.stroke_width(1))),
+    )
+    .map_err(e)?;
+    // duty
+    let mut c = ChartBuilder::on(&panels[2])
+        .margin(10)
+        .x_label_area_size(45)
+        .y_label_area_size(80)
+        .build_cartesian_2d(x0..x1, 0.0..100.0)
+        .map_err(e)?;
+    c.configure_mesh()
+        .x_desc("time since start, min")
+        .y_desc("heater duty, %")
+        .label_style(("sans-serif", 14))
+        .axis_desc_style(("sans-serif", 16))
+        .draw()
+        .map_err(e)?;
+    if let Some(d) = &s.duty_pct {
+        c.draw_series(LineSeries::new(
+            decimate_minmax(&t_min, d, bins),
+            DUTY.stroke_width(1),
+        ))
+        .map_err(e)?;
+    }
+    root.present().map_err(e)
+}
+
+type Plotter = fn(&Series, &Analysis, &str, &Path) -> DrawResult;
+
+macro_rules! both_backends {
+    ($name:ident, $draw:ident) => {
+        fn $name(s: &Series, a: &Analysis, title: &str, stem: &Path) -> DrawResult {
+            let png = stem.with_extension("png");
+            $draw(
+                &BitMapBackend::new(&png, SIZE).into_drawing_area(),
+                s,
+                a,
+                title,
+            )?;
+            let svg = stem.with_extension("svg");
+            let area = SVGBackend::new(&svg, SIZE).into_drawing_area();
+            let result = $draw(&area, s, a, title);
+            drop(area);
+            result
+        }
+    };
+}
+both_backends!(flux_vs_temp_files, flux_vs_temp);
+both_backends!(residuals_files, residuals);
+both_backends!(timeline_files, timeline);
+
+/// The plots of one run: (file stem, drawing function).
+pub const RUN_PLOTS: [(&str, Plotter); 3] = [
+    ("flux_vs_temp", flux_vs_temp_files),
+    ("residuals", residuals_files),
+    ("timeline", timeline_files),
+];
+
+/// Write every run plot into `dir`; refuses to replace files unless `force`.
+pub fn write_run_plots(
+    dir: &Path,
+    s: &Series,
+    a: &Analysis,
+    title: &str,
+    force: bool,
+) -> Result<Vec<PathBuf>, ReportError> {
+    ensure_font();
+    let mut written = Vec::new();
+    for (stem, draw) in RUN_PLOTS {
+        let base = dir.join(stem);
+        for ext in ["png", "svg"] {
+            let f = base.with_extension(ext);
+            if f.exists() && !force {
+                return Err(ReportError::Exists(f.display().to_string()));
+            }
+        }
+        draw(s, a, title, &base).map_err(|reason| ReportError::Plot {
+            path: base.display().to_string(),
+            reason,
+        })?;
+        written.push(base.with_extension("png"));
+        written.push(base.with_extension("svg"));
+    }
+    Ok(written)
+}

@@ -1,0 +1,235 @@
+//! Heating profiles: TOML ramp-and-hold segments, the built-in ones, and the check against
+//! the magnet's rated maximum temperature.
+
+use std::path::Path;
+
+use remanent_protocol::{Profile, Segment, Segments, MAX_SEGMENTS};
+use serde::{Deserialize, Serialize};
+
+/// One segment: ramp to a target at a rate, then hold.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct SegmentSpec {
+    /// Target, °C.
+    #[serde(rename = "target_C")]
+    pub target_c: f64,
+    /// Ramp rate, °C/min (0: step).
+    #[serde(rename = "ramp_C_per_min")]
+    pub ramp_c_per_min: f64,
+    /// Hold once the target is reached, s.
+    pub hold_s: f64,
+}
+
+/// A named profile.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ProfileSpec {
+    /// Short name.
+    pub name: String,
+    /// What it is for.
+    pub description: String,
+    /// The run's temperature limit, °C; the firmware refuses anything above it.
+    #[serde(rename = "limit_C")]
+    pub limit_c: f64,
+    /// The segments, in order.
+    #[serde(rename = "segment")]
+    pub segments: Vec<SegmentSpec>,
+}
+
+/// A profile is unusable.
+#[derive(Debug, thiserror::Error)]
+pub enum ProfileError {
+    /// Could not read it.
+    #[error("cannot read profile {path}: {source}")]
+    Io {
+        /// The file.
+        path: String,
+        /// Why.
+        source: std::io::Error,
+    },
+    /// Not valid TOML for a profile.
+    #[error("profile {path} is not valid: {source}")]
+    Parse {
+        /// The file.
+        path: String,
+        /// Why.
+        source: toml::de::Error,
+    },
+    /// Not a built-in name and no such file.
+    #[error(
+        "no built-in profile or file called `{0}` (built in: quick-alpha, exposure, curie-sweep)"
+    )]
+    Unknown(String),
+    /// Structurally wrong.
+    #[error("profile `{name}`: {problem}")]
+    Invalid {
+        /// Profile name.
+        name: String,
+        /// What is wrong.
+        problem: String,
+    },
+    /// Would heat the magnet above its rating.
+    #[error(
+        "profile `{name}` reaches {max_c:.0} °C, above the rated maximum working temperature of {magnet} ({rated_c:.0} °C): \
+         the magnet is likely to lose flux irreversibly. Pass --allow-over-rating if that is the point of the test"
+    )]
+    OverRating {
+        /// Profile name.
+        name: String,
+        /// Magnet id.
+        magnet: String,
+        /// Highest target, °C.
+        max_c: f64,
+        /// Rated maximum, °C.
+        rated_c: f64,
+    },
+}
+
+fn seg(target_c: f64, ramp_c_per_min: f64, hold_s: f64) -> SegmentSpec {
+    SegmentSpec {
+        target_c,
+        ramp_c_per_min,
+        hold_s,
+    }
+}
+
+/// The built-in profiles.
+pub fn builtin(name: &str) -> Option<ProfileSpec> {
+    Some(match name {
+        "quick-alpha" => ProfileSpec {
+            name: "quick-alpha".into(),
+            description: "reversible coefficient: reference at 25 °C, ramp to 100 °C and back at 5 °C/min, reference again".into(),
+            limit_c: 115.0,
+            segments: vec![seg(25.0, 0.0, 180.0), seg(100.0, 5.0, 240.0), seg(25.0, 5.0, 300.0)],
+        },
+        "exposure" => ProfileSpec {
+            name: "exposure".into(),
+            description: "irreversible loss: reference at 25 °C, 30 min at 150 °C, back to 25 °C, reference again".into(),
+            limit_c: 165.0,
+            segments: vec![seg(25.0, 0.0, 180.0), seg(150.0, 10.0, 1800.0), seg(25.0, 10.0, 300.0)],
+        },
+        "curie-sweep" => ProfileSpec {
+            name: "curie-sweep".into(),
+            description: "slow ramp to 340 °C to find where the field collapses (destroys NdFeB and ferrite)".into(),
+            limit_c: 350.0,
+            segments: vec![seg(25.0, 0.0, 120.0), seg(340.0, 5.0, 60.0), seg(25.0, 20.0, 60.0)],
+        },
+        _ => return None,
+    })
+}
+
+/// Names of the built-in profiles.
+pub const BUILTIN_NAMES: [&str; 3] = ["quick-alpha", "exposure", "curie-sweep"];
+
+impl ProfileSpec {
+    /// A built-in name, or a TOML file.
+    pub fn resolve(name_or_path: &str) -> Result<ProfileSpec, ProfileError> {
+        if let Some(p) = builtin(name_or_path) {
+            return Ok(p);
+        }
+        let path = Path::new(name_or_path);
+        if !path.exists() {
+            return Err(ProfileError::Unknown(name_or_path.into()));
+        }
+        let p = path.display().to_string();
+        let text = std::fs::read_to_string(path).map_err(|source| ProfileError::Io {
+            path: p.clone(),
+            source,
+        })?;
+        let spec: ProfileSpec =
+            toml::from_str(&text).map_err(|source| ProfileError::Parse { path: p, source })?;
+        spec.validate()?;
+        Ok(spec)
+    }
+
+    /// Highest target, °C.
+    pub fn max_target_c(&self) -> f64 {
+        self.segments
+            .iter()
+            .map(|s| s.target_c)
+            .fold(f64::NEG_INFINITY, f64::max)
+    }
+
+    /// Structural checks.
+    pub fn validate(&self) -> Result<(), ProfileError> {
+        let bad = |problem: String| {
+            Err(ProfileError::Invalid {
+                name: self.name.clone(),
+                problem,
+            })
+        };
+        if self.segments.is_empty() {
+            return bad("it has no segments".into());
+        }
+        if self.segments.len() > MAX_SEGMENTS {
+            return bad(format!(
+                "{} segments; the firmware takes at most {MAX_SEGMENTS}",
+                self.segments.len()
+            ));
+        }
+        for (i, s) in self.segments.iter().enumerate() {
+            if !(-50.0..=400.0).contains(&s.target_c) || s.ramp_c_per_min < 0.0 || s.hold_s < 0.0 {
+                return bad(format!(
+                    "segment {} has a target, rate or hold out of range",
+                    i + 1
+                ));
+            }
+            if s.target_c > self.limit_c {
+                return bad(format!(
+                    "segment {} targets {:.1} °C, above the profile's limit of {:.1} °C",
+                    i + 1,
+                    s.target_c,
+                    self.limit_c
+                ));
+            }
+        }
+        Ok(())
+    }
+
+    /// Check against a magnet's rating.
+    pub fn check_rating(
+        &self,
+        magnet_id: &str,
+        rated_c: f64,
+        allow_over: bool,
+    ) -> Result<(), ProfileError> {
+        let max_c = self.max_target_c();
+        if max_c > rated_c && !allow_over {
+            return Err(ProfileError::OverRating {
+                name: self.name.clone(),
+                magnet: magnet_id.into(),
+                max_c,
+                rated_c,
+            });
+        }
+        Ok(())
+    }
+
+    /// Rough duration, s, assuming ramps are followed (cooling near ambient takes longer).
+    pub fn nominal_duration_s(&self, start_c: f64) -> f64 {
+        let mut t = 0.0;
+        let mut from = start_c;
+        for s in &self.segments {
+            if s.ramp_c_per_min > 0.0 {
+                t += (s.target_c - from).abs() / s.ramp_c_per_min * 60.0;
+            }
+            t += s.hold_s;
+            from = s.target_c;
+        }
+        t
+    }
+
+    /// The wire form.
+    pub fn to_wire(&self) -> Profile {
+        let mut segments = Segments::default();
+        for s in &self.segments {
+            let _ = segments.0.push(Segment {
+                target_tenth_c: (s.target_c * 10.0).round() as i16,
+                ramp_tenth_c_per_min: (s.ramp_c_per_min * 10.0).round() as u16,
+                hold_s: s.hold_s.round() as u32,
+            });
+        }
+        Profile {
+            limit_tenth_c: (self.limit_c * 10.0).round() as i16,
+            segments,
+        }
+    }
+}

@@ -1,0 +1,395 @@
+//! Recording one heat cycle: handshake, send the profile, keep the heartbeat, write every byte
+//! and every sample as it arrives, report progress, and end cleanly on completion, a fault,
+//! a user's stop or a lost link, keeping everything received.
+
+use std::collections::VecDeque;
+use std::io::{Read, Write};
+use std::path::PathBuf;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Arc;
+use std::time::{Duration, Instant};
+
+use remanent_protocol::{Command, DeviceMsg, Fault, FrameError, RunState};
+
+use crate::calibration::Calibration;
+use crate::link::session::{describe_refusal, Received};
+use crate::link::{LinkError, Session, Timeline};
+use crate::magnets::MagnetInfo;
+use crate::profiles::ProfileSpec;
+use crate::run_dir::{utc_now, Counts, DeviceInfo, RunDirError, RunMeta, RunWriter};
+
+/// What to record.
+#[derive(Debug, Clone)]
+pub struct RecordOptions {
+    /// Port name, for the metadata.
+    pub port_label: String,
+    /// The magnet.
+    pub magnet: MagnetInfo,
+    /// The profile.
+    pub profile: ProfileSpec,
+    /// Calibration for the converted columns.
+    pub calibration: Calibration,
+    /// New run directory.
+    pub out: PathBuf,
+    /// The link counts as lost after this long without a byte.
+    pub silence_timeout: Duration,
+    /// Set to stop (Ctrl-C).
+    pub stop: Arc<AtomicBool>,
+}
+
+/// Live figures for a progress display.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct LiveStatus {
+    /// Device time since the profile started, s.
+    pub elapsed_s: f64,
+    /// Estimated time left, s.
+    pub remaining_s: f64,
+    /// Thermocouple, °C.
+    pub temp_c: Option<f64>,
+    /// Flux density, mT.
+    pub flux_mt: Option<f64>,
+    /// Heater duty, %.
+    pub duty_pct: f64,
+    /// Rate of temperature change over the last 30 s, °C/min.
+    pub ramp_c_per_min: Option<f64>,
+    /// Device state.
+    pub state: Option<RunState>,
+    /// Latest fault.
+    pub fault: Option<Fault>,
+    /// Samples so far.
+    pub samples: u64,
+    /// Samples missing.
+    pub gap_samples: u64,
+    /// Frames rejected.
+    pub bad_frames: u64,
+}
+
+/// Receives progress while recording.
+pub trait Progress {
+    /// The figures changed.
+    fn update(&mut self, status: &LiveStatus);
+    /// Something worth telling the user.
+    fn note(&mut self, message: &str);
+}
+
+/// Progress that goes nowhere.
+pub struct Quiet;
+impl Progress for Quiet {
+    fn update(&mut self, _: &LiveStatus) {}
+    fn note(&mut self, _: &str) {}
+}
+
+/// How a record ended.
+#[derive(Debug, Clone, PartialEq)]
+pub enum RecordEnd {
+    /// The profile ran to its end.
+    Finished,
+    /// The user stopped it; the device acknowledged the stop.
+    Stopped,
+    /// The device tripped an interlock; its heater is off.
+    Fault(Fault),
+    /// The link went away; everything received is kept.
+    LinkLost(String),
+}
+
+impl RecordEnd {
+    /// Words for the metadata and the user.
+    pub fn describe(&self) -> String {
+        match self {
+            RecordEnd::Finished => "profile finished".into(),
+            RecordEnd::Stopped => "stopped by the user; heater off (acknowledged)".into(),
+            RecordEnd::Fault(f) => format!("device fault {f:?}: heater off"),
+            RecordEnd::LinkLost(why) => format!("link lost: {why}"),
+        }
+    }
+}
+
+/// The outcome.
+#[derive(Debug, Clone)]
+pub struct RecordSummary {
+    /// The run directory.
+    pub dir: PathBuf,
+    /// How it ended.
+    pub end: RecordEnd,
+    /// Counts.
+    pub counts: Counts,
+}
+
+/// Recording could not start or could not write.
+#[derive(Debug, thiserror::Error)]
+pub enum RecordError {
+    /// The link failed before recording began.
+    #[error(transparent)]
+    Link(#[from] LinkError),
+    /// Writing the run failed.
+    #[error(transparent)]
+    RunDir(#[from] RunDirError),
+}
+
+const HEARTBEAT_WALL: Duration = Duration::from_millis(200);
+
+/// Record one cycle from `port`.
+pub fn record<P: Read + Write>(
+    port: P,
+    opts: RecordOptions,
+    progress: &mut dyn Progress,
+) -> Result<RecordSummary, RecordError> {
+    if opts.out.exists() {
+        return Err(RunDirError::Exists(opts.out.display().to_string()).into());
+    }
+    let mut session = Session::new(port);
+    let mut early: Vec<Received> = Vec::new();
+    progress.note("connecting…");
+    let hello = session.handshake(Duration::from_secs(10), &mut |r| {
+        early.push(Received {
+            bytes: r.bytes.clone(),
+            frames: Vec::new(),
+        })
+    })?;
+    progress.note(&format!(
+        "connected: board `{}`, firmware {}.{}.{}, ceiling {:.0} °C",
+        hello.board.as_str(),
+        hello.firmware[0],
+        hello.firmware[1],
+        hello.firmware[2],
+        f64::from(hello.limits.ceiling_tenth_c) / 10.0
+    ));
+    let meta = RunMeta {
+        software: format!("remanent {}", env!("CARGO_PKG_VERSION")),
+        started_utc: utc_now(),
+        finished_utc: None,
+        end_reason: None,
+        port: opts.port_label.clone(),
+        magnet: opts.magnet.clone(),
+        device: Some(DeviceInfo::from_hello(&hello)),
+        profile: opts.profile.clone(),
+        calibration: opts.calibration,
+        counts: Counts::default(),
+    };
+    let mut w = RunWriter::create(&opts.out, meta)?;
+    for r in &early {
+        w.raw(&r.bytes)?;
+    }
+    let mut rec = Recorder::new(&opts);
+    let start_id = session.send(Command::Start(opts.profile.to_wire()))?;
+    let end = rec.run(&mut session, &mut w, start_id, progress);
+    let end = match end {
+        Ok(end) => end,
+        Err(RecordError::Link(e @ LinkError::Refused { .. })) => {
+            w.finish(&format!("not started: {e}"))?;
+            return Err(e.into());
+        }
+        Err(RecordError::Link(e)) => RecordEnd::LinkLost(e.to_string()),
+        Err(e) => {
+            let _ = w.flush();
+            return Err(e);
+        }
+    };
+    w.meta.counts.gaps = rec.timeline.gaps;
+    w.meta.counts.gap_samples = rec.timeline.gap_samples;
+    w.meta.counts.device_dropped = rec.timeline.device_dropped;
+    let counts = w.meta.counts.clone();
+    let dir = w.finish(&end.describe())?;
+    Ok(RecordSummary { dir, end, counts })
+}
+
+struct Recorder {
+    timeline: Timeline,
+    status: LiveStatus,
+    history: VecDeque<(f64, f64)>,
+    start_device_s: Option<f64>,
+    nominal_s: f64,
+    silence: Duration,
+    stop: Arc<AtomicBool>,
+    started: bool,
+}
+
+impl Recorder {
+    fn new(opts: &RecordOptions) -> Self {
+        Recorder {
+            timeline: Timeline::default(),
+            status: LiveStatus::default(),
+            history: VecDeque::new(),
+            start_device_s: None,
+            nominal_s: opts.profile.nominal_duration_s(22.0),
+            silence: opts.silence_timeout,
+            stop: opts.stop.clone(),
+            started: false,
+        }
+    }
+
+    fn run<P: Read + Write>(
+        &mut self,
+        session: &mut Session<P>,
+        w: &mut RunWriter,
+        start_id: u16,
+        progress: &mut dyn Progress,
+    ) -> Result<RecordEnd, RecordError> {
+        let mut last_byte = Instant::now();
+        let mut last_heartbeat = Instant::now();
+        let mut last_update = Instant::now();
+        loop {
+            if self.stop.load(Ordering::Relaxed) {
+                progress.note("stopping: heater off…");
+                return self.stop_device(session, w);
+            }
+            if last_heartbeat.elapsed() >= HEARTBEAT_WALL {
+                session.send(Command::Heartbeat)?;
+                last_heartbeat = Instant::now();
+            }
+            let got = session.read()?;
+            if got.bytes.is_empty() {
+                if last_byte.elapsed() > self.silence {
+                    return Err(LinkError::Silent(self.silence.as_secs_f64()).into());
+                }
+            } else {
+                last_byte = Instant::now();
+                w.raw(&got.bytes)?;
+            }
+            for frame in got.frames {
+                if let Some(end) = self.handle(frame, w, start_id, progress)? {
+                    return Ok(end);
+                }
+            }
+            w.maybe_flush()?;
+            if last_update.elapsed() >= Duration::from_millis(100) {
+                progress.update(&self.status);
+                last_update = Instant::now();
+            }
+        }
+    }
+
+    fn handle(
+        &mut self,
+        frame: Result<DeviceMsg, FrameError>,
+        w: &mut RunWriter,
+        start_id: u16,
+        progress: &mut dyn Progress,
+    ) -> Result<Option<RecordEnd>, RecordError> {
+        let t = self.history.back().map(|h| h.0);
+        let msg = match frame {
+            Ok(m) => m,
+            Err(e) => {
+                match e {
+                    FrameError::BadCrc { .. } => w.meta.counts.frames_bad_crc += 1,
+                    FrameError::BadCobs => w.meta.counts.frames_bad_cobs += 1,
+                    _ => w.meta.counts.frames_other += 1,
+                }
+                self.status.bad_frames += 1;
+                w.event(t, "frame_rejected", &e.to_string())?;
+                return Ok(None);
+            }
+        };
+        match msg {
+            DeviceMsg::Sample(s) => {
+                let gaps_before = self.timeline.gap_samples;
+                if let Some(p) = self.timeline.place(s) {
+                    if self.timeline.gap_samples > gaps_before {
+                        let missing = self.timeline.gap_samples - gaps_before;
+                        w.event(
+                            Some(p.device_time_s),
+                            "gap",
+                            &format!("{missing} samples missing before seq {}", p.seq),
+                        )?;
+                    }
+                    let row = w.sample(&p)?;
+                    self.status.samples = w.meta.counts.samples;
+                    self.track(
+                        p.device_time_s,
+                        row.temp_c,
+                        row.flux_mt,
+                        f64::from(s.duty) / 2.55,
+                    );
+                }
+            }
+            DeviceMsg::Beacon(b) => {
+                self.timeline.beacon(b);
+                self.status.state = Some(b.state);
+            }
+            DeviceMsg::State(st) => {
+                w.event(
+                    Some(f64::from(st.time_ms) / 1000.0),
+                    "state",
+                    &format!("{:?} (segment {})", st.state, st.segment),
+                )?;
+                self.status.state = Some(st.state);
+                if st.state == RunState::Idle && self.started {
+                    progress.note("profile finished; heater off");
+                    return Ok(Some(RecordEnd::Finished));
+                }
+            }
+            DeviceMsg::Fault(f) => {
+                w.meta.counts.faults += 1;
+                let detail = format!(
+                    "{:?} at {:.1} °C",
+                    f.fault,
+                    f64::from(f.temp_tenth_c) / 10.0
+                );
+                w.event(Some(f64::from(f.time_ms) / 1000.0), "fault", &detail)?;
+                self.status.fault = Some(f.fault);
+                progress.note(&format!("device fault: {detail}; heater off"));
+                return Ok(Some(RecordEnd::Fault(f.fault)));
+            }
+            DeviceMsg::Ack(a) if a.id == start_id => {
+                self.started = true;
+                w.event(t, "started", "profile accepted")?;
+            }
+            DeviceMsg::Refused(r) if r.id == start_id => {
+                let why = describe_refusal(&r.reason);
+                w.event(t, "refused", &why)?;
+                return Err(LinkError::Refused {
+                    command: "the profile",
+                    reason: r.reason,
+                }
+                .into());
+            }
+            DeviceMsg::Refused(r) => w.event(t, "refused", &describe_refusal(&r.reason))?,
+            DeviceMsg::Ack(_) | DeviceMsg::Hello(_) => {}
+        }
+        Ok(None)
+    }
+
+    fn track(&mut self, t: f64, temp_c: Option<f64>, flux_mt: Option<f64>, duty_pct: f64) {
+        let start = *self.start_device_s.get_or_insert(t);
+        self.status.elapsed_s = t - start;
+        self.status.remaining_s = (self.nominal_s - self.status.elapsed_s).max(0.0);
+        self.status.temp_c = temp_c;
+        self.status.flux_mt = flux_mt;
+        self.status.duty_pct = duty_pct;
+        self.status.gap_samples = self.timeline.gap_samples;
+        if let Some(tc) = temp_c {
+            self.history.push_back((t, tc));
+            while self.history.front().is_some_and(|h| t - h.0 > 30.0) {
+                self.history.pop_front();
+            }
+            if let (Some(a), Some(b)) = (self.history.front(), self.history.back()) {
+                if b.0 - a.0 > 5.0 {
+                    self.status.ramp_c_per_min = Some((b.1 - a.1) / (b.0 - a.0) * 60.0);
+                }
+            }
+        }
+    }
+
+    fn stop_device<P: Read + Write>(
+        &mut self,
+        session: &mut Session<P>,
+        w: &mut RunWriter,
+    ) -> Result<RecordEnd, RecordError> {
+        let id = session.send(Command::Stop)?;
+        let deadline = Instant::now() + Duration::from_secs(3);
+        while Instant::now() < deadline {
+            let got = session.read()?;
+            w.raw(&got.bytes)?;
+            for f in got.frames {
+                if let Ok(DeviceMsg::Ack(a)) = &f {
+                    if a.id == id {
+                        w.event(None, "stopped", "stop acknowledged; heater off")?;
+                        return Ok(RecordEnd::Stopped);
+                    }
+                }
+                let _ = self.handle(f, w, 0, &mut Quiet)?;
+            }
+        }
+        Err(LinkError::NoAnswer("stop").into())
+    }
+}

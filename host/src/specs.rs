@@ -1,0 +1,80 @@
+//! Grade specifications: a TOML table of limits per grade, and the built-in one with typical
+//! values. A user's own table (their supplier's datasheet) is the authority for a verdict.
+
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+
+/// Limits for one grade.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct GradeSpec {
+    /// Grade name, as magnets state it.
+    pub grade: String,
+    /// Material family.
+    pub family: String,
+    /// Lowest acceptable Br, T.
+    #[serde(rename = "br_min_T")]
+    pub br_min_t: f64,
+    /// Highest expected Br, T.
+    #[serde(rename = "br_max_T")]
+    pub br_max_t: f64,
+    /// Most negative acceptable α(Br), %/°C.
+    #[serde(rename = "alpha_min_pct_per_C")]
+    pub alpha_min: f64,
+    /// Least negative acceptable α(Br), %/°C.
+    #[serde(rename = "alpha_max_pct_per_C")]
+    pub alpha_max: f64,
+    /// Rated maximum working temperature, °C.
+    #[serde(rename = "max_working_C")]
+    pub max_working_c: f64,
+    /// Where the numbers come from.
+    pub source: String,
+}
+
+/// A spec table.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SpecTable {
+    /// Rows.
+    #[serde(rename = "grade")]
+    pub grades: Vec<GradeSpec>,
+}
+
+/// The built-in table (typical values; not guarantees).
+pub const BUILTIN_TOML: &str = include_str!("specs_builtin.toml");
+
+/// Spec table problems.
+#[derive(Debug, thiserror::Error)]
+pub enum SpecError {
+    /// Unreadable or malformed.
+    #[error("spec table {path}: {reason}")]
+    Invalid {
+        /// File.
+        path: String,
+        /// Why.
+        reason: String,
+    },
+}
+
+impl SpecTable {
+    /// The built-in table.
+    pub fn builtin() -> SpecTable {
+        toml::from_str(BUILTIN_TOML).expect("the built-in spec table parses")
+    }
+
+    /// A table from a file.
+    pub fn load(path: &Path) -> Result<SpecTable, SpecError> {
+        let err = |reason: String| SpecError::Invalid {
+            path: path.display().to_string(),
+            reason,
+        };
+        let text = std::fs::read_to_string(path).map_err(|e| err(e.to_string()))?;
+        toml::from_str(&text).map_err(|e| err(e.to_string()))
+    }
+
+    /// The row for `grade` (case-insensitive).
+    pub fn find(&self, grade: &str) -> Option<&GradeSpec> {
+        self.grades
+            .iter()
+            .find(|g| g.grade.eq_ignore_ascii_case(grade))
+    }
+}
