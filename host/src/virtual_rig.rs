@@ -212,6 +212,22 @@ fn run(
             let now = rig.borrow().time_ms();
             device.poll(now);
             steps += 1;
+            // drain as we go, like a UART emptying its buffer between samples
+            while let Some(f) = device.next_frame(&mut frame) {
+                out.extend_from_slice(f);
+            }
+        }
+        for b in std::mem::take(&mut out) {
+            if opts.link_drop_probability > 0.0 && noise.uniform() < opts.link_drop_probability {
+                damaged += 1;
+                continue;
+            }
+            if opts.link_flip_probability > 0.0 && noise.uniform() < opts.link_flip_probability {
+                damaged += 1;
+                out.push(b ^ (1 << (noise.next_u64() % 8)));
+            } else {
+                out.push(b);
+            }
         }
         while let Some(f) = device.next_frame(&mut frame) {
             for &b in f {

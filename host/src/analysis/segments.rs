@@ -49,24 +49,40 @@ pub fn find(time_s: &[f64], temp_c: &[f64]) -> Segments {
     while tail > peak && (temp_c[tail - 1] - end_t).abs() < REFERENCE_BAND_K * 0.5 {
         tail -= 1;
     }
-    let returned = (end_t - start).abs() < 5.0 && peak < tail && time_s[n - 1] - time_s[tail] >= 30.0;
+    let returned =
+        (end_t - start).abs() < 5.0 && peak < tail && time_s[n - 1] - time_s[tail] >= 30.0;
     let mut after = returned.then_some(tail..n);
     let soaks = soaks(time_s, temp_c);
     // prefer settled soaks near room temperature as the references: the last soak before
     // the excursion and the last one after it, when they are close in temperature
     let mut before = before;
     let near_room = |r: &Range<usize>| temp_c[r.start] < start + 8.0;
-    if let Some(b) = soaks.iter().filter(|r| r.end <= peak && near_room(r)).last() {
+    if let Some(b) = soaks
+        .iter()
+        .filter(|r| r.end <= peak && near_room(r))
+        .last()
+    {
         before = b.clone();
     }
-    if let Some(a) = soaks.iter().filter(|r| r.start > peak && near_room(r)).last() {
+    if let Some(a) = soaks
+        .iter()
+        .filter(|r| r.start > peak && near_room(r))
+        .last()
+    {
         if (temp_c[a.start] - temp_c[before.start]).abs() < 5.0 {
             after = Some(a.clone());
         }
     }
     let heating = before.end.min(peak)..peak;
     let cooling = peak..after.as_ref().map(|a| a.start).unwrap_or(n);
-    Segments { before, after, peak, heating, cooling, soaks }
+    Segments {
+        before,
+        after,
+        peak,
+        heating,
+        cooling,
+        soaks,
+    }
 }
 
 fn soaks(time_s: &[f64], temp_c: &[f64]) -> Vec<Range<usize>> {

@@ -1,0 +1,246 @@
+//! End to end over a real pseudo-terminal: the virtual rig (the real firmware on the physical
+//! model) and the host recorder, then the analysis against the model's known truth.
+
+use std::path::Path;
+use std::sync::atomic::AtomicBool;
+use std::sync::Arc;
+use std::time::Duration;
+
+use remanent::analysis::dataset::{self, CsvOptions};
+use remanent::analysis::{analyze, Context};
+use remanent::calibration::Calibration;
+use remanent::magnets;
+use remanent::profiles::{ProfileSpec, SegmentSpec};
+use remanent::record::{record, Quiet, RecordEnd, RecordOptions, RecordSummary};
+use remanent::specs::SpecTable;
+use remanent::virtual_rig::{VirtualRig, VirtualRigOptions};
+
+fn short_profile() -> ProfileSpec {
+    ProfileSpec {
+        name: "test".into(),
+        description: "reference, ramp to 90 °C and back".into(),
+        limit_c: 110.0,
+        segments: vec![
+            SegmentSpec {
+                target_c: 25.0,
+                ramp_c_per_min: 0.0,
+                hold_s: 240.0,
+            },
+            SegmentSpec {
+                target_c: 90.0,
+                ramp_c_per_min: 6.0,
+                hold_s: 120.0,
+            },
+            SegmentSpec {
+                target_c: 25.0,
+                ramp_c_per_min: 6.0,
+                hold_s: 400.0,
+            },
+        ],
+    }
+}
+
+fn run(
+    magnet_id: &str,
+    out: &Path,
+    tweak: impl FnOnce(&mut VirtualRigOptions),
+    profile: ProfileSpec,
+) -> (RecordSummary, VirtualRig) {
+    let m = magnets::resolve(magnet_id).unwrap();
+    let mut opts = VirtualRigOptions::new(m.model.unwrap());
+    opts.speed = 150.0;
+    tweak(&mut opts);
+    let params = opts.params;
+    let rig = VirtualRig::start(opts).unwrap();
+    let port = remanent::link::port::open(rig.path()).unwrap();
+    let rec = RecordOptions {
+        port_label: rig.path().into(),
+        magnet: m.info,
+        profile,
+        calibration: Calibration::virtual_rig(&params),
+        out: out.to_path_buf(),
+        silence_timeout: Duration::from_secs(3),
+        stop: Arc::new(AtomicBool::new(false)),
+    };
+    (record(port, rec, &mut Quiet).unwrap(), rig)
+}
+
+#[test]
+fn a_full_cycle_records_without_gaps_and_recovers_alpha() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("run");
+    let (summary, rig) = run("RM-N42SH-D10x5", &out, |_| {}, short_profile());
+    drop(rig);
+    assert_eq!(summary.end, RecordEnd::Finished);
+    assert_eq!(summary.counts.gaps, 0);
+    assert_eq!(
+        summary.counts.frames_bad_crc
+            + summary.counts.frames_bad_cobs
+            + summary.counts.frames_other,
+        0
+    );
+    // about one sample per 100 ms of device time
+    let (series, src) = dataset::load_run(&out, None).unwrap();
+    let span = series.time_s.last().unwrap() - series.time_s[0];
+    assert!(
+        (series.time_s.len() as f64 - span / 0.1).abs() < 3.0,
+        "{} samples over {span} s",
+        series.time_s.len()
+    );
+    assert!(series
+        .time_s
+        .windows(2)
+        .all(|w| (w[1] - w[0] - 0.1).abs() < 0.07));
+    let ctx = Context {
+        calibration: src.calibration,
+        magnet: src.magnet,
+        specs: SpecTable::builtin(),
+        default_tc_gain_pct: 0.75,
+    };
+    let a = analyze(&series, &ctx).unwrap();
+    // truth: the demo part's model, α = −0.108 %/°C and γ = −0.00008 %/°C² (catalogue.rs)
+    let truth = -0.108 + -0.00008 * (a.fit_range_c[1] - 20.0);
+    assert!(
+        (a.alpha_pct_per_c - truth).abs() <= 0.003,
+        "α {} vs truth {truth}",
+        a.alpha_pct_per_c
+    );
+    assert!(
+        (a.alpha_pct_per_c - truth).abs() <= a.alpha_u95_pct_per_c,
+        "U95 {} does not cover",
+        a.alpha_u95_pct_per_c
+    );
+    assert!(
+        a.fit_range_c[1] > 85.0 && a.fit_range_c[0] < 27.0,
+        "{:?}",
+        a.fit_range_c
+    );
+    let tau = a.lag_time_constant_s.unwrap();
+    assert!((tau - 45.0).abs() < 8.0, "lag {tau} s, model 45 s");
+    let loss = a.irreversible_loss_pct.unwrap();
+    assert!(
+        loss.abs() < 0.1,
+        "loss {loss} % for a magnet heated below its onset"
+    );
+    assert_eq!(a.material_family, "sintered NdFeB");
+    // an existing run directory is never overwritten
+    let before = std::fs::read(out.join("samples.csv")).unwrap();
+    let meta = remanent::run_dir::read_meta(&out).unwrap();
+    let err = remanent::run_dir::RunWriter::create(&out, meta)
+        .err()
+        .expect("refused");
+    assert!(err.to_string().contains("already exists"), "{err}");
+    assert_eq!(std::fs::read(out.join("samples.csv")).unwrap(), before);
+}
+
+#[test]
+fn link_corruption_is_detected_and_counted_and_never_written() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("noisy");
+    let (summary, rig) = run(
+        "RM-S2C17-D10x5",
+        &out,
+        |o| o.link_flip_probability = 0.002,
+        short_profile(),
+    );
+    let damaged = rig.truth().bytes_damaged;
+    drop(rig);
+    assert_eq!(summary.end, RecordEnd::Finished);
+    let c = &summary.counts;
+    let rejected = c.frames_bad_crc + c.frames_bad_cobs + c.frames_other;
+    assert!(
+        damaged > 20 && rejected > 0,
+        "damaged {damaged} bytes, rejected {rejected}"
+    );
+    // a bit flipped into 0x00 splits a frame in two: at most two rejections per damaged byte
+    assert!(rejected <= 2 * damaged);
+    assert!(c.gap_samples > 0 && c.gaps > 0);
+    // every written sample is consistent: thermocouple near the plate's range, flux plausible
+    let (series, _) = dataset::load_run(&out, None).unwrap();
+    assert!(series.temp_c.iter().all(|t| (15.0..120.0).contains(t)));
+    assert!(
+        series.flux_mt.iter().all(|b| (100.0..250.0).contains(b)),
+        "a corrupted sample was written"
+    );
+}
+
+#[test]
+fn a_rig_that_dies_mid_run_leaves_a_valid_partial_record() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("partial");
+    let m = magnets::resolve("RM-N42-D10x5").unwrap();
+    let mut opts = VirtualRigOptions::new(m.model.unwrap());
+    opts.speed = 150.0;
+    let params = opts.params;
+    let rig = VirtualRig::start(opts).unwrap();
+    let port = remanent::link::port::open(rig.path()).unwrap();
+    let killer = std::thread::spawn(move || {
+        std::thread::sleep(Duration::from_secs(3));
+        rig.stop().unwrap()
+    });
+    let rec = RecordOptions {
+        port_label: "virtual".into(),
+        magnet: m.info,
+        profile: short_profile(),
+        calibration: Calibration::virtual_rig(&params),
+        out: out.clone(),
+        silence_timeout: Duration::from_secs(2),
+        stop: Arc::new(AtomicBool::new(false)),
+    };
+    let summary = record(port, rec, &mut Quiet).unwrap();
+    killer.join().unwrap();
+    assert!(
+        matches!(summary.end, RecordEnd::LinkLost(_)),
+        "{:?}",
+        summary.end
+    );
+    assert!(summary.counts.samples > 100);
+    let meta = remanent::run_dir::read_meta(&out).unwrap();
+    assert!(meta.end_reason.unwrap().starts_with("link lost"));
+    let text = std::fs::read_to_string(out.join("samples.csv")).unwrap();
+    assert_eq!(
+        text.lines().count() as u64,
+        summary.counts.samples + 1,
+        "every sample reached the disk"
+    );
+    assert_eq!(
+        std::fs::metadata(out.join("raw.bin")).unwrap().len(),
+        summary.counts.bytes
+    );
+}
+
+#[test]
+fn bad_csv_input_names_the_file_line_and_column() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("log.csv");
+    let mut text = String::from("time_s,temp_C,flux_mT\n");
+    for i in 0..30 {
+        text.push_str(&format!("{i},{},{}\n", 20 + i, 200 - i));
+    }
+    text.push_str("31,50,abc\n");
+    std::fs::write(&p, &text).unwrap();
+    let e = dataset::load_csv(&p, &CsvOptions::default())
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.contains("log.csv")
+            && e.contains("line 32")
+            && e.contains("flux_mT")
+            && e.contains("abc"),
+        "{e}"
+    );
+    std::fs::write(&p, "time_s,temperature,flux_mT\n1,2,3\n").unwrap();
+    let e = dataset::load_csv(&p, &CsvOptions::default())
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("temp_C") && e.contains("temperature"), "{e}");
+    let mut t = String::from("time_s,temp_C,flux_T\n");
+    for i in 0..30 {
+        t.push_str(&format!("{},{},0.2\n", if i == 10 { 9 } else { i }, 20 + i));
+    }
+    std::fs::write(&p, t).unwrap();
+    let e = dataset::load_csv(&p, &CsvOptions::default())
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("line 12") && e.contains("time_s"), "{e}");
+}

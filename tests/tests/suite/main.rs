@@ -1,0 +1,7 @@
+//! The cross-crate test suite: reference-data checks and end-to-end runs.
+
+mod end_to_end;
+mod reference_field;
+mod reference_lsq;
+mod reference_type_k;
+mod util;
