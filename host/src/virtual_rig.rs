@@ -185,7 +185,7 @@ fn run(
         cfg.limits.duty_cap_pct,
     );
     let mut device = Device::new(cfg, board, adc, tc, heater, 0);
-    let mut noise = Rng::new(opts.seed ^ 0x5eed_11);
+    let mut noise = Rng::new(opts.seed ^ 0x005e_ed11);
     let mut rx = [0u8; 512];
     let mut out = Vec::with_capacity(4096);
     let mut frame = [0u8; MAX_DEVICE_FRAME];

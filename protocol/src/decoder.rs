@@ -169,3 +169,4 @@ impl HostDecoder {
 }
 
 impl core::error::Error for FrameError {}
+

@@ -54,3 +54,4 @@ pub fn check_compatible(host: Version, device: Version) -> Result<(), HandshakeE
 }
 
 impl core::error::Error for HandshakeError {}
+

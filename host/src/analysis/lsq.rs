@@ -3,6 +3,9 @@
 //! The design matrix is never squared (no normal equations), so ill-conditioned polynomial
 //! fits keep their digits; callers should still centre and scale their abscissae.
 
+// Index loops read like the textbook algorithms they implement.
+#![allow(clippy::needless_range_loop)]
+
 /// A least-squares solution.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Fit {

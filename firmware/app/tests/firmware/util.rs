@@ -170,7 +170,7 @@ impl Bench {
             p.temp_c += (power_w + p.external_heat_w - 0.5 * (p.temp_c - 22.0)) / 150.0 * dt;
             p.ticks += 1;
         }
-        if self.heartbeat && self.now_ms % 500 == 0 {
+        if self.heartbeat && self.now_ms.is_multiple_of(500) {
             self.send(Command::Heartbeat);
         }
         self.device.poll(self.now_ms);
