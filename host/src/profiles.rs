@@ -98,13 +98,13 @@ pub fn builtin(name: &str) -> Option<ProfileSpec> {
             name: "quick-alpha".into(),
             description: "reversible coefficient: reference at 25 °C, ramp to 100 °C and back at 5 °C/min, reference again".into(),
             limit_c: 115.0,
-            segments: vec![seg(25.0, 0.0, 180.0), seg(100.0, 5.0, 240.0), seg(25.0, 5.0, 300.0)],
+            segments: vec![seg(25.0, 0.0, 300.0), seg(100.0, 5.0, 240.0), seg(25.0, 5.0, 300.0)],
         },
         "exposure" => ProfileSpec {
             name: "exposure".into(),
             description: "irreversible loss: reference at 25 °C, 30 min at 150 °C, back to 25 °C, reference again".into(),
             limit_c: 165.0,
-            segments: vec![seg(25.0, 0.0, 180.0), seg(150.0, 10.0, 1800.0), seg(25.0, 10.0, 300.0)],
+            segments: vec![seg(25.0, 0.0, 300.0), seg(150.0, 10.0, 1800.0), seg(25.0, 10.0, 300.0)],
         },
         "curie-sweep" => ProfileSpec {
             name: "curie-sweep".into(),

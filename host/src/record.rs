@@ -33,6 +33,9 @@ pub struct RecordOptions {
     pub out: PathBuf,
     /// The link counts as lost after this long without a byte.
     pub silence_timeout: Duration,
+    /// Device time recorded with the heater off before the profile starts, s: a settled
+    /// room-temperature reference with the magnet at rest.
+    pub preroll_s: f64,
     /// Set to stop (Ctrl-C).
     pub stop: Arc<AtomicBool>,
 }
@@ -171,8 +174,7 @@ pub fn record<P: Read + Write>(
         w.raw(&r.bytes)?;
     }
     let mut rec = Recorder::new(&opts);
-    let start_id = session.send(Command::Start(opts.profile.to_wire()))?;
-    let end = rec.run(&mut session, &mut w, start_id, progress);
+    let end = rec.run(&mut session, &mut w, &opts, progress);
     let end = match end {
         Ok(end) => end,
         Err(RecordError::Link(e @ LinkError::Refused { .. })) => {
@@ -198,6 +200,7 @@ struct Recorder {
     status: LiveStatus,
     history: VecDeque<(f64, f64)>,
     start_device_s: Option<f64>,
+    first_sample_s: Option<f64>,
     nominal_s: f64,
     silence: Duration,
     stop: Arc<AtomicBool>,
@@ -211,6 +214,7 @@ impl Recorder {
             status: LiveStatus::default(),
             history: VecDeque::new(),
             start_device_s: None,
+            first_sample_s: None,
             nominal_s: opts.profile.nominal_duration_s(22.0),
             silence: opts.silence_timeout,
             stop: opts.stop.clone(),
@@ -222,9 +226,16 @@ impl Recorder {
         &mut self,
         session: &mut Session<P>,
         w: &mut RunWriter,
-        start_id: u16,
+        opts: &RecordOptions,
         progress: &mut dyn Progress,
     ) -> Result<RecordEnd, RecordError> {
+        let mut start_id = None;
+        if opts.preroll_s > 0.0 {
+            progress.note(&format!(
+                "recording {:.0} s at rest before heating (room-temperature reference)…",
+                opts.preroll_s
+            ));
+        }
         let mut last_byte = Instant::now();
         let mut last_heartbeat = Instant::now();
         let mut last_update = Instant::now();
@@ -251,6 +262,9 @@ impl Recorder {
                     return Ok(end);
                 }
             }
+            if start_id.is_none() && self.rest_s() >= opts.preroll_s {
+                start_id = Some(session.send(Command::Start(opts.profile.to_wire()))?);
+            }
             w.maybe_flush()?;
             if last_update.elapsed() >= Duration::from_millis(100) {
                 progress.update(&self.status);
@@ -263,7 +277,7 @@ impl Recorder {
         &mut self,
         frame: Result<DeviceMsg, FrameError>,
         w: &mut RunWriter,
-        start_id: u16,
+        start_id: Option<u16>,
         progress: &mut dyn Progress,
     ) -> Result<Option<RecordEnd>, RecordError> {
         let t = self.history.back().map(|h| h.0);
@@ -330,11 +344,11 @@ impl Recorder {
                 progress.note(&format!("device fault: {detail}; heater off"));
                 return Ok(Some(RecordEnd::Fault(f.fault)));
             }
-            DeviceMsg::Ack(a) if a.id == start_id => {
+            DeviceMsg::Ack(a) if Some(a.id) == start_id => {
                 self.started = true;
                 w.event(t, "started", "profile accepted")?;
             }
-            DeviceMsg::Refused(r) if r.id == start_id => {
+            DeviceMsg::Refused(r) if Some(r.id) == start_id => {
                 let why = describe_refusal(&r.reason);
                 w.event(t, "refused", &why)?;
                 return Err(LinkError::Refused {
@@ -349,8 +363,21 @@ impl Recorder {
         Ok(None)
     }
 
+    /// Device time covered by samples so far, s.
+    fn rest_s(&self) -> f64 {
+        match (self.first_sample_s, self.history.back()) {
+            (Some(a), Some(b)) => b.0 - a,
+            _ => 0.0,
+        }
+    }
+
     fn track(&mut self, t: f64, temp_c: Option<f64>, flux_mt: Option<f64>, duty_pct: f64) {
-        let start = *self.start_device_s.get_or_insert(t);
+        self.first_sample_s.get_or_insert(t);
+        let start = if self.started {
+            *self.start_device_s.get_or_insert(t)
+        } else {
+            t
+        };
         self.status.elapsed_s = t - start;
         self.status.remaining_s = (self.nominal_s - self.status.elapsed_s).max(0.0);
         self.status.temp_c = temp_c;
@@ -387,7 +414,7 @@ impl Recorder {
                         return Ok(RecordEnd::Stopped);
                     }
                 }
-                let _ = self.handle(f, w, 0, &mut Quiet)?;
+                let _ = self.handle(f, w, None, &mut Quiet)?;
             }
         }
         Err(LinkError::NoAnswer("stop").into())

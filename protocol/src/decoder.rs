@@ -169,4 +169,3 @@ impl HostDecoder {
 }
 
 impl core::error::Error for FrameError {}
-

@@ -75,4 +75,3 @@ mod tests {
         assert_eq!(FRAME_CRC.checksum(b"123456789"), 0x29B1);
     }
 }
-

@@ -54,4 +54,3 @@ pub fn check_compatible(host: Version, device: Version) -> Result<(), HandshakeE
 }
 
 impl core::error::Error for HandshakeError {}
-

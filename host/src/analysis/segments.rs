@@ -57,14 +57,10 @@ pub fn find(time_s: &[f64], temp_c: &[f64]) -> Segments {
     // the excursion and the last one after it, when they are close in temperature
     let mut before = before;
     let near_room = |r: &Range<usize>| temp_c[r.start] < start + 8.0;
-    if let Some(b) = soaks
-        .iter().rev().find(|r| r.end <= peak && near_room(r))
-    {
+    if let Some(b) = soaks.iter().rev().find(|r| r.end <= peak && near_room(r)) {
         before = b.clone();
     }
-    if let Some(a) = soaks
-        .iter().rev().find(|r| r.start > peak && near_room(r))
-    {
+    if let Some(a) = soaks.iter().rev().find(|r| r.start > peak && near_room(r)) {
         if (temp_c[a.start] - temp_c[before.start]).abs() < 5.0 {
             after = Some(a.clone());
         }

@@ -57,6 +57,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         calibration: Calibration::virtual_rig(&params),
         out: out.clone(),
         silence_timeout: Duration::from_secs(3),
+        preroll_s: 60.0,
         stop: super::record::stop_flag()?,
     };
     let summary = super::record::record_with_bar(port, rec)?;

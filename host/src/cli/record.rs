@@ -68,6 +68,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         calibration,
         out: a.out,
         silence_timeout: Duration::from_secs(3),
+        preroll_s: 60.0,
         stop: stop_flag()?,
     };
     let summary = record_with_bar(port, opts)?;

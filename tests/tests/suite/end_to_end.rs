@@ -60,6 +60,7 @@ fn run(
         calibration: Calibration::virtual_rig(&params),
         out: out.to_path_buf(),
         silence_timeout: Duration::from_secs(3),
+        preroll_s: 60.0,
         stop: Arc::new(AtomicBool::new(false)),
     };
     (record(port, rec, &mut Quiet).unwrap(), rig)
@@ -185,6 +186,7 @@ fn a_rig_that_dies_mid_run_leaves_a_valid_partial_record() {
         calibration: Calibration::virtual_rig(&params),
         out: out.clone(),
         silence_timeout: Duration::from_secs(2),
+        preroll_s: 60.0,
         stop: Arc::new(AtomicBool::new(false)),
     };
     let summary = record(port, rec, &mut Quiet).unwrap();
