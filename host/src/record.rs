@@ -238,15 +238,22 @@ impl Recorder {
         }
         let mut last_byte = Instant::now();
         let mut last_heartbeat = Instant::now();
+        let mut last_heartbeat_device = 0.0;
         let mut last_update = Instant::now();
         loop {
             if self.stop.load(Ordering::Relaxed) {
                 progress.note("stopping: heater off…");
                 return self.stop_device(session, w);
             }
-            if last_heartbeat.elapsed() >= HEARTBEAT_WALL {
+            // every 200 ms of wall time or 0.5 s of device time, whichever comes first, so an
+            // accelerated rig gets its heartbeats too
+            let device_now = self.history.back().map(|h| h.0).unwrap_or(0.0);
+            if last_heartbeat.elapsed() >= HEARTBEAT_WALL
+                || device_now - last_heartbeat_device >= 0.5
+            {
                 session.send(Command::Heartbeat)?;
                 last_heartbeat = Instant::now();
+                last_heartbeat_device = device_now;
             }
             let got = session.read()?;
             if got.bytes.is_empty() {

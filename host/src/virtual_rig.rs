@@ -8,6 +8,7 @@
 
 use std::cell::RefCell;
 use std::io::{self, Read, Write};
+use std::rc::Rc;
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::sync::{Arc, Mutex};
 use std::thread::JoinHandle;
@@ -169,34 +170,15 @@ fn run(
     truth: Arc<Mutex<RigTruth>>,
     host_bytes: Arc<AtomicU64>,
 ) -> io::Result<()> {
-    let rig = RefCell::new(Rig::new(opts.params, opts.magnet, opts.seed));
-    rig.borrow_mut().faults = opts.faults;
-    let cfg = virtual_config(opts.speed);
-    let board = BoardInfo {
-        name: "virtual",
-        supply_mv: opts.params.ntc.supply_mv as u16,
-        ntc_series_ohm: opts.params.ntc.series_ohm as u32,
-    };
-    let adc = ads1115::Ads1115::new(SimAdcBus::new(&rig), SimDelay, ads1115::DEFAULT_ADDRESS);
-    let tc = max31855::Max31855::new(SimThermoSpi::new(&rig));
-    let heater = Heater::new(
-        SimHeaterPwm(&rig),
-        SimHeaterEnable(&rig),
-        cfg.limits.duty_cap_pct,
-    );
-    let mut device = Device::new(cfg, board, adc, tc, heater, 0);
-    let mut noise = Rng::new(opts.seed ^ 0x005e_ed11);
+    let speed = opts.speed;
+    let mut bench = SimulatedBench::new(opts, virtual_config(speed));
     let mut rx = [0u8; 512];
-    let mut out = Vec::with_capacity(4096);
-    let mut frame = [0u8; MAX_DEVICE_FRAME];
-    let mut damaged = 0u64;
     let wall0 = Instant::now();
     while !stop.load(Ordering::Relaxed) {
         match master.read(&mut rx) {
             Ok(n) if n > 0 => {
                 host_bytes.fetch_add(n as u64, Ordering::Relaxed);
-                let now = rig.borrow().time_ms();
-                device.receive(now, &rx[..n]);
+                bench.receive(&rx[..n]);
             }
             Ok(_) => {}
             Err(e)
@@ -205,67 +187,187 @@ fn run(
             Err(e) if e.kind() == io::ErrorKind::Interrupted => {}
             Err(_) => {} // nobody has the port open yet
         }
-        let target_s = opts.speed * wall0.elapsed().as_secs_f64();
-        let mut steps = 0;
-        while rig.borrow().time_s() < target_s && steps < 2000 {
-            rig.borrow_mut().advance(STEP_S);
-            let now = rig.borrow().time_ms();
-            device.poll(now);
-            steps += 1;
-            // drain as we go, like a UART emptying its buffer between samples
-            while let Some(f) = device.next_frame(&mut frame) {
-                out.extend_from_slice(f);
-            }
-        }
-        for b in std::mem::take(&mut out) {
-            if opts.link_drop_probability > 0.0 && noise.uniform() < opts.link_drop_probability {
-                damaged += 1;
-                continue;
-            }
-            if opts.link_flip_probability > 0.0 && noise.uniform() < opts.link_flip_probability {
-                damaged += 1;
-                out.push(b ^ (1 << (noise.next_u64() % 8)));
-            } else {
-                out.push(b);
-            }
-        }
-        while let Some(f) = device.next_frame(&mut frame) {
-            for &b in f {
-                if opts.link_drop_probability > 0.0 && noise.uniform() < opts.link_drop_probability
-                {
-                    damaged += 1;
-                    continue;
-                }
-                if opts.link_flip_probability > 0.0 && noise.uniform() < opts.link_flip_probability
-                {
-                    damaged += 1;
-                    out.push(b ^ (1 << (noise.next_u64() % 8)));
-                } else {
-                    out.push(b);
-                }
-            }
-        }
+        let target_s = speed * wall0.elapsed().as_secs_f64();
+        let behind_s = (target_s - bench.time_s()).clamp(0.0, 20.0);
+        let out = bench.advance(behind_s);
         if !out.is_empty() {
             // like a UART with nobody listening: what cannot be written is lost
             let _ = master.write_all(&out);
-            out.clear();
         }
-        {
-            let r = rig.borrow();
-            let mut t = truth.lock().expect("truth lock");
-            *t = RigTruth {
-                time_s: r.time_s(),
-                magnet_c: r.thermal.magnet_c,
-                plate_c: r.thermal.plate_c,
-                max_magnet_c: r.magnet_state.max_c,
-                irreversible: r.magnet_state.irreversible,
-                heater_w: r.heater_power_w(),
-                bytes_damaged: damaged,
-            };
-        }
-        if steps == 0 {
+        *truth.lock().expect("truth lock") = bench.truth();
+        if behind_s < STEP_S {
             std::thread::sleep(Duration::from_millis(1));
         }
     }
     Ok(())
+}
+
+type Handle = Rc<RefCell<Rig>>;
+type SimDevice = Device<
+    ads1115::Ads1115<SimAdcBus<Handle>, SimDelay>,
+    max31855::Max31855<SimThermoSpi<Handle>>,
+    SimHeaterPwm<Handle>,
+    SimHeaterEnable<Handle>,
+>;
+
+/// The firmware on the model, advanced in simulated time by its owner: the engine behind the
+/// pseudo-terminal rig and the in-process [`SimulatedPort`].
+pub struct SimulatedBench {
+    rig: Handle,
+    device: SimDevice,
+    noise: Rng,
+    flip: f64,
+    drop: f64,
+    damaged: u64,
+}
+
+impl SimulatedBench {
+    /// A bench with `opts`' magnet and faults, running firmware configured by `cfg`.
+    pub fn new(opts: VirtualRigOptions, cfg: FirmwareConfig) -> Self {
+        let rig: Handle = Rc::new(RefCell::new(Rig::new(opts.params, opts.magnet, opts.seed)));
+        rig.borrow_mut().faults = opts.faults;
+        let board = BoardInfo {
+            name: "virtual",
+            supply_mv: opts.params.ntc.supply_mv as u16,
+            ntc_series_ohm: opts.params.ntc.series_ohm as u32,
+        };
+        let adc = ads1115::Ads1115::new(
+            SimAdcBus::new(rig.clone()),
+            SimDelay,
+            ads1115::DEFAULT_ADDRESS,
+        );
+        let tc = max31855::Max31855::new(SimThermoSpi::new(rig.clone()));
+        let heater = Heater::new(
+            SimHeaterPwm(rig.clone()),
+            SimHeaterEnable(rig.clone()),
+            cfg.limits.duty_cap_pct,
+        );
+        let device = Device::new(cfg, board, adc, tc, heater, 0);
+        SimulatedBench {
+            rig,
+            device,
+            noise: Rng::new(opts.seed ^ 0x005e_ed11),
+            flip: opts.link_flip_probability,
+            drop: opts.link_drop_probability,
+            damaged: 0,
+        }
+    }
+
+    /// Simulated time, s.
+    pub fn time_s(&self) -> f64 {
+        self.rig.borrow().time_s()
+    }
+
+    /// Bytes from the host.
+    pub fn receive(&mut self, bytes: &[u8]) {
+        let now = self.rig.borrow().time_ms();
+        self.device.receive(now, bytes);
+    }
+
+    /// Advance by `dt_s` in 10 ms steps; returns what the device sent meanwhile (with the
+    /// configured link damage applied).
+    pub fn advance(&mut self, dt_s: f64) -> Vec<u8> {
+        let mut clean = Vec::new();
+        let mut frame = [0u8; MAX_DEVICE_FRAME];
+        let end = self.time_s() + dt_s;
+        loop {
+            // drain as we go, like a UART emptying its buffer between samples
+            while let Some(f) = self.device.next_frame(&mut frame) {
+                clean.extend_from_slice(f);
+            }
+            if self.time_s() + STEP_S * 0.5 > end {
+                break;
+            }
+            self.rig.borrow_mut().advance(STEP_S);
+            let now = self.rig.borrow().time_ms();
+            self.device.poll(now);
+        }
+        if self.flip == 0.0 && self.drop == 0.0 {
+            return clean;
+        }
+        let mut out = Vec::with_capacity(clean.len());
+        for b in clean {
+            if self.drop > 0.0 && self.noise.uniform() < self.drop {
+                self.damaged += 1;
+            } else if self.flip > 0.0 && self.noise.uniform() < self.flip {
+                self.damaged += 1;
+                out.push(b ^ (1 << (self.noise.next_u64() % 8)));
+            } else {
+                out.push(b);
+            }
+        }
+        out
+    }
+
+    /// The model's truth now.
+    pub fn truth(&self) -> RigTruth {
+        let r = self.rig.borrow();
+        RigTruth {
+            time_s: r.time_s(),
+            magnet_c: r.thermal.magnet_c,
+            plate_c: r.thermal.plate_c,
+            max_magnet_c: r.magnet_state.max_c,
+            irreversible: r.magnet_state.irreversible,
+            heater_w: r.heater_power_w(),
+            bytes_damaged: self.damaged,
+        }
+    }
+}
+
+/// The virtual rig as an in-process byte stream, driven by its reader: every read advances
+/// simulated time by one sample period (no wall clock, no pseudo-terminal), so a whole cycle
+/// runs as fast as the machine allows. For tests and benchmarks.
+pub struct SimulatedPort {
+    bench: SimulatedBench,
+    pending: Vec<u8>,
+    read_step_s: f64,
+    /// Stop answering after this much simulated time (a pulled cable), s.
+    pub cut_at_s: Option<f64>,
+}
+
+impl SimulatedPort {
+    /// A port onto a new simulated bench with the reference firmware settings.
+    pub fn new(opts: VirtualRigOptions) -> Self {
+        SimulatedPort {
+            bench: SimulatedBench::new(opts, FirmwareConfig::REFERENCE),
+            pending: Vec::new(),
+            read_step_s: 0.1,
+            cut_at_s: None,
+        }
+    }
+
+    /// The bench behind the port.
+    pub fn bench(&self) -> &SimulatedBench {
+        &self.bench
+    }
+}
+
+impl Read for SimulatedPort {
+    fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
+        if self.cut_at_s.is_some_and(|t| self.bench.time_s() >= t) {
+            return Err(io::Error::from(io::ErrorKind::BrokenPipe));
+        }
+        let mut waited = 0.0;
+        while self.pending.is_empty() {
+            if waited >= 5.0 {
+                return Err(io::Error::from(io::ErrorKind::TimedOut));
+            }
+            self.pending = self.bench.advance(self.read_step_s);
+            waited += self.read_step_s;
+        }
+        let n = self.pending.len().min(buf.len());
+        buf[..n].copy_from_slice(&self.pending[..n]);
+        self.pending.drain(..n);
+        Ok(n)
+    }
+}
+
+impl Write for SimulatedPort {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        self.bench.receive(buf);
+        Ok(buf.len())
+    }
+    fn flush(&mut self) -> io::Result<()> {
+        Ok(())
+    }
 }

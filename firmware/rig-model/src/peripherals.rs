@@ -1,8 +1,12 @@
 //! Simulated peripherals: the rig behind the same bus traits the real drivers use, so the
 //! firmware's own drivers, sampler and interlocks run unchanged against the model.
+//!
+//! Each peripheral holds a handle to the shared rig: `&RefCell<Rig>` on a microcontroller,
+//! `Rc<RefCell<Rig>>` on the host — anything that dereferences to the `RefCell`.
 
 use core::cell::RefCell;
 use core::convert::Infallible;
+use core::ops::Deref;
 
 use embedded_hal::delay::DelayNs;
 use embedded_hal::digital::{ErrorType as PinErrorType, OutputPin};
@@ -17,16 +21,16 @@ use remanent_firmware::Clock;
 use crate::rig::Rig;
 
 /// The four-channel ADC's registers, answering from the rig.
-pub struct SimAdcBus<'a> {
-    rig: &'a RefCell<Rig>,
+pub struct SimAdcBus<H> {
+    rig: H,
     config: u16,
     conversion: u16,
     pointer: u8,
 }
 
-impl<'a> SimAdcBus<'a> {
+impl<H: Deref<Target = RefCell<Rig>>> SimAdcBus<H> {
     /// The ADC bus of `rig`.
-    pub fn new(rig: &'a RefCell<Rig>) -> Self {
+    pub fn new(rig: H) -> Self {
         SimAdcBus {
             rig,
             config: 0x8583,
@@ -36,11 +40,11 @@ impl<'a> SimAdcBus<'a> {
     }
 }
 
-impl I2cErrorType for SimAdcBus<'_> {
+impl<H> I2cErrorType for SimAdcBus<H> {
     type Error = Infallible;
 }
 
-impl I2c<SevenBitAddress> for SimAdcBus<'_> {
+impl<H: Deref<Target = RefCell<Rig>>> I2c<SevenBitAddress> for SimAdcBus<H> {
     fn transaction(
         &mut self,
         _address: u8,
@@ -84,22 +88,22 @@ impl I2c<SevenBitAddress> for SimAdcBus<'_> {
 }
 
 /// The thermocouple converter on SPI, answering from the rig.
-pub struct SimThermoSpi<'a> {
-    rig: &'a RefCell<Rig>,
+pub struct SimThermoSpi<H> {
+    rig: H,
 }
 
-impl<'a> SimThermoSpi<'a> {
+impl<H: Deref<Target = RefCell<Rig>>> SimThermoSpi<H> {
     /// The converter of `rig`.
-    pub fn new(rig: &'a RefCell<Rig>) -> Self {
+    pub fn new(rig: H) -> Self {
         SimThermoSpi { rig }
     }
 }
 
-impl SpiErrorType for SimThermoSpi<'_> {
+impl<H> SpiErrorType for SimThermoSpi<H> {
     type Error = Infallible;
 }
 
-impl SpiDevice for SimThermoSpi<'_> {
+impl<H: Deref<Target = RefCell<Rig>>> SpiDevice for SimThermoSpi<H> {
     fn transaction(&mut self, operations: &mut [SpiOp<'_, u8>]) -> Result<(), Infallible> {
         let word = self.rig.borrow_mut().thermo_word().0.to_be_bytes();
         for op in operations {
@@ -114,13 +118,13 @@ impl SpiDevice for SimThermoSpi<'_> {
 }
 
 /// The heater's PWM channel.
-pub struct SimHeaterPwm<'a>(pub &'a RefCell<Rig>);
+pub struct SimHeaterPwm<H>(pub H);
 
-impl PwmErrorType for SimHeaterPwm<'_> {
+impl<H> PwmErrorType for SimHeaterPwm<H> {
     type Error = Infallible;
 }
 
-impl SetDutyCycle for SimHeaterPwm<'_> {
+impl<H: Deref<Target = RefCell<Rig>>> SetDutyCycle for SimHeaterPwm<H> {
     fn max_duty_cycle(&self) -> u16 {
         1000
     }
@@ -131,13 +135,13 @@ impl SetDutyCycle for SimHeaterPwm<'_> {
 }
 
 /// The heater's enable pin.
-pub struct SimHeaterEnable<'a>(pub &'a RefCell<Rig>);
+pub struct SimHeaterEnable<H>(pub H);
 
-impl PinErrorType for SimHeaterEnable<'_> {
+impl<H> PinErrorType for SimHeaterEnable<H> {
     type Error = Infallible;
 }
 
-impl OutputPin for SimHeaterEnable<'_> {
+impl<H: Deref<Target = RefCell<Rig>>> OutputPin for SimHeaterEnable<H> {
     fn set_low(&mut self) -> Result<(), Infallible> {
         self.0.borrow_mut().enabled = false;
         Ok(())
@@ -156,9 +160,9 @@ impl DelayNs for SimDelay {
 }
 
 /// The device clock: the rig's simulated time.
-pub struct SimClock<'a>(pub &'a RefCell<Rig>);
+pub struct SimClock<H>(pub H);
 
-impl Clock for SimClock<'_> {
+impl<H: Deref<Target = RefCell<Rig>>> Clock for SimClock<H> {
     fn now_ms(&mut self) -> u32 {
         self.0.borrow().time_ms()
     }

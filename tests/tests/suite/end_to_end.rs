@@ -246,3 +246,115 @@ fn bad_csv_input_names_the_file_line_and_column() {
         .to_string();
     assert!(e.contains("line 12") && e.contains("time_s"), "{e}");
 }
+
+mod link_safety {
+    use remanent::link::Session;
+    use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
+    use remanent_protocol::{Command, DeviceMsg, Fault};
+    use std::time::Duration;
+
+    fn heated_session() -> Session<SimulatedPort> {
+        let m = remanent::magnets::resolve("RM-S2C17-D10x5").unwrap();
+        let mut s = Session::new(SimulatedPort::new(VirtualRigOptions::new(m.model.unwrap())));
+        s.handshake(Duration::from_secs(5), &mut |_| {}).unwrap();
+        s.send(Command::Manual {
+            setpoint_tenth_c: 600,
+            limit_tenth_c: 800,
+        })
+        .unwrap();
+        s
+    }
+
+    #[test]
+    fn heartbeat_loss_turns_the_virtual_heater_off_within_the_timeout() {
+        let mut s = heated_session();
+        // heat with heartbeats every 0.5 s of device time for 20 s
+        for i in 0..200 {
+            s.read().unwrap();
+            if i % 5 == 0 {
+                s.send(Command::Heartbeat).unwrap();
+            }
+        }
+        let port = s.into_port();
+        assert!(port.bench().truth().heater_w > 0.0, "heating");
+        let silent_from = port.bench().truth().time_s;
+        let mut s = Session::new(port);
+        let mut tripped_at = None;
+        for _ in 0..60 {
+            let got = s.read().unwrap();
+            for f in got.frames {
+                if let Ok(DeviceMsg::Fault(r)) = f {
+                    assert_eq!(r.fault, Fault::HeartbeatLost);
+                    tripped_at.get_or_insert(f64::from(r.time_ms) / 1000.0);
+                }
+            }
+        }
+        let port = s.into_port();
+        let t = tripped_at.expect("heartbeat fault reported");
+        // the firmware's 2 s timeout, plus one 0.1 s control period
+        assert!(
+            t - silent_from <= 2.0 + 0.1 + 1e-6,
+            "heater off {:.2} s after the last heartbeat",
+            t - silent_from
+        );
+        assert_eq!(port.bench().truth().heater_w, 0.0);
+    }
+
+    #[test]
+    fn an_injected_fault_command_drives_the_heater_off() {
+        let mut s = heated_session();
+        for _ in 0..50 {
+            s.read().unwrap();
+            s.send(Command::Heartbeat).unwrap();
+        }
+        s.send(Command::InjectFault).unwrap();
+        let mut seen = false;
+        for _ in 0..3 {
+            for f in s.read().unwrap().frames {
+                seen |= matches!(f, Ok(DeviceMsg::Fault(r)) if r.fault == Fault::Injected);
+            }
+        }
+        assert!(seen);
+        assert_eq!(s.into_port().bench().truth().heater_w, 0.0);
+    }
+}
+
+#[test]
+fn stopping_a_record_turns_the_heater_off_and_closes_cleanly() {
+    use remanent::virtual_rig::SimulatedPort;
+    let m = magnets::resolve("RM-N42SH-D10x5").unwrap();
+    let mut port = SimulatedPort::new(VirtualRigOptions::new(m.model.unwrap()));
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("stopped");
+    let stop = Arc::new(AtomicBool::new(false));
+    let s2 = stop.clone();
+    // the progress callback plays the user pressing Ctrl-C once the heater is on
+    struct StopWhenHot(Arc<AtomicBool>);
+    impl remanent::record::Progress for StopWhenHot {
+        fn update(&mut self, s: &remanent::record::LiveStatus) {
+            if s.temp_c.is_some_and(|t| t > 40.0) {
+                self.0.store(true, std::sync::atomic::Ordering::Relaxed);
+            }
+        }
+        fn note(&mut self, _: &str) {}
+    }
+    let rec = RecordOptions {
+        port_label: "simulated".into(),
+        magnet: m.info,
+        profile: short_profile(),
+        calibration: Calibration::virtual_rig(&remanent_rig_model::RigParams::REFERENCE),
+        out: out.clone(),
+        silence_timeout: Duration::from_secs(3),
+        preroll_s: 10.0,
+        stop,
+    };
+    let summary = record(&mut port, rec, &mut StopWhenHot(s2)).unwrap();
+    assert_eq!(summary.end, RecordEnd::Stopped);
+    assert_eq!(
+        port.bench().truth().heater_w,
+        0.0,
+        "heater off after the stop"
+    );
+    let meta = remanent::run_dir::read_meta(&out).unwrap();
+    assert!(meta.end_reason.unwrap().contains("stopped"));
+}

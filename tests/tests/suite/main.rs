@@ -1,5 +1,6 @@
 //! The cross-crate test suite: reference-data checks and end-to-end runs.
 
+mod accuracy;
 mod end_to_end;
 mod reference_field;
 mod reference_lsq;
