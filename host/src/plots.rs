@@ -413,3 +413,260 @@ pub fn write_run_plots(
     }
     Ok(written)
 }
+
+fn lot_alpha<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    s: &crate::lot::LotSummary,
+    spec: Option<&crate::specs::GradeSpec>,
+    title: &str,
+) -> DrawResult {
+    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    root.fill(&WHITE).map_err(e)?;
+    let halves = root.split_evenly((1, 2));
+    let n = s.rows.len();
+    // α per magnet with its U95 and the spec limits
+    let mut lo = s
+        .rows
+        .iter()
+        .map(|r| r.alpha - r.alpha_u95)
+        .fold(f64::INFINITY, f64::min);
+    let mut hi = s
+        .rows
+        .iter()
+        .map(|r| r.alpha + r.alpha_u95)
+        .fold(f64::NEG_INFINITY, f64::max);
+    if let Some(g) = spec {
+        lo = lo.min(g.alpha_min);
+        hi = hi.max(g.alpha_max);
+    }
+    let pad = (hi - lo) * 0.08 + 1e-4;
+    let mut c = ChartBuilder::on(&halves[0])
+        .caption(format!("α(Br) per magnet — {title}"), ("sans-serif", 20))
+        .margin(15)
+        .x_label_area_size(40)
+        .y_label_area_size(80)
+        .build_cartesian_2d(-0.5..(n as f64 - 0.5), (lo - pad)..(hi + pad))
+        .map_err(e)?;
+    c.configure_mesh()
+        .x_desc("magnet (ranked by room-temperature flux)")
+        .y_desc("α(Br), %/°C")
+        .label_style(("sans-serif", 14))
+        .axis_desc_style(("sans-serif", 16))
+        .draw()
+        .map_err(e)?;
+    for (i, r) in s.rows.iter().enumerate() {
+        let x = i as f64;
+        let col = if r.outlier.is_empty() {
+            COOLING
+        } else {
+            HEATING
+        };
+        c.draw_series([PathElement::new(
+            vec![(x, r.alpha - r.alpha_u95), (x, r.alpha + r.alpha_u95)],
+            col.stroke_width(2),
+        )])
+        .map_err(e)?;
+        c.draw_series([Circle::new((x, r.alpha), 5, col.filled())])
+            .map_err(e)?;
+    }
+    if let Some(g) = spec {
+        for (v, name) in [(g.alpha_min, "spec min"), (g.alpha_max, "spec max")] {
+            c.draw_series(LineSeries::new(
+                [(-0.5, v), (n as f64 - 0.5, v)],
+                RED.stroke_width(2),
+            ))
+            .map_err(e)?
+            .label(format!("{name} {v:.3} %/°C ({})", g.grade))
+            .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED));
+        }
+        c.configure_series_labels()
+            .label_font(("sans-serif", 13))
+            .background_style(WHITE.mix(0.85))
+            .border_style(BLACK)
+            .draw()
+            .map_err(e)?;
+    }
+    // room-temperature flux, ranked, and the loss beside it when measured
+    let (blo, bhi) = range(s.rows.iter().map(|r| r.b20_mt));
+    let mut c = ChartBuilder::on(&halves[1])
+        .caption(
+            "Room-temperature flux, ranked (red: outlier)",
+            ("sans-serif", 20),
+        )
+        .margin(15)
+        .x_label_area_size(40)
+        .y_label_area_size(80)
+        .build_cartesian_2d(-0.5..(n as f64 - 0.5), blo..bhi)
+        .map_err(e)?;
+    c.configure_mesh()
+        .x_desc("magnet")
+        .y_desc("B at 20 °C, mT")
+        .label_style(("sans-serif", 14))
+        .axis_desc_style(("sans-serif", 16))
+        .draw()
+        .map_err(e)?;
+    c.draw_series(s.rows.iter().enumerate().map(|(i, r)| {
+        let col = if r.outlier.is_empty() {
+            COOLING
+        } else {
+            HEATING
+        };
+        Rectangle::new(
+            [(i as f64 - 0.35, blo), (i as f64 + 0.35, r.b20_mt)],
+            col.filled(),
+        )
+    }))
+    .map_err(e)?;
+    let med = s.b20.median;
+    c.draw_series(LineSeries::new(
+        [(-0.5, med), (n as f64 - 0.5, med)],
+        BLACK.stroke_width(2),
+    ))
+    .map_err(e)?
+    .label(format!("median {med:.2} mT"))
+    .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK));
+    c.configure_series_labels()
+        .label_font(("sans-serif", 13))
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(e)?;
+    root.present().map_err(e)
+}
+
+/// α per magnet with the spec limits, and the ranked room-temperature flux, as `stem`.png/.svg.
+pub fn write_lot_plot(
+    stem: &Path,
+    s: &crate::lot::LotSummary,
+    spec: Option<&crate::specs::GradeSpec>,
+    title: &str,
+) -> Result<Vec<PathBuf>, ReportError> {
+    ensure_font();
+    let err = |reason: String| ReportError::Plot {
+        path: stem.display().to_string(),
+        reason,
+    };
+    let png = stem.with_extension("png");
+    lot_alpha(
+        &BitMapBackend::new(&png, SIZE).into_drawing_area(),
+        s,
+        spec,
+        title,
+    )
+    .map_err(err)?;
+    let svg = stem.with_extension("svg");
+    let area = SVGBackend::new(&svg, SIZE).into_drawing_area();
+    let r = lot_alpha(&area, s, spec, title);
+    drop(area);
+    r.map_err(|reason| ReportError::Plot {
+        path: svg.display().to_string(),
+        reason,
+    })?;
+    Ok(vec![png, svg])
+}
+
+fn oc_curve<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    model: crate::sampling::Model,
+    plan: &crate::sampling::Plan,
+    aql: f64,
+    rql: f64,
+) -> DrawResult {
+    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    root.fill(&WHITE).map_err(e)?;
+    let pmax = (rql * 2.5).min(1.0);
+    let mut c = ChartBuilder::on(root)
+        .caption(
+            format!("Operating characteristic: n = {}, c = {}", plan.n, plan.c),
+            ("sans-serif", 24),
+        )
+        .margin(20)
+        .x_label_area_size(50)
+        .y_label_area_size(70)
+        .build_cartesian_2d(0.0..pmax * 100.0, 0.0..1.0)
+        .map_err(e)?;
+    c.configure_mesh()
+        .x_desc("fraction defective in the lot, %")
+        .y_desc("probability of accepting the lot")
+        .label_style(("sans-serif", 16))
+        .axis_desc_style(("sans-serif", 18))
+        .draw()
+        .map_err(e)?;
+    c.draw_series(LineSeries::new(
+        (0..=300).map(|k| {
+            let p = pmax * f64::from(k) / 300.0;
+            (
+                p * 100.0,
+                crate::sampling::accept_probability(model, plan.n, plan.c, p),
+            )
+        }),
+        COOLING.stroke_width(3),
+    ))
+    .map_err(e)?
+    .label("OC curve")
+    .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], COOLING.stroke_width(3)));
+    c.draw_series([Circle::new(
+        (aql * 100.0, plan.accept_at_aql),
+        6,
+        FIT.filled(),
+    )])
+    .map_err(e)?
+    .label(format!(
+        "AQL {:.2} %: Pa = {:.3}",
+        aql * 100.0,
+        plan.accept_at_aql
+    ))
+    .legend(|(x, y)| Circle::new((x + 10, y), 5, FIT.filled()));
+    c.draw_series([Circle::new(
+        (rql * 100.0, plan.accept_at_rql),
+        6,
+        HEATING.filled(),
+    )])
+    .map_err(e)?
+    .label(format!(
+        "RQL {:.2} %: Pa = {:.3}",
+        rql * 100.0,
+        plan.accept_at_rql
+    ))
+    .legend(|(x, y)| Circle::new((x + 10, y), 5, HEATING.filled()));
+    c.configure_series_labels()
+        .label_font(("sans-serif", 16))
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(e)?;
+    root.present().map_err(e)
+}
+
+/// The OC curve of `plan` as `stem`.png/.svg.
+pub fn write_oc_plot(
+    stem: &Path,
+    model: crate::sampling::Model,
+    plan: &crate::sampling::Plan,
+    aql: f64,
+    rql: f64,
+) -> Result<Vec<PathBuf>, ReportError> {
+    ensure_font();
+    let err = |reason: String| ReportError::Plot {
+        path: stem.display().to_string(),
+        reason,
+    };
+    let png = stem.with_extension("png");
+    oc_curve(
+        &BitMapBackend::new(&png, SIZE).into_drawing_area(),
+        model,
+        plan,
+        aql,
+        rql,
+    )
+    .map_err(err)?;
+    let svg = stem.with_extension("svg");
+    let area = SVGBackend::new(&svg, SIZE).into_drawing_area();
+    let r = oc_curve(&area, model, plan, aql, rql);
+    drop(area);
+    r.map_err(|reason| ReportError::Plot {
+        path: svg.display().to_string(),
+        reason,
+    })?;
+    Ok(vec![png, svg])
+}

@@ -4,11 +4,13 @@ use clap::{Parser, Subcommand};
 
 mod analyze;
 mod demo;
+mod lot;
 mod magnets;
 mod ports;
 mod progress;
 mod record;
 mod report;
+mod sampling_plan;
 mod virtual_rig;
 
 /// Remanent: temperature behaviour of permanent magnets on a heated bench fixture.
@@ -35,6 +37,10 @@ enum Cmd {
     Analyze(analyze::Args),
     /// Write plots and an HTML and Markdown report for a run.
     Report(report::Args),
+    /// Compare the runs of a shipment: table, spread, outliers, pass and fail counts.
+    Lot(lot::Args),
+    /// Design a single sampling plan (n, c) for lot acceptance.
+    SamplingPlan(sampling_plan::Args),
 }
 
 pub fn main() -> std::process::ExitCode {
@@ -47,6 +53,8 @@ pub fn main() -> std::process::ExitCode {
         Cmd::Magnets => magnets::run(),
         Cmd::Analyze(a) => analyze::run(a),
         Cmd::Report(a) => report::run(a),
+        Cmd::Lot(a) => lot::run(a),
+        Cmd::SamplingPlan(a) => sampling_plan::run(a),
     };
     match result {
         Ok(code) => code,

@@ -2,6 +2,7 @@
 
 mod accuracy;
 mod end_to_end;
+mod outputs;
 mod reference_field;
 mod reference_lsq;
 mod reference_type_k;

@@ -1,0 +1,59 @@
+//! `remanent sampling-plan`: how many magnets of a lot to test, and how many may fail.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use remanent::sampling::{design, Model};
+
+#[derive(clap::Args)]
+pub struct Args {
+    /// Acceptable quality level: fraction defective a good lot may have (e.g. 0.01).
+    #[arg(long)]
+    aql: f64,
+    /// Rejectable quality level: fraction defective a bad lot has (e.g. 0.06).
+    #[arg(long)]
+    rql: f64,
+    /// Producer's risk: chance of rejecting a lot at the AQL.
+    #[arg(long, default_value_t = 0.05)]
+    producer_risk: f64,
+    /// Consumer's risk: chance of accepting a lot at the RQL.
+    #[arg(long, default_value_t = 0.10)]
+    consumer_risk: f64,
+    /// Lot size: use the hypergeometric distribution for this finite lot.
+    #[arg(long)]
+    lot_size: Option<u64>,
+    /// Write the OC curve to this file stem (.png and .svg).
+    #[arg(long)]
+    plot: Option<PathBuf>,
+}
+
+pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+    let model = a
+        .lot_size
+        .map(Model::Hypergeometric)
+        .unwrap_or(Model::Binomial);
+    let plan = design(model, a.aql, a.rql, a.producer_risk, a.consumer_risk)?;
+    println!(
+        "test n = {} magnets, accept the lot if at most c = {} fail",
+        plan.n, plan.c
+    );
+    println!(
+        "  P(accept) at AQL {:.2} %: {:.4} (wanted ≥ {:.2}); at RQL {:.2} %: {:.4} (wanted ≤ {:.2}); {} model",
+        a.aql * 100.0,
+        plan.accept_at_aql,
+        1.0 - a.producer_risk,
+        a.rql * 100.0,
+        plan.accept_at_rql,
+        a.consumer_risk,
+        match model {
+            Model::Binomial => "binomial".to_string(),
+            Model::Hypergeometric(n) => format!("hypergeometric, lot of {n}"),
+        }
+    );
+    if let Some(stem) = a.plot {
+        for f in remanent::plots::write_oc_plot(&stem, model, &plan, a.aql, a.rql)? {
+            println!("wrote {}", f.display());
+        }
+    }
+    Ok(ExitCode::SUCCESS)
+}

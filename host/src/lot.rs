@@ -1,0 +1,272 @@
+//! A shipment: per-magnet results, the lot's spread, robust outliers and pass/fail counts.
+//!
+//! Outliers use the modified z-score of Iglewicz and Hoaglin (1993),
+//! M = 0.6745·(x − median)/MAD, flagged when |M| > 3.5.
+
+use std::fmt::Write as _;
+
+use serde::Serialize;
+
+use crate::analysis::verdict::Outcome;
+use crate::analysis::Analysis;
+
+/// One magnet of the lot.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct LotRow {
+    /// Magnet id.
+    pub id: String,
+    /// Stated grade.
+    pub grade: String,
+    /// α(Br), %/°C.
+    #[serde(rename = "alpha_pct_per_C")]
+    pub alpha: f64,
+    /// Its U95, %/°C.
+    #[serde(rename = "alpha_u95_pct_per_C")]
+    pub alpha_u95: f64,
+    /// Irreversible loss, %.
+    pub loss_pct: Option<f64>,
+    /// Its U95, %.
+    pub loss_u95_pct: Option<f64>,
+    /// Room-temperature flux (fitted B at 20 °C), mT.
+    #[serde(rename = "b20_mT")]
+    pub b20_mt: f64,
+    /// The magnet's verdict.
+    pub verdict: Outcome,
+    /// Robust outlier in α, loss or room-temperature flux.
+    pub outlier: Vec<String>,
+}
+
+impl LotRow {
+    /// A row from an analysis.
+    pub fn new(id: &str, grade: &str, a: &Analysis) -> Self {
+        LotRow {
+            id: id.into(),
+            grade: grade.into(),
+            alpha: a.alpha_pct_per_c,
+            alpha_u95: a.alpha_u95_pct_per_c,
+            loss_pct: a.irreversible_loss_pct,
+            loss_u95_pct: a.irreversible_loss_u95_pct,
+            b20_mt: a.b20_mt,
+            verdict: a.verdict,
+            outlier: Vec::new(),
+        }
+    }
+}
+
+/// Centre and spread of one quantity.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Spread {
+    /// Mean.
+    pub mean: f64,
+    /// Sample standard deviation.
+    pub sd: f64,
+    /// Median.
+    pub median: f64,
+    /// Median absolute deviation (unscaled).
+    pub mad: f64,
+    /// Values.
+    pub n: usize,
+}
+
+/// The median of `v`.
+pub fn median(v: &[f64]) -> f64 {
+    let mut s: Vec<f64> = v.to_vec();
+    s.sort_by(f64::total_cmp);
+    let n = s.len();
+    if n == 0 {
+        return f64::NAN;
+    }
+    if n % 2 == 1 {
+        s[n / 2]
+    } else {
+        0.5 * (s[n / 2 - 1] + s[n / 2])
+    }
+}
+
+/// Mean, sd, median and MAD.
+pub fn spread(v: &[f64]) -> Spread {
+    let n = v.len();
+    let mean = v.iter().sum::<f64>() / n.max(1) as f64;
+    let sd = if n > 1 {
+        (v.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (n - 1) as f64).sqrt()
+    } else {
+        0.0
+    };
+    let med = median(v);
+    let dev: Vec<f64> = v.iter().map(|x| (x - med).abs()).collect();
+    Spread {
+        mean,
+        sd,
+        median: med,
+        mad: median(&dev),
+        n,
+    }
+}
+
+/// Modified z-scores (Iglewicz and Hoaglin): 0.6745·(x − median)/MAD (0 when MAD is 0).
+pub fn modified_z(v: &[f64]) -> Vec<f64> {
+    let s = spread(v);
+    v.iter()
+        .map(|x| {
+            if s.mad > 0.0 {
+                0.6745 * (x - s.median) / s.mad
+            } else {
+                0.0
+            }
+        })
+        .collect()
+}
+
+/// The threshold on |M| above which a value is an outlier.
+pub const OUTLIER_Z: f64 = 3.5;
+
+/// The lot summary.
+#[derive(Debug, Clone, Serialize)]
+pub struct LotSummary {
+    /// Per magnet, ranked by room-temperature flux (highest first).
+    pub rows: Vec<LotRow>,
+    /// α spread.
+    pub alpha: Spread,
+    /// Loss spread (magnets with a loss).
+    pub loss: Option<Spread>,
+    /// Room-temperature flux spread.
+    pub b20: Spread,
+    /// Verdict counts.
+    pub passed: usize,
+    /// Failed.
+    pub failed: usize,
+    /// Indeterminate.
+    pub indeterminate: usize,
+}
+
+/// Summarise a lot.
+pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
+    let alphas: Vec<f64> = rows.iter().map(|r| r.alpha).collect();
+    let b20: Vec<f64> = rows.iter().map(|r| r.b20_mt).collect();
+    for (i, z) in modified_z(&alphas).into_iter().enumerate() {
+        if z.abs() > OUTLIER_Z {
+            rows[i].outlier.push(format!("α (M = {z:+.1})"));
+        }
+    }
+    for (i, z) in modified_z(&b20).into_iter().enumerate() {
+        if z.abs() > OUTLIER_Z {
+            rows[i]
+                .outlier
+                .push(format!("room-temperature flux (M = {z:+.1})"));
+        }
+    }
+    let with_loss: Vec<(usize, f64)> = rows
+        .iter()
+        .enumerate()
+        .filter_map(|(i, r)| r.loss_pct.map(|l| (i, l)))
+        .collect();
+    let losses: Vec<f64> = with_loss.iter().map(|x| x.1).collect();
+    for ((i, _), z) in with_loss.iter().zip(modified_z(&losses)) {
+        if z.abs() > OUTLIER_Z {
+            rows[*i].outlier.push(format!("loss (M = {z:+.1})"));
+        }
+    }
+    let count = |o: Outcome| rows.iter().filter(|r| r.verdict == o).count();
+    let (passed, failed, indeterminate) = (
+        count(Outcome::Pass),
+        count(Outcome::Fail),
+        count(Outcome::Indeterminate),
+    );
+    rows.sort_by(|a, b| b.b20_mt.total_cmp(&a.b20_mt));
+    LotSummary {
+        alpha: spread(&alphas),
+        loss: (!losses.is_empty()).then(|| spread(&losses)),
+        b20: spread(&b20),
+        rows,
+        passed,
+        failed,
+        indeterminate,
+    }
+}
+
+fn opt(v: Option<f64>, p: usize) -> String {
+    v.map(|x| format!("{x:.p$}")).unwrap_or_default()
+}
+
+/// The per-magnet table as CSV.
+pub fn to_csv(s: &LotSummary) -> String {
+    let mut out = String::from("id,grade,alpha_pct_per_C,alpha_u95_pct_per_C,loss_pct,loss_u95_pct,b20_mT,verdict,outlier\n");
+    for r in &s.rows {
+        let _ = writeln!(
+            out,
+            "{},{},{:.5},{:.5},{},{},{:.3},{},\"{}\"",
+            r.id,
+            r.grade,
+            r.alpha,
+            r.alpha_u95,
+            opt(r.loss_pct, 4),
+            opt(r.loss_u95_pct, 4),
+            r.b20_mt,
+            format!("{:?}", r.verdict).to_lowercase(),
+            r.outlier.join("; ")
+        );
+    }
+    out
+}
+
+/// A short text summary.
+pub fn text(s: &LotSummary) -> String {
+    let mut out = String::new();
+    let _ = writeln!(
+        out,
+        "{} magnets: {} pass, {} fail, {} indeterminate",
+        s.rows.len(),
+        s.passed,
+        s.failed,
+        s.indeterminate
+    );
+    let _ = writeln!(
+        out,
+        "α(Br):  mean {:+.4} %/°C, sd {:.4}, median {:+.4}",
+        s.alpha.mean, s.alpha.sd, s.alpha.median
+    );
+    if let Some(l) = s.loss {
+        let _ = writeln!(
+            out,
+            "loss:   mean {:.3} %, sd {:.3}, median {:.3}",
+            l.mean, l.sd, l.median
+        );
+    }
+    let _ = writeln!(
+        out,
+        "B20:    mean {:.2} mT, sd {:.2}, median {:.2}",
+        s.b20.mean, s.b20.sd, s.b20.median
+    );
+    let _ = writeln!(
+        out,
+        "\n{:<18} {:>10} {:>9} {:>8} {:>14}  outlier",
+        "id", "α %/°C", "loss %", "B20 mT", "verdict"
+    );
+    for r in &s.rows {
+        let _ = writeln!(
+            out,
+            "{:<18} {:>+10.4} {:>9} {:>8.2} {:>14}  {}",
+            r.id,
+            r.alpha,
+            opt(r.loss_pct, 3),
+            r.b20_mt,
+            format!("{:?}", r.verdict).to_lowercase(),
+            r.outlier.join("; ")
+        );
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn modified_z_flags_the_textbook_outlier() {
+        // Iglewicz & Hoaglin's rule on a small set with one wild value: median 2.5, MAD 0.5
+        let v = [2.0, 2.5, 3.0, 2.5, 2.0, 3.0, 9.0];
+        let z = modified_z(&v);
+        assert!((z[6] - 0.6745 * (9.0 - 2.5) / 0.5).abs() < 1e-12);
+        assert!(z[6] > OUTLIER_Z && z[..6].iter().all(|x| x.abs() < OUTLIER_Z));
+    }
+}

@@ -1,0 +1,182 @@
+//! Every output for a run and for a lot of virtual-rig runs, checked for content; and the
+//! sampling plan against a textbook worked example.
+
+use std::sync::atomic::AtomicBool;
+use std::sync::Arc;
+use std::time::Duration;
+
+use remanent::analysis::dataset;
+use remanent::analysis::{analyze, Context};
+use remanent::calibration::Calibration;
+use remanent::lot::{self, LotRow};
+use remanent::magnets;
+use remanent::profiles::ProfileSpec;
+use remanent::record::{record, Quiet, RecordOptions};
+use remanent::sampling::{accept_probability, design, Model};
+use remanent::specs::SpecTable;
+use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
+
+fn simulated_run(
+    dir: &std::path::Path,
+    id: &str,
+    magnet: &str,
+    br_scale: f64,
+    seed: u64,
+) -> std::path::PathBuf {
+    let m = magnets::resolve(magnet).unwrap();
+    let mut model = m.model.unwrap();
+    model.br_20_t *= br_scale;
+    let mut info = m.info.clone();
+    info.id = id.into();
+    let mut opts = VirtualRigOptions::new(model);
+    opts.seed = seed;
+    let out = dir.join(id);
+    let rec = RecordOptions {
+        port_label: "simulated".into(),
+        magnet: info,
+        profile: ProfileSpec::resolve("quick-alpha").unwrap(),
+        calibration: Calibration::virtual_rig(&opts.params),
+        out: out.clone(),
+        silence_timeout: Duration::from_secs(5),
+        preroll_s: 60.0,
+        stop: Arc::new(AtomicBool::new(false)),
+    };
+    let mut port = SimulatedPort::new(opts);
+    record(&mut port, rec, &mut Quiet).unwrap();
+    out
+}
+
+fn analysed(run: &std::path::Path) -> (dataset::Series, remanent::analysis::Analysis) {
+    let (s, src) = dataset::load_run(run, None).unwrap();
+    let ctx = Context {
+        calibration: src.calibration,
+        magnet: src.magnet,
+        specs: SpecTable::builtin(),
+        default_tc_gain_pct: 0.75,
+    };
+    let a = analyze(&s, &ctx).unwrap();
+    (s, a)
+}
+
+#[test]
+fn the_report_carries_the_analysis_numbers_and_every_plot() {
+    let dir = tempfile::tempdir().unwrap();
+    let run = simulated_run(dir.path(), "RPT-1", "RM-N42SH-D10x5", 1.0, 3);
+    let (s, a) = analysed(&run);
+    let files = remanent::report::write_all(&run, &s, &a, "RPT-1", false).unwrap();
+    assert_eq!(files.len(), 9);
+    for f in &files {
+        assert!(
+            std::fs::metadata(f).unwrap().len() > 500,
+            "{} is nearly empty",
+            f.display()
+        );
+    }
+    let md = std::fs::read_to_string(run.join("report.md")).unwrap();
+    let html = std::fs::read_to_string(run.join("report.html")).unwrap();
+    let alpha = format!("{:+.4}", a.alpha_pct_per_c);
+    let u = format!("{:.4}", a.alpha_u95_pct_per_c);
+    for doc in [&md, &html] {
+        assert!(
+            doc.contains(&alpha) && doc.contains(&u),
+            "α {alpha} ± {u} missing"
+        );
+        assert!(doc.contains(&format!("{:.3}", a.irreversible_loss_pct.unwrap())));
+        assert!(doc.contains("IEC 61010-1"), "safety notes");
+        assert!(doc.contains("RM-N42SH") || doc.contains("RPT-1"));
+        assert!(doc.contains("remanent 0.1.0"), "software version");
+    }
+    assert_eq!(html.matches("<svg").count(), 3, "plots inlined as SVG");
+    assert!(
+        !html.contains("http://")
+            || html.matches("http://").count() == html.matches("xmlns").count(),
+        "no network references"
+    );
+    let json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(run.join("analysis.json")).unwrap()).unwrap();
+    assert!((json["alpha_pct_per_C"].as_f64().unwrap() - a.alpha_pct_per_c).abs() < 1e-12);
+    for key in [
+        "alpha_u95_pct_per_C",
+        "fit_range_C",
+        "lag_time_constant_s",
+        "irreversible_loss_pct",
+        "irreversible_loss_u95_pct",
+        "material_family",
+        "verdict",
+    ] {
+        assert!(!json[key].is_null(), "{key} missing from the JSON report");
+    }
+    // nothing is replaced without being told
+    assert!(remanent::report::write_all(&run, &s, &a, "RPT-1", false).is_err());
+    assert!(remanent::report::write_all(&run, &s, &a, "RPT-1", true).is_ok());
+}
+
+#[test]
+fn a_lot_finds_the_weak_magnet() {
+    let dir = tempfile::tempdir().unwrap();
+    // five good magnets with a little spread in Br, one 6 % weak
+    let scales = [1.0, 1.004, 0.997, 1.002, 0.999, 0.94];
+    let mut rows = Vec::new();
+    for (i, k) in scales.iter().enumerate() {
+        let id = format!("LOT-{:02}", i + 1);
+        let run = simulated_run(dir.path(), &id, "RM-N42SH-D10x5", *k, 100 + i as u64);
+        let (_, a) = analysed(&run);
+        rows.push(LotRow::new(&id, "N42SH", &a));
+    }
+    let s = lot::summarise(rows);
+    let weak = s.rows.iter().find(|r| r.id == "LOT-06").unwrap();
+    assert!(
+        weak.outlier
+            .iter()
+            .any(|o| o.contains("room-temperature flux")),
+        "{:?}",
+        weak.outlier
+    );
+    assert!(s
+        .rows
+        .iter()
+        .filter(|r| r.id != "LOT-06")
+        .all(|r| r.outlier.is_empty()));
+    assert_eq!(s.rows.last().unwrap().id, "LOT-06", "ranked last by flux");
+    assert!(s.alpha.sd < 0.001, "α spread {:.5}", s.alpha.sd);
+    let csv = lot::to_csv(&s);
+    assert_eq!(csv.lines().count(), 7);
+    assert!(csv.contains(&format!("{:.5}", weak.alpha)));
+    let stem = dir.path().join("lot");
+    let files =
+        remanent::plots::write_lot_plot(&stem, &s, SpecTable::builtin().find("N42SH"), "test lot")
+            .unwrap();
+    assert!(files
+        .iter()
+        .all(|f| std::fs::metadata(f).unwrap().len() > 1000));
+}
+
+#[test]
+fn sampling_plan_matches_the_textbook_example() {
+    // Montgomery, Introduction to Statistical Quality Control (6th ed., §15.2), worked example
+    // (values from memory): p1 = 0.01, 1 − α = 0.95, p2 = 0.06, β = 0.10; the binomial
+    // nomograph gives n = 89, c = 2, whose OC the text reads as Pa(0.01) ≈ 0.94, Pa(0.06) ≈ 0.09.
+    let pa1 = accept_probability(Model::Binomial, 89, 2, 0.01);
+    let pa2 = accept_probability(Model::Binomial, 89, 2, 0.06);
+    assert!((pa1 - 0.94).abs() < 0.005, "Pa(0.01) = {pa1}");
+    assert!((pa2 - 0.09).abs() < 0.005, "Pa(0.06) = {pa2}");
+    // The nomograph's plan falls just short of the producer's 0.95; the exact search returns
+    // the smallest plan that meets both risks, and it must really meet them.
+    let plan = design(Model::Binomial, 0.01, 0.06, 0.05, 0.10).unwrap();
+    assert!(plan.accept_at_aql >= 0.95 && plan.accept_at_rql <= 0.10);
+    assert_eq!((plan.n, plan.c), (110, 3));
+    // no smaller n meets both risks at any c
+    for n in 1..plan.n {
+        for c in 0..n.min(10) {
+            let ok = accept_probability(Model::Binomial, n, c, 0.01) >= 0.95
+                && accept_probability(Model::Binomial, n, c, 0.06) <= 0.10;
+            assert!(!ok, "n = {n}, c = {c} also works");
+        }
+    }
+    // binomial probabilities against a direct sum: P(X ≤ 1 | n = 10, p = 0.1) = 0.9^10 + 10·0.1·0.9^9
+    let direct = 0.9f64.powi(10) + 10.0 * 0.1 * 0.9f64.powi(9);
+    assert!((accept_probability(Model::Binomial, 10, 1, 0.1) - direct).abs() < 1e-12);
+    // hypergeometric: lot of 20 with 4 defective, sample 5, accept on 0: C(16,5)/C(20,5) = 4368/15504
+    let hg = accept_probability(Model::Hypergeometric(20), 5, 0, 0.2);
+    assert!((hg - 4368.0 / 15504.0).abs() < 1e-12, "{hg}");
+}
