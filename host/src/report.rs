@@ -320,7 +320,7 @@ pub fn html(
     for n in SAFETY_NOTES {
         let _ = write!(s, "<li>{}</li>", esc(n));
     }
-    let _ = write!(s, "</ul></body></html>\n");
+    let _ = writeln!(s, "</ul></body></html>");
     s
 }
 
@@ -371,6 +371,6 @@ pub fn lot_html(s: &crate::lot::LotSummary, title: &str, svg: &str) -> String {
         );
     }
     let body = svg.find("<svg").map(|i| &svg[i..]).unwrap_or("");
-    let _ = write!(h, "</table><figure>{body}</figure><p>Outliers: modified z-score |M| &gt; 3.5 (Iglewicz &amp; Hoaglin).</p></body></html>\n");
+    let _ = writeln!(h, "</table><figure>{body}</figure><p>Outliers: modified z-score |M| &gt; 3.5 (Iglewicz &amp; Hoaglin).</p></body></html>");
     h
 }
