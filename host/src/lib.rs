@@ -16,4 +16,5 @@ pub mod report;
 pub mod run_dir;
 pub mod sampling;
 pub mod specs;
+pub mod survey;
 pub mod virtual_rig;

@@ -69,6 +69,8 @@ pub struct Rig {
     pub duty: f64,
     /// Heater enable pin.
     pub enabled: bool,
+    /// Whether a magnet is in the fixture (a survey takes them in and out).
+    pub present: bool,
     time_s: f64,
     rng: Rng,
 }
@@ -85,6 +87,7 @@ impl Rig {
             faults: RigFaults::default(),
             duty: 0.0,
             enabled: false,
+            present: true,
             time_s: 0.0,
             rng: Rng::new(seed),
         }
@@ -143,8 +146,28 @@ impl Rig {
         0.5 * (self.thermal.plate_c + self.thermal.probe_c)
     }
 
+    /// Put another magnet in the fixture, at the fixture's temperature, with an earlier
+    /// irreversible loss (a fraction); `None` empties the fixture.
+    pub fn swap(&mut self, magnet: Option<(Magnet, f64)>) {
+        match magnet {
+            Some((m, loss)) => {
+                self.magnet = m;
+                self.magnet_state = MagnetState {
+                    max_c: self.thermal.plate_c,
+                    irreversible: loss,
+                };
+                self.thermal.magnet_c = self.thermal.plate_c;
+                self.present = true;
+            }
+            None => self.present = false,
+        }
+    }
+
     /// True field at the sensing element, mT.
     pub fn field_mt(&self) -> f64 {
+        if !self.present {
+            return 0.0;
+        }
         let gap = self.params.hall.gap_at_mm(self.standoff_c());
         self.br_t() * 1000.0 * self.magnet.shape.bz_per_br(gap)
     }

@@ -11,6 +11,7 @@ mod progress;
 mod record;
 mod report;
 mod sampling_plan;
+mod survey;
 mod virtual_rig;
 
 /// Remanent: temperature behaviour of permanent magnets on a heated bench fixture.
@@ -41,6 +42,8 @@ enum Cmd {
     Lot(lot::Args),
     /// Design a single sampling plan (n, c) for lot acceptance.
     SamplingPlan(sampling_plan::Args),
+    /// Read many magnets at room temperature and rank them to find the damaged ones.
+    Survey(survey::Args),
 }
 
 pub fn main() -> std::process::ExitCode {
@@ -55,6 +58,7 @@ pub fn main() -> std::process::ExitCode {
         Cmd::Report(a) => report::run(a),
         Cmd::Lot(a) => lot::run(a),
         Cmd::SamplingPlan(a) => sampling_plan::run(a),
+        Cmd::Survey(a) => survey::run(a),
     };
     match result {
         Ok(code) => code,

@@ -28,6 +28,12 @@ pub struct Args {
     /// Probability that a byte to the host has a bit flipped.
     #[arg(long, default_value_t = 0.0)]
     link_flip_probability: f64,
+    /// Survey mode: this many copies of the magnet are placed one after another (no heating).
+    #[arg(long)]
+    survey: Option<usize>,
+    /// In survey mode, these magnets (1-based, comma-separated) have lost 5 % of their flux.
+    #[arg(long, value_delimiter = ',')]
+    survey_damaged: Vec<usize>,
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
@@ -46,6 +52,9 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         heater_detached_at_s: a.heater_detached_at_s,
     };
     opts.link_flip_probability = a.link_flip_probability;
+    if let Some(n) = a.survey {
+        opts.survey = remanent::virtual_rig::survey_set(model, n, &a.survey_damaged, 0.05, a.seed);
+    }
     let rig = VirtualRig::start(opts)?;
     println!("{}", rig.path());
     eprintln!(

@@ -180,3 +180,37 @@ fn sampling_plan_matches_the_textbook_example() {
     let hg = accept_probability(Model::Hypergeometric(20), 5, 0, 0.2);
     assert!((hg - 4368.0 / 15504.0).abs() < 1e-12, "{hg}");
 }
+
+#[test]
+fn a_survey_of_a_rotor_set_flags_the_damaged_magnets() {
+    use remanent::survey::{self, SurveyOptions};
+    struct Silent;
+    impl survey::SurveyProgress for Silent {
+        fn reading(&mut self, _: &survey::Reading) {}
+        fn note(&mut self, _: &str) {}
+    }
+    let m = magnets::resolve("RM-N42-D10x5").unwrap();
+    let mut opts = VirtualRigOptions::new(m.model.unwrap());
+    // a 12-pole rotor set; poles 4 and 9 were overheated and lost 5 % (invented scenario)
+    opts.survey = remanent::virtual_rig::survey_set(m.model.unwrap(), 12, &[4, 9], 0.05, 9);
+    let cal = Calibration::virtual_rig(&opts.params);
+    let port = SimulatedPort::new(opts);
+    let readings = survey::run(port, &SurveyOptions::new(cal, 12), None, &mut Silent).unwrap();
+    assert_eq!(readings.len(), 12, "one reading per magnet");
+    let ranked = survey::rank(&readings);
+    let low: Vec<usize> = ranked
+        .iter()
+        .filter(|r| r.low)
+        .map(|r| r.reading.index)
+        .collect();
+    assert_eq!(low.len(), 2, "{ranked:?}");
+    assert!(low.contains(&4) && low.contains(&9), "flagged {low:?}");
+    for r in ranked.iter().filter(|r| r.low) {
+        assert!(
+            (r.deviation_pct + 5.0).abs() < 1.2,
+            "deviation {:.2} % for a 5 % loss",
+            r.deviation_pct
+        );
+    }
+    assert_eq!(survey::to_csv(&ranked).lines().count(), 13);
+}

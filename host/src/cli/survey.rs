@@ -1,0 +1,103 @@
+//! `remanent survey`: room-temperature readings of many magnets in a row, ranked.
+
+use std::io::BufRead;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use remanent::calibration::Calibration;
+use remanent::specs::SpecTable;
+use remanent::survey::{self, Reading, SurveyOptions, SurveyProgress};
+use remanent_rig_model::RigParams;
+
+#[derive(clap::Args)]
+pub struct Args {
+    /// Serial port of the bench (or a virtual rig started with --survey).
+    #[arg(long)]
+    port: String,
+    /// How many magnets to read.
+    #[arg(long)]
+    count: usize,
+    /// Read each magnet when Enter is pressed instead of when its field is stable.
+    #[arg(long)]
+    confirm: bool,
+    /// Grade of the set: its typical α refers the readings to 20 °C.
+    #[arg(long)]
+    grade: Option<String>,
+    /// Rig calibration TOML (default: the virtual rig's constants).
+    #[arg(long)]
+    calibration: Option<PathBuf>,
+    /// Write the ranked table here (CSV; must not exist).
+    #[arg(long)]
+    out: Option<PathBuf>,
+}
+
+struct Print;
+impl SurveyProgress for Print {
+    fn reading(&mut self, r: &Reading) {
+        println!(
+            "magnet {:>3}: {:>9.3} mT at {:.1} °C (scatter {:.3} %)",
+            r.index,
+            r.flux_mt,
+            r.temp_c,
+            r.rel_sd * 100.0
+        );
+    }
+    fn note(&mut self, m: &str) {
+        eprintln!("{m}");
+    }
+}
+
+pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+    if let Some(o) = &a.out {
+        if o.exists() {
+            anyhow::bail!("{} already exists; choose another --out", o.display());
+        }
+    }
+    let calibration = match &a.calibration {
+        Some(p) => Calibration::load(p)?,
+        None => Calibration::virtual_rig(&RigParams::REFERENCE),
+    };
+    let mut opts = SurveyOptions::new(calibration, a.count);
+    if let Some(g) = &a.grade {
+        let specs = SpecTable::builtin();
+        let spec = specs
+            .find(g)
+            .ok_or_else(|| anyhow::anyhow!("grade {g} is not in the spec table"))?;
+        opts.alpha_pct_per_c = Some(0.5 * (spec.alpha_min + spec.alpha_max));
+    }
+    let confirm = a.confirm.then(|| {
+        let (tx, rx) = std::sync::mpsc::channel();
+        std::thread::spawn(move || {
+            for _ in std::io::stdin().lock().lines() {
+                if tx.send(()).is_err() {
+                    break;
+                }
+            }
+        });
+        rx
+    });
+    let port = remanent::link::port::open(&a.port)?;
+    let readings = survey::run(port, &opts, confirm, &mut Print)?;
+    let ranked = survey::rank(&readings);
+    println!("\nranked, lowest first (median-relative):");
+    for (i, r) in ranked.iter().enumerate() {
+        println!(
+            "{:>3}. magnet {:>3}  {:>9.3} mT  {:+7.2} %  M = {:+6.1}{}",
+            i + 1,
+            r.reading.index,
+            r.reading.flux_mt,
+            r.deviation_pct,
+            r.z,
+            if r.low {
+                "  LOW: likely demagnetized or heat-damaged"
+            } else {
+                ""
+            }
+        );
+    }
+    if let Some(o) = a.out {
+        std::fs::write(&o, survey::to_csv(&ranked))?;
+        println!("wrote {}", o.display());
+    }
+    Ok(ExitCode::SUCCESS)
+}

@@ -1,0 +1,251 @@
+//! The room-temperature survey: many magnets read one after another without heating, each
+//! when the user confirms placement or when a stable reading is detected, then ranked against
+//! the set's median to find the damaged ones (a rotor set, a bin of salvaged parts).
+
+use std::io::{Read, Write};
+use std::sync::mpsc::Receiver;
+use std::time::{Duration, Instant};
+
+use remanent_protocol::{Command, DeviceMsg};
+use serde::Serialize;
+
+use crate::calibration::Calibration;
+use crate::conversion;
+use crate::link::{LinkError, Session, Timeline};
+use crate::lot::{median, modified_z, OUTLIER_Z};
+
+/// How readings are taken.
+#[derive(Debug, Clone)]
+pub struct SurveyOptions {
+    /// Calibration for the flux.
+    pub calibration: Calibration,
+    /// Stop after this many magnets.
+    pub count: usize,
+    /// A reading is stable when this long a window …, s
+    pub window_s: f64,
+    /// … has a relative standard deviation below this.
+    pub max_rel_sd: f64,
+    /// Below this the fixture counts as empty, mT.
+    pub empty_mt: f64,
+    /// α to refer readings to 20 °C, %/°C (None: as measured).
+    pub alpha_pct_per_c: Option<f64>,
+    /// Give up after this long without a new reading (wall clock).
+    pub idle_timeout: Duration,
+}
+
+impl SurveyOptions {
+    /// Defaults: 3 s windows, 0.05 % scatter, 5 mT empty threshold.
+    pub fn new(calibration: Calibration, count: usize) -> Self {
+        SurveyOptions {
+            calibration,
+            count,
+            window_s: 3.0,
+            max_rel_sd: 0.0005,
+            empty_mt: 5.0,
+            alpha_pct_per_c: None,
+            idle_timeout: Duration::from_secs(120),
+        }
+    }
+}
+
+/// One magnet's reading.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Reading {
+    /// Order in which it was read, from 1.
+    pub index: usize,
+    /// Mean flux over the window, mT (referred to 20 °C when α is given).
+    #[serde(rename = "flux_mT")]
+    pub flux_mt: f64,
+    /// Relative standard deviation over the window.
+    pub rel_sd: f64,
+    /// Magnet (thermocouple) temperature, °C.
+    #[serde(rename = "temp_C")]
+    pub temp_c: f64,
+    /// Device time, s.
+    pub time_s: f64,
+}
+
+/// Receives readings as they are taken.
+pub trait SurveyProgress {
+    /// A magnet was read.
+    fn reading(&mut self, r: &Reading);
+    /// A message.
+    fn note(&mut self, message: &str);
+}
+
+#[derive(Debug, PartialEq)]
+enum State {
+    Empty,
+    Settling,
+    Taken,
+}
+
+/// Run a survey on a session (handshake done by this function).
+pub fn run<P: Read + Write>(
+    port: P,
+    opts: &SurveyOptions,
+    confirm: Option<Receiver<()>>,
+    progress: &mut dyn SurveyProgress,
+) -> Result<Vec<Reading>, LinkError> {
+    let mut session = Session::new(port);
+    session.handshake(Duration::from_secs(10), &mut |_| {})?;
+    let mut timeline = Timeline::default();
+    let mut window: Vec<(f64, f64, f64)> = Vec::new();
+    let mut state = State::Empty;
+    let mut readings = Vec::new();
+    let mut last_progress = Instant::now();
+    let mut last_heartbeat = Instant::now();
+    let mut pending_confirm: Option<f64> = None;
+    progress.note(if confirm.is_some() {
+        "place a magnet and press Enter to read it"
+    } else {
+        "place the magnets one after another; each is read once its field is stable"
+    });
+    while readings.len() < opts.count {
+        if last_heartbeat.elapsed() >= Duration::from_millis(300) {
+            session.send(Command::Heartbeat)?;
+            last_heartbeat = Instant::now();
+        }
+        if last_progress.elapsed() > opts.idle_timeout {
+            progress.note("no new magnet for a while: ending the survey");
+            break;
+        }
+        for f in session.read()?.frames {
+            let msg = match f {
+                Ok(m) => m,
+                Err(_) => continue,
+            };
+            let sample = match msg {
+                DeviceMsg::Beacon(b) => {
+                    timeline.beacon(b);
+                    continue;
+                }
+                DeviceMsg::Sample(s) => s,
+                _ => continue,
+            };
+            let Some(p) = timeline.place(sample) else {
+                continue;
+            };
+            let cal = &opts.calibration;
+            let (Some(t), Some(tp)) = (
+                conversion::thermocouple_c(sample.thermo, cal),
+                conversion::probe_c(sample.probe_code, &cal.ntc),
+            ) else {
+                continue;
+            };
+            let mut b = conversion::flux_mt(sample.hall_code, tp, &cal.hall);
+            if let Some(a) = opts.alpha_pct_per_c {
+                b /= 1.0 + a / 100.0 * (t - 20.0);
+            }
+            let now = p.device_time_s;
+            if confirm.as_ref().is_some_and(|rx| rx.try_recv().is_ok()) {
+                pending_confirm = Some(now);
+                window.clear();
+            }
+            if b.abs() < opts.empty_mt {
+                state = State::Empty;
+                window.clear();
+                continue;
+            }
+            if state == State::Empty {
+                state = State::Settling;
+                window.clear();
+            }
+            window.push((now, b, t));
+            window.retain(|w| now - w.0 <= opts.window_s);
+            let span = now - window[0].0;
+            let n = window.len() as f64;
+            let mean = window.iter().map(|w| w.1).sum::<f64>() / n;
+            let sd = (window.iter().map(|w| (w.1 - mean).powi(2)).sum::<f64>()
+                / (n - 1.0).max(1.0))
+            .sqrt();
+            let rel_sd = sd / mean.abs();
+            let take = match (confirm.is_some(), pending_confirm) {
+                (true, Some(at)) => now - at >= opts.window_s.min(2.0),
+                (true, None) => false,
+                (false, _) => {
+                    state == State::Settling
+                        && span >= opts.window_s * 0.95
+                        && rel_sd < opts.max_rel_sd
+                }
+            };
+            if take {
+                let temp_c = window.iter().map(|w| w.2).sum::<f64>() / n;
+                let r = Reading {
+                    index: readings.len() + 1,
+                    flux_mt: mean,
+                    rel_sd,
+                    temp_c,
+                    time_s: now,
+                };
+                progress.reading(&r);
+                readings.push(r);
+                last_progress = Instant::now();
+                state = State::Taken;
+                pending_confirm = None;
+                if readings.len() >= opts.count {
+                    break;
+                }
+            }
+        }
+    }
+    Ok(readings)
+}
+
+/// A reading ranked against the set.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Ranked {
+    /// The reading.
+    #[serde(flatten)]
+    pub reading: Reading,
+    /// Deviation from the set's median, %.
+    pub deviation_pct: f64,
+    /// Modified z-score against the set.
+    pub z: f64,
+    /// Flagged as low: likely demagnetized or heat-damaged.
+    pub low: bool,
+}
+
+/// Flag threshold below the median regardless of the spread, %.
+pub const MIN_FLAG_PCT: f64 = 1.0;
+
+/// Rank the readings, lowest flux first.
+pub fn rank(readings: &[Reading]) -> Vec<Ranked> {
+    let flux: Vec<f64> = readings.iter().map(|r| r.flux_mt).collect();
+    let med = median(&flux);
+    let z = modified_z(&flux);
+    let mut out: Vec<Ranked> = readings
+        .iter()
+        .zip(z)
+        .map(|(r, z)| {
+            let dev = (r.flux_mt - med) / med * 100.0;
+            Ranked {
+                reading: *r,
+                deviation_pct: dev,
+                z,
+                low: dev < -MIN_FLAG_PCT && z < -OUTLIER_Z,
+            }
+        })
+        .collect();
+    out.sort_by(|a, b| a.reading.flux_mt.total_cmp(&b.reading.flux_mt));
+    out
+}
+
+/// The ranked table as CSV.
+pub fn to_csv(ranked: &[Ranked]) -> String {
+    let mut s = String::from("rank,magnet,flux_mT,deviation_pct,modified_z,temp_C,rel_sd,low\n");
+    for (i, r) in ranked.iter().enumerate() {
+        s.push_str(&format!(
+            "{},{},{:.3},{:+.3},{:+.2},{:.2},{:.6},{}\n",
+            i + 1,
+            r.reading.index,
+            r.reading.flux_mt,
+            r.deviation_pct,
+            r.z,
+            r.reading.temp_c,
+            r.reading.rel_sd,
+            r.low as u8
+        ));
+    }
+    s
+}
