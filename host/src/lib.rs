@@ -15,6 +15,7 @@ pub mod record;
 pub mod report;
 pub mod run_dir;
 pub mod sampling;
+pub mod selftest;
 pub mod specs;
 pub mod survey;
 pub mod virtual_rig;

@@ -11,6 +11,7 @@ mod progress;
 mod record;
 mod report;
 mod sampling_plan;
+mod self_test;
 mod survey;
 mod virtual_rig;
 
@@ -44,6 +45,8 @@ enum Cmd {
     SamplingPlan(sampling_plan::Args),
     /// Read many magnets at room temperature and rank them to find the damaged ones.
     Survey(survey::Args),
+    /// Check a bench: sensors, heating, and that a fault drives the heater off.
+    SelfTest(self_test::Args),
 }
 
 pub fn main() -> std::process::ExitCode {
@@ -59,6 +62,7 @@ pub fn main() -> std::process::ExitCode {
         Cmd::Lot(a) => lot::run(a),
         Cmd::SamplingPlan(a) => sampling_plan::run(a),
         Cmd::Survey(a) => survey::run(a),
+        Cmd::SelfTest(a) => self_test::run(a),
     };
     match result {
         Ok(code) => code,

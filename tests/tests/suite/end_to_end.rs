@@ -358,3 +358,54 @@ fn stopping_a_record_turns_the_heater_off_and_closes_cleanly() {
     let meta = remanent::run_dir::read_meta(&out).unwrap();
     assert!(meta.end_reason.unwrap().contains("stopped"));
 }
+
+#[test]
+fn the_self_test_passes_on_a_healthy_simulated_bench_and_fails_a_detached_heater() {
+    use remanent::virtual_rig::SimulatedPort;
+    let m = magnets::resolve("RM-N42SH-D10x5").unwrap();
+    let opts = VirtualRigOptions::new(m.model.unwrap());
+    let cal = Calibration::virtual_rig(&opts.params);
+    let (_, steps) = remanent::selftest::run(SimulatedPort::new(opts.clone()), cal).unwrap();
+    assert_eq!(steps.len(), 6);
+    assert!(steps.iter().all(|s| s.passed), "{steps:#?}");
+    let mut broken = opts;
+    broken.faults.heater_detached_at_s = Some(0.0);
+    let (_, steps) = remanent::selftest::run(SimulatedPort::new(broken), cal).unwrap();
+    let heats = steps.iter().find(|s| s.name == "heater heats").unwrap();
+    assert!(!heats.passed, "a detached heater must fail the self-test");
+}
+
+/// Checks a record made by CI from the emulated board (firmware/ci.sh sets REMANENT_CI_RUN).
+#[test]
+#[ignore = "run by firmware/ci.sh against the QEMU board"]
+fn ci_record_from_the_emulated_board_is_complete() {
+    let dir = std::path::PathBuf::from(std::env::var("REMANENT_CI_RUN").expect("REMANENT_CI_RUN"));
+    let meta = remanent::run_dir::read_meta(&dir).unwrap();
+    assert_eq!(meta.end_reason.as_deref(), Some("profile finished"));
+    assert_eq!(meta.counts.gaps, 0, "no gaps");
+    assert_eq!(
+        meta.counts.frames_bad_crc + meta.counts.frames_bad_cobs + meta.counts.frames_other,
+        0
+    );
+    assert!(
+        meta.device.as_ref().unwrap().board.starts_with("qemu"),
+        "recorded from the emulated board"
+    );
+    let mut rdr = csv::Reader::from_path(dir.join("samples.csv")).unwrap();
+    let mut last_seq: Option<u64> = None;
+    let mut max_t = f64::MIN;
+    let mut n = 0;
+    for rec in rdr.records() {
+        let r = rec.unwrap();
+        let seq: u64 = r[0].parse().unwrap();
+        if let Some(l) = last_seq {
+            assert_eq!(seq, l + 1, "samples in order with no gaps");
+        }
+        last_seq = Some(seq);
+        max_t = max_t.max(r[9].parse::<f64>().unwrap());
+        n += 1;
+    }
+    assert!(n > 1000, "{n} samples");
+    // the profile (firmware/ci/short-cycle.toml) peaks at 45 °C
+    assert!((max_t - 45.0).abs() < 1.5, "peak {max_t} °C");
+}

@@ -1,0 +1,71 @@
+//! The Remanent firmware on an emulated Cortex-M3 board (QEMU lm3s6965evb).
+//!
+//! The real firmware library — drivers, sampler, control, interlocks, state machine — runs
+//! unchanged against the rig model's simulated peripherals, the same model the host's virtual
+//! rig uses. The host talks to it over UART0, which QEMU puts on a pseudo-terminal.
+//!
+//! Simulated time advances 10 ms per loop pass, in lockstep with the host: at most one second
+//! of device time beyond the host's latest frame, so the emulation never outruns a host that is
+//! still reading. (The heartbeat interlock is exercised by the host-side tests and the virtual
+//! rig, where time runs on its own.)
+#![no_std]
+#![no_main]
+
+mod uart;
+
+use core::cell::RefCell;
+use core::panic::PanicInfo;
+
+use cortex_m_rt::entry;
+use remanent_firmware::device::{BoardInfo, Device};
+use remanent_firmware::drivers::{ads1115, max31855};
+use remanent_firmware::heater::Heater;
+use remanent_firmware::FirmwareConfig;
+use remanent_protocol::MAX_DEVICE_FRAME;
+use remanent_rig_model::catalogue;
+use remanent_rig_model::peripherals::{SimAdcBus, SimDelay, SimHeaterEnable, SimHeaterPwm, SimThermoSpi};
+use remanent_rig_model::{Rig, RigParams};
+
+/// Device time the emulation may run ahead of the host's latest frame, ms.
+const LOCKSTEP_MS: u32 = 1000;
+/// Simulated time per loop pass, s.
+const STEP_S: f64 = 0.01;
+
+#[entry]
+fn main() -> ! {
+    let mut uart = uart::Uart0::take();
+    let part = catalogue::find("RM-N42SH-D10x5").unwrap_or(&catalogue::PARTS[0]);
+    let rig = RefCell::new(Rig::new(RigParams::REFERENCE, part.magnet, 1));
+    let cfg = FirmwareConfig::REFERENCE;
+    let board = BoardInfo { name: "qemu-lm3s6965", supply_mv: 3300, ntc_series_ohm: 10_000 };
+    let adc = ads1115::Ads1115::new(SimAdcBus::new(&rig), SimDelay, ads1115::DEFAULT_ADDRESS);
+    let tc = max31855::Max31855::new(SimThermoSpi::new(&rig));
+    let heater = Heater::new(SimHeaterPwm(&rig), SimHeaterEnable(&rig), cfg.limits.duty_cap_pct);
+    let mut device = Device::new(cfg, board, adc, tc, heater, 0);
+    let mut frame = [0u8; MAX_DEVICE_FRAME];
+    let mut last_rx_ms: u32 = 0;
+    loop {
+        while let Some(b) = uart.read_byte() {
+            let now = rig.borrow().time_ms();
+            device.receive(now, &[b]);
+            last_rx_ms = now;
+        }
+        let now = rig.borrow().time_ms();
+        if device.handshaken() && now.wrapping_sub(last_rx_ms) < LOCKSTEP_MS {
+            rig.borrow_mut().advance(STEP_S);
+            let now = rig.borrow().time_ms();
+            device.poll(now);
+        }
+        while let Some(f) = device.next_frame(&mut frame) {
+            uart.write_all(f);
+        }
+    }
+}
+
+#[panic_handler]
+fn panic(_info: &PanicInfo) -> ! {
+    cortex_m::interrupt::disable();
+    loop {
+        cortex_m::asm::wfi();
+    }
+}

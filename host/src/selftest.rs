@@ -1,0 +1,202 @@
+//! The bench self-test: the device answers, every sensor reads sensibly, the heater heats,
+//! and an injected fault drives the heater off within one control period and latches until
+//! cleared. Run it after building or rewiring a rig (and in CI against the emulated board).
+
+use std::io::{Read, Write};
+use std::time::Duration;
+
+use remanent_protocol::{Command, DeviceHello, DeviceMsg, Fault, RunState, Sample};
+
+use crate::calibration::Calibration;
+use crate::conversion;
+use crate::link::{LinkError, Session, Timeline};
+
+/// One step's result.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Step {
+    /// What was checked.
+    pub name: &'static str,
+    /// Whether it passed.
+    pub passed: bool,
+    /// What was seen.
+    pub detail: String,
+}
+
+struct Probe<P> {
+    s: Session<P>,
+    timeline: Timeline,
+    cal: Calibration,
+    last_ack: Vec<u16>,
+    faults: Vec<Fault>,
+    states: Vec<RunState>,
+}
+
+impl<P: Read + Write> Probe<P> {
+    /// Read until `until` says stop or `max_samples` samples went by; heartbeats on the way.
+    fn watch(
+        &mut self,
+        max_samples: usize,
+        mut until: impl FnMut(&Sample, f64) -> bool,
+    ) -> Result<Option<(Sample, f64)>, LinkError> {
+        let mut seen = 0;
+        while seen < max_samples {
+            let got = self.s.read()?;
+            for f in got.frames.into_iter().flatten() {
+                match f {
+                    DeviceMsg::Beacon(b) => self.timeline.beacon(b),
+                    DeviceMsg::Ack(a) => self.last_ack.push(a.id),
+                    DeviceMsg::Fault(r) => self.faults.push(r.fault),
+                    DeviceMsg::State(st) => self.states.push(st.state),
+                    DeviceMsg::Sample(smp) => {
+                        if let Some(p) = self.timeline.place(smp) {
+                            seen += 1;
+                            if seen % 4 == 0 {
+                                self.s.send(Command::Heartbeat)?;
+                            }
+                            if until(&smp, p.device_time_s) {
+                                return Ok(Some((smp, p.device_time_s)));
+                            }
+                        }
+                    }
+                    _ => {}
+                }
+            }
+        }
+        Ok(None)
+    }
+
+    fn temp(&self, s: &Sample) -> Option<f64> {
+        conversion::thermocouple_c(s.thermo, &self.cal)
+    }
+}
+
+/// Run the self-test; the device info and each step.
+pub fn run<P: Read + Write>(
+    port: P,
+    cal: Calibration,
+) -> Result<(DeviceHello, Vec<Step>), LinkError> {
+    let mut s = Session::new(port);
+    let hello = s.handshake(Duration::from_secs(10), &mut |_| {})?;
+    let mut p = Probe {
+        s,
+        timeline: Timeline::default(),
+        cal,
+        last_ack: Vec::new(),
+        faults: Vec::new(),
+        states: Vec::new(),
+    };
+    let mut steps = Vec::new();
+    // 1. sensors
+    let first = p.watch(30, |_, _| true)?;
+    let Some((smp, _)) = first else {
+        steps.push(Step {
+            name: "samples arrive",
+            passed: false,
+            detail: "no samples after the handshake".into(),
+        });
+        return Ok((hello, steps));
+    };
+    let t0 = p.temp(&smp);
+    let probe = conversion::probe_c(smp.probe_code, &p.cal.ntc);
+    let flux = probe.map(|tp| conversion::flux_mt(smp.hall_code, tp, &p.cal.hall));
+    steps.push(Step {
+        name: "thermocouple",
+        passed: t0.is_some_and(|t| (-20.0..80.0).contains(&t)),
+        detail: match t0 {
+            Some(t) => format!(
+                "{t:.2} °C (cold junction {:.2} °C)",
+                conversion::cold_junction_c(smp.thermo)
+            ),
+            None => format!("fault {:?}", smp.thermo.fault()),
+        },
+    });
+    steps.push(Step {
+        name: "probe thermistor",
+        passed: probe.is_some_and(|t| (-20.0..80.0).contains(&t)),
+        detail: probe
+            .map(|t| format!("{t:.2} °C"))
+            .unwrap_or_else(|| "open or shorted".into()),
+    });
+    steps.push(Step {
+        name: "Hall probe",
+        passed: !conversion::hall_saturated(smp.hall_code),
+        detail: flux
+            .map(|b| format!("{b:.2} mT (code {})", smp.hall_code))
+            .unwrap_or_default(),
+    });
+    let Some(t0) = t0 else {
+        return Ok((hello, steps));
+    };
+    // 2. heating response: 8 K above the start
+    let target = t0 + 8.0;
+    let id = p.s.send(Command::Manual {
+        setpoint_tenth_c: (target * 10.0) as i16,
+        limit_tenth_c: ((target + 15.0) * 10.0) as i16,
+    })?;
+    let cal = p.cal;
+    let rose = p.watch(3000, |smp, _| {
+        conversion::thermocouple_c(smp.thermo, &cal).is_some_and(|t| t > t0 + 2.0)
+    })?;
+    steps.push(Step {
+        name: "heater heats",
+        passed: rose.is_some() && p.last_ack.contains(&id),
+        detail: match rose {
+            Some((smp, t)) => format!(
+                "+2 K after {:.0} s at {:.0} % duty",
+                t,
+                f64::from(smp.duty) / 2.55
+            ),
+            None => "no 2 K rise within 300 s".into(),
+        },
+    });
+    // 3. injected fault: heater off within one control period, latched
+    let id = p.s.send(Command::InjectFault)?;
+    let mut t_fault = None;
+    let off = p.watch(20, |smp, t| {
+        if t_fault.is_none() {
+            t_fault = Some(t);
+        }
+        smp.duty == 0 && !smp.status.heater_enabled() && smp.status.fault_latched()
+    })?;
+    let period = f64::from(hello.sensors.period_ms) / 1000.0;
+    let delay = match (off, t_fault) {
+        (Some((_, t)), Some(t0)) => Some(t - t0),
+        _ => None,
+    };
+    steps.push(Step {
+        name: "fault drives the heater off",
+        passed: p.faults.contains(&Fault::Injected) && p.last_ack.contains(&id) && delay.is_some_and(|d| d <= period + 1e-6),
+        detail: match delay {
+            Some(d) => format!("fault reported; heater at 0 % and enable low {:.2} s later (one period is {period:.2} s)", d.max(0.0)),
+            None => "the heater did not turn off".into(),
+        },
+    });
+    let id_refused = p.s.send(Command::Manual {
+        setpoint_tenth_c: (target * 10.0) as i16,
+        limit_tenth_c: ((target + 15.0) * 10.0) as i16,
+    })?;
+    p.watch(5, |_, _| false)?;
+    let latched = !p.last_ack.contains(&id_refused);
+    let id = p.s.send(Command::ClearFault)?;
+    p.watch(5, |_, _| false)?;
+    steps.push(Step {
+        name: "fault latches until cleared",
+        passed: latched && p.last_ack.contains(&id),
+        detail: format!(
+            "a new setpoint was {}; clear {}",
+            if latched {
+                "refused"
+            } else {
+                "accepted (wrong)"
+            },
+            if p.last_ack.contains(&id) {
+                "accepted"
+            } else {
+                "refused"
+            }
+        ),
+    });
+    p.s.send(Command::Stop)?;
+    p.watch(3, |_, _| false)?;
+    Ok((hello, steps))
+}
