@@ -27,7 +27,7 @@ struct Probe<P> {
     timeline: Timeline,
     cal: Calibration,
     last_ack: Vec<u16>,
-    faults: Vec<Fault>,
+    faults: Vec<(Fault, f64)>,
     states: Vec<RunState>,
 }
 
@@ -45,7 +45,9 @@ impl<P: Read + Write> Probe<P> {
                 match f {
                     DeviceMsg::Beacon(b) => self.timeline.beacon(b),
                     DeviceMsg::Ack(a) => self.last_ack.push(a.id),
-                    DeviceMsg::Fault(r) => self.faults.push(r.fault),
+                    DeviceMsg::Fault(r) => {
+                        self.faults.push((r.fault, f64::from(r.time_ms) / 1000.0))
+                    }
                     DeviceMsg::State(st) => self.states.push(st.state),
                     DeviceMsg::Sample(smp) => {
                         if let Some(p) = self.timeline.place(smp) {
@@ -151,21 +153,24 @@ pub fn run<P: Read + Write>(
     });
     // 3. injected fault: heater off within one control period, latched
     let id = p.s.send(Command::InjectFault)?;
-    let mut t_fault = None;
-    let off = p.watch(20, |smp, t| {
-        if t_fault.is_none() {
-            t_fault = Some(t);
-        }
+    let off = p.watch(20, |smp, _| {
         smp.duty == 0 && !smp.status.heater_enabled() && smp.status.fault_latched()
     })?;
     let period = f64::from(hello.sensors.period_ms) / 1000.0;
-    let delay = match (off, t_fault) {
-        (Some((_, t)), Some(t0)) => Some(t - t0),
+    let tripped = p
+        .faults
+        .iter()
+        .find(|f| f.0 == Fault::Injected)
+        .map(|f| f.1);
+    // the first sample taken after the trip must already show the heater off
+    // (a sample is stamped when taken: its slot plus its lateness)
+    let delay = match (off, tripped) {
+        (Some((smp, t)), Some(t0)) => Some(t - t0 - f64::from(smp.status.lateness_ms()) / 1000.0),
         _ => None,
     };
     steps.push(Step {
         name: "fault drives the heater off",
-        passed: p.faults.contains(&Fault::Injected) && p.last_ack.contains(&id) && delay.is_some_and(|d| d <= period + 1e-6),
+        passed: tripped.is_some() && p.last_ack.contains(&id) && delay.is_some_and(|d| d <= period + 1e-6),
         detail: match delay {
             Some(d) => format!("fault reported; heater at 0 % and enable low {:.2} s later (one period is {period:.2} s)", d.max(0.0)),
             None => "the heater did not turn off".into(),

@@ -1,0 +1,65 @@
+#!/usr/bin/env bash
+# Firmware checks (the second documented command; .ci/run calls it):
+#  1. install Debian's Rust with its library sources, the linker and QEMU (if missing);
+#  2. cross-build the Pico (thumbv6m) and emulated (thumbv7m) images with -Zbuild-std=core;
+#  3. print flash and RAM use and check the Pico image against 64 KiB flash / 16 KiB RAM;
+#  4. make the Pico's UF2 file;
+#  5. boot the emulated board under QEMU with its UART on a pseudo-terminal, record a short heat
+#     cycle from it with `remanent record`, check the record, and run `remanent self-test`
+#     (an injected fault must drive the heater off within one control period).
+set -euo pipefail
+cd "$(dirname "$0")/.."
+ROOT=$PWD
+export RUSTC_BOOTSTRAP=1
+
+need_pkgs=()
+[ -x /usr/bin/rustc ] && [ -d /usr/lib/rustlib/src/rust ] || need_pkgs+=(rustc-web cargo-web rust-web-src rust-web-llvm)
+[ -x /usr/bin/ld.lld-22 ] || need_pkgs+=(lld-22)
+command -v llvm-size-22 >/dev/null || need_pkgs+=(llvm-22)
+if [ ${#need_pkgs[@]} -gt 0 ]; then
+  echo "-- installing ${need_pkgs[*]}"
+  apt-get update -qq && apt-get install -y -qq --no-install-recommends "${need_pkgs[@]}" >/dev/null
+fi
+if ! command -v qemu-system-arm >/dev/null; then
+  echo "-- installing qemu-system-arm (bookworm-backports)"
+  if [ ! -f /etc/apt/sources.list.d/remanent-backports.sources ] && ! grep -rqs bookworm-backports /etc/apt/sources.list.d/; then
+    printf 'Types: deb\nURIs: http://deb.debian.org/debian\nSuites: bookworm-backports\nComponents: main\nSigned-By: /usr/share/keyrings/debian-archive-keyring.gpg\n' \
+      > /etc/apt/sources.list.d/remanent-backports.sources
+  fi
+  apt-get update -qq && apt-get install -y -qq --no-install-recommends -t bookworm-backports qemu-system-arm >/dev/null
+fi
+
+echo "-- building the emulated board (thumbv7m-none-eabi)"
+(cd firmware/boards/emulated && cargo build --release -q)
+EMU=firmware/boards/emulated/target/thumbv7m-none-eabi/release/remanent-board-emulated
+echo "-- building the Pico board (thumbv6m-none-eabi)"
+(cd firmware/boards/pico && cargo build --release -q)
+PICO=firmware/boards/pico/target/thumbv6m-none-eabi/release/remanent-board-pico
+
+echo "-- image sizes"
+llvm-size-22 "$EMU" "$PICO"
+read -r text data bss _ < <(llvm-size-22 "$PICO" | tail -1)
+flash=$((text + data)); ram=$((data + bss))
+echo "pico: flash $flash of 65536 bytes, static RAM $ram of 16384 bytes"
+[ "$flash" -le 65536 ] || { echo "pico image exceeds the 64 KiB flash budget"; exit 1; }
+[ "$ram" -le 16384 ] || { echo "pico image exceeds the 16 KiB RAM budget"; exit 1; }
+
+echo "-- UF2 for drag-and-drop flashing"
+llvm-objcopy-22 -O binary "$PICO" target/remanent-pico.bin
+cargo run -q --release -p remanent-uf2 -- target/remanent-pico.bin 10000000 target/remanent-pico.uf2
+
+echo "-- emulated board under QEMU, recorded through the real serial path"
+cargo build -q --release -p remanent
+LINK=/tmp/remanent-qemu-$$
+RUN=$(mktemp -d)/run
+rm -f "$LINK"
+qemu-system-arm -machine lm3s6965evb -display none -monitor none \
+  -chardev pty,id=uart0,path="$LINK" -serial chardev:uart0 -kernel "$EMU" >/tmp/remanent-qemu.log 2>&1 &
+QEMU=$!
+trap 'kill $QEMU 2>/dev/null || true; rm -f "$LINK"' EXIT
+for _ in $(seq 50); do [ -e "$LINK" ] && break; sleep 0.1; done
+timeout 300 target/release/remanent record --port "$LINK" --profile firmware/ci/short-cycle.toml \
+  --magnet RM-N42SH-D10x5 --out "$RUN"
+REMANENT_CI_RUN="$RUN" cargo test -q -p remanent-tests --test suite ci_record_from_the_emulated_board -- --ignored
+timeout 120 target/release/remanent self-test --port "$LINK"
+echo "-- firmware checks passed"
