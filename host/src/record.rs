@@ -146,7 +146,7 @@ pub fn record<P: Read + Write>(
     let hello = session.handshake(Duration::from_secs(10), &mut |r| {
         early.push(Received {
             bytes: r.bytes.clone(),
-            frames: Vec::new(),
+            frames: r.frames.clone(),
         })
     })?;
     progress.note(&format!(
@@ -174,6 +174,10 @@ pub fn record<P: Read + Write>(
         w.raw(&r.bytes)?;
     }
     let mut rec = Recorder::new(&opts);
+    // what arrived with the device's hello (its first beacon, often) counts too
+    for f in early.into_iter().flat_map(|r| r.frames) {
+        rec.handle(f, &mut w, None, progress)?;
+    }
     let end = rec.run(&mut session, &mut w, &opts, progress);
     let end = match end {
         Ok(end) => end,

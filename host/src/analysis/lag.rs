@@ -9,11 +9,17 @@ pub fn lagged(time_s: &[f64], temp_c: &[f64], tau_s: f64) -> Vec<f64> {
     };
     let mut m = first;
     out.push(m);
+    // records are sampled on a fixed schedule: cache the factor for the last step length
+    let (mut last_dt, mut k) = (f64::NAN, 0.0);
     for i in 1..temp_c.len() {
         if tau_s <= 0.0 {
             m = temp_c[i];
         } else {
-            let k = 1.0 - (-(time_s[i] - time_s[i - 1]) / tau_s).exp();
+            let dt = time_s[i] - time_s[i - 1];
+            if dt != last_dt {
+                last_dt = dt;
+                k = 1.0 - (-dt / tau_s).exp();
+            }
             // trapezoid on the input: the magnet sees the mean over the step
             m += k * (0.5 * (temp_c[i] + temp_c[i - 1]) - m);
         }
@@ -22,9 +28,12 @@ pub fn lagged(time_s: &[f64], temp_c: &[f64], tau_s: f64) -> Vec<f64> {
     out
 }
 
-/// Minimize `cost(τ)` over `[0, max_s]`: a coarse grid, then golden-section refinement.
-pub fn minimize(max_s: f64, mut cost: impl FnMut(f64) -> f64) -> (f64, f64) {
-    let grid: Vec<f64> = (0..=60).map(|i| max_s * f64::from(i) / 60.0).collect();
+/// Minimize `cost(τ)` over `[lo_s, hi_s]`: a coarse grid of `points`, then golden-section
+/// refinement around the best grid point.
+pub fn minimize(lo_s: f64, hi_s: f64, points: u32, mut cost: impl FnMut(f64) -> f64) -> (f64, f64) {
+    let grid: Vec<f64> = (0..=points)
+        .map(|i| lo_s + (hi_s - lo_s) * f64::from(i) / f64::from(points))
+        .collect();
     let costs: Vec<f64> = grid.iter().map(|&t| cost(t)).collect();
     let best = costs
         .iter()
@@ -40,7 +49,7 @@ pub fn minimize(max_s: f64, mut cost: impl FnMut(f64) -> f64) -> (f64, f64) {
     let mut c = b - g * (b - a);
     let mut d = a + g * (b - a);
     let (mut fc, mut fd) = (cost(c), cost(d));
-    for _ in 0..40 {
+    for _ in 0..30 {
         if fc < fd {
             b = d;
             d = c;

@@ -231,7 +231,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         flux,
         stride: (n / 20_000).max(1),
     };
-    let mut seg = segments::find(&s.time_s, &s.temp_c);
+    let mut seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
     let span = s.temp_c[seg.peak] - s.temp_c[seg.before.start];
     if span < MIN_SPAN_K {
         return Err(AnalysisError::CannotFit(format!(
@@ -249,11 +249,16 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     let mut tau = None;
     let mut tm = s.temp_c.clone();
     if branches_ok {
-        for _ in 0..3 {
-            let (best, _) = lag::minimize(600.0, |t| prep.cost(t, &seg, loss));
+        for round in 0..3 {
+            // the first round searches the whole plausible range; later ones refine near it
+            let (lo, hi, points) = match tau {
+                Some(t) if round > 0 => (0.7 * t, 1.3 * t + 1.0, 8),
+                _ => (0.0, 600.0, 60),
+            };
+            let (best, _) = lag::minimize(lo, hi, points, |t| prep.cost(t, &seg, loss));
             tau = Some(best);
             tm = lag::lagged(&s.time_s, &s.temp_c, best);
-            seg = segments::find(&s.time_s, &tm);
+            seg = segments::find(&s.time_s, &tm, &s.temp_c);
             if let Some(l) = reference_loss(&prep, &seg, &tm, None) {
                 loss = l.max(0.0);
             }
@@ -431,6 +436,11 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         }],
     };
     let heat_damaged = matches!((loss_pct, loss_u95), (Some(l), Some(u)) if l > u.max(0.3));
+    if loss_pct.is_some_and(|l| l > 0.5) {
+        notes.push(
+            "the magnet lost flux during the excursion: the heating branch mixes reversible and irreversible change, so the lag estimate and α are less reliable than the budget says; measure α on a fresh magnet below its onset".into(),
+        );
+    }
     if heat_damaged {
         checks.push(Check {
             what: "irreversible loss".into(),
@@ -520,9 +530,18 @@ struct LossResult {
     probe_term_pct: f64,
 }
 
-/// Settled part of a reference window: its last 70 %.
+/// Settled part of a reference window: its last 30 %.
 fn settled(r: &std::ops::Range<usize>) -> std::ops::Range<usize> {
-    r.start + (r.end - r.start) * 3 / 10..r.end
+    r.start + (r.end - r.start) * 7 / 10..r.end
+}
+
+/// How much the flux still drifted across a window: the difference of its two halves'
+/// means, relative to the mean, % (a window that has not settled shows it here).
+fn drift_pct(flux: &[f64], r: &std::ops::Range<usize>) -> f64 {
+    let mid = r.start + (r.end - r.start) / 2;
+    let (a, _, _) = mean(flux[r.start..mid].iter().copied());
+    let (b, _, _) = mean(flux[mid..r.end].iter().copied());
+    ((b - a) / (0.5 * (a + b))).abs() * 100.0
 }
 
 /// Quick loss estimate (no budget) with an optional reversible correction.
@@ -562,8 +581,13 @@ fn reference_loss_full(
     let (before_r, after_r) = (settled(&seg.before), settled(after));
     let (b0, sd0, n0) = mean(before_r.clone().map(|i| p.flux[i]));
     let (b1, sd1, n1) = mean(after_r.clone().map(|i| p.flux[i]));
+    // the magnet's temperature in the windows: lag-corrected; how much the lag model moved it
+    // away from the thermocouple goes into the budget
     let (t0, _, _) = mean(before_r.clone().map(|i| tm[i]));
     let (t1, _, _) = mean(after_r.clone().map(|i| tm[i]));
+    let (tc0, _, _) = mean(before_r.clone().map(|i| p.s.temp_c[i]));
+    let (tc1, _, _) = mean(after_r.clone().map(|i| p.s.temp_c[i]));
+    let lag_shift_k = ((t0 - tc0).powi(2) + (t1 - tc1).powi(2)).sqrt();
     let ratio = eval(fit, t0) / eval(fit, t1);
     let loss = (b0 - b1 * ratio) / b0;
     // readings within a window are correlated over ~10 samples: count them as n/10
@@ -578,6 +602,17 @@ fn reference_loss_full(
             source: "scatter of the reference readings (type A)".into(),
             kind: 'A',
             u: u_mean,
+        },
+        BudgetLine {
+            source: "drift within the reference windows (not fully settled)".into(),
+            kind: 'B',
+            u: (drift_pct(&p.flux, &before_r).powi(2) + drift_pct(&p.flux, &after_r).powi(2))
+                .sqrt(),
+        },
+        BudgetLine {
+            source: "lag correction of the reference temperatures".into(),
+            kind: 'B',
+            u: (fit.coefficients[1] / fit.coefficients[0]).abs() * lag_shift_k * 100.0,
         },
         BudgetLine {
             source: "reversible correction between the reference temperatures".into(),

@@ -22,14 +22,18 @@ pub struct Segments {
 
 /// How far the temperature may stray and still count as the reference, K.
 pub const REFERENCE_BAND_K: f64 = 0.6;
-/// Soaks: slower than this, °C/min …
-pub const SOAK_RATE_C_PER_MIN: f64 = 0.15;
+/// Soaks: the temperature stays within this band of where the stretch began, K …
+pub const SOAK_BAND_K: f64 = 0.15;
 /// … for at least this long, s.
 pub const SOAK_MIN_S: f64 = 60.0;
 
-/// Split a series into its parts; `temp_c` should already be the lag-corrected magnet
-/// temperature when that is known.
-pub fn find(time_s: &[f64], temp_c: &[f64]) -> Segments {
+/// A soak also needs the thermocouple within this of the magnet estimate (a ramp's start,
+/// where the thermocouple has already moved on, is not a soak), K.
+pub const SOAK_AGREEMENT_K: f64 = 0.4;
+
+/// Split a series into its parts: `temp_c` is the magnet temperature (lag-corrected when
+/// known), `thermocouple_c` the measured one.
+pub fn find(time_s: &[f64], temp_c: &[f64], thermocouple_c: &[f64]) -> Segments {
     let n = temp_c.len();
     let start = temp_c[..n.min(20)].iter().sum::<f64>() / n.min(20) as f64;
     let rise = temp_c
@@ -52,7 +56,7 @@ pub fn find(time_s: &[f64], temp_c: &[f64]) -> Segments {
     let returned =
         (end_t - start).abs() < 5.0 && peak < tail && time_s[n - 1] - time_s[tail] >= 30.0;
     let mut after = returned.then_some(tail..n);
-    let soaks = soaks(time_s, temp_c);
+    let soaks = soaks(time_s, temp_c, thermocouple_c);
     // prefer settled soaks near room temperature as the references: the last soak before
     // the excursion and the last one after it, when they are close in temperature
     let mut before = before;
@@ -77,19 +81,17 @@ pub fn find(time_s: &[f64], temp_c: &[f64]) -> Segments {
     }
 }
 
-fn soaks(time_s: &[f64], temp_c: &[f64]) -> Vec<Range<usize>> {
+fn soaks(time_s: &[f64], temp_c: &[f64], tc: &[f64]) -> Vec<Range<usize>> {
     let n = temp_c.len();
     let mut out = Vec::new();
     let mut i = 0;
     while i < n {
         let mut j = i;
-        // extend while the drift from the window's start stays below the rate bound
-        while j + 1 < n {
-            let dt = time_s[j + 1] - time_s[i];
-            let allowed = SOAK_RATE_C_PER_MIN / 60.0 * dt.max(SOAK_MIN_S);
-            if (temp_c[j + 1] - temp_c[i]).abs() > allowed {
-                break;
-            }
+        // extend while the temperature stays in the band (a slow ramp's start must not count)
+        while j + 1 < n
+            && (temp_c[j + 1] - temp_c[i]).abs() <= SOAK_BAND_K
+            && (tc[j + 1] - temp_c[j + 1]).abs() <= SOAK_AGREEMENT_K
+        {
             j += 1;
         }
         if time_s[j] - time_s[i] >= SOAK_MIN_S {

@@ -19,6 +19,7 @@ pub struct PlacedSample {
 pub struct Timeline {
     beacon: Option<Beacon>,
     last_seq: Option<u32>,
+    rebase: bool,
     /// Samples missing between received ones.
     pub gap_samples: u64,
     /// Separate gaps.
@@ -36,7 +37,7 @@ impl Timeline {
         // re-base on it so the next sample is placed correctly
         if let Some(last) = self.last_seq {
             if b.seq.wrapping_sub(last) as i32 > 128 {
-                self.last_seq = None;
+                self.rebase = true;
             }
         }
         self.device_dropped = b.dropped_total;
@@ -54,7 +55,12 @@ impl Timeline {
             self.unplaced += 1;
             return None;
         };
-        let base = self.last_seq.unwrap_or(b.seq);
+        let base = if self.rebase {
+            b.seq
+        } else {
+            self.last_seq.unwrap_or(b.seq)
+        };
+        self.rebase = false;
         let delta = sample.seq_lo.wrapping_sub(base as u8) as i8 as i32;
         let seq = base.wrapping_add(delta as u32);
         if let Some(last) = self.last_seq {

@@ -148,3 +148,32 @@ fn irreversible_loss_is_recovered_with_its_uncertainty() {
         assert!(a.heat_damaged, "{magnet}: flagged as heat-damaged");
     }
 }
+
+#[test]
+fn conversion_inverts_the_rig_model_at_any_probe_temperature() {
+    // The host's conversion must undo the model's probe physics exactly: same field, probe at
+    // 20 … 40 °C, noise off.
+    use remanent::conversion;
+    use remanent_rig_model::{Rig, RigParams};
+    let m = magnets::resolve("RM-N42SH-D10x5").unwrap();
+    let mut params = RigParams::REFERENCE;
+    params.hall.noise_mv = 0.0;
+    let cal = Calibration::virtual_rig(&params);
+    let mut rig = Rig::new(params, m.model.unwrap(), 1);
+    for probe_c in [20.0, 25.0, 30.0, 40.0] {
+        rig.thermal.probe_c = probe_c;
+        let truth = rig.field_mt();
+        let code = rig.hall_code();
+        let p_code = rig.probe_code();
+        let tp = conversion::probe_c(p_code, &cal.ntc).unwrap();
+        assert!(
+            (tp - probe_c).abs() < 0.02,
+            "probe {probe_c}: thermistor says {tp}"
+        );
+        let b = conversion::flux_mt(code, tp, &cal.hall);
+        assert!(
+            ((b - truth) / truth).abs() < 5e-5,
+            "probe {probe_c} °C: {b} mT vs {truth} mT"
+        );
+    }
+}
