@@ -1,7 +1,9 @@
 //! A shipment: per-magnet results, the lot's spread, robust outliers and pass/fail counts.
 //!
 //! Outliers use the modified z-score of Iglewicz and Hoaglin (1993),
-//! M = 0.6745·(x − median)/MAD, flagged when |M| > 3.5.
+//! M = 0.6745·(x − median)/MAD, flagged when |M| > 3.5 — and only when the difference from the
+//! median also exceeds what the measurement can resolve (the magnet's own U95 for α and loss,
+//! 0.3 % for the room-temperature flux), so a tight lot does not make noise look like outliers.
 
 use std::fmt::Write as _;
 
@@ -119,6 +121,9 @@ pub fn modified_z(v: &[f64]) -> Vec<f64> {
 
 /// The threshold on |M| above which a value is an outlier.
 pub const OUTLIER_Z: f64 = 3.5;
+/// Smallest relative difference in room-temperature flux treated as real (common practice:
+/// repeat placements of one magnet agree to about 0.1 %).
+pub const FLUX_RESOLUTION: f64 = 0.003;
 
 /// The lot summary.
 #[derive(Debug, Clone, Serialize)]
@@ -143,13 +148,16 @@ pub struct LotSummary {
 pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
     let alphas: Vec<f64> = rows.iter().map(|r| r.alpha).collect();
     let b20: Vec<f64> = rows.iter().map(|r| r.b20_mt).collect();
+    let alpha_med = median(&alphas);
     for (i, z) in modified_z(&alphas).into_iter().enumerate() {
-        if z.abs() > OUTLIER_Z {
+        if z.abs() > OUTLIER_Z && (rows[i].alpha - alpha_med).abs() > rows[i].alpha_u95 {
             rows[i].outlier.push(format!("α (M = {z:+.1})"));
         }
     }
+    let b20_med = median(&b20);
     for (i, z) in modified_z(&b20).into_iter().enumerate() {
-        if z.abs() > OUTLIER_Z {
+        let real = (rows[i].b20_mt - b20_med).abs() > FLUX_RESOLUTION * b20_med.abs();
+        if z.abs() > OUTLIER_Z && real {
             rows[i]
                 .outlier
                 .push(format!("room-temperature flux (M = {z:+.1})"));
@@ -161,8 +169,9 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
         .filter_map(|(i, r)| r.loss_pct.map(|l| (i, l)))
         .collect();
     let losses: Vec<f64> = with_loss.iter().map(|x| x.1).collect();
-    for ((i, _), z) in with_loss.iter().zip(modified_z(&losses)) {
-        if z.abs() > OUTLIER_Z {
+    let loss_med = median(&losses);
+    for ((i, l), z) in with_loss.iter().zip(modified_z(&losses)) {
+        if z.abs() > OUTLIER_Z && (l - loss_med).abs() > rows[*i].loss_u95_pct.unwrap_or(0.0) {
             rows[*i].outlier.push(format!("loss (M = {z:+.1})"));
         }
     }
