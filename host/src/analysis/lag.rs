@@ -72,3 +72,57 @@ pub fn minimize(lo_s: f64, hi_s: f64, points: u32, mut cost: impl FnMut(f64) -> 
         (tau, best_cost)
     }
 }
+
+/// The lag from a settling: where the thermocouple holds still but the flux still relaxes, the
+/// magnet is catching up with the thermocouple, B(t) = B∞ + A·exp(−t/τ). Returns τ and the
+/// flux change explained, from the clearest such stretch at the lowest temperature (a settling
+/// near room temperature is free of irreversible loss). `None` when no stretch shows one.
+pub fn from_settling(time_s: &[f64], temp_c: &[f64], flux: &[f64]) -> Option<(f64, f64)> {
+    let n = time_s.len();
+    if n < 100 {
+        return None;
+    }
+    // smooth the thermocouple over about 5 s to see through its 0.25 °C steps
+    let dt = (time_s[n - 1] - time_s[0]) / (n - 1) as f64;
+    let w = ((5.0 / dt) as usize).max(1);
+    let mut smooth = vec![0.0; n];
+    let mut acc = 0.0;
+    for i in 0..n {
+        acc += temp_c[i];
+        if i >= w {
+            acc -= temp_c[i - w];
+        }
+        smooth[i] = acc / (i.min(w - 1) + 1) as f64;
+    }
+    let mut best: Option<(f64, f64, f64)> = None; // (score, tau, change)
+    let mut i = w;
+    while i < n {
+        let mut j = i;
+        while j + 1 < n && (smooth[j + 1] - smooth[i]).abs() <= 0.3 {
+            j += 1;
+        }
+        let span = time_s[j] - time_s[i];
+        if span >= 150.0 {
+            let (t0, ts, bs) = (time_s[i], &time_s[i..=j], &flux[i..=j]);
+            let change = (bs[..bs.len() / 10].iter().sum::<f64>() / (bs.len() / 10) as f64
+                - bs[bs.len() * 9 / 10..].iter().sum::<f64>()
+                    / (bs.len() - bs.len() * 9 / 10) as f64)
+                .abs();
+            // fit B = c + a·exp(−(t − t0)/τ) for each τ; linear in (c, a)
+            let sse = |tau: f64| -> f64 {
+                let x: Vec<f64> = ts.iter().map(|t| (-(t - t0) / tau).exp()).collect();
+                super::lsq::polyfit(&x, bs, 1)
+                    .map(|f| f.rss)
+                    .unwrap_or(f64::INFINITY)
+            };
+            let (tau, _) = minimize(5.0, (span / 2.0).min(600.0), 40, sse);
+            let score =
+                change / (1.0 + smooth[i] - smooth.iter().copied().fold(f64::INFINITY, f64::min));
+            if tau < span / 2.0 * 0.98 && best.is_none_or(|b| score > b.0) {
+                best = Some((score, tau, change));
+            }
+        }
+        i = j + 1;
+    }
+    best.map(|b| (b.1, b.2))
+}

@@ -147,6 +147,9 @@ pub enum AnalysisError {
     Lsq(#[from] lsq::LsqError),
 }
 
+/// Above this irreversible loss (fraction) α is fitted on the cooling branch alone.
+pub const LOSSY: f64 = 0.001;
+
 /// The temperature span below which α is not worth reporting, K.
 pub const MIN_SPAN_K: f64 = 15.0;
 
@@ -170,6 +173,16 @@ impl Prepared<'_> {
             .step_by(self.stride)
             .filter(|&i| !(loss > 0.0005 && tmax - tm[i] < 3.0))
             .collect()
+    }
+
+    /// Indices for the reported fit: after a loss of more than 0.1 % only the cooling branch,
+    /// which is reversible once the exposure is over; otherwise both branches.
+    fn final_indices(&self, seg: &segments::Segments, tm: &[f64], loss: f64) -> Vec<usize> {
+        if loss > LOSSY {
+            (seg.peak..tm.len()).step_by(self.stride).collect()
+        } else {
+            self.fit_indices(seg, tm, loss)
+        }
     }
 
     fn adjusted(&self, i: usize, seg: &segments::Segments, loss: f64) -> f64 {
@@ -263,16 +276,40 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
                 loss = l.max(0.0);
             }
         }
+        // a magnet that lost flux on the way up makes the branches disagree for a reason other
+        // than lag: cross-check with the lag seen in a settling near room temperature, and
+        // trust that one when the two differ
+        {
+            if let Some((t_settle, _)) = lag::from_settling(&s.time_s, &s.temp_c, &prep.flux) {
+                if tau.is_some_and(|t| (t - t_settle).abs() > 0.3 * t_settle) {
+                    notes.push(format!(
+                        "the branches suggest τ = {:.0} s but the settling near room temperature shows {t_settle:.0} s: the branches disagree for another reason (flux lost on the way up?), so the settling value is used",
+                        tau.unwrap_or(0.0)
+                    ));
+                    tau = Some(t_settle);
+                    tm = lag::lagged(&s.time_s, &s.temp_c, t_settle);
+                    seg = segments::find(&s.time_s, &tm, &s.temp_c);
+                    if let Some(l) = reference_loss(&prep, &seg, &tm, None) {
+                        loss = l.max(0.0);
+                    }
+                }
+            }
+        }
     } else {
         notes.push("no cooling branch to compare with the heating branch: the lag cannot be estimated; fitting the soak points alone".into());
     }
     // the fit
     let (t_fit, b_fit, method): (Vec<f64>, Vec<f64>, &str) = if tau.is_some() {
-        let idx = prep.fit_indices(&seg, &tm, loss);
+        let idx = prep.final_indices(&seg, &tm, loss);
+        let method = if loss > LOSSY {
+            "the lag-corrected cooling branch"
+        } else {
+            "lag-corrected ramps"
+        };
         (
             idx.iter().map(|&i| tm[i]).collect(),
             idx.iter().map(|&i| prep.adjusted(i, &seg, loss)).collect(),
-            "lag-corrected ramps",
+            method,
         )
     } else {
         let mut t = Vec::new();
@@ -355,7 +392,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     if let Some(t) = tau {
         let a_at = |tau: f64| -> f64 {
             let tm = lag::lagged(&s.time_s, &s.temp_c, tau);
-            let idx = prep.fit_indices(&seg, &tm, loss);
+            let idx = prep.final_indices(&seg, &tm, loss);
             let tt: Vec<f64> = idx.iter().map(|&i| tm[i]).collect();
             let bb: Vec<f64> = idx.iter().map(|&i| prep.adjusted(i, &seg, loss)).collect();
             fit_quadratic(&tt, &bb)
@@ -436,9 +473,9 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         }],
     };
     let heat_damaged = matches!((loss_pct, loss_u95), (Some(l), Some(u)) if l > u.max(0.3));
-    if loss_pct.is_some_and(|l| l > 0.5) {
+    if loss > LOSSY {
         notes.push(
-            "the magnet lost flux during the excursion: the heating branch mixes reversible and irreversible change, so the lag estimate and α are less reliable than the budget says; measure α on a fresh magnet below its onset".into(),
+            "the magnet lost flux during the excursion: α is fitted on the cooling branch alone (the heating branch mixes reversible and irreversible change); for a datasheet value measure a fresh magnet below its onset".into(),
         );
     }
     if heat_damaged {

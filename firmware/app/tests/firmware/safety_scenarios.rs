@@ -247,3 +247,11 @@ fn a_profile_runs_to_the_end_and_turns_the_heater_off() {
     assert!(seqs.windows(2).all(|w| w[1] == w[0].wrapping_add(1)));
     assert_eq!(b.device.samples_dropped(), 0);
 }
+
+#[test]
+fn device_fits_the_ram_budget() {
+    // the library's state for one device: printed for DEVELOPERS.md, bounded well inside 16 KiB
+    let size = std::mem::size_of::<crate::util::FakeDevice>();
+    println!("Device state: {size} bytes");
+    assert!(size < 4096, "{size} bytes");
+}
