@@ -251,18 +251,46 @@ fn timeline<DB: DrawingBackend>(
     a: &Analysis,
     title: &str,
 ) -> DrawResult {
+    draw_timeline(root, s, Some(&a.magnet_temp_c), title)
+}
+
+/// The time series: temperatures with the setpoint, flux, heater duty; faults (red) and gaps
+/// (orange) marked. `magnet_c` is the lag-corrected magnet temperature when an analysis has it.
+fn draw_timeline<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    s: &Series,
+    magnet_c: Option<&[f64]>,
+    title: &str,
+) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     root.fill(&WHITE).map_err(e)?;
     let root = root
         .titled(&format!("Time series — {title}"), ("sans-serif", 24))
         .map_err(e)?;
     let panels = root.split_evenly((3, 1));
-    let t_min: Vec<f64> = s.time_s.iter().map(|t| (t - s.time_s[0]) / 60.0).collect();
-    let (x0, x1) = (0.0, *t_min.last().unwrap_or(&1.0));
+    let t0 = s.time_s[0];
+    let t_min: Vec<f64> = s.time_s.iter().map(|t| (t - t0) / 60.0).collect();
+    let (x0, x1) = (0.0, t_min.last().copied().unwrap_or(1.0).max(1e-3));
     let bins = 1500;
-    // temperature: thermocouple and lag-corrected magnet
-    let tc = decimate_minmax(&t_min, &s.temp_c, bins);
-    let mag = decimate_minmax(&t_min, &a.magnet_temp_c, bins);
+    let faults: Vec<(f64, &str)> = s
+        .faults
+        .iter()
+        .map(|(t, w)| ((t - t0) / 60.0, w.as_str()))
+        .collect();
+    let period = if s.time_s.len() > 1 {
+        (s.time_s[s.time_s.len() - 1] - t0) / (s.time_s.len() - 1) as f64
+    } else {
+        1.0
+    };
+    let gaps: Vec<f64> = s
+        .time_s
+        .windows(2)
+        .filter(|w| w[1] - w[0] > 3.0 * period)
+        .map(|w| (w[0] - t0) / 60.0)
+        .collect();
+    let orange = RGBColor(230, 140, 0);
+
+    // temperatures
     let (lo, hi) = range(s.temp_c.iter().copied());
     let mut c = ChartBuilder::on(&panels[0])
         .margin(10)
@@ -276,20 +304,64 @@ fn timeline<DB: DrawingBackend>(
         .axis_desc_style(("sans-serif", 16))
         .draw()
         .map_err(e)?;
-    c.draw_series(LineSeries::new(tc, HEATING.stroke_width(2)))
-        .map_err(e)?
-        .label("thermocouple")
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], HEATING));
-    c.draw_series(LineSeries::new(mag, COOLING.stroke_width(2)))
+    c.draw_series(LineSeries::new(
+        decimate_minmax(&t_min, &s.temp_c, bins),
+        HEATING.stroke_width(2),
+    ))
+    .map_err(e)?
+    .label("thermocouple")
+    .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], HEATING));
+    if let Some(m) = magnet_c {
+        c.draw_series(LineSeries::new(
+            decimate_minmax(&t_min, m, bins),
+            COOLING.stroke_width(2),
+        ))
         .map_err(e)?
         .label("magnet (lag-corrected)")
         .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], COOLING));
+    }
     if let Some(p) = &s.probe_c {
-        let probe = decimate_minmax(&t_min, p, bins);
-        c.draw_series(LineSeries::new(probe, FIT.stroke_width(2)))
-            .map_err(e)?
-            .label("Hall probe")
-            .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FIT));
+        c.draw_series(LineSeries::new(
+            decimate_minmax(&t_min, p, bins),
+            FIT.stroke_width(2),
+        ))
+        .map_err(e)?
+        .label("Hall probe")
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FIT));
+    }
+    if let Some(sp) = &s.setpoint_c {
+        // a step function with gaps while the heater is off: one line per stretch
+        let mut runs: Vec<Vec<(f64, f64)>> = vec![Vec::new()];
+        for (i, v) in sp.iter().enumerate().step_by(every(sp.len(), 3000)) {
+            if v.is_nan() {
+                if runs.last().is_some_and(|r| !r.is_empty()) {
+                    runs.push(Vec::new());
+                }
+            } else if let Some(r) = runs.last_mut() {
+                r.push((t_min[i], *v));
+            }
+        }
+        let mut first = true;
+        for r in runs.into_iter().filter(|r| r.len() > 1) {
+            let series = c
+                .draw_series(LineSeries::new(r, BLACK.stroke_width(1)))
+                .map_err(e)?;
+            if first {
+                series
+                    .label("setpoint")
+                    .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK));
+                first = false;
+            }
+        }
+    }
+    for (x, what) in &faults {
+        c.draw_series([PathElement::new(
+            vec![(*x, lo), (*x, hi)],
+            RED.stroke_width(2),
+        )])
+        .map_err(e)?
+        .label(format!("fault: {what}"))
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED));
     }
     c.configure_series_labels()
         .label_font(("sans-serif", 14))
@@ -297,8 +369,8 @@ fn timeline<DB: DrawingBackend>(
         .border_style(BLACK)
         .draw()
         .map_err(e)?;
+
     // flux
-    let fx = decimate_minmax(&t_min, &s.flux_mt, bins);
     let (lo, hi) = range(s.flux_mt.iter().copied());
     let mut c = ChartBuilder::on(&panels[1])
         .margin(10)
@@ -312,25 +384,23 @@ fn timeline<DB: DrawingBackend>(
         .axis_desc_style(("sans-serif", 16))
         .draw()
         .map_err(e)?;
-    c.draw_series(LineSeries::new(fx, REFERENCE.stroke_width(1)))
-        .map_err(e)?;
-    // gaps: mark any step in time over three periods
-    let period = if s.time_s.len() > 1 {
-        (s.time_s[s.time_s.len() - 1] - s.time_s[0]) / (s.time_s.len() - 1) as f64
-    } else {
-        1.0
-    };
-    let gaps: Vec<f64> = s
-        .time_s
-        .windows(2)
-        .filter(|w| w[1] - w[0] > 3.0 * period)
-        .map(|w| (w[0] - s.time_s[0]) / 60.0)
-        .collect();
+    c.draw_series(LineSeries::new(
+        decimate_minmax(&t_min, &s.flux_mt, bins),
+        REFERENCE.stroke_width(1),
+    ))
+    .map_err(e)?;
     c.draw_series(
         gaps.iter()
-            .map(|&g| PathElement::new(vec![(g, lo), (g, hi)], RED.stroke_width(1))),
+            .map(|&g| PathElement::new(vec![(g, lo), (g, hi)], orange.stroke_width(1))),
     )
     .map_err(e)?;
+    c.draw_series(
+        faults
+            .iter()
+            .map(|(x, _)| PathElement::new(vec![(*x, lo), (*x, hi)], RED.stroke_width(2))),
+    )
+    .map_err(e)?;
+
     // duty
     let mut c = ChartBuilder::on(&panels[2])
         .margin(10)
@@ -352,7 +422,42 @@ fn timeline<DB: DrawingBackend>(
         ))
         .map_err(e)?;
     }
+    c.draw_series(
+        faults
+            .iter()
+            .map(|(x, _)| PathElement::new(vec![(*x, 0.0), (*x, 100.0)], RED.stroke_width(2))),
+    )
+    .map_err(e)?;
     root.present().map_err(e)
+}
+
+/// The time-series plot alone (for a record the analysis could not use), as `stem`.png/.svg.
+pub fn write_timeline_only(
+    stem: &Path,
+    s: &Series,
+    title: &str,
+) -> Result<Vec<PathBuf>, ReportError> {
+    ensure_font();
+    let png = stem.with_extension("png");
+    draw_timeline(
+        &BitMapBackend::new(&png, SIZE).into_drawing_area(),
+        s,
+        None,
+        title,
+    )
+    .map_err(|reason| ReportError::Plot {
+        path: png.display().to_string(),
+        reason,
+    })?;
+    let svg = stem.with_extension("svg");
+    let area = SVGBackend::new(&svg, SIZE).into_drawing_area();
+    let r = draw_timeline(&area, s, None, title);
+    drop(area);
+    r.map_err(|reason| ReportError::Plot {
+        path: svg.display().to_string(),
+        reason,
+    })?;
+    Ok(vec![png, svg])
 }
 
 type Plotter = fn(&Series, &Analysis, &str, &Path) -> DrawResult;

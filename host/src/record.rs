@@ -317,7 +317,12 @@ impl Recorder {
                             &format!("{missing} samples missing before seq {}", p.seq),
                         )?;
                     }
-                    let row = w.sample(&p)?;
+                    let setpoint = self
+                        .timeline
+                        .latest_beacon()
+                        .filter(|b| b.setpoint_tenth_c != 0)
+                        .map(|b| f64::from(b.setpoint_tenth_c) / 10.0);
+                    let row = w.sample(&p, setpoint)?;
                     self.status.samples = w.meta.counts.samples;
                     self.track(
                         p.device_time_s,

@@ -374,3 +374,59 @@ pub fn lot_html(s: &crate::lot::LotSummary, title: &str, svg: &str) -> String {
     let _ = writeln!(h, "</table><figure>{body}</figure><p>Outliers: modified z-score |M| &gt; 3.5 (Iglewicz &amp; Hoaglin).</p></body></html>");
     h
 }
+
+/// The report of a record the analysis could not use: the time series, the run's facts and,
+/// plainly, what could not be computed and why.
+pub fn write_unanalysed(
+    dir: &Path,
+    series: &Series,
+    title: &str,
+    reason: &str,
+    force: bool,
+) -> Result<Vec<PathBuf>, ReportError> {
+    for f in [HTML_FILE, MD_FILE] {
+        if dir.join(f).exists() && !force {
+            return Err(ReportError::Exists(dir.join(f).display().to_string()));
+        }
+    }
+    let stem = dir.join("timeline");
+    for ext in ["png", "svg"] {
+        if stem.with_extension(ext).exists() && !force {
+            return Err(ReportError::Exists(
+                stem.with_extension(ext).display().to_string(),
+            ));
+        }
+    }
+    let mut written = crate::plots::write_timeline_only(&stem, series, title)?;
+    let meta = run_dir::read_meta(dir).ok();
+    let mut md = format!("# Remanent report — {title}\n\n**Not analysed:** {reason}\n\n");
+    for (k, v) in facts(meta.as_ref()) {
+        let _ = writeln!(md, "- **{k}**: {v}");
+    }
+    let _ = writeln!(md, "\n![time series](timeline.png)\n\n## Safety\n");
+    for n in SAFETY_NOTES {
+        let _ = writeln!(md, "- {n}");
+    }
+    write_new(&dir.join(MD_FILE), &md, force)?;
+    let svg = std::fs::read_to_string(stem.with_extension("svg")).unwrap_or_default();
+    let body = svg.find("<svg").map(|i| &svg[i..]).unwrap_or("");
+    let mut html = format!(
+        "<!doctype html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>Remanent report — {t}</title>\
+         <style>body{{font-family:sans-serif;max-width:1150px;margin:2em auto}}td,th{{border:1px solid #bbb;padding:4px 8px;text-align:left}}\
+         table{{border-collapse:collapse}} svg{{max-width:100%;height:auto}}</style></head><body><h1>Remanent report — {t}</h1>\
+         <p><strong>Not analysed:</strong> {r}</p><table>",
+        t = esc(title),
+        r = esc(reason)
+    );
+    for (k, v) in facts(meta.as_ref()) {
+        let _ = write!(html, "<tr><th>{}</th><td>{}</td></tr>", esc(&k), esc(&v));
+    }
+    let _ = write!(html, "</table><figure>{body}</figure><h2>Safety</h2><ul>");
+    for n in SAFETY_NOTES {
+        let _ = write!(html, "<li>{}</li>", esc(n));
+    }
+    let _ = writeln!(html, "</ul></body></html>");
+    write_new(&dir.join(HTML_FILE), &html, force)?;
+    written.extend([dir.join(MD_FILE), dir.join(HTML_FILE)]);
+    Ok(written)
+}

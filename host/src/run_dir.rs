@@ -26,7 +26,7 @@ pub const EVENTS_FILE: &str = "events.csv";
 pub const META_FILE: &str = "run.toml";
 
 /// The CSV header of the samples file.
-pub const SAMPLES_HEADER: &str = "seq,device_time_s,hall_code,probe_code,thermo_word,heater_duty_pct,heater_on,fault_latched,tc_fault,temp_C,cold_junction_C,probe_temp_C,flux_mT";
+pub const SAMPLES_HEADER: &str = "seq,device_time_s,hall_code,probe_code,thermo_word,heater_duty_pct,heater_on,fault_latched,tc_fault,temp_C,cold_junction_C,probe_temp_C,flux_mT,setpoint_C";
 
 /// Counts kept while recording.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
@@ -223,8 +223,13 @@ impl RunWriter {
         self.raw.write_all(bytes).map_err(io_err(&self.dir))
     }
 
-    /// One placed sample, raw and converted.
-    pub fn sample(&mut self, p: &PlacedSample) -> Result<ConvertedRow, RunDirError> {
+    /// One placed sample, raw and converted, with the setpoint then in force (from the latest
+    /// beacon; `None` while the heater is off).
+    pub fn sample(
+        &mut self,
+        p: &PlacedSample,
+        setpoint_c: Option<f64>,
+    ) -> Result<ConvertedRow, RunDirError> {
         let cal = &self.meta.calibration;
         let s = &p.sample;
         let temp_c = conversion::thermocouple_c(s.thermo, cal);
@@ -240,7 +245,7 @@ impl RunWriter {
             |v: Option<f64>, prec: usize| v.map(|x| format!("{x:.prec$}")).unwrap_or_default();
         writeln!(
             self.samples,
-            "{},{:.3},{},{},{:08x},{:.1},{},{},{},{},{:.4},{},{}",
+            "{},{:.3},{},{},{:08x},{:.1},{},{},{},{},{:.4},{},{},{}",
             p.seq,
             p.device_time_s,
             s.hall_code,
@@ -254,6 +259,7 @@ impl RunWriter {
             conversion::cold_junction_c(s.thermo),
             opt(probe_c, 3),
             opt(flux_mt, 4),
+            opt(setpoint_c, 1),
         )
         .map_err(io_err(&self.dir))?;
         self.meta.counts.samples += 1;

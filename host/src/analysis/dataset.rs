@@ -24,6 +24,10 @@ pub struct Series {
     pub probe_c: Option<Vec<f64>>,
     /// Heater duty, %, when known (for plots).
     pub duty_pct: Option<Vec<f64>>,
+    /// Setpoint, °C, when the heater was following one (NaN while off; for plots).
+    pub setpoint_c: Option<Vec<f64>>,
+    /// Faults the device reported: device time, s, and what (for plots).
+    pub faults: Vec<(f64, String)>,
     /// Rows left out (thermocouple faults, saturated Hall readings), with why.
     pub skipped: Vec<(usize, String)>,
 }
@@ -233,6 +237,18 @@ pub fn load_csv(path: &Path, opts: &CsvOptions) -> Result<Series, InputError> {
     Ok(s)
 }
 
+/// The faults listed in a run's events file (missing or unreadable: none).
+fn read_faults(path: &Path) -> Vec<(f64, String)> {
+    let Ok(mut rdr) = csv::Reader::from_path(path) else {
+        return Vec::new();
+    };
+    rdr.records()
+        .flatten()
+        .filter(|r| r.get(1) == Some("fault"))
+        .filter_map(|r| Some((r.get(0)?.parse().ok()?, r.get(2)?.to_string())))
+        .collect()
+}
+
 /// Load a run directory, converting the raw codes again with `calibration` (default: the one
 /// recorded with the run).
 pub fn load_run(
@@ -255,6 +271,7 @@ pub fn load_run(
                 found: headers.iter().collect::<Vec<_>>().join(", "),
             })
     };
+    let si = headers.iter().position(|h| h == "setpoint_C");
     let (ti, hi, pi, wi, di) = (
         col("device_time_s")?,
         col("hall_code")?,
@@ -265,6 +282,7 @@ pub fn load_run(
     let mut s = Series::default();
     let mut probe = Vec::new();
     let mut duty = Vec::new();
+    let mut setpoint = Vec::new();
     for (row, rec) in rdr.records().enumerate() {
         let rec = rec.map_err(|e| row_err(&p, e))?;
         let line = row + 2;
@@ -312,9 +330,16 @@ pub fn load_run(
         s.flux_mt.push(conversion::flux_mt(hall, tp, &cal.hall));
         probe.push(tp);
         duty.push(d);
+        setpoint.push(
+            si.and_then(|i| rec.get(i))
+                .and_then(|v| v.parse::<f64>().ok())
+                .unwrap_or(f64::NAN),
+        );
     }
     s.probe_c = Some(probe);
     s.duty_pct = Some(duty);
+    s.setpoint_c = si.map(|_| setpoint);
+    s.faults = read_faults(&dir.join(run_dir::EVENTS_FILE));
     if s.time_s.len() < MIN_ROWS {
         return Err(InputError::TooFew {
             path: p,
