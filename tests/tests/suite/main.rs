@@ -1,6 +1,7 @@
 //! The cross-crate test suite: reference-data checks and end-to-end runs.
 
 mod accuracy;
+mod analysis_input;
 mod end_to_end;
 mod outputs;
 mod reference_field;
