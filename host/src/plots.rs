@@ -78,6 +78,37 @@ fn range(v: impl Iterator<Item = f64>) -> (f64, f64) {
     (lo - pad, hi + pad)
 }
 
+fn plot_error(path: &Path, reason: String) -> ReportError {
+    ReportError::Plot {
+        path: path.display().to_string(),
+        reason,
+    }
+}
+
+/// Render `$draw` (an expression using the drawing area `$area`) into `$stem`.png and .svg,
+/// with the bundled font; evaluates to the two paths.
+macro_rules! render_both {
+    ($stem:expr, |$area:ident| $draw:expr) => {{
+        ensure_font();
+        let stem: &Path = $stem;
+        let png = stem.with_extension("png");
+        let svg = stem.with_extension("svg");
+        {
+            let $area = BitMapBackend::new(&png, SIZE).into_drawing_area();
+            $draw
+        }
+        .map_err(|reason| plot_error(&png, reason))?;
+        {
+            let $area = SVGBackend::new(&svg, SIZE).into_drawing_area();
+            let result = $draw;
+            drop($area);
+            result
+        }
+        .map_err(|reason| plot_error(&svg, reason))?;
+        vec![png, svg]
+    }};
+}
+
 type DrawResult = Result<(), String>;
 
 fn flux_vs_temp<DB: DrawingBackend>(
@@ -437,52 +468,37 @@ pub fn write_timeline_only(
     s: &Series,
     title: &str,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    ensure_font();
-    let png = stem.with_extension("png");
-    draw_timeline(
-        &BitMapBackend::new(&png, SIZE).into_drawing_area(),
-        s,
-        None,
-        title,
-    )
-    .map_err(|reason| ReportError::Plot {
-        path: png.display().to_string(),
-        reason,
-    })?;
-    let svg = stem.with_extension("svg");
-    let area = SVGBackend::new(&svg, SIZE).into_drawing_area();
-    let r = draw_timeline(&area, s, None, title);
-    drop(area);
-    r.map_err(|reason| ReportError::Plot {
-        path: svg.display().to_string(),
-        reason,
-    })?;
-    Ok(vec![png, svg])
+    Ok(render_both!(stem, |area| draw_timeline(
+        &area, s, None, title
+    )))
 }
 
-type Plotter = fn(&Series, &Analysis, &str, &Path) -> DrawResult;
+type Plotter = fn(&Series, &Analysis, &str, &Path) -> Result<Vec<PathBuf>, ReportError>;
 
-macro_rules! both_backends {
-    ($name:ident, $draw:ident) => {
-        fn $name(s: &Series, a: &Analysis, title: &str, stem: &Path) -> DrawResult {
-            let png = stem.with_extension("png");
-            $draw(
-                &BitMapBackend::new(&png, SIZE).into_drawing_area(),
-                s,
-                a,
-                title,
-            )?;
-            let svg = stem.with_extension("svg");
-            let area = SVGBackend::new(&svg, SIZE).into_drawing_area();
-            let result = $draw(&area, s, a, title);
-            drop(area);
-            result
-        }
-    };
+fn flux_vs_temp_files(
+    s: &Series,
+    a: &Analysis,
+    title: &str,
+    stem: &Path,
+) -> Result<Vec<PathBuf>, ReportError> {
+    Ok(render_both!(stem, |area| flux_vs_temp(&area, s, a, title)))
 }
-both_backends!(flux_vs_temp_files, flux_vs_temp);
-both_backends!(residuals_files, residuals);
-both_backends!(timeline_files, timeline);
+fn residuals_files(
+    s: &Series,
+    a: &Analysis,
+    title: &str,
+    stem: &Path,
+) -> Result<Vec<PathBuf>, ReportError> {
+    Ok(render_both!(stem, |area| residuals(&area, s, a, title)))
+}
+fn timeline_files(
+    s: &Series,
+    a: &Analysis,
+    title: &str,
+    stem: &Path,
+) -> Result<Vec<PathBuf>, ReportError> {
+    Ok(render_both!(stem, |area| timeline(&area, s, a, title)))
+}
 
 /// The plots of one run: (file stem, drawing function).
 pub const RUN_PLOTS: [(&str, Plotter); 3] = [
@@ -509,12 +525,7 @@ pub fn write_run_plots(
                 return Err(ReportError::Exists(f.display().to_string()));
             }
         }
-        draw(s, a, title, &base).map_err(|reason| ReportError::Plot {
-            path: base.display().to_string(),
-            reason,
-        })?;
-        written.push(base.with_extension("png"));
-        written.push(base.with_extension("svg"));
+        written.extend(draw(s, a, title, &base)?);
     }
     Ok(written)
 }
@@ -646,28 +657,7 @@ pub fn write_lot_plot(
     spec: Option<&crate::specs::GradeSpec>,
     title: &str,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    ensure_font();
-    let err = |reason: String| ReportError::Plot {
-        path: stem.display().to_string(),
-        reason,
-    };
-    let png = stem.with_extension("png");
-    lot_alpha(
-        &BitMapBackend::new(&png, SIZE).into_drawing_area(),
-        s,
-        spec,
-        title,
-    )
-    .map_err(err)?;
-    let svg = stem.with_extension("svg");
-    let area = SVGBackend::new(&svg, SIZE).into_drawing_area();
-    let r = lot_alpha(&area, s, spec, title);
-    drop(area);
-    r.map_err(|reason| ReportError::Plot {
-        path: svg.display().to_string(),
-        reason,
-    })?;
-    Ok(vec![png, svg])
+    Ok(render_both!(stem, |area| lot_alpha(&area, s, spec, title)))
 }
 
 fn oc_curve<DB: DrawingBackend>(
@@ -751,27 +741,7 @@ pub fn write_oc_plot(
     aql: f64,
     rql: f64,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    ensure_font();
-    let err = |reason: String| ReportError::Plot {
-        path: stem.display().to_string(),
-        reason,
-    };
-    let png = stem.with_extension("png");
-    oc_curve(
-        &BitMapBackend::new(&png, SIZE).into_drawing_area(),
-        model,
-        plan,
-        aql,
-        rql,
-    )
-    .map_err(err)?;
-    let svg = stem.with_extension("svg");
-    let area = SVGBackend::new(&svg, SIZE).into_drawing_area();
-    let r = oc_curve(&area, model, plan, aql, rql);
-    drop(area);
-    r.map_err(|reason| ReportError::Plot {
-        path: svg.display().to_string(),
-        reason,
-    })?;
-    Ok(vec![png, svg])
+    Ok(render_both!(stem, |area| oc_curve(
+        &area, model, plan, aql, rql
+    )))
 }
