@@ -3,7 +3,6 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use anyhow::Context as _;
 use remanent::lot::{self, LotRow};
 use remanent::specs::SpecTable;
 
@@ -32,6 +31,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     }
     let mut rows = Vec::new();
     let mut grades = Vec::new();
+    let mut skipped = Vec::new();
     for run in &a.runs {
         let args = super::analyze::Args {
             input: run.clone(),
@@ -42,11 +42,20 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
             columns: Vec::new(),
             probe_tc_pct_per_c: None,
         };
-        let (_, analysis, _) = super::analyze::load_and_analyze(&args)
-            .with_context(|| format!("run {}", run.display()))?;
+        let analysis = match super::analyze::load_and_analyze(&args) {
+            Ok((_, a, _)) => a,
+            Err(e) => {
+                eprintln!("left out of the lot: {}: {e:#}", run.display());
+                skipped.push(run.display().to_string());
+                continue;
+            }
+        };
         let meta = remanent::run_dir::read_meta(run)?;
         grades.push(meta.magnet.grade.clone());
         rows.push(LotRow::new(&meta.magnet.id, &meta.magnet.grade, &analysis));
+    }
+    if rows.is_empty() {
+        anyhow::bail!("none of the {} runs could be analysed", a.runs.len());
     }
     let summary = lot::summarise(rows);
     std::fs::create_dir_all(&a.out)?;
@@ -68,6 +77,12 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let html = remanent::report::lot_html(&summary, &title, &svg);
     std::fs::write(a.out.join("lot.html"), html)?;
     print!("{}", lot::text(&summary));
+    if !skipped.is_empty() {
+        println!(
+            "\nnot analysed (see the messages above): {}",
+            skipped.join(", ")
+        );
+    }
     println!(
         "\nwrote {} and lot.html, lot.png, lot.svg beside it",
         csv_path.display()
