@@ -10,7 +10,7 @@ R="$ROOT/target/release/remanent"
 WORK=$(mktemp -d)
 cd "$WORK"
 RIG_PID=""
-trap '[ -n "$RIG_PID" ] && kill -INT $RIG_PID 2>/dev/null; true' EXIT
+trap 'for p in $RIG_PID; do kill -INT $p 2>/dev/null; done; true' EXIT
 PORT=""
 mapfile -t lines < <(awk '/^## A five-minute tour/{t=1} t&&/^```sh/{c=1;next} c&&/^```/{exit} c' "$ROOT/README.md" | grep '^\$R ')
 [ ${#lines[@]} -ge 6 ] || { echo "README tour not found"; exit 1; }
@@ -20,15 +20,18 @@ for line in "${lines[@]}"; do
   cmd=${cmd/\$R/$R}
   echo "+ ${cmd}"
   if [[ "$cmd" == *"virtual-rig"*"&"* ]]; then
+    rm -f rig.out
     ${cmd%&} > rig.out 2> rig.err &
-    RIG_PID=$!
+    RIG_PID="$RIG_PID $!"
     for _ in $(seq 50); do PORT=$(head -1 rig.out 2>/dev/null || true); [ -n "$PORT" ] && break; sleep 0.1; done
     echo "  virtual rig on $PORT"
     continue
   fi
-  cmd=${cmd//\/dev\/pts\/7/$PORT}
+  cmd=$(sed -E "s#/dev/pts/[0-9]+#$PORT#g" <<<"$cmd")
   eval "timeout 300 $cmd" > out.txt 2>&1 || { cat out.txt; echo "README command failed: $line"; exit 1; }
   tail -3 out.txt
 done
 test -s runs/demo/report.html && test -s runs/n42/report.md && test -s runs/n42/flux_vs_temp.png
+test -s runs/lot/lot.csv && test -s runs/oc.png
+grep -q "magnet   3 .*LOW" out.txt || { cat out.txt; echo "the survey did not flag magnet 3"; exit 1; }
 echo "README tour ran as written"
