@@ -29,7 +29,7 @@ pub struct ThermalParams {
 impl ThermalParams {
     /// The reference fixture (hardware-notes/fixture.md).
     pub const REFERENCE: ThermalParams = ThermalParams {
-        heater_w: 450.0,
+        heater_w: 600.0,
         plate_j_per_k: 150.0,
         plate_loss_w_per_k: 1.2,
         magnet_tau_s: 45.0,

@@ -93,6 +93,9 @@ pub struct Analysis {
     /// Highest magnet temperature reached, °C.
     #[serde(rename = "max_magnet_temp_C")]
     pub max_magnet_temp_c: f64,
+    /// Where the field collapsed in a Curie sweep, °C (None: not reached).
+    #[serde(rename = "curie_estimate_C")]
+    pub curie_estimate_c: Option<f64>,
     /// Br estimate from geometry.
     pub br: Option<BrEstimate>,
     /// Material family (or families) α and Br point to.
@@ -146,6 +149,11 @@ pub enum AnalysisError {
     #[error("cannot fit α: {0}")]
     Lsq(#[from] lsq::LsqError),
 }
+
+/// A field below this fraction of its starting value while hot marks the Curie collapse.
+pub const CURIE_FRACTION: f64 = 0.05;
+/// In a Curie sweep α is fitted this far below the collapse, K.
+pub const CURIE_MARGIN_K: f64 = 120.0;
 
 /// Above this irreversible loss (fraction) α is fitted on the cooling branch alone.
 pub const LOSSY: f64 = 0.001;
@@ -251,7 +259,11 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
             "the temperature rose only {span:.1} K; at least {MIN_SPAN_K:.0} K is needed"
         )));
     }
-    let branches_ok = seg.heating.len() > 30 && seg.cooling.len() > 30 && {
+    // a Curie sweep: the field collapses on the way up (and does not come back)
+    let b_start = mean(prep.flux[..n.min(50)].iter().copied()).0;
+    let collapse =
+        (0..n).find(|&i| s.temp_c[i] > 80.0 && prep.flux[i].abs() < CURIE_FRACTION * b_start.abs());
+    let branches_ok = collapse.is_none() && seg.heating.len() > 30 && seg.cooling.len() > 30 && {
         let cool_min = s.temp_c[seg.cooling.clone()]
             .iter()
             .copied()
@@ -260,6 +272,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     };
     let mut loss = 0.0;
     let mut tau = None;
+    let mut curie_c = None;
     let mut tm = s.temp_c.clone();
     if branches_ok {
         for round in 0..3 {
@@ -295,11 +308,35 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
                 }
             }
         }
+    } else if let Some(ic) = collapse {
+        tau = lag::from_settling(&s.time_s, &s.temp_c, &prep.flux).map(|x| x.0);
+        tm = lag::lagged(&s.time_s, &s.temp_c, tau.unwrap_or(0.0));
+        seg = segments::find(&s.time_s, &tm, &s.temp_c);
+        curie_c = Some(tm[ic]);
+        notes.push(format!(
+            "the field fell below {:.0} % of its start at {:.0} °C (magnet temperature{}): the Curie point is at or just below it; the magnet is demagnetized. α comes from the heating branch and includes any irreversible loss below the collapse: take α(Br) from a separate cycle below the magnet's rating",
+            CURIE_FRACTION * 100.0,
+            tm[ic],
+            if tau.is_some() { ", lag-corrected" } else { "; lag not estimated" }
+        ));
     } else {
         notes.push("no cooling branch to compare with the heating branch: the lag cannot be estimated; fitting the soak points alone".into());
     }
     // the fit
-    let (t_fit, b_fit, method): (Vec<f64>, Vec<f64>, &str) = if tau.is_some() {
+    let (t_fit, b_fit, method): (Vec<f64>, Vec<f64>, &str) = if let (Some(ic), Some(tc)) =
+        (collapse, curie_c)
+    {
+        // well below the collapse the reversible curve is still the usual one
+        let idx: Vec<usize> = (0..ic)
+            .step_by(prep.stride)
+            .filter(|&i| tm[i] < tc - CURIE_MARGIN_K)
+            .collect();
+        (
+            idx.iter().map(|&i| tm[i]).collect(),
+            idx.iter().map(|&i| prep.flux[i]).collect(),
+            "the heating branch below the collapse",
+        )
+    } else if tau.is_some() {
         let idx = prep.final_indices(&seg, &tm, loss);
         let method = if loss > LOSSY {
             "the lag-corrected cooling branch"
@@ -442,7 +479,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         )),
         _ => None,
     };
-    let family = verdict::families(alpha, 2.0 * u_c, br.map(|b| b.br_t));
+    let family = verdict::families(alpha, 2.0 * u_c, br.map(|b| b.br_t), curie_c);
     let material_family = if family.is_empty() {
         "unknown".to_string()
     } else {
@@ -511,6 +548,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         reference_c: refs,
         reference_probe_c: ref_probe,
         max_magnet_temp_c: tm[seg.peak],
+        curie_estimate_c: curie_c,
         br,
         material_family,
         verdict: verdict::overall(&checks),

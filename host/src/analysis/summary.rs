@@ -53,6 +53,9 @@ pub fn text(a: &Analysis, title: &str) -> String {
             b.br_t, b.br_u95_t, b.pct_per_0_1_mm
         );
     }
+    if let Some(tc) = a.curie_estimate_c {
+        let _ = writeln!(s, "  Curie collapse:       at about {tc:.0} °C");
+    }
     let _ = writeln!(s, "  material family:      {}", a.material_family);
     let _ = writeln!(
         s,

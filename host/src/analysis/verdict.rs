@@ -37,13 +37,42 @@ pub fn judge(value: f64, u95: f64, min: f64, max: f64) -> Outcome {
     }
 }
 
-/// Families whose typical α range meets [α − U, α + U]; narrowed by Br when it helps.
-pub fn families(alpha: f64, u95: f64, br_t: Option<f64>) -> Vec<&'static str> {
+/// Typical Curie temperatures per family, °C (domain notes' table; AlNiCo from memory).
+pub const CURIE_RANGES: [(&str, f64, f64); 5] = [
+    ("sintered hard ferrite", 420.0, 480.0),
+    ("sintered NdFeB", 300.0, 410.0),
+    ("SmCo5", 690.0, 760.0),
+    ("Sm2Co17", 790.0, 830.0),
+    ("cast AlNiCo", 820.0, 880.0),
+];
+
+/// Families whose typical α range meets [α − U, α + U]; narrowed by Br and by a measured
+/// Curie collapse when they help.
+pub fn families(
+    alpha: f64,
+    u95: f64,
+    br_t: Option<f64>,
+    curie_c: Option<f64>,
+) -> Vec<&'static str> {
     let mut hits: Vec<&str> = FAMILIES
         .iter()
         .filter(|(_, lo, hi)| alpha + u95 >= *lo && alpha - u95 <= *hi)
         .map(|(n, _, _)| *n)
         .collect();
+    if let Some(tc) = curie_c {
+        // the field collapses a little below the Curie point: allow 30 K
+        let by_curie: Vec<&str> = CURIE_RANGES
+            .iter()
+            .filter(|(_, lo, hi)| tc >= lo - 30.0 && tc <= *hi)
+            .map(|(n, _, _)| *n)
+            .collect();
+        let both: Vec<&str> = hits
+            .iter()
+            .copied()
+            .filter(|f| by_curie.contains(f))
+            .collect();
+        hits = if both.is_empty() { by_curie } else { both };
+    }
     if hits.len() > 1 {
         if let Some(br) = br_t {
             // Br ranges (domain notes): SmCo5 0.74–1.00, Sm2Co17 0.93–1.15, AlNiCo 5 1.25–1.30

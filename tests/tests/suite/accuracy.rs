@@ -179,3 +179,33 @@ fn conversion_inverts_the_rig_model_at_any_probe_temperature() {
         );
     }
 }
+
+#[test]
+fn a_curie_sweep_finds_the_collapse_and_still_gives_alpha() {
+    // the built-in destructive sweep on the demo N42 disc (model Curie point 320 °C)
+    let profile = ProfileSpec::resolve("curie-sweep").unwrap();
+    let (a, truth, model) = measure("RM-N42-D10x5", 45.0, profile, 21);
+    let tc = a.curie_estimate_c.expect("collapse found");
+    assert!(
+        (tc - model.curie_c).abs() < 25.0,
+        "collapse at {tc:.0} °C, model Curie point {} °C",
+        model.curie_c
+    );
+    assert!(a.material_family.contains("NdFeB"), "{}", a.material_family);
+    assert!(truth.irreversible > 0.99, "the sweep demagnetizes");
+    assert!(a.irreversible_loss_pct.unwrap() > 95.0);
+    // this N42 also loses flux irreversibly long before the collapse, so the heating branch's α
+    // is not the reversible one: the analysis must say so rather than pass it off as α(Br)
+    assert!(
+        a.fit_range_c[1] <= tc - 100.0,
+        "fitted up to {:.0} °C",
+        a.fit_range_c[1]
+    );
+    assert!(
+        a.notes
+            .iter()
+            .any(|n| n.contains("irreversible loss below the collapse")),
+        "{:?}",
+        a.notes
+    );
+}
