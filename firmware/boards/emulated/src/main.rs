@@ -20,10 +20,10 @@ use cortex_m_rt::entry;
 use remanent_firmware::device::{BoardInfo, Device};
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::heater::Heater;
-use remanent_firmware::FirmwareConfig;
+use remanent_firmware::{Clock, FirmwareConfig};
 use remanent_protocol::MAX_DEVICE_FRAME;
 use remanent_rig_model::catalogue;
-use remanent_rig_model::peripherals::{SimAdcBus, SimDelay, SimHeaterEnable, SimHeaterPwm, SimThermoSpi};
+use remanent_rig_model::peripherals::{SimAdcBus, SimClock, SimDelay, SimHeaterEnable, SimHeaterPwm, SimThermoSpi};
 use remanent_rig_model::{Rig, RigParams};
 
 /// Device time the emulation may run ahead of the host's latest frame, ms.
@@ -43,18 +43,17 @@ fn main() -> ! {
     let heater = Heater::new(SimHeaterPwm(&rig), SimHeaterEnable(&rig), cfg.limits.duty_cap_pct);
     let mut device = Device::new(cfg, board, adc, tc, heater, 0);
     let mut frame = [0u8; MAX_DEVICE_FRAME];
+    let mut clock = SimClock(&rig);
     let mut last_rx_ms: u32 = 0;
     loop {
         while let Some(b) = uart.read_byte() {
-            let now = rig.borrow().time_ms();
+            let now = clock.now_ms();
             device.receive(now, &[b]);
             last_rx_ms = now;
         }
-        let now = rig.borrow().time_ms();
-        if device.handshaken() && now.wrapping_sub(last_rx_ms) < LOCKSTEP_MS {
+        if device.handshaken() && clock.now_ms().wrapping_sub(last_rx_ms) < LOCKSTEP_MS {
             rig.borrow_mut().advance(STEP_S);
-            let now = rig.borrow().time_ms();
-            device.poll(now);
+            device.poll(clock.now_ms());
         }
         while let Some(f) = device.next_frame(&mut frame) {
             uart.write_all(f);

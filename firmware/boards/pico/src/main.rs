@@ -17,10 +17,10 @@ use fugit::RateExtU32;
 use remanent_firmware::device::{BoardInfo, Device};
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::heater::Heater;
-use remanent_firmware::FirmwareConfig;
+use remanent_firmware::{Clock, FirmwareConfig};
 use remanent_protocol::MAX_DEVICE_FRAME;
 use rp2040_hal as hal;
-use rp2040_hal::clocks::Clock;
+use rp2040_hal::clocks::Clock as _;
 use rp2040_hal::pac;
 use usb_device::class_prelude::UsbBusAllocator;
 use usb_device::prelude::{StringDescriptors, UsbDeviceBuilder, UsbVidPid};
@@ -38,6 +38,15 @@ const PWM_TOP: u16 = 999;
 
 /// Bytes waiting for the USB endpoint.
 type TxBuffer = heapless::Vec<u8, 512>;
+
+/// The device clock: the RP2040's 1 MHz timer, in milliseconds.
+struct TimerClock(hal::Timer);
+
+impl Clock for TimerClock {
+    fn now_ms(&mut self) -> u32 {
+        (self.0.get_counter().ticks() / 1000) as u32
+    }
+}
 
 #[hal::entry]
 fn main() -> ! {
@@ -105,9 +114,9 @@ fn main() -> ! {
         .build();
 
     let mut led = pins.gpio25.into_push_pull_output();
-    let now_ms = || (timer.get_counter().ticks() / 1000) as u32;
+    let mut clock = TimerClock(timer);
     let board = BoardInfo { name: "pico", supply_mv: 3300, ntc_series_ohm: 10_000 };
-    let mut device = Device::new(cfg, board, adc, tc, heater, now_ms());
+    let mut device = Device::new(cfg, board, adc, tc, heater, clock.now_ms());
     defmt::info!("Remanent firmware {} on the Pico", remanent_firmware::device::FIRMWARE_VERSION);
 
     let mut rx = [0u8; 64];
@@ -116,10 +125,10 @@ fn main() -> ! {
     loop {
         if usb.poll(&mut [&mut serial]) {
             if let Ok(n) = serial.read(&mut rx) {
-                device.receive(now_ms(), &rx[..n]);
+                device.receive(clock.now_ms(), &rx[..n]);
             }
         }
-        device.poll(now_ms());
+        device.poll(clock.now_ms());
         // move frames into the buffer while whole frames fit; never block on the host
         while tx.capacity() - tx.len() >= MAX_DEVICE_FRAME {
             match device.next_frame(&mut frame) {
