@@ -66,6 +66,32 @@ pub fn decimate_minmax(x: &[f64], y: &[f64], bins: usize) -> Vec<(f64, f64)> {
     out
 }
 
+/// Indices of each of `bins` slices of `r`: its minimum and maximum of `y`, in order.
+pub fn minmax_indices(r: std::ops::Range<usize>, y: &[f64], bins: usize) -> Vec<usize> {
+    let n = r.len();
+    if n <= 2 * bins {
+        return r.collect();
+    }
+    let mut out = Vec::with_capacity(2 * bins);
+    for k in 0..bins {
+        let (lo, hi) = (r.start + k * n / bins, r.start + (k + 1) * n / bins);
+        let (mut imin, mut imax) = (lo, lo);
+        for i in lo..hi {
+            if y[i] < y[imin] {
+                imin = i;
+            }
+            if y[i] > y[imax] {
+                imax = i;
+            }
+        }
+        out.push(imin.min(imax));
+        if imin != imax {
+            out.push(imin.max(imax));
+        }
+    }
+    out
+}
+
 fn every(n: usize, max: usize) -> usize {
     (n / max).max(1)
 }
@@ -142,9 +168,14 @@ fn flux_vs_temp<DB: DrawingBackend>(
         .axis_desc_style(("sans-serif", 18))
         .draw()
         .map_err(e)?;
-    let step = every(s.time_s.len(), 4000);
-    let pts =
-        |r: std::ops::Range<usize>| r.step_by(step).map(|i| (tm[i], b[i])).collect::<Vec<_>>();
+    let _ = s;
+    // keep each bin's extremes so a stray reading stays visible however long the record
+    let pts = |r: std::ops::Range<usize>| {
+        minmax_indices(r, b, 1500)
+            .into_iter()
+            .map(|i| (tm[i], b[i]))
+            .collect::<Vec<_>>()
+    };
     chart
         .draw_series(
             pts(seg.heating.clone())
@@ -215,18 +246,20 @@ fn residuals<DB: DrawingBackend>(
     let tm = &a.magnet_temp_c;
     let seg = a.segments.as_ref().ok_or("no segments")?;
     let loss = a.irreversible_loss_pct.unwrap_or(0.0).max(0.0) / 100.0;
-    let res: Vec<(f64, f64, bool)> = (0..s.time_s.len())
-        .step_by(every(s.time_s.len(), 5000))
-        .filter(|&i| tm[i] >= a.fit_range_c[0] && tm[i] <= a.fit_range_c[1])
+    let all: Vec<f64> = (0..s.time_s.len())
         .map(|i| {
-            let cooling = i > seg.peak;
-            let b = if cooling {
+            let b = if i > seg.peak {
                 a.flux_corrected_mt[i] / (1.0 - loss)
             } else {
                 a.flux_corrected_mt[i]
             };
-            (tm[i], b - a.fitted_mt(tm[i]), cooling)
+            b - a.fitted_mt(tm[i])
         })
+        .collect();
+    let res: Vec<(f64, f64, bool)> = minmax_indices(0..s.time_s.len(), &all, 3000)
+        .into_iter()
+        .filter(|&i| tm[i] >= a.fit_range_c[0] && tm[i] <= a.fit_range_c[1])
+        .map(|i| (tm[i], all[i], i > seg.peak))
         .collect();
     let (tlo, thi) = range(res.iter().map(|r| r.0));
     let lim = res.iter().map(|r| r.1.abs()).fold(0.0, f64::max).max(1e-3) * 1.1;
@@ -538,7 +571,7 @@ fn lot_alpha<DB: DrawingBackend>(
 ) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     root.fill(&WHITE).map_err(e)?;
-    let halves = root.split_evenly((1, 2));
+    let halves = root.split_evenly((2, 2));
     let n = s.rows.len();
     // α per magnet with its U95 and the spec limits
     let mut lo = s
@@ -557,7 +590,13 @@ fn lot_alpha<DB: DrawingBackend>(
     }
     let pad = (hi - lo) * 0.08 + 1e-4;
     let mut c = ChartBuilder::on(&halves[0])
-        .caption(format!("α(Br) per magnet — {title}"), ("sans-serif", 20))
+        .caption(
+            match spec {
+                Some(g) => format!("α(Br) per magnet, {} limits in red — {title}", g.grade),
+                None => format!("α(Br) per magnet — {title}"),
+            },
+            ("sans-serif", 18),
+        )
         .margin(15)
         .x_label_area_size(40)
         .y_label_area_size(80)
@@ -602,20 +641,109 @@ fn lot_alpha<DB: DrawingBackend>(
             .map_err(e)?;
     }
     if let Some(g) = spec {
-        for (v, name) in [(g.alpha_min, "spec min"), (g.alpha_max, "spec max")] {
+        // the limits are labelled in the caption, so no legend covers the points
+        for v in [g.alpha_min, g.alpha_max] {
             c.draw_series(LineSeries::new(
                 [(-0.5, v), (n as f64 - 0.5, v)],
                 RED.stroke_width(2),
             ))
-            .map_err(e)?
-            .label(format!("{name} {v:.3} %/°C ({})", g.grade))
-            .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED));
+            .map_err(e)?;
         }
-        c.configure_series_labels()
-            .label_font(("sans-serif", 13))
-            .background_style(WHITE.mix(0.85))
-            .border_style(BLACK)
-            .draw()
+    }
+    // irreversible loss per magnet with its U95, against the heat-damage threshold
+    let losses: Vec<(usize, f64, f64)> = s
+        .rows
+        .iter()
+        .enumerate()
+        .filter_map(|(i, r)| Some((i, r.loss_pct?, r.loss_u95_pct.unwrap_or(0.0))))
+        .collect();
+    let lmax = losses.iter().map(|l| l.1 + l.2).fold(0.5f64, f64::max) * 1.15;
+    let lmin = losses.iter().map(|l| l.1 - l.2).fold(-0.1f64, f64::min) * 1.15;
+    let mut c = ChartBuilder::on(&halves[2])
+        .caption("Irreversible loss per magnet", ("sans-serif", 20))
+        .margin(15)
+        .x_label_area_size(40)
+        .y_label_area_size(80)
+        .build_cartesian_2d(-0.5..(n as f64 - 0.5), lmin..lmax)
+        .map_err(e)?;
+    c.configure_mesh()
+        .x_labels(n.min(24) * 2 + 1)
+        .x_label_formatter(&id_of)
+        .disable_x_mesh()
+        .x_desc("magnet")
+        .y_desc("loss, %")
+        .label_style(("sans-serif", 14))
+        .axis_desc_style(("sans-serif", 16))
+        .draw()
+        .map_err(e)?;
+    for (i, l, u) in &losses {
+        let x = *i as f64;
+        let col = if *l > u.max(crate::analysis::HEAT_DAMAGE_PCT) {
+            HEATING
+        } else {
+            COOLING
+        };
+        c.draw_series([PathElement::new(
+            vec![(x, l - u), (x, l + u)],
+            col.stroke_width(2),
+        )])
+        .map_err(e)?;
+        c.draw_series([Circle::new((x, *l), 5, col.filled())])
+            .map_err(e)?;
+    }
+    let thr = crate::analysis::HEAT_DAMAGE_PCT;
+    c.draw_series(LineSeries::new(
+        [(-0.5, thr), (n as f64 - 0.5, thr)],
+        RED.stroke_width(2),
+    ))
+    .map_err(e)?
+    .label(format!("heat damage above {thr} % (and its U95)"))
+    .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED));
+    c.configure_series_labels()
+        .label_font(("sans-serif", 13))
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(e)?;
+    // the counts, in words
+    let text_style = ("sans-serif", 18).into_font();
+    let lines = [
+        format!(
+            "{} magnets: {} pass, {} fail, {} indeterminate",
+            s.rows.len(),
+            s.passed,
+            s.failed,
+            s.indeterminate
+        ),
+        format!(
+            "α(Br): mean {:+.4} %/°C, sd {:.4}",
+            s.alpha.mean, s.alpha.sd
+        ),
+        match s.loss {
+            Some(l) => format!("loss: mean {:.3} %, sd {:.3}", l.mean, l.sd),
+            None => "loss: not measured".into(),
+        },
+        format!(
+            "B at 20 °C: median {:.2} mT, sd {:.2}",
+            s.b20.median, s.b20.sd
+        ),
+        format!(
+            "outliers: {}",
+            s.rows
+                .iter()
+                .filter(|r| !r.outlier.is_empty())
+                .map(|r| r.id.as_str())
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+    ];
+    for (k, line) in lines.iter().enumerate() {
+        halves[3]
+            .draw(&Text::new(
+                line.clone(),
+                (30, 40 + 36 * k as i32),
+                text_style.clone(),
+            ))
             .map_err(e)?;
     }
     // room-temperature flux, ranked: deviation from the set's median, at least ±1 % shown
@@ -760,4 +888,28 @@ pub fn write_oc_plot(
     Ok(render_both!(stem, |area| oc_curve(
         &area, model, plan, aql, rql
     )))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn decimation_keeps_every_outlier() {
+        let n = 1_000_000;
+        let mut y: Vec<f64> = (0..n).map(|i| (i as f64 * 1e-3).sin()).collect();
+        let x: Vec<f64> = (0..n).map(|i| i as f64).collect();
+        for &k in &[12_345usize, 500_000, 999_999] {
+            y[k] = 50.0;
+        }
+        y[777_777] = -50.0;
+        let idx = minmax_indices(0..n, &y, 1000);
+        assert!(idx.len() <= 2000);
+        for k in [12_345, 500_000, 999_999, 777_777] {
+            assert!(idx.contains(&k), "outlier at {k} dropped");
+        }
+        assert!(idx.windows(2).all(|w| w[0] < w[1]), "in order");
+        let pts = decimate_minmax(&x, &y, 1000);
+        assert_eq!(pts.iter().filter(|p| p.1.abs() == 50.0).count(), 4);
+    }
 }

@@ -150,6 +150,9 @@ pub enum AnalysisError {
     Lsq(#[from] lsq::LsqError),
 }
 
+/// A loss above this (and above its own U95) flags heat damage, %.
+pub const HEAT_DAMAGE_PCT: f64 = 0.3;
+
 /// A field below this fraction of its starting value while hot marks the Curie collapse.
 pub const CURIE_FRACTION: f64 = 0.05;
 /// In a Curie sweep α is fitted this far below the collapse, K.
@@ -509,7 +512,8 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
             },
         }],
     };
-    let heat_damaged = matches!((loss_pct, loss_u95), (Some(l), Some(u)) if l > u.max(0.3));
+    let heat_damaged =
+        matches!((loss_pct, loss_u95), (Some(l), Some(u)) if l > u.max(HEAT_DAMAGE_PCT));
     if loss > LOSSY {
         notes.push(
             "the magnet lost flux during the excursion: α is fitted on the cooling branch alone (the heating branch mixes reversible and irreversible change); for a datasheet value measure a fresh magnet below its onset".into(),

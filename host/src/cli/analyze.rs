@@ -53,11 +53,12 @@ pub fn load_and_analyze(a: &Args) -> anyhow::Result<(Series, Analysis, String)> 
         .transpose()?;
     let (series, cal, magnet, title) = if a.input.is_dir() {
         let (s, src) = dataset::load_run(&a.input, calibration)?;
+        let run_name = file_name(&a.input);
         let title = src
             .magnet
             .as_ref()
-            .map(|m| format!("{} ({})", m.id, m.grade))
-            .unwrap_or_default();
+            .map(|m| format!("{} ({}), run {run_name}", m.id, m.grade))
+            .unwrap_or(run_name);
         (s, src.calibration, src.magnet, title)
     } else {
         let opts = CsvOptions {

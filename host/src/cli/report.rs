@@ -26,11 +26,16 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         None => SpecTable::builtin(),
     };
     let (series, src) = dataset::load_run(&a.run, None)?;
+    let run_name = a
+        .run
+        .file_name()
+        .map(|f| f.to_string_lossy().into_owned())
+        .unwrap_or_default();
     let title = src
         .magnet
         .as_ref()
-        .map(|m| format!("{} ({})", m.id, m.grade))
-        .unwrap_or_default();
+        .map(|m| format!("{} ({}), run {run_name}", m.id, m.grade))
+        .unwrap_or(run_name);
     let ctx = Context {
         calibration: src.calibration,
         magnet: src.magnet,
