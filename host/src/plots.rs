@@ -5,6 +5,7 @@
 use std::path::{Path, PathBuf};
 use std::sync::Once;
 
+use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
@@ -137,6 +138,45 @@ macro_rules! render_both {
 
 type DrawResult = Result<(), String>;
 
+/// The charts' common 2-D cartesian context.
+type Chart<'a, DB> = ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
+/// Draw a chart's legend in the house style: white, framed, `size`-point text.
+fn legend<'a, DB: DrawingBackend + 'a>(c: &mut Chart<'a, DB>, size: u32) -> DrawResult {
+    c.configure_series_labels()
+        .label_font(("sans-serif", size))
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .draw()
+        .map_err(|x| x.to_string())
+}
+
+/// One panel of the time series: the time axis (minutes) and a labelled value axis.
+fn time_panel<'a, DB: DrawingBackend>(
+    area: &'a DrawingArea<DB, Shift>,
+    x: std::ops::Range<f64>,
+    y: std::ops::Range<f64>,
+    y_desc: &str,
+    x_desc: Option<&str>,
+) -> Result<Chart<'a, DB>, String> {
+    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    let mut c = ChartBuilder::on(area)
+        .margin(10)
+        .x_label_area_size(if x_desc.is_some() { 45 } else { 30 })
+        .y_label_area_size(80)
+        .build_cartesian_2d(x, y)
+        .map_err(e)?;
+    let mut mesh = c.configure_mesh();
+    mesh.y_desc(y_desc)
+        .label_style(("sans-serif", 14))
+        .axis_desc_style(("sans-serif", 16));
+    if let Some(d) = x_desc {
+        mesh.x_desc(d);
+    }
+    mesh.draw().map_err(e)?;
+    Ok(c)
+}
+
 fn flux_vs_temp<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     s: &Series,
@@ -205,7 +245,10 @@ fn flux_vs_temp<DB: DrawingBackend>(
         )
         .map_err(e)?
         .label(match a.irreversible_loss_pct {
-            Some(l) => format!("reference readings (loss {l:.2} %)"),
+            Some(l) => format!(
+                "reference readings (loss {:.2} %)",
+                if l.abs() < 0.005 { 0.0 } else { l }
+            ),
             None => "reference readings".into(),
         })
         .legend(|(x, y)| TriangleMarker::new((x + 10, y), 5, REFERENCE.filled()));
@@ -299,13 +342,7 @@ fn residuals<DB: DrawingBackend>(
     chart
         .draw_series(LineSeries::new([(tlo, 0.0), (thi, 0.0)], BLACK))
         .map_err(e)?;
-    chart
-        .configure_series_labels()
-        .label_font(("sans-serif", 16))
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .draw()
-        .map_err(e)?;
+    legend(&mut chart, 16)?;
     root.present().map_err(e)
 }
 
@@ -356,18 +393,7 @@ fn draw_timeline<DB: DrawingBackend>(
 
     // temperatures
     let (lo, hi) = range(s.temp_c.iter().copied());
-    let mut c = ChartBuilder::on(&panels[0])
-        .margin(10)
-        .x_label_area_size(30)
-        .y_label_area_size(80)
-        .build_cartesian_2d(x0..x1, lo..hi)
-        .map_err(e)?;
-    c.configure_mesh()
-        .y_desc("temperature, °C")
-        .label_style(("sans-serif", 14))
-        .axis_desc_style(("sans-serif", 16))
-        .draw()
-        .map_err(e)?;
+    let mut c = time_panel(&panels[0], x0..x1, lo..hi, "temperature, °C", None)?;
     c.draw_series(LineSeries::new(
         decimate_minmax(&t_min, &s.temp_c, bins),
         HEATING.stroke_width(2),
@@ -427,27 +453,11 @@ fn draw_timeline<DB: DrawingBackend>(
         .label(format!("fault: {what}"))
         .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED));
     }
-    c.configure_series_labels()
-        .label_font(("sans-serif", 14))
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .draw()
-        .map_err(e)?;
+    legend(&mut c, 14)?;
 
     // flux
     let (lo, hi) = range(s.flux_mt.iter().copied());
-    let mut c = ChartBuilder::on(&panels[1])
-        .margin(10)
-        .x_label_area_size(30)
-        .y_label_area_size(80)
-        .build_cartesian_2d(x0..x1, lo..hi)
-        .map_err(e)?;
-    c.configure_mesh()
-        .y_desc("flux density, mT")
-        .label_style(("sans-serif", 14))
-        .axis_desc_style(("sans-serif", 16))
-        .draw()
-        .map_err(e)?;
+    let mut c = time_panel(&panels[1], x0..x1, lo..hi, "flux density, mT", None)?;
     c.draw_series(LineSeries::new(
         decimate_minmax(&t_min, &s.flux_mt, bins),
         REFERENCE.stroke_width(1),
@@ -466,19 +476,13 @@ fn draw_timeline<DB: DrawingBackend>(
     .map_err(e)?;
 
     // duty
-    let mut c = ChartBuilder::on(&panels[2])
-        .margin(10)
-        .x_label_area_size(45)
-        .y_label_area_size(80)
-        .build_cartesian_2d(x0..x1, 0.0..100.0)
-        .map_err(e)?;
-    c.configure_mesh()
-        .x_desc("time since start, min")
-        .y_desc("heater duty, %")
-        .label_style(("sans-serif", 14))
-        .axis_desc_style(("sans-serif", 16))
-        .draw()
-        .map_err(e)?;
+    let mut c = time_panel(
+        &panels[2],
+        x0..x1,
+        0.0..100.0,
+        "heater duty, %",
+        Some("time since start, min"),
+    )?;
     if let Some(d) = &s.duty_pct {
         c.draw_series(LineSeries::new(
             decimate_minmax(&t_min, d, bins),
@@ -699,12 +703,7 @@ fn lot_alpha<DB: DrawingBackend>(
     .map_err(e)?
     .label(format!("heat damage above {thr} % (and its U95)"))
     .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED));
-    c.configure_series_labels()
-        .label_font(("sans-serif", 13))
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .draw()
-        .map_err(e)?;
+    legend(&mut c, 13)?;
     // the counts, in words
     let text_style = ("sans-serif", 18).into_font();
     let lines = [
@@ -868,12 +867,7 @@ fn oc_curve<DB: DrawingBackend>(
         plan.accept_at_rql
     ))
     .legend(|(x, y)| Circle::new((x + 10, y), 5, HEATING.filled()));
-    c.configure_series_labels()
-        .label_font(("sans-serif", 16))
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .draw()
-        .map_err(e)?;
+    legend(&mut c, 16)?;
     root.present().map_err(e)
 }
 
