@@ -12,6 +12,7 @@ pub mod magnets;
 pub mod plots;
 pub mod profiles;
 pub mod record;
+pub mod replay;
 pub mod report;
 pub mod run_dir;
 pub mod sampling;

@@ -268,10 +268,16 @@ impl Recorder {
                 last_byte = Instant::now();
                 w.raw(&got.bytes)?;
             }
+            // every frame of the chunk is written, even those after the one that ends the
+            // record, so the CSV holds exactly what raw.bin holds
+            let mut ended = None;
             for frame in got.frames {
                 if let Some(end) = self.handle(frame, w, start_id, progress)? {
-                    return Ok(end);
+                    ended.get_or_insert(end);
                 }
+            }
+            if let Some(end) = ended {
+                return Ok(end);
             }
             if start_id.is_none() && self.rest_s() >= opts.preroll_s {
                 start_id = Some(session.send(Command::Start(opts.profile.to_wire()))?);
@@ -423,14 +429,16 @@ impl Recorder {
         while Instant::now() < deadline {
             let got = session.read()?;
             w.raw(&got.bytes)?;
+            let mut acked = false;
             for f in got.frames {
-                if let Ok(DeviceMsg::Ack(a)) = &f {
-                    if a.id == id {
-                        w.event(None, "stopped", "stop acknowledged; heater off")?;
-                        return Ok(RecordEnd::Stopped);
-                    }
+                if matches!(&f, Ok(DeviceMsg::Ack(a)) if a.id == id) {
+                    acked = true;
+                    w.event(None, "stopped", "stop acknowledged; heater off")?;
                 }
                 let _ = self.handle(f, w, None, &mut Quiet)?;
+            }
+            if acked {
+                return Ok(RecordEnd::Stopped);
             }
         }
         Err(LinkError::NoAnswer("stop").into())

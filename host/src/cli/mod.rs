@@ -9,6 +9,7 @@ mod magnets;
 mod ports;
 mod progress;
 mod record;
+mod replay;
 mod report;
 mod sampling_plan;
 mod self_test;
@@ -39,6 +40,8 @@ enum Cmd {
     Analyze(analyze::Args),
     /// Write plots and an HTML and Markdown report for a run.
     Report(report::Args),
+    /// Rebuild a run directory from its raw byte stream (optionally with a new calibration).
+    Replay(replay::Args),
     /// Compare the runs of a shipment: table, spread, outliers, pass and fail counts.
     Lot(lot::Args),
     /// Design a single sampling plan (n, c) for lot acceptance.
@@ -59,6 +62,7 @@ pub fn main() -> std::process::ExitCode {
         Cmd::Magnets => magnets::run(),
         Cmd::Analyze(a) => analyze::run(a),
         Cmd::Report(a) => report::run(a),
+        Cmd::Replay(a) => replay::run(a),
         Cmd::Lot(a) => lot::run(a),
         Cmd::SamplingPlan(a) => sampling_plan::run(a),
         Cmd::Survey(a) => survey::run(a),

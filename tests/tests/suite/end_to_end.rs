@@ -125,6 +125,14 @@ fn a_full_cycle_records_without_gaps_and_recovers_alpha() {
     );
     assert_eq!(a.material_family, "sintered NdFeB");
     // an existing run directory is never overwritten
+    // the raw stream alone rebuilds the record: every sample row the same
+    let replayed = dir.path().join("replayed");
+    let counts = remanent::replay::replay(&out, &replayed, None).unwrap();
+    assert_eq!(counts.samples, summary.counts.samples);
+    assert_eq!(
+        std::fs::read(replayed.join("samples.csv")).unwrap(),
+        std::fs::read(out.join("samples.csv")).unwrap()
+    );
     let before = std::fs::read(out.join("samples.csv")).unwrap();
     let meta = remanent::run_dir::read_meta(&out).unwrap();
     let err = remanent::run_dir::RunWriter::create(&out, meta)
