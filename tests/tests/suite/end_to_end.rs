@@ -48,7 +48,7 @@ fn run(
 ) -> (RecordSummary, VirtualRig) {
     let m = magnets::resolve(magnet_id).unwrap();
     let mut opts = VirtualRigOptions::new(m.model.unwrap());
-    opts.speed = 150.0;
+    opts.speed = 100.0;
     tweak(&mut opts);
     let params = opts.params;
     let rig = VirtualRig::start(opts).unwrap();
@@ -184,7 +184,7 @@ fn a_rig_that_dies_mid_run_leaves_a_valid_partial_record() {
     let out = dir.path().join("partial");
     let m = magnets::resolve("RM-N42-D10x5").unwrap();
     let mut opts = VirtualRigOptions::new(m.model.unwrap());
-    opts.speed = 150.0;
+    opts.speed = 100.0;
     let params = opts.params;
     let rig = VirtualRig::start(opts).unwrap();
     let port = remanent::link::port::open(rig.path()).unwrap();
