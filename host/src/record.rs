@@ -9,7 +9,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
-use remanent_protocol::{Command, DeviceMsg, Fault, FrameError, RunState};
+use remanent_protocol::{Command, DeviceMsg, Fault, FrameError, RefuseReason, RunState};
 
 use crate::calibration::Calibration;
 use crate::link::session::{describe_refusal, Received};
@@ -91,6 +91,8 @@ pub enum RecordEnd {
     Stopped,
     /// The device tripped an interlock; its heater is off.
     Fault(Fault),
+    /// The device reports a latched fault whose report did not arrive intact; heater off.
+    DeviceFaulted,
     /// The link went away; everything received is kept.
     LinkLost(String),
 }
@@ -102,6 +104,9 @@ impl RecordEnd {
             RecordEnd::Finished => "profile finished".into(),
             RecordEnd::Stopped => "stopped by the user; heater off (acknowledged)".into(),
             RecordEnd::Fault(f) => format!("device fault {f:?}: heater off"),
+            RecordEnd::DeviceFaulted => {
+                "the device reports a latched fault (report lost on the link): heater off".into()
+            }
             RecordEnd::LinkLost(why) => format!("link lost: {why}"),
         }
     }
@@ -209,6 +214,8 @@ struct Recorder {
     silence: Duration,
     stop: Arc<AtomicBool>,
     started: bool,
+    idle_beacons: u32,
+    resend_start: bool,
 }
 
 impl Recorder {
@@ -223,6 +230,8 @@ impl Recorder {
             silence: opts.silence_timeout,
             stop: opts.stop.clone(),
             started: false,
+            idle_beacons: 0,
+            resend_start: false,
         }
     }
 
@@ -278,6 +287,11 @@ impl Recorder {
             }
             if let Some(end) = ended {
                 return Ok(end);
+            }
+            if self.resend_start && !self.started {
+                self.resend_start = false;
+                w.event(None, "resent", "no answer to the profile: sent again")?;
+                start_id = Some(session.send(Command::Start(opts.profile.to_wire()))?);
             }
             if start_id.is_none() && self.rest_s() >= opts.preroll_s {
                 start_id = Some(session.send(Command::Start(opts.profile.to_wire()))?);
@@ -341,6 +355,38 @@ impl Recorder {
             DeviceMsg::Beacon(b) => {
                 self.timeline.beacon(b);
                 self.status.state = Some(b.state);
+                // a lost acknowledgement: the device's state says the profile runs
+                if start_id.is_some() && !self.started && b.state == RunState::Profile {
+                    self.started = true;
+                    w.event(
+                        t,
+                        "started",
+                        "profile running (acknowledgement lost on the link)",
+                    )?;
+                }
+                // a lost start or refusal: still idle three beacons later, so ask again
+                if start_id.is_some() && !self.started && b.state == RunState::Idle {
+                    self.idle_beacons += 1;
+                    if self.idle_beacons >= 3 {
+                        self.idle_beacons = 0;
+                        self.resend_start = true;
+                    }
+                }
+                // the beacon repeats the state every second, so a lost state report cannot
+                // leave the record running forever
+                if self.started && b.state == RunState::Idle {
+                    w.event(
+                        Some(f64::from(b.epoch_ms) / 1000.0),
+                        "state",
+                        "Idle (from the beacon)",
+                    )?;
+                    progress.note("profile finished; heater off");
+                    return Ok(Some(RecordEnd::Finished));
+                }
+                if self.started && b.state == RunState::Faulted {
+                    progress.note("the device reports a latched fault (its fault report was lost); heater off");
+                    return Ok(Some(RecordEnd::DeviceFaulted));
+                }
             }
             DeviceMsg::State(st) => {
                 w.event(
@@ -349,6 +395,9 @@ impl Recorder {
                     &format!("{:?} (segment {})", st.state, st.segment),
                 )?;
                 self.status.state = Some(st.state);
+                if st.state == RunState::Profile && start_id.is_some() && !self.started {
+                    self.started = true; // the acknowledgement was lost on the link
+                }
                 if st.state == RunState::Idle && self.started {
                     progress.note("profile finished; heater off");
                     return Ok(Some(RecordEnd::Finished));
@@ -369,6 +418,10 @@ impl Recorder {
             DeviceMsg::Ack(a) if Some(a.id) == start_id => {
                 self.started = true;
                 w.event(t, "started", "profile accepted")?;
+            }
+            DeviceMsg::Refused(r) if Some(r.id) == start_id && r.reason == RefuseReason::Busy => {
+                // a resent start found the first one running
+                self.started = true;
             }
             DeviceMsg::Refused(r) if Some(r.id) == start_id => {
                 let why = describe_refusal(&r.reason);

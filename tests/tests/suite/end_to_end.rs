@@ -422,3 +422,42 @@ fn ci_record_from_the_emulated_board_is_complete() {
     // the profile (firmware/ci/short-cycle.toml) peaks at 45 °C
     assert!((max_t - 45.0).abs() < 1.5, "peak {max_t} °C");
 }
+
+#[test]
+fn a_noisy_link_never_leaves_a_record_hanging() {
+    // heavy corruption (1 byte in 100): acknowledgements and state reports get lost; the
+    // recorder must still notice the start and the end from the beacons and finish
+    use remanent::virtual_rig::SimulatedPort;
+    let (tx, rx) = std::sync::mpsc::channel();
+    std::thread::spawn(move || {
+        let m = magnets::resolve("RM-S2C17-D10x5").unwrap();
+        let dir = tempfile::tempdir().unwrap();
+        let mut results = Vec::new();
+        for seed in 1..=4u64 {
+            let mut opts = VirtualRigOptions::new(m.model.unwrap());
+            opts.seed = seed;
+            opts.link_flip_probability = 0.01;
+            let rec = RecordOptions {
+                port_label: "noisy".into(),
+                magnet: m.info.clone(),
+                profile: short_profile(),
+                calibration: Calibration::virtual_rig(&opts.params),
+                out: dir.path().join(format!("run{seed}")),
+                silence_timeout: Duration::from_secs(3),
+                preroll_s: 10.0,
+                stop: Arc::new(AtomicBool::new(false)),
+            };
+            let mut port = SimulatedPort::new(opts);
+            results.push(record(&mut port, rec, &mut Quiet).map(|s| (s.end, s.counts)));
+        }
+        let _ = tx.send(results);
+    });
+    let results = rx
+        .recv_timeout(Duration::from_secs(240))
+        .expect("a record hung on a noisy link");
+    for r in results {
+        let (end, counts) = r.unwrap();
+        assert_eq!(end, RecordEnd::Finished);
+        assert!(counts.frames_bad_crc + counts.frames_bad_cobs + counts.frames_other > 100);
+    }
+}
