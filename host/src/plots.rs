@@ -179,7 +179,7 @@ fn time_panel<'a, DB: DrawingBackend>(
 
 fn flux_vs_temp<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
-    s: &Series,
+    _series: &Series, // every run plot takes the same arguments
     a: &Analysis,
     title: &str,
 ) -> DrawResult {
@@ -208,7 +208,6 @@ fn flux_vs_temp<DB: DrawingBackend>(
         .axis_desc_style(("sans-serif", 18))
         .draw()
         .map_err(e)?;
-    let _ = s;
     // keep each bin's extremes so a stray reading stays visible however long the record
     let pts = |r: std::ops::Range<usize>| {
         minmax_indices(r, b, 1500)

@@ -82,7 +82,6 @@ pub struct Device<A, T, P, O> {
     setpoint_tenth_c: Option<i16>,
     handshaken: bool,
     last_beacon_ms: u32,
-    last_poll_ms: u32,
     rx_errors: u32,
     outbox_dropped: u32,
 }
@@ -120,7 +119,6 @@ where
             setpoint_tenth_c: None,
             handshaken: false,
             last_beacon_ms: now_ms,
-            last_poll_ms: now_ms,
             rx_errors: 0,
             outbox_dropped: 0,
         }
@@ -169,7 +167,6 @@ where
 
     /// Run whatever is due at `now_ms`: a sample and control period, a beacon.
     pub fn poll(&mut self, now_ms: u32) {
-        self.last_poll_ms = now_ms;
         while let Some((seq, late)) = self.sampler.take_due(now_ms) {
             self.control_period(now_ms, seq, late);
         }
@@ -523,13 +520,5 @@ impl From<FirmwareConfig> for SafetyLimits {
             ceiling_tenth_c: cfg.ceiling_tenth_c(),
             ..cfg.limits
         }
-    }
-}
-
-/// Time since the last poll, for boards that sleep between polls.
-impl<A, T, P, O> Device<A, T, P, O> {
-    /// Time of the latest poll, ms.
-    pub fn last_poll_ms(&self) -> u32 {
-        self.last_poll_ms
     }
 }

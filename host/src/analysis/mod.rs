@@ -450,7 +450,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     }
     let u_c = budget.iter().map(|l| l.u * l.u).sum::<f64>().sqrt();
     // loss
-    let loss_result = reference_loss_full(&prep, &seg, &tm, cal, shape, &fit, probe_slope);
+    let loss_result = reference_loss_full(&prep, &seg, &tm, cal, shape, &fit);
     let (loss_pct, loss_u95, loss_budget, refs, ref_probe) = match &loss_result {
         Some(l) => (
             Some(l.loss_pct),
@@ -654,7 +654,6 @@ fn reference_loss_full(
     cal: Option<&Calibration>,
     shape: Option<remanent_rig_model::Shape>,
     fit: &lsq::Fit,
-    _probe_slope: f64,
 ) -> Option<LossResult> {
     let after = seg.after.as_ref()?;
     let (before_r, after_r) = (settled(&seg.before), settled(after));
