@@ -234,7 +234,7 @@ fn main() {
         );
     }
     println!(
-        "| analysis: time per sample, 250 k → 1 M | {:.2} µs → {:.2} µs | flat (linear) |",
+        "| analysis: time per sample, 250 k → 1 M | {:.2} µs → {:.2} µs | no worse than linear |",
         per_sample[0] * 1e6,
         per_sample[2] * 1e6
     );

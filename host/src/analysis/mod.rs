@@ -168,6 +168,10 @@ struct Prepared<'a> {
     s: &'a Series,
     flux: Vec<f64>,
     stride: usize,
+    /// Every `stride`-th time and thermocouple reading: the lag search runs on these (a
+    /// first-order response is smooth, so a 20 000-point series finds τ as well as a million).
+    time_dec: Vec<f64>,
+    temp_dec: Vec<f64>,
 }
 
 fn fit_quadratic(t: &[f64], b: &[f64]) -> Result<lsq::Fit, lsq::LsqError> {
@@ -205,10 +209,16 @@ impl Prepared<'_> {
     }
 
     fn cost(&self, tau: f64, seg: &segments::Segments, loss: f64) -> f64 {
-        let tm = lag::lagged(&self.s.time_s, &self.s.temp_c, tau);
-        let idx = self.fit_indices(seg, &tm, loss);
-        let t: Vec<f64> = idx.iter().map(|&i| tm[i]).collect();
-        let b: Vec<f64> = idx.iter().map(|&i| self.adjusted(i, seg, loss)).collect();
+        let tm = lag::lagged(&self.time_dec, &self.temp_dec, tau);
+        let tmax = tm.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let keep: Vec<usize> = (0..tm.len())
+            .filter(|&k| !(loss > 0.0005 && tmax - tm[k] < 3.0))
+            .collect();
+        let t: Vec<f64> = keep.iter().map(|&k| tm[k]).collect();
+        let b: Vec<f64> = keep
+            .iter()
+            .map(|&k| self.adjusted(k * self.stride, seg, loss))
+            .collect();
         fit_quadratic(&t, &b)
             .map(|f| f.rss)
             .unwrap_or(f64::INFINITY)
@@ -250,10 +260,13 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
             s.flux_mt.clone()
         }
     };
+    let stride = (n / 20_000).max(1);
     let prep = Prepared {
         s,
         flux,
-        stride: (n / 20_000).max(1),
+        stride,
+        time_dec: s.time_s.iter().step_by(stride).copied().collect(),
+        temp_dec: s.temp_c.iter().step_by(stride).copied().collect(),
     };
     let mut seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
     let span = s.temp_c[seg.peak] - s.temp_c[seg.before.start];
