@@ -179,7 +179,6 @@ fn time_panel<'a, DB: DrawingBackend>(
 
 fn flux_vs_temp<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
-    _series: &Series, // every run plot takes the same arguments
     a: &Analysis,
     title: &str,
 ) -> DrawResult {
@@ -509,41 +508,11 @@ pub fn write_timeline_only(
     )))
 }
 
-type Plotter = fn(&Series, &Analysis, &str, &Path) -> Result<Vec<PathBuf>, ReportError>;
+/// The plots of one run, by file stem.
+pub const RUN_PLOTS: [&str; 3] = ["flux_vs_temp", "residuals", "timeline"];
 
-fn flux_vs_temp_files(
-    s: &Series,
-    a: &Analysis,
-    title: &str,
-    stem: &Path,
-) -> Result<Vec<PathBuf>, ReportError> {
-    Ok(render_both!(stem, |area| flux_vs_temp(&area, s, a, title)))
-}
-fn residuals_files(
-    s: &Series,
-    a: &Analysis,
-    title: &str,
-    stem: &Path,
-) -> Result<Vec<PathBuf>, ReportError> {
-    Ok(render_both!(stem, |area| residuals(&area, s, a, title)))
-}
-fn timeline_files(
-    s: &Series,
-    a: &Analysis,
-    title: &str,
-    stem: &Path,
-) -> Result<Vec<PathBuf>, ReportError> {
-    Ok(render_both!(stem, |area| timeline(&area, s, a, title)))
-}
-
-/// The plots of one run: (file stem, drawing function).
-pub const RUN_PLOTS: [(&str, Plotter); 3] = [
-    ("flux_vs_temp", flux_vs_temp_files),
-    ("residuals", residuals_files),
-    ("timeline", timeline_files),
-];
-
-/// Write every run plot into `dir`; refuses to replace files unless `force`.
+/// Write every run plot into `dir`; refuses to replace files unless `force` (checked for all
+/// of them before any is written).
 pub fn write_run_plots(
     dir: &Path,
     s: &Series,
@@ -551,17 +520,20 @@ pub fn write_run_plots(
     title: &str,
     force: bool,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    ensure_font();
+    let stems: Vec<PathBuf> = RUN_PLOTS.iter().map(|n| dir.join(n)).collect();
+    crate::report::refuse_existing(
+        stems
+            .iter()
+            .flat_map(|p| [p.with_extension("png"), p.with_extension("svg")]),
+        force,
+    )?;
     let mut written = Vec::new();
-    for (stem, draw) in RUN_PLOTS {
-        let base = dir.join(stem);
-        for ext in ["png", "svg"] {
-            let f = base.with_extension(ext);
-            if f.exists() && !force {
-                return Err(ReportError::Exists(f.display().to_string()));
-            }
-        }
-        written.extend(draw(s, a, title, &base)?);
+    for (name, stem) in RUN_PLOTS.iter().zip(&stems) {
+        written.extend(match *name {
+            "flux_vs_temp" => render_both!(stem, |area| flux_vs_temp(&area, a, title)),
+            "residuals" => render_both!(stem, |area| residuals(&area, s, a, title)),
+            _ => render_both!(stem, |area| timeline(&area, s, a, title)),
+        });
     }
     Ok(written)
 }

@@ -12,8 +12,9 @@ use std::time::{Duration, Instant};
 use remanent_protocol::{Command, DeviceMsg, Fault, FrameError, RefuseReason, RunState};
 
 use crate::calibration::Calibration;
+use crate::frame_log::{fault_detail, FrameLog, Logged};
 use crate::link::session::{describe_refusal, Received};
-use crate::link::{LinkError, Session, Timeline};
+use crate::link::{LinkError, Session};
 use crate::magnets::MagnetInfo;
 use crate::profiles::ProfileSpec;
 use crate::run_dir::{utc_now, Counts, DeviceInfo, RunDirError, RunMeta, RunWriter};
@@ -196,16 +197,14 @@ pub fn record<P: Read + Write>(
             return Err(e);
         }
     };
-    w.meta.counts.gaps = rec.timeline.gaps;
-    w.meta.counts.gap_samples = rec.timeline.gap_samples;
-    w.meta.counts.device_dropped = rec.timeline.device_dropped;
+    rec.log.close(&mut w);
     let counts = w.meta.counts.clone();
     let dir = w.finish(&end.describe())?;
     Ok(RecordSummary { dir, end, counts })
 }
 
 struct Recorder {
-    timeline: Timeline,
+    log: FrameLog,
     status: LiveStatus,
     history: VecDeque<(f64, f64)>,
     start_device_s: Option<f64>,
@@ -221,7 +220,7 @@ struct Recorder {
 impl Recorder {
     fn new(opts: &RecordOptions) -> Self {
         Recorder {
-            timeline: Timeline::default(),
+            log: FrameLog::default(),
             status: LiveStatus::default(),
             history: VecDeque::new(),
             start_device_s: None,
@@ -312,48 +311,23 @@ impl Recorder {
         progress: &mut dyn Progress,
     ) -> Result<Option<RecordEnd>, RecordError> {
         let t = self.history.back().map(|h| h.0);
-        let msg = match frame {
-            Ok(m) => m,
-            Err(e) => {
-                match e {
-                    FrameError::BadCrc { .. } => w.meta.counts.frames_bad_crc += 1,
-                    FrameError::BadCobs => w.meta.counts.frames_bad_cobs += 1,
-                    _ => w.meta.counts.frames_other += 1,
-                }
-                self.status.bad_frames += 1;
-                w.event(t, "frame_rejected", &e.to_string())?;
-                return Ok(None);
+        match self.log.log(w, frame, t)? {
+            Logged::Rejected => self.status.bad_frames += 1,
+            Logged::Unplaced => {}
+            Logged::Sample {
+                sample,
+                placed,
+                row,
+            } => {
+                self.status.samples = w.meta.counts.samples;
+                self.track(
+                    placed.device_time_s,
+                    row.temp_c,
+                    row.flux_mt,
+                    f64::from(sample.duty) / 2.55,
+                );
             }
-        };
-        match msg {
-            DeviceMsg::Sample(s) => {
-                let gaps_before = self.timeline.gap_samples;
-                if let Some(p) = self.timeline.place(s) {
-                    if self.timeline.gap_samples > gaps_before {
-                        let missing = self.timeline.gap_samples - gaps_before;
-                        w.event(
-                            Some(p.device_time_s),
-                            "gap",
-                            &format!("{missing} samples missing before seq {}", p.seq),
-                        )?;
-                    }
-                    let setpoint = self
-                        .timeline
-                        .latest_beacon()
-                        .filter(|b| b.setpoint_tenth_c != 0)
-                        .map(|b| f64::from(b.setpoint_tenth_c) / 10.0);
-                    let row = w.sample(&p, setpoint)?;
-                    self.status.samples = w.meta.counts.samples;
-                    self.track(
-                        p.device_time_s,
-                        row.temp_c,
-                        row.flux_mt,
-                        f64::from(s.duty) / 2.55,
-                    );
-                }
-            }
-            DeviceMsg::Beacon(b) => {
-                self.timeline.beacon(b);
+            Logged::Beacon(b) => {
                 self.status.state = Some(b.state);
                 // a lost acknowledgement: the device's state says the profile runs
                 if start_id.is_some() && !self.started && b.state == RunState::Profile {
@@ -388,12 +362,7 @@ impl Recorder {
                     return Ok(Some(RecordEnd::DeviceFaulted));
                 }
             }
-            DeviceMsg::State(st) => {
-                w.event(
-                    Some(f64::from(st.time_ms) / 1000.0),
-                    "state",
-                    &format!("{:?} (segment {})", st.state, st.segment),
-                )?;
+            Logged::State(st) => {
                 self.status.state = Some(st.state);
                 if st.state == RunState::Profile && start_id.is_some() && !self.started {
                     self.started = true; // the acknowledgement was lost on the link
@@ -403,37 +372,33 @@ impl Recorder {
                     return Ok(Some(RecordEnd::Finished));
                 }
             }
-            DeviceMsg::Fault(f) => {
-                w.meta.counts.faults += 1;
-                let detail = format!(
-                    "{:?} at {:.1} °C",
-                    f.fault,
-                    f64::from(f.temp_tenth_c) / 10.0
-                );
-                w.event(Some(f64::from(f.time_ms) / 1000.0), "fault", &detail)?;
+            Logged::Fault(f) => {
                 self.status.fault = Some(f.fault);
-                progress.note(&format!("device fault: {detail}; heater off"));
+                progress.note(&format!("device fault: {}; heater off", fault_detail(&f)));
                 return Ok(Some(RecordEnd::Fault(f.fault)));
             }
-            DeviceMsg::Ack(a) if Some(a.id) == start_id => {
+            Logged::Other(DeviceMsg::Ack(a)) if Some(a.id) == start_id => {
                 self.started = true;
                 w.event(t, "started", "profile accepted")?;
             }
-            DeviceMsg::Refused(r) if Some(r.id) == start_id && r.reason == RefuseReason::Busy => {
+            Logged::Other(DeviceMsg::Refused(r))
+                if Some(r.id) == start_id && r.reason == RefuseReason::Busy =>
+            {
                 // a resent start found the first one running
                 self.started = true;
             }
-            DeviceMsg::Refused(r) if Some(r.id) == start_id => {
-                let why = describe_refusal(&r.reason);
-                w.event(t, "refused", &why)?;
+            Logged::Other(DeviceMsg::Refused(r)) if Some(r.id) == start_id => {
+                w.event(t, "refused", &describe_refusal(&r.reason))?;
                 return Err(LinkError::Refused {
                     command: "the profile",
                     reason: r.reason,
                 }
                 .into());
             }
-            DeviceMsg::Refused(r) => w.event(t, "refused", &describe_refusal(&r.reason))?,
-            DeviceMsg::Ack(_) | DeviceMsg::Hello(_) => {}
+            Logged::Other(DeviceMsg::Refused(r)) => {
+                w.event(t, "refused", &describe_refusal(&r.reason))?
+            }
+            Logged::Other(_) => {}
         }
         Ok(None)
     }
@@ -458,7 +423,7 @@ impl Recorder {
         self.status.temp_c = temp_c;
         self.status.flux_mt = flux_mt;
         self.status.duty_pct = duty_pct;
-        self.status.gap_samples = self.timeline.gap_samples;
+        self.status.gap_samples = self.log.timeline.gap_samples;
         if let Some(tc) = temp_c {
             self.history.push_back((t, tc));
             while self.history.front().is_some_and(|h| t - h.0 > 30.0) {

@@ -39,6 +39,20 @@ pub const MD_FILE: &str = "report.md";
 /// Machine-readable analysis.
 pub const JSON_FILE: &str = "analysis.json";
 
+/// Refuse if any of `paths` exists, unless `force`.
+pub fn refuse_existing(
+    paths: impl IntoIterator<Item = PathBuf>,
+    force: bool,
+) -> Result<(), ReportError> {
+    if force {
+        return Ok(());
+    }
+    match paths.into_iter().find(|p| p.exists()) {
+        Some(p) => Err(ReportError::Exists(p.display().to_string())),
+        None => Ok(()),
+    }
+}
+
 fn write_new(path: &Path, text: &str, force: bool) -> Result<(), ReportError> {
     if path.exists() && !force {
         return Err(ReportError::Exists(path.display().to_string()));
@@ -57,11 +71,7 @@ pub fn write_all(
     title: &str,
     force: bool,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    for f in [HTML_FILE, MD_FILE, JSON_FILE] {
-        if dir.join(f).exists() && !force {
-            return Err(ReportError::Exists(dir.join(f).display().to_string()));
-        }
-    }
+    refuse_existing([HTML_FILE, MD_FILE, JSON_FILE].map(|f| dir.join(f)), force)?;
     let mut written = crate::plots::write_run_plots(dir, series, a, title, force)?;
     let meta = run_dir::read_meta(dir).ok();
     let json = serde_json::to_string_pretty(a).expect("analysis serializes");
@@ -73,7 +83,7 @@ pub fn write_all(
     )?;
     let svgs: Vec<(String, String)> = crate::plots::RUN_PLOTS
         .iter()
-        .map(|(stem, _)| {
+        .map(|stem| {
             let p = dir.join(stem).with_extension("svg");
             (
                 stem.to_string(),
@@ -384,19 +394,16 @@ pub fn write_unanalysed(
     reason: &str,
     force: bool,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    for f in [HTML_FILE, MD_FILE] {
-        if dir.join(f).exists() && !force {
-            return Err(ReportError::Exists(dir.join(f).display().to_string()));
-        }
-    }
     let stem = dir.join("timeline");
-    for ext in ["png", "svg"] {
-        if stem.with_extension(ext).exists() && !force {
-            return Err(ReportError::Exists(
-                stem.with_extension(ext).display().to_string(),
-            ));
-        }
-    }
+    refuse_existing(
+        [
+            dir.join(HTML_FILE),
+            dir.join(MD_FILE),
+            stem.with_extension("png"),
+            stem.with_extension("svg"),
+        ],
+        force,
+    )?;
     let mut written = crate::plots::write_timeline_only(&stem, series, title)?;
     let meta = run_dir::read_meta(dir).ok();
     let mut md = format!("# Remanent report — {title}\n\n**Not analysed:** {reason}\n\n");
