@@ -5,7 +5,7 @@
 use std::io::{Read, Write};
 use std::time::Duration;
 
-use remanent_protocol::{Command, DeviceHello, DeviceMsg, Fault, RunState, Sample};
+use remanent_protocol::{Command, DeviceHello, DeviceMsg, Fault, RefuseReason, RunState, Sample};
 
 use crate::calibration::Calibration;
 use crate::conversion;
@@ -26,7 +26,7 @@ struct Probe<P> {
     s: Session<P>,
     timeline: Timeline,
     cal: Calibration,
-    last_ack: Vec<u16>,
+    replies: Vec<(u16, Result<(), RefuseReason>)>,
     faults: Vec<(Fault, f64)>,
     states: Vec<RunState>,
 }
@@ -44,7 +44,8 @@ impl<P: Read + Write> Probe<P> {
             for f in got.frames.into_iter().flatten() {
                 match f {
                     DeviceMsg::Beacon(b) => self.timeline.beacon(b),
-                    DeviceMsg::Ack(a) => self.last_ack.push(a.id),
+                    DeviceMsg::Ack(a) => self.replies.push((a.id, Ok(()))),
+                    DeviceMsg::Refused(r) => self.replies.push((r.id, Err(r.reason))),
                     DeviceMsg::Fault(r) => {
                         self.faults.push((r.fault, f64::from(r.time_ms) / 1000.0))
                     }
@@ -67,6 +68,28 @@ impl<P: Read + Write> Probe<P> {
         Ok(None)
     }
 
+    /// Whether the device acknowledged command `id` (so far).
+    fn acked(&self, id: u16) -> bool {
+        self.replies.iter().any(|(i, r)| *i == id && r.is_ok())
+    }
+
+    /// The device's answer to command `id`, reading up to `max_samples` samples for it.
+    fn reply(
+        &mut self,
+        id: u16,
+        max_samples: usize,
+    ) -> Result<Option<Result<(), RefuseReason>>, LinkError> {
+        let find = |p: &Self| p.replies.iter().find(|(i, _)| *i == id).map(|(_, r)| *r);
+        if find(self).is_none() {
+            let mut seen = 0;
+            while find(self).is_none() && seen < max_samples {
+                self.watch(1, |_, _| true)?;
+                seen += 1;
+            }
+        }
+        Ok(find(self))
+    }
+
     fn temp(&self, s: &Sample) -> Option<f64> {
         conversion::thermocouple_c(s.thermo, &self.cal)
     }
@@ -83,7 +106,7 @@ pub fn run<P: Read + Write>(
         s,
         timeline: Timeline::default(),
         cal,
-        last_ack: Vec::new(),
+        replies: Vec::new(),
         faults: Vec::new(),
         states: Vec::new(),
     };
@@ -141,7 +164,7 @@ pub fn run<P: Read + Write>(
     })?;
     steps.push(Step {
         name: "heater heats",
-        passed: rose.is_some() && p.last_ack.contains(&id),
+        passed: rose.is_some() && p.acked(id),
         detail: match rose {
             Some((smp, t)) => format!(
                 "+2 K after {:.0} s at {:.0} % duty",
@@ -170,7 +193,7 @@ pub fn run<P: Read + Write>(
     };
     steps.push(Step {
         name: "fault drives the heater off",
-        passed: tripped.is_some() && p.last_ack.contains(&id) && delay.is_some_and(|d| d <= period + 1e-6),
+        passed: tripped.is_some() && p.acked(id) && delay.is_some_and(|d| d <= period + 1e-6),
         detail: match delay {
             Some(d) => format!("fault reported; heater at 0 % and enable low {:.2} s later (one period is {period:.2} s)", d.max(0.0)),
             None => "the heater did not turn off".into(),
@@ -180,13 +203,13 @@ pub fn run<P: Read + Write>(
         setpoint_tenth_c: (target * 10.0) as i16,
         limit_tenth_c: ((target + 15.0) * 10.0) as i16,
     })?;
-    p.watch(5, |_, _| false)?;
-    let latched = !p.last_ack.contains(&id_refused);
+    // wait for the device's answer itself: samples already on their way may come first
+    let latched = matches!(p.reply(id_refused, 50)?, Some(Err(_)));
     let id = p.s.send(Command::ClearFault)?;
-    p.watch(5, |_, _| false)?;
+    p.reply(id, 50)?;
     steps.push(Step {
         name: "fault latches until cleared",
-        passed: latched && p.last_ack.contains(&id),
+        passed: latched && p.acked(id),
         detail: format!(
             "a new setpoint was {}; clear {}",
             if latched {
@@ -194,11 +217,7 @@ pub fn run<P: Read + Write>(
             } else {
                 "accepted (wrong)"
             },
-            if p.last_ack.contains(&id) {
-                "accepted"
-            } else {
-                "refused"
-            }
+            if p.acked(id) { "accepted" } else { "refused" }
         ),
     });
     p.s.send(Command::Stop)?;
