@@ -6,6 +6,7 @@
 pub mod analysis;
 pub mod calibration;
 pub mod conversion;
+pub mod drill;
 pub mod frame_log;
 pub mod link;
 pub mod lot;

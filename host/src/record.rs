@@ -104,7 +104,10 @@ impl RecordEnd {
         match self {
             RecordEnd::Finished => "profile finished".into(),
             RecordEnd::Stopped => "stopped by the user; heater off (acknowledged)".into(),
-            RecordEnd::Fault(f) => format!("device fault {f:?}: heater off"),
+            RecordEnd::Fault(f) => format!(
+                "device fault: {}; heater off",
+                crate::link::words::describe_fault(*f)
+            ),
             RecordEnd::DeviceFaulted => {
                 "the device reports a latched fault (report lost on the link): heater off".into()
             }
@@ -163,6 +166,9 @@ pub fn record<P: Read + Write>(
         hello.firmware[2],
         f64::from(hello.limits.ceiling_tenth_c) / 10.0
     ));
+    if let Some(why) = crate::link::words::describe_boot(&hello.boot) {
+        progress.note(&why);
+    }
     let meta = RunMeta {
         software: format!("remanent {}", env!("CARGO_PKG_VERSION")),
         started_utc: utc_now(),

@@ -11,6 +11,9 @@ use crate::calibration::Calibration;
 use crate::conversion;
 use crate::link::{LinkError, Session, Timeline};
 
+/// Steps a complete self-test reports.
+pub const STEPS: usize = 7;
+
 /// One step's result.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Step {
@@ -95,6 +98,37 @@ impl<P: Read + Write> Probe<P> {
     }
 }
 
+/// Step 0: why the device last started; a latch left by a reset is cleared if it may be.
+fn start_up<P: Read + Write>(p: &mut Probe<P>, hello: &DeviceHello) -> Result<Step, LinkError> {
+    let Some(why) = crate::link::words::describe_boot(&hello.boot) else {
+        return Ok(Step {
+            name: "start-up",
+            passed: true,
+            detail: "power-on, nothing latched".into(),
+        });
+    };
+    let id = p.s.send(Command::ClearFault)?;
+    let reply = p.reply(id, 50)?;
+    let passed = matches!(
+        reply,
+        Some(Ok(())) | Some(Err(RefuseReason::NoFaultLatched))
+    );
+    let detail = match reply {
+        Some(Ok(())) => format!("{why}; cleared"),
+        Some(Err(RefuseReason::NoFaultLatched)) => format!("{why}; already cleared"),
+        Some(Err(r)) => format!(
+            "{why}; not cleared: {}",
+            crate::link::words::describe_refusal(&r)
+        ),
+        None => format!("{why}; no answer to the clear"),
+    };
+    Ok(Step {
+        name: "start-up",
+        passed,
+        detail,
+    })
+}
+
 /// Run the self-test; the device info and each step.
 pub fn run<P: Read + Write>(
     port: P,
@@ -110,7 +144,7 @@ pub fn run<P: Read + Write>(
         faults: Vec::new(),
         states: Vec::new(),
     };
-    let mut steps = Vec::new();
+    let mut steps = vec![start_up(&mut p, &hello)?];
     // 1. sensors
     let first = p.watch(30, |_, _| true)?;
     let Some((smp, _)) = first else {

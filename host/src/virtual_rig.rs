@@ -19,12 +19,12 @@ use remanent_firmware::device::{BoardInfo, Device};
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::heater::Heater;
 use remanent_firmware::FirmwareConfig;
-use remanent_protocol::MAX_DEVICE_FRAME;
+use remanent_protocol::{BootReport, HeaterDrive, MAX_DEVICE_FRAME};
 use remanent_rig_model::peripherals::{
     SimAdcBus, SimDelay, SimHeaterEnable, SimHeaterPwm, SimThermoSpi,
 };
 use remanent_rig_model::rng::Rng;
-use remanent_rig_model::{Magnet, Rig, RigFaults, RigParams};
+use remanent_rig_model::{HeaterSwitch, Magnet, Rig, RigFaults, RigParams};
 use serialport::{SerialPort, TTYPort};
 
 /// Simulated time per step, s.
@@ -237,6 +237,17 @@ type SimDevice = Device<
     SimHeaterEnable<Handle>,
 >;
 
+/// The drive the virtual board uses for the modelled switch.
+pub fn heater_drive(params: &RigParams) -> HeaterDrive {
+    match params.switch {
+        HeaterSwitch::Dc => HeaterDrive::Pwm { frequency_hz: 500 },
+        HeaterSwitch::ZeroCross { half_cycle_s } => HeaterDrive::TimeProportioning {
+            window_ms: 2000,
+            half_cycle_us: (half_cycle_s * 1e6).round() as u16,
+        },
+    }
+}
+
 /// The firmware on the model, advanced in simulated time by its owner: the engine behind the
 /// pseudo-terminal rig and the in-process [`SimulatedPort`].
 pub struct SimulatedBench {
@@ -263,6 +274,8 @@ impl SimulatedBench {
             name: "virtual",
             supply_mv: opts.params.ntc.supply_mv as u16,
             ntc_series_ohm: opts.params.ntc.series_ohm as u32,
+            conversion_us: 1_500,
+            drills: false,
         };
         let adc = ads1115::Ads1115::new(
             SimAdcBus::new(rig.clone()),
@@ -274,8 +287,9 @@ impl SimulatedBench {
             SimHeaterPwm(rig.clone()),
             SimHeaterEnable(rig.clone()),
             cfg.limits.duty_cap_pct,
+            heater_drive(&opts.params),
         );
-        let device = Device::new(cfg, board, adc, tc, heater, 0);
+        let device = Device::new(cfg, board, adc, tc, heater, 0, BootReport::POWER_ON);
         if !opts.survey.is_empty() {
             rig.borrow_mut().swap(None);
         }

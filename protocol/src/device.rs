@@ -43,6 +43,64 @@ pub struct DeviceHello {
     pub sensors: SensorSetup,
     /// The limits the firmware enforces whatever the host asks.
     pub limits: SafetyLimits,
+    /// How the heater output is driven (it must fit the switch the board drives).
+    pub heater: HeaterDrive,
+    /// Why the device last started, and what was latched then.
+    pub boot: BootReport,
+}
+
+/// How the firmware drives the heater's switch.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, MaxSize)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum HeaterDrive {
+    /// Fast PWM for a DC switch (a MOSFET), at this frequency, Hz.
+    Pwm {
+        /// PWM frequency, Hz.
+        frequency_hz: u16,
+    },
+    /// Slow time-proportioning for a zero-crossing relay: on for a whole number of mains
+    /// half-cycles in each window.
+    TimeProportioning {
+        /// Window length, ms.
+        window_ms: u16,
+        /// One mains half-cycle, µs (10 000 at 50 Hz, 8 333 at 60 Hz).
+        half_cycle_us: u16,
+    },
+}
+
+/// Why the device last started.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, MaxSize)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum ResetCause {
+    /// Power was applied (or the cause is unknown: nothing survived).
+    PowerOn,
+    /// The watchdog expired: the control loop stopped completing its periods.
+    Watchdog,
+    /// The firmware panicked (a bug); its handler switched the heater off and reset the chip.
+    Panic,
+    /// The processor took a hard fault (a bug or a stack overflow); handled like a panic.
+    HardFault,
+}
+
+/// What the device knew when it started.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, MaxSize)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct BootReport {
+    /// Why it started.
+    pub reset: ResetCause,
+    /// The fault latched before the reset, if any (kept across the reset).
+    pub last_fault: Option<Fault>,
+    /// Heating is locked until the power is cycled (repeated trips).
+    pub locked: bool,
+}
+
+impl BootReport {
+    /// A plain power-on: nothing latched, nothing locked.
+    pub const POWER_ON: BootReport = BootReport {
+        reset: ResetCause::PowerOn,
+        last_fault: None,
+        locked: false,
+    };
 }
 
 /// Converter and front-end constants the host needs to turn codes into volts.
@@ -83,8 +141,9 @@ pub struct SafetyLimits {
     pub heartbeat_timeout_ms: u16,
     /// Fastest plausible rise, 0.1 °C per second.
     pub max_rise_tenth_c_per_s: u16,
-    /// Heater off when full duty gives no rise for this long, s.
-    pub no_rise_timeout_s: u16,
+    /// The heating-response check judges the rise against the energy put in over at most
+    /// this long, s.
+    pub response_window_s: u16,
     /// A latched over-temperature clears only this far below the limit, 0.1 °C.
     pub reset_margin_tenth_c: i16,
     /// Highest heater duty, percent.
@@ -218,7 +277,8 @@ pub enum Fault {
     RiseTooFast,
     /// The thermocouple reading stopped changing while heating.
     StuckReading,
-    /// Full duty produced no rise: heater or sensor detached.
+    /// The temperature rose far slower than the heater's energy implies: the heater or the
+    /// thermocouple is detached.
     NoHeatingResponse,
     /// No command from the host within the heartbeat timeout.
     HeartbeatLost,
@@ -226,6 +286,17 @@ pub enum Fault {
     SensorBus,
     /// The host asked for an emergency stop through a fault injection (tests, drills).
     Injected,
+    /// The thermocouple converter answers with words no working chip produces (absent,
+    /// unpowered, or a cold junction that is impossible or frozen).
+    ConverterImplausible,
+    /// The temperature rose while the heater was commanded off (a switch failed on).
+    HeatingWhileOff,
+    /// Setting the heater output failed.
+    HeaterDrive,
+    /// The device was reset by its watchdog.
+    Watchdog,
+    /// The device reset after a panic or hard fault.
+    Crashed,
 }
 
 /// A command carried out.
@@ -266,7 +337,7 @@ pub enum RefuseReason {
     },
     /// A fault is latched; clear it first.
     FaultLatched(Fault),
-    /// Still too hot to clear the latched over-temperature.
+    /// Still too hot to clear a latched heating fault: the fixture must cool near ambient.
     TooHotToClear {
         /// Present temperature, 0.1 °C.
         temp_tenth_c: i16,
@@ -279,4 +350,16 @@ pub enum RefuseReason {
     Invalid,
     /// The device is busy with a run; stop it first.
     Busy,
+    /// Too many heating trips within an hour: heating is locked until the power is cycled.
+    LockedOut {
+        /// Trips counted.
+        trips: u8,
+    },
+    /// The board cannot take this many conversions in one period.
+    TooFastForBoard {
+        /// Shortest period it can keep with the requested oversampling, ms.
+        min_period_ms: u16,
+    },
+    /// This build does not carry out that command (fault drills are test builds only).
+    Unsupported,
 }

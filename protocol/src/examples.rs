@@ -20,7 +20,7 @@ pub fn limits() -> SafetyLimits {
         ceiling_tenth_c: 2500,
         heartbeat_timeout_ms: 2000,
         max_rise_tenth_c_per_s: 50,
-        no_rise_timeout_s: 120,
+        response_window_s: 120,
         reset_margin_tenth_c: 100,
         duty_cap_pct: 80,
     }
@@ -45,6 +45,15 @@ pub fn device() -> [(&'static str, DeviceMsg); 7] {
                     oversample: 4,
                 },
                 limits: limits(),
+                heater: HeaterDrive::TimeProportioning {
+                    window_ms: 2000,
+                    half_cycle_us: 10_000,
+                },
+                boot: BootReport {
+                    reset: ResetCause::Watchdog,
+                    last_fault: Some(Fault::StuckReading),
+                    locked: false,
+                },
             }),
         ),
         ("sample", DeviceMsg::Sample(sample())),
@@ -90,7 +99,7 @@ pub fn device() -> [(&'static str, DeviceMsg); 7] {
 }
 
 /// One named example of every host command.
-pub fn host() -> [(&'static str, HostMsg); 8] {
+pub fn host() -> [(&'static str, HostMsg); 9] {
     let mut segments = Segments::default();
     let _ = segments.0.push(Segment {
         target_tenth_c: 1000,
@@ -139,5 +148,6 @@ pub fn host() -> [(&'static str, HostMsg); 8] {
         ),
         ("clear", msg(7, Command::ClearFault)),
         ("inject", msg(8, Command::InjectFault)),
+        ("drill", msg(9, Command::Drill(Drill::Hang))),
     ]
 }

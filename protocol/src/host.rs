@@ -17,7 +17,7 @@ pub struct HostMsg {
 }
 
 /// Number of [`Command`] variants.
-pub const COMMAND_VARIANTS: u8 = 8;
+pub const COMMAND_VARIANTS: u8 = 9;
 
 /// Host commands. Every command also counts as a heartbeat.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, MaxSize)]
@@ -44,13 +44,27 @@ pub enum Command {
     ClearFault,
     /// Trip an emergency stop as if an interlock had fired (drills and tests).
     InjectFault,
+    /// Make the firmware fail as a bug would, to prove the safe state (test builds only).
+    Drill(Drill),
+}
+
+/// A failure of the firmware itself, for drills on test builds.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, MaxSize)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum Drill {
+    /// Panic in the main loop.
+    Panic,
+    /// Stop completing control periods (a hung loop).
+    Hang,
+    /// Recurse until the stack overflows into its guard.
+    StackOverflow,
 }
 
 /// Sampling settings.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, MaxSize)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SamplingConfig {
-    /// Period, ms (10..=1000).
+    /// Period, ms (10..=250).
     pub period_ms: u16,
     /// Conversions averaged per sample (1..=16).
     pub oversample: u8,

@@ -23,17 +23,18 @@ pub mod thermo_word;
 
 pub use decoder::{FrameDecoder, FrameError};
 pub use device::{
-    Ack, Beacon, DeviceHello, DeviceMsg, Fault, FaultReport, Refusal, RefuseReason, RunState,
-    SafetyLimits, Sample, SampleStatus, SensorSetup, StateReport, ThermoKind,
+    Ack, Beacon, BootReport, DeviceHello, DeviceMsg, Fault, FaultReport, HeaterDrive, Refusal,
+    RefuseReason, ResetCause, RunState, SafetyLimits, Sample, SampleStatus, SensorSetup,
+    StateReport, ThermoKind,
 };
 pub use frame::{encode, EncodeError, MAX_DEVICE_FRAME, MAX_FRAME, MAX_HOST_FRAME};
 pub use handshake::{check_compatible, HandshakeError, Version};
-pub use host::{Command, HostMsg, Profile, SamplingConfig, Segment, Segments, MAX_SEGMENTS};
+pub use host::{Command, Drill, HostMsg, Profile, SamplingConfig, Segment, Segments, MAX_SEGMENTS};
 pub use label::Label;
 pub use thermo_word::ThermoWord;
 
 /// Protocol version: bump on any change a peer of the previous version could not read.
-pub const PROTOCOL_VERSION: u16 = 1;
+pub const PROTOCOL_VERSION: u16 = 2;
 
 /// This build's version pair, sent in both hellos.
 pub const VERSION: Version = Version {

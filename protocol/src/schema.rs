@@ -7,20 +7,22 @@
 /// Field-by-field description of the wire layout.
 pub const SCHEMA: &str = "\
 DeviceMsg{Hello(DeviceHello),Sample(Sample),Beacon(Beacon),State(StateReport),Fault(FaultReport),Ack(Ack),Refused(Refusal)}
-DeviceHello{version:Version,firmware:[u8;3],board:Label,sensors:SensorSetup,limits:SafetyLimits}
+DeviceHello{version:Version,firmware:[u8;3],board:Label,sensors:SensorSetup,limits:SafetyLimits,heater:HeaterDrive,boot:BootReport}
+HeaterDrive{Pwm{u16},TimeProportioning{u16,u16}}
+BootReport{reset:ResetCause{PowerOn,Watchdog,Panic,HardFault},last_fault:Option<Fault>,locked:bool}
 Version{protocol:u16,schema:u32}
 SensorSetup{hall_full_scale_uv:u32,probe_full_scale_uv:u32,supply_mv:u16,ntc_series_ohm:u32,thermo:ThermoKind{TypeKLinear},period_ms:u16,oversample:u8}
-SafetyLimits{ceiling_tenth_c:i16,heartbeat_timeout_ms:u16,max_rise_tenth_c_per_s:u16,no_rise_timeout_s:u16,reset_margin_tenth_c:i16,duty_cap_pct:u8}
+SafetyLimits{ceiling_tenth_c:i16,heartbeat_timeout_ms:u16,max_rise_tenth_c_per_s:u16,response_window_s:u16,reset_margin_tenth_c:i16,duty_cap_pct:u8}
 Sample{seq_lo:u8,status:u8,hall_code:i16le,probe_code:i16le,thermo:u32be,duty:u8}
 Beacon{seq:u32,epoch_seq:u32,epoch_ms:u32,period_ms:u16,dropped_total:u32,state:RunState,setpoint_tenth_c:i16}
 RunState{Idle,Profile,Manual,Faulted}
 StateReport{time_ms:u32,state:RunState,segment:u8}
 FaultReport{time_ms:u32,fault:Fault,temp_tenth_c:i16}
-Fault{ThermocoupleOpen,ThermocoupleShortGnd,ThermocoupleShortVcc,OverTemperature,RiseTooFast,StuckReading,NoHeatingResponse,HeartbeatLost,SensorBus,Injected}
+Fault{ThermocoupleOpen,ThermocoupleShortGnd,ThermocoupleShortVcc,OverTemperature,RiseTooFast,StuckReading,NoHeatingResponse,HeartbeatLost,SensorBus,Injected,ConverterImplausible,HeatingWhileOff,HeaterDrive,Watchdog,Crashed}
 Ack{id:u16}
-Refusal{id:u16,reason:RefuseReason{VersionMismatch(Version),HandshakeRequired,AboveCeiling{i16},AboveRunLimit{i16},FaultLatched(Fault),TooHotToClear{i16,i16},NoFaultLatched,Invalid,Busy}}
+Refusal{id:u16,reason:RefuseReason{VersionMismatch(Version),HandshakeRequired,AboveCeiling{i16},AboveRunLimit{i16},FaultLatched(Fault),TooHotToClear{i16,i16},NoFaultLatched,Invalid,Busy,LockedOut{u8},TooFastForBoard{u16},Unsupported}}
 HostMsg{id:u16,command:Command}
-Command{Hello(Version),Start(Profile),Stop,Manual{i16,i16},Heartbeat,Configure(SamplingConfig),ClearFault,InjectFault}
+Command{Hello(Version),Start(Profile),Stop,Manual{i16,i16},Heartbeat,Configure(SamplingConfig),ClearFault,InjectFault,Drill(Drill{Panic,Hang,StackOverflow})}
 SamplingConfig{period_ms:u16,oversample:u8}
 Profile{limit_tenth_c:i16,segments:[Segment;..16]}
 Segment{target_tenth_c:i16,ramp_tenth_c_per_min:u16,hold_s:u32}

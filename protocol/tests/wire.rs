@@ -14,14 +14,16 @@ fn frame_of<T: serde::Serialize>(msg: &T) -> Vec<u8> {
 /// COBS code 0x0f, tag 1, seq 0x2a, status 0x0d (heater on, 3 ms late), Hall 12345 LE,
 /// probe 16000 LE, thermo word 0x01901880 BE (100 counts = 25.00 °C, cold junction 24.5 °C),
 /// duty 102, CRC-16/IBM-3740 LE, delimiter.
-const GOLDEN: [(&str, &[u8]); 15] = [
+const GOLDEN: [(&str, &[u8]); 16] = [
     (
         "hello",
         &[
-            0x01, 0x07, 0x01, 0xaa, 0xfb, 0xf6, 0xfa, 0x0d, 0x02, 0x01, 0x14, 0x07, 0x76, 0x69,
+            0x01, 0x07, 0x02, 0xd1, 0xbc, 0xc7, 0xee, 0x07, 0x02, 0x01, 0x14, 0x07, 0x76, 0x69,
             0x72, 0x74, 0x75, 0x61, 0x6c, 0x80, 0x80, 0x7d, 0x80, 0x80, 0xfa, 0x01, 0xe4, 0x19,
-            0x90, 0x4e, 0x0e, 0x64, 0x04, 0x88, 0x27, 0xd0, 0x0f, 0x32, 0x78, 0xc8, 0x01, 0x50,
-            0xde, 0x41, 0x00,
+            0x90, 0x4e, 0x14, 0x64, 0x04, 0x88, 0x27, 0xd0, 0x0f, 0x32, 0x78, 0xc8, 0x01, 0x50,
+            // heater: time-proportioning (tag 1), 2000 ms, 10 000 µs; boot: watchdog (tag 1),
+            // Some(StuckReading = 5), not locked (the zero COBS-encoded as 0x03)
+            0x01, 0xd0, 0x0f, 0x90, 0x4e, 0x01, 0x01, 0x05, 0x03, 0x2c, 0x42, 0x00,
         ],
     ),
     (
@@ -56,7 +58,7 @@ const GOLDEN: [(&str, &[u8]); 15] = [
     (
         "host hello",
         &[
-            0x02, 0x01, 0x09, 0x01, 0xaa, 0xfb, 0xf6, 0xfa, 0x0d, 0x80, 0xa2, 0x00,
+            0x02, 0x01, 0x09, 0x02, 0xd1, 0xbc, 0xc7, 0xee, 0x07, 0xc0, 0x3e, 0x00,
         ],
     ),
     (
@@ -78,6 +80,8 @@ const GOLDEN: [(&str, &[u8]); 15] = [
     ),
     ("clear", &[0x05, 0x07, 0x06, 0x5e, 0xe4, 0x00]),
     ("inject", &[0x05, 0x08, 0x07, 0x41, 0xe4, 0x00]),
+    // id 9, Drill (tag 8), Hang (1)
+    ("drill", &[0x06, 0x09, 0x08, 0x01, 0x85, 0xcb, 0x00]),
 ];
 
 #[test]
@@ -277,13 +281,19 @@ fn arb_device_msg() -> impl Strategy<Value = DeviceMsg> {
                 }
             ),
         any::<u16>().prop_map(|id| DeviceMsg::Ack(Ack { id })),
-        (any::<u32>(), any::<i16>()).prop_map(|(time_ms, temp_tenth_c)| DeviceMsg::Fault(
-            FaultReport {
+        (any::<u32>(), any::<i16>(), 0usize..4).prop_map(|(time_ms, temp_tenth_c, k)| {
+            let fault = [
+                Fault::StuckReading,
+                Fault::ConverterImplausible,
+                Fault::HeatingWhileOff,
+                Fault::Crashed,
+            ][k];
+            DeviceMsg::Fault(FaultReport {
                 time_ms,
-                fault: Fault::StuckReading,
-                temp_tenth_c
-            }
-        )),
+                fault,
+                temp_tenth_c,
+            })
+        }),
     ]
 }
 
@@ -310,6 +320,7 @@ fn arb_host_msg() -> impl Strategy<Value = HostMsg> {
         }),
         Just(Command::Heartbeat),
         Just(Command::Stop),
+        Just(Command::Drill(Drill::Panic)),
         (any::<u16>(), any::<u8>()).prop_map(|(p, o)| Command::Configure(SamplingConfig {
             period_ms: p,
             oversample: o

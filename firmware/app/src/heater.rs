@@ -1,10 +1,17 @@
-//! The heater output: PWM duty through `SetDutyCycle` and an enable pin as a second path.
+//! The heater output: a duty through `SetDutyCycle` and an enable pin as a second path, driven
+//! the way the board's switch needs it ([`HeaterDrive`]).
+//!
+//! A DC switch (a MOSFET) takes the duty as fast PWM. A zero-crossing relay switches only at
+//! mains zero crossings, so fast PWM into it delivers a power unrelated to the duty; it gets
+//! slow time-proportioning instead: in each window the output is fully on for a whole number
+//! of mains half-cycles, set by [`Heater::tick`] from the main loop.
 //!
 //! Energising needs a [`Permit`], which only the interlocks can issue (`safety` module), so no
 //! code path can switch the heater on without every interlock having passed this period.
 
 use embedded_hal::digital::OutputPin;
 use embedded_hal::pwm::SetDutyCycle;
+use remanent_protocol::HeaterDrive;
 
 /// Proof that every interlock passed for this control period. Not `Clone`: one use.
 #[derive(Debug)]
@@ -22,31 +29,52 @@ pub enum Error<P, O> {
     Pin(O),
 }
 
-/// PWM output plus enable pin.
+/// Where a time-proportioning window is.
+#[derive(Debug, Clone, Copy)]
+struct Window {
+    start_ms: u32,
+    on_ms: u32,
+    output_on: bool,
+}
+
+/// Duty output plus enable pin.
 pub struct Heater<P, O> {
     pwm: P,
     enable: O,
+    drive_kind: HeaterDrive,
     duty_cap: f32,
     duty: f32,
+    window: Option<Window>,
 }
 
 /// Resolution of duty commands given to the PWM (parts per this).
 const DUTY_STEPS: u16 = 1000;
 
+/// Time-proportioning: the on-time of one window for `duty`, whole half-cycles, ms.
+pub fn window_on_ms(duty: f32, window_ms: u16, half_cycle_us: u16) -> u32 {
+    let half = u32::from(half_cycle_us.max(1));
+    let window_us = u32::from(window_ms) * 1000;
+    let cycles = (duty.clamp(0.0, 1.0) * (window_us / half) as f32 + 0.5) as u32;
+    cycles * half / 1000
+}
+
 impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
     /// A heater driver; call [`Heater::off`] before anything else.
-    pub fn new(pwm: P, enable: O, duty_cap_pct: u8) -> Self {
+    pub fn new(pwm: P, enable: O, duty_cap_pct: u8, drive_kind: HeaterDrive) -> Self {
         Heater {
             pwm,
             enable,
+            drive_kind,
             duty_cap: f32::from(duty_cap_pct.min(100)) / 100.0,
             duty: 0.0,
+            window: None,
         }
     }
 
     /// Both paths off: enable low first, then zero duty. Tries both even if one fails.
     pub fn off(&mut self) -> Result<(), Error<P::Error, O::Error>> {
         self.duty = 0.0;
+        self.window = None;
         let pin = self.enable.set_low().map_err(Error::Pin);
         let pwm = self.pwm.set_duty_cycle_fully_off().map_err(Error::Pwm);
         pin.and(pwm)
@@ -59,16 +87,54 @@ impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
         fraction: f32,
     ) -> Result<(), Error<P::Error, O::Error>> {
         let duty = fraction.clamp(0.0, self.duty_cap);
-        let steps = (duty * f32::from(DUTY_STEPS)) as u16;
-        self.pwm
-            .set_duty_cycle_fraction(steps, DUTY_STEPS)
-            .map_err(Error::Pwm)?;
+        if let HeaterDrive::Pwm { .. } = self.drive_kind {
+            let steps = (duty * f32::from(DUTY_STEPS)) as u16;
+            self.pwm
+                .set_duty_cycle_fraction(steps, DUTY_STEPS)
+                .map_err(Error::Pwm)?;
+        }
         self.enable.set_high().map_err(Error::Pin)?;
         self.duty = duty;
         Ok(())
     }
 
-    /// The duty now applied, 0..=1.
+    /// Time-proportioning: switch the output for `now_ms` (call at least every few ms).
+    /// Each window's on-time is fixed at its start from the duty then in force.
+    pub fn tick(&mut self, now_ms: u32) -> Result<(), Error<P::Error, O::Error>> {
+        let HeaterDrive::TimeProportioning {
+            window_ms,
+            half_cycle_us,
+        } = self.drive_kind
+        else {
+            return Ok(());
+        };
+        if self.duty <= 0.0 && self.window.is_none() {
+            return Ok(());
+        }
+        let duty = self.duty;
+        let w = self.window.get_or_insert(Window {
+            start_ms: now_ms,
+            on_ms: window_on_ms(duty, window_ms, half_cycle_us),
+            output_on: false,
+        });
+        if now_ms.wrapping_sub(w.start_ms) >= u32::from(window_ms) {
+            w.start_ms = now_ms;
+            w.on_ms = window_on_ms(duty, window_ms, half_cycle_us);
+        }
+        let on = now_ms.wrapping_sub(w.start_ms) < w.on_ms;
+        if on != w.output_on {
+            w.output_on = on;
+            let r = if on {
+                self.pwm.set_duty_cycle_fully_on()
+            } else {
+                self.pwm.set_duty_cycle_fully_off()
+            };
+            r.map_err(Error::Pwm)?;
+        }
+        Ok(())
+    }
+
+    /// The duty now applied, 0..=1 (the mean over a window when time-proportioning).
     pub fn duty(&self) -> f32 {
         self.duty
     }
@@ -78,8 +144,28 @@ impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
         self.duty_cap
     }
 
+    /// How the output is driven.
+    pub fn drive_kind(&self) -> HeaterDrive {
+        self.drive_kind
+    }
+
     /// Hand the PWM channel and the pin back.
     pub fn release(self) -> (P, O) {
         (self.pwm, self.enable)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::window_on_ms;
+
+    #[test]
+    fn time_proportioning_switches_whole_half_cycles() {
+        // 50 Hz mains: 10 ms half-cycles; a 2 s window holds 200 of them
+        assert_eq!(window_on_ms(0.5, 2000, 10_000), 1000);
+        assert_eq!(window_on_ms(0.004, 2000, 10_000), 10, "0.8 half-cycles → 1");
+        assert_eq!(window_on_ms(0.002, 2000, 10_000), 0, "0.4 half-cycles → 0");
+        // 60 Hz: 8 333 µs half-cycles; 240 of them in 2 s
+        assert_eq!(window_on_ms(0.25, 2000, 8_333), 60 * 8_333 / 1000);
     }
 }

@@ -6,11 +6,15 @@
 #![no_std]
 #![forbid(unsafe_code)]
 
+pub mod boot;
 pub mod config;
 pub mod control;
 pub mod device;
 pub mod drivers;
 pub mod heater;
+#[macro_use]
+pub mod log;
+pub mod outbox;
 pub mod profile;
 pub mod safety;
 pub mod sampler;

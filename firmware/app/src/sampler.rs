@@ -9,8 +9,9 @@ use crate::traits::{Adc, AdcInput, Thermocouple};
 /// Samples held for a slow link (1.6 s at 10 Hz). Oldest dropped first.
 pub const QUEUE_LEN: usize = 16;
 
-/// Shortest and longest period accepted, ms.
-pub const PERIOD_RANGE_MS: core::ops::RangeInclusive<u16> = 10..=1000;
+/// Shortest and longest period accepted, ms. A control period completes every sample period
+/// and only that feeds a board's watchdog (a few hundred ms), so the longest is 250 ms.
+pub const PERIOD_RANGE_MS: core::ops::RangeInclusive<u16> = 10..=250;
 /// Oversampling accepted.
 pub const OVERSAMPLE_RANGE: core::ops::RangeInclusive<u8> = 1..=16;
 

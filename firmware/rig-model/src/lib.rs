@@ -17,4 +17,4 @@ pub mod thermal;
 pub mod type_k;
 
 pub use magnet::{Magnet, Shape};
-pub use rig::{Rig, RigFaults, RigParams};
+pub use rig::{HeaterSwitch, Rig, RigFaults, RigParams};

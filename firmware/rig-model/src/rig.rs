@@ -28,7 +28,29 @@ pub struct RigParams {
     pub cold_junction_rise_k: f64,
     /// Thermocouple converter noise, °C RMS.
     pub tc_noise_c: f64,
+    /// The switch between the heater output and the heater.
+    #[serde(default)]
+    pub switch: HeaterSwitch,
 }
+
+/// The heater's switch.
+#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize, Deserialize)]
+pub enum HeaterSwitch {
+    /// A DC switch (a MOSFET): the power follows the duty.
+    #[default]
+    Dc,
+    /// A zero-crossing relay on the mains: at each zero crossing it conducts for the next
+    /// half-cycle if its input is high then, and not otherwise.
+    ZeroCross {
+        /// One mains half-cycle, s (0.01 at 50 Hz).
+        half_cycle_s: f64,
+    },
+}
+
+/// Where in its period a fast PWM stands at every zero crossing: a PWM whose period divides
+/// the mains half-cycle (500 Hz into 50 Hz) meets each crossing at the same phase, so the relay
+/// conducts always or never — a power unrelated to the duty. The model takes mid-period.
+pub const PWM_PHASE_AT_ZERO_CROSSING: f64 = 0.5;
 
 impl RigParams {
     /// The reference rig.
@@ -40,6 +62,7 @@ impl RigParams {
         probe_full_scale_mv: 4096.0,
         cold_junction_rise_k: 3.0,
         tc_noise_c: 0.08,
+        switch: HeaterSwitch::Dc,
     };
 }
 
@@ -50,7 +73,22 @@ pub struct RigFaults {
     pub thermocouple_open_at_s: Option<f64>,
     /// The heater delivers nothing from this time on, s.
     pub heater_detached_at_s: Option<f64>,
+    /// The switch fails on from this time on: full power whatever the outputs, s.
+    pub switch_stuck_on_at_s: Option<f64>,
+    /// The thermocouple slips off the plate at this time: its junction cools toward the air
+    /// by the fixture (ambient + [`DETACHED_AIR_RISE_K`]), which warms at
+    /// [`DETACHED_AIR_WARMING_K_PER_S`], s.
+    pub thermocouple_detached_at_s: Option<f64>,
+    /// The converter loses power at this time: its data line reads all zeros, s.
+    pub converter_absent_at_s: Option<f64>,
 }
+
+/// Air near a hot fixture warming, as a detached thermocouple sees it: 1.5 °C/min.
+pub const DETACHED_AIR_WARMING_K_PER_S: f64 = 1.5 / 60.0;
+/// That air starts this far above ambient, K.
+pub const DETACHED_AIR_RISE_K: f64 = 10.0;
+/// A bare junction in still air follows it with this time constant, s.
+pub const DETACHED_JUNCTION_TAU_S: f64 = 20.0;
 
 /// The virtual fixture with a magnet in it.
 #[derive(Debug, Clone)]
@@ -71,6 +109,10 @@ pub struct Rig {
     pub enabled: bool,
     /// Whether a magnet is in the fixture (a survey takes them in and out).
     pub present: bool,
+    /// A zero-crossing relay is conducting this half-cycle.
+    relay_on: bool,
+    /// Plate temperature when the thermocouple came off, °C.
+    detached_from_c: Option<f64>,
     time_s: f64,
     rng: Rng,
 }
@@ -88,6 +130,8 @@ impl Rig {
             duty: 0.0,
             enabled: false,
             present: true,
+            relay_on: false,
+            detached_from_c: None,
             time_s: 0.0,
             rng: Rng::new(seed),
         }
@@ -108,24 +152,63 @@ impl Rig {
         ambient_c(&self.params.thermal, self.time_s)
     }
 
+    fn fault_active(&self, at_s: Option<f64>) -> bool {
+        at_s.is_some_and(|t| self.time_s >= t)
+    }
+
     /// Heater power now, W.
     pub fn heater_power_w(&self) -> f64 {
-        let detached = self
-            .faults
-            .heater_detached_at_s
-            .is_some_and(|t| self.time_s >= t);
-        if self.enabled && !detached {
-            self.duty.clamp(0.0, 1.0) * self.params.thermal.heater_w
-        } else {
-            0.0
+        let full = self.params.thermal.heater_w;
+        if self.fault_active(self.faults.switch_stuck_on_at_s) {
+            return full;
+        }
+        if !self.enabled || self.fault_active(self.faults.heater_detached_at_s) {
+            return 0.0;
+        }
+        match self.params.switch {
+            HeaterSwitch::Dc => self.duty.clamp(0.0, 1.0) * full,
+            HeaterSwitch::ZeroCross { .. } => {
+                if self.relay_on {
+                    full
+                } else {
+                    0.0
+                }
+            }
         }
     }
 
-    /// Advance by `dt_s`, in steps of at most 50 ms.
+    /// The relay's input level at a zero crossing: a fully-on or fully-off output as it is,
+    /// a fast PWM at the phase it always meets the crossing with.
+    fn relay_input_high(&self) -> bool {
+        self.duty >= 1.0 || self.duty > PWM_PHASE_AT_ZERO_CROSSING
+    }
+
+    /// Time to the next zero crossing, s (infinite for a DC switch).
+    fn to_next_crossing_s(&self) -> f64 {
+        match self.params.switch {
+            HeaterSwitch::Dc => f64::INFINITY,
+            HeaterSwitch::ZeroCross { half_cycle_s } => {
+                let into = self.time_s % half_cycle_s;
+                let left = half_cycle_s - into;
+                if left < 1e-9 {
+                    half_cycle_s
+                } else {
+                    left
+                }
+            }
+        }
+    }
+
+    /// Advance by `dt_s`, in steps of at most 50 ms, switching a zero-crossing relay at each
+    /// crossing.
     pub fn advance(&mut self, dt_s: f64) {
         let mut left = dt_s;
         while left > 1e-12 {
-            let h = left.min(0.05);
+            let to_crossing = self.to_next_crossing_s();
+            if to_crossing >= self.params.switch_half_cycle_s() - 1e-9 {
+                self.relay_on = self.relay_input_high();
+            }
+            let h = left.min(0.05).min(to_crossing);
             let amb = self.ambient_c();
             let power = self.heater_power_w();
             self.thermal.advance(&self.params.thermal, amb, power, h);
@@ -195,6 +278,9 @@ impl Rig {
 
     /// The thermocouple converter's word: its linear approximation, quantized, with faults.
     pub fn thermo_word(&mut self) -> ThermoWord {
+        if self.fault_active(self.faults.converter_absent_at_s) {
+            return ThermoWord(0);
+        }
         let cj = self.cold_junction_c() + 0.03 * self.rng.gauss();
         let open = self
             .faults
@@ -204,8 +290,33 @@ impl Rig {
         if open {
             return ThermoWord::from_parts(0, cj_counts, Some(ThermoFault::Open));
         }
-        let reported = type_k::chip_reading_c(self.thermal.plate_c, cj)
-            + self.params.tc_noise_c * self.rng.gauss();
+        let junction_c = self.thermocouple_junction_c();
+        let reported =
+            type_k::chip_reading_c(junction_c, cj) + self.params.tc_noise_c * self.rng.gauss();
         ThermoWord::from_parts(libm::round(reported * 4.0) as i16, cj_counts, None)
+    }
+
+    /// Where the thermocouple's junction is: on the plate, or in the air once detached.
+    fn thermocouple_junction_c(&mut self) -> f64 {
+        let Some(at_s) = self.faults.thermocouple_detached_at_s else {
+            return self.thermal.plate_c;
+        };
+        if self.time_s < at_s {
+            return self.thermal.plate_c;
+        }
+        let from_c = *self.detached_from_c.get_or_insert(self.thermal.plate_c);
+        let since_s = self.time_s - at_s;
+        let air_c = self.ambient_c() + DETACHED_AIR_RISE_K + DETACHED_AIR_WARMING_K_PER_S * since_s;
+        air_c + (from_c - air_c) * libm::exp(-since_s / DETACHED_JUNCTION_TAU_S)
+    }
+}
+
+impl RigParams {
+    /// The switch's mains half-cycle, s (infinite for a DC switch).
+    pub fn switch_half_cycle_s(&self) -> f64 {
+        match self.switch {
+            HeaterSwitch::Dc => f64::INFINITY,
+            HeaterSwitch::ZeroCross { half_cycle_s } => half_cycle_s,
+        }
     }
 }

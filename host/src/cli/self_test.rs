@@ -14,6 +14,35 @@ pub struct Args {
     /// Rig calibration TOML (default: the virtual rig's constants).
     #[arg(long)]
     calibration: Option<PathBuf>,
+    /// Instead of the self-test, run a fault drill on a test build of the firmware: make it
+    /// panic or hang while heating, and check it resets, latched, heater off, and says why.
+    #[arg(long, value_enum)]
+    drill: Option<DrillKind>,
+}
+
+/// A fault drill.
+#[derive(Clone, Copy, clap::ValueEnum)]
+enum DrillKind {
+    /// The firmware panics.
+    Panic,
+    /// The firmware's main loop hangs (its watchdog must reset it).
+    Hang,
+    /// The firmware's stack overflows (its guard must turn that into a fault).
+    StackOverflow,
+}
+
+fn print_steps(steps: &[remanent::selftest::Step]) -> bool {
+    let mut ok = true;
+    for s in steps {
+        ok &= s.passed;
+        println!(
+            "  [{}] {:<28} {}",
+            if s.passed { " ok " } else { "FAIL" },
+            s.name,
+            s.detail
+        );
+    }
+    ok
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
@@ -22,6 +51,22 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         None => Calibration::virtual_rig(&RigParams::REFERENCE),
     };
     let port = remanent::link::port::open(&a.port)?;
+    if let Some(kind) = a.drill {
+        let drill = match kind {
+            DrillKind::Panic => remanent_protocol::Drill::Panic,
+            DrillKind::Hang => remanent_protocol::Drill::Hang,
+            DrillKind::StackOverflow => remanent_protocol::Drill::StackOverflow,
+        };
+        eprintln!("fault drill: the heater will be switched on, then the firmware made to fail");
+        let steps = remanent::drill::run(port, drill)?;
+        let ok = print_steps(&steps) && steps.len() == 4;
+        println!("drill {}", if ok { "passed" } else { "FAILED" });
+        return Ok(if ok {
+            ExitCode::SUCCESS
+        } else {
+            ExitCode::from(1)
+        });
+    }
     eprintln!("self-test: the heater will warm the fixture by about 8 K, then be tripped");
     let (hello, steps) = remanent::selftest::run(port, cal)?;
     println!(
@@ -32,17 +77,8 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         hello.firmware[2],
         hello.version
     );
-    let mut ok = true;
-    for s in &steps {
-        ok &= s.passed;
-        println!(
-            "  [{}] {:<28} {}",
-            if s.passed { " ok " } else { "FAIL" },
-            s.name,
-            s.detail
-        );
-    }
-    ok &= steps.len() == 6;
+    let mut ok = print_steps(&steps);
+    ok &= steps.len() == remanent::selftest::STEPS;
     println!("self-test {}", if ok { "passed" } else { "FAILED" });
     Ok(if ok {
         ExitCode::SUCCESS

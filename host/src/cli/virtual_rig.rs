@@ -25,6 +25,19 @@ pub struct Args {
     /// The heater is detached after this many simulated seconds.
     #[arg(long)]
     heater_detached_at_s: Option<f64>,
+    /// The heater's switch fails on (full power whatever the firmware says) at this time.
+    #[arg(long)]
+    switch_stuck_on_at_s: Option<f64>,
+    /// The thermocouple slips off the plate at this time and reads warming air.
+    #[arg(long)]
+    thermocouple_detached_at_s: Option<f64>,
+    /// The thermocouple converter loses power at this time (its words read all zeros).
+    #[arg(long)]
+    converter_absent_at_s: Option<f64>,
+    /// The heater switch is a zero-crossing relay on 50 Hz mains (the firmware then uses
+    /// time-proportioning) instead of a DC MOSFET.
+    #[arg(long)]
+    zero_cross_relay: bool,
     /// Probability that a byte to the host has a bit flipped.
     #[arg(long, default_value_t = 0.0)]
     link_flip_probability: f64,
@@ -50,7 +63,13 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     opts.faults = RigFaults {
         thermocouple_open_at_s: a.thermocouple_open_at_s,
         heater_detached_at_s: a.heater_detached_at_s,
+        switch_stuck_on_at_s: a.switch_stuck_on_at_s,
+        thermocouple_detached_at_s: a.thermocouple_detached_at_s,
+        converter_absent_at_s: a.converter_absent_at_s,
     };
+    if a.zero_cross_relay {
+        opts.params.switch = remanent_rig_model::HeaterSwitch::ZeroCross { half_cycle_s: 0.01 };
+    }
     opts.link_flip_probability = a.link_flip_probability;
     if let Some(n) = a.survey {
         opts.survey = remanent::virtual_rig::survey_set(model, n, &a.survey_damaged, 0.05, a.seed);

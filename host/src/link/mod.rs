@@ -4,6 +4,7 @@
 pub mod port;
 pub mod session;
 pub mod timeline;
+pub mod words;
 
 pub use session::{LinkError, Session};
 pub use timeline::{PlacedSample, Timeline};

@@ -10,6 +10,8 @@ use remanent_protocol::{
     RefuseReason, MAX_HOST_FRAME, VERSION,
 };
 
+pub use super::words::describe_refusal;
+
 /// What can go wrong on the link.
 #[derive(Debug, thiserror::Error)]
 pub enum LinkError {
@@ -36,40 +38,6 @@ pub enum LinkError {
     /// No answer to a command.
     #[error("no answer to {0} within the timeout")]
     NoAnswer(&'static str),
-}
-
-/// Words for a refusal.
-pub fn describe_refusal(r: &RefuseReason) -> String {
-    match r {
-        RefuseReason::VersionMismatch(v) => {
-            format!("version mismatch (device speaks {v}, host speaks {VERSION})")
-        }
-        RefuseReason::HandshakeRequired => "no handshake yet".into(),
-        RefuseReason::AboveCeiling { ceiling_tenth_c } => {
-            format!(
-                "a temperature above the firmware's ceiling of {:.1} °C",
-                f64::from(*ceiling_tenth_c) / 10.0
-            )
-        }
-        RefuseReason::AboveRunLimit { limit_tenth_c } => {
-            format!(
-                "a temperature above the run limit of {:.1} °C",
-                f64::from(*limit_tenth_c) / 10.0
-            )
-        }
-        RefuseReason::FaultLatched(f) => format!("a fault is latched ({f:?}); clear it first"),
-        RefuseReason::TooHotToClear {
-            temp_tenth_c,
-            below_tenth_c,
-        } => format!(
-            "still too hot to clear ({:.1} °C, must be below {:.1} °C)",
-            f64::from(*temp_tenth_c) / 10.0,
-            f64::from(*below_tenth_c) / 10.0
-        ),
-        RefuseReason::NoFaultLatched => "no fault is latched".into(),
-        RefuseReason::Invalid => "invalid settings".into(),
-        RefuseReason::Busy => "the device is busy with a run".into(),
-    }
 }
 
 /// What one read produced.

@@ -379,7 +379,7 @@ fn the_self_test_passes_on_a_healthy_simulated_bench_and_fails_a_detached_heater
     let opts = VirtualRigOptions::new(m.model.unwrap());
     let cal = Calibration::virtual_rig(&opts.params);
     let (_, steps) = remanent::selftest::run(SimulatedPort::new(opts.clone()), cal).unwrap();
-    assert_eq!(steps.len(), 6);
+    assert_eq!(steps.len(), remanent::selftest::STEPS);
     assert!(steps.iter().all(|s| s.passed), "{steps:#?}");
     let mut broken = opts;
     broken.faults.heater_detached_at_s = Some(0.0);

@@ -7,4 +7,5 @@ mod outputs;
 mod reference_field;
 mod reference_lsq;
 mod reference_type_k;
+mod rig_safety;
 mod util;

@@ -2,5 +2,6 @@
 //! run through the real control loop with fake sensors, a fake plant and a fake clock.
 
 mod drivers;
+mod latches;
 mod safety_scenarios;
 mod util;

@@ -24,6 +24,34 @@ pub struct Plant {
     pub frozen_word: Option<ThermoWord>,
     pub external_heat_w: f64,
     pub ticks: u64,
+    /// The converter is absent: its data line reads all zeros.
+    pub converter_absent: bool,
+    /// The thermocouple's own reading is stuck at these counts; the cold junction lives on.
+    pub stuck_tc_counts: Option<i16>,
+    /// The SPI bus fails.
+    pub bus_error: bool,
+    /// The junction slipped off the block at this temperature and tick; it reads air
+    /// warming at 1.5 °C/min from there.
+    pub detached_at: Option<(f64, u64)>,
+    /// The switch failed on: full power whatever the duty and the enable pin.
+    pub switch_stuck_on: bool,
+    /// Setting a non-zero duty fails (the PWM peripheral is broken).
+    pub pwm_fails: bool,
+}
+
+/// Heater power of the fake fixture at full duty, W (the bench's plant model says so too).
+pub const HEATER_W: f64 = 150.0;
+/// Its heat capacity, J/K, and loss, W/K.
+pub const HEAT_CAPACITY_J_PER_K: f64 = 150.0;
+pub const LOSS_W_PER_K: f64 = 0.5;
+
+/// The firmware's settings for the fake fixture: the reference ones with its plant model.
+pub fn bench_config() -> FirmwareConfig {
+    let mut cfg = FirmwareConfig::REFERENCE;
+    cfg.plant.heater_w = HEATER_W as f32;
+    cfg.plant.heat_capacity_j_per_k = HEAT_CAPACITY_J_PER_K as f32;
+    cfg.plant.loss_w_per_k = LOSS_W_PER_K as f32;
+    cfg
 }
 
 pub type Shared = Rc<RefCell<Plant>>;
@@ -39,34 +67,57 @@ impl Adc for FakeAdc {
     }
 }
 
+/// A bus or peripheral failure of the fakes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Broken;
+
+impl embedded_hal::pwm::Error for Broken {
+    fn kind(&self) -> embedded_hal::pwm::ErrorKind {
+        embedded_hal::pwm::ErrorKind::Other
+    }
+}
+
 pub struct FakeTc(pub Shared);
 impl Thermocouple for FakeTc {
-    type Error = Infallible;
-    fn read_word(&mut self) -> Result<ThermoWord, Infallible> {
+    type Error = Broken;
+    fn read_word(&mut self) -> Result<ThermoWord, Broken> {
         let p = self.0.borrow();
+        if p.bus_error {
+            return Err(Broken);
+        }
+        if p.converter_absent {
+            return Ok(ThermoWord(0));
+        }
         if let Some(w) = p.frozen_word {
             return Ok(w);
         }
         // the cold junction dithers by one count, as a real one does
         let cj = 25 * 16 + (p.ticks % 2) as i16;
-        Ok(ThermoWord::from_parts(
-            (p.temp_c * 4.0).round() as i16,
-            cj,
-            p.tc_fault,
-        ))
+        let reading_c = match p.detached_at {
+            Some((t0, tick0)) => t0 + 1.5 / 60.0 * (p.ticks - tick0) as f64 * 0.1,
+            None => p.temp_c,
+        };
+        let counts = p
+            .stuck_tc_counts
+            .unwrap_or((reading_c * 4.0).round() as i16);
+        Ok(ThermoWord::from_parts(counts, cj, p.tc_fault))
     }
 }
 
 pub struct FakePwm(pub Shared);
 impl PwmErrorType for FakePwm {
-    type Error = Infallible;
+    type Error = Broken;
 }
 impl SetDutyCycle for FakePwm {
     fn max_duty_cycle(&self) -> u16 {
         1000
     }
-    fn set_duty_cycle(&mut self, duty: u16) -> Result<(), Infallible> {
-        self.0.borrow_mut().duty = f64::from(duty) / 1000.0;
+    fn set_duty_cycle(&mut self, duty: u16) -> Result<(), Broken> {
+        let mut p = self.0.borrow_mut();
+        if p.pwm_fails && duty > 0 {
+            return Err(Broken);
+        }
+        p.duty = f64::from(duty) / 1000.0;
         Ok(())
     }
 }
@@ -95,6 +146,8 @@ pub struct Bench {
     pub now_ms: u32,
     pub next_id: u16,
     pub heartbeat: bool,
+    /// Every step, a burst of commands arrives before the link is drained.
+    pub flood: bool,
     decoder: DeviceDecoder,
     pub received: Vec<DeviceMsg>,
 }
@@ -103,6 +156,15 @@ pub const STEP_MS: u32 = 100;
 
 impl Bench {
     pub fn new() -> Bench {
+        Bench::with(
+            bench_config(),
+            BootReport::POWER_ON,
+            HeaterDrive::Pwm { frequency_hz: 500 },
+        )
+    }
+
+    /// A bench with settings, a boot record and a heater drive of the test's choosing.
+    pub fn with(cfg: FirmwareConfig, boot: BootReport, drive: HeaterDrive) -> Bench {
         let plant: Shared = Rc::new(RefCell::new(Plant {
             temp_c: 22.0,
             heater_attached: true,
@@ -112,22 +174,18 @@ impl Bench {
             name: "bench-test",
             supply_mv: 3300,
             ntc_series_ohm: 10_000,
+            conversion_us: 1_500,
+            drills: false,
         };
-        let heater = Heater::new(FakePwm(plant.clone()), FakePin(plant.clone()), 85);
-        let device = Device::new(
-            FirmwareConfig::REFERENCE,
-            board,
-            FakeAdc,
-            FakeTc(plant.clone()),
-            heater,
-            0,
-        );
+        let heater = Heater::new(FakePwm(plant.clone()), FakePin(plant.clone()), 85, drive);
+        let device = Device::new(cfg, board, FakeAdc, FakeTc(plant.clone()), heater, 0, boot);
         let mut bench = Bench {
             plant,
             device,
             now_ms: 0,
             next_id: 1,
             heartbeat: true,
+            flood: false,
             decoder: DeviceDecoder::for_device_msgs(),
             received: Vec::new(),
         };
@@ -161,14 +219,30 @@ impl Bench {
         self.now_ms += STEP_MS;
         {
             let mut p = self.plant.borrow_mut();
-            let power_w = if p.enabled && p.heater_attached {
-                p.duty * 150.0
+            let power_w = if p.switch_stuck_on {
+                HEATER_W
+            } else if p.enabled && p.heater_attached {
+                p.duty * HEATER_W
             } else {
                 0.0
             };
             let dt = f64::from(STEP_MS) / 1000.0;
-            p.temp_c += (power_w + p.external_heat_w - 0.5 * (p.temp_c - 22.0)) / 150.0 * dt;
+            let loss_w = LOSS_W_PER_K * (p.temp_c - 22.0);
+            p.temp_c += (power_w + p.external_heat_w - loss_w) / HEAT_CAPACITY_J_PER_K * dt;
             p.ticks += 1;
+        }
+        if self.flood {
+            let mut buf = [0u8; MAX_HOST_FRAME];
+            for _ in 0..40 {
+                let id = self.next_id;
+                self.next_id = self.next_id.wrapping_add(1);
+                let msg = HostMsg {
+                    id,
+                    command: Command::Stop,
+                };
+                let frame = encode(&msg, &mut buf).unwrap().to_vec();
+                self.device.receive(self.now_ms, &frame);
+            }
         }
         if self.heartbeat && self.now_ms.is_multiple_of(500) {
             self.send(Command::Heartbeat);

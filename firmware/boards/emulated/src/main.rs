@@ -7,21 +7,23 @@
 //! Simulated time advances 10 ms per loop pass, in lockstep with the host: at most one second
 //! of device time beyond the host's latest frame, so the emulation never outruns a host that is
 //! still reading. (The heartbeat interlock is exercised by the host-side tests and the virtual
-//! rig, where time runs on its own.)
+//! rig, where time runs on its own.) A panic, a hard fault (a stack overflow hits the MPU
+//! guard) or a hung loop resets the board through [`safe`]; it comes back latched and says why
+//! in its hello. This board carries out the host's fault drills.
 #![no_std]
 #![no_main]
 
+mod safe;
 mod uart;
 
 use core::cell::RefCell;
-use core::panic::PanicInfo;
 
 use cortex_m_rt::entry;
 use remanent_firmware::device::{BoardInfo, Device};
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::heater::Heater;
 use remanent_firmware::{Clock, FirmwareConfig};
-use remanent_protocol::MAX_DEVICE_FRAME;
+use remanent_protocol::{Drill, HeaterDrive, MAX_DEVICE_FRAME};
 use remanent_rig_model::catalogue;
 use remanent_rig_model::peripherals::{SimAdcBus, SimClock, SimDelay, SimHeaterEnable, SimHeaterPwm, SimThermoSpi};
 use remanent_rig_model::{Rig, RigParams};
@@ -33,38 +35,62 @@ const STEP_S: f64 = 0.01;
 
 #[entry]
 fn main() -> ! {
+    let boot = safe::take_boot_report();
+    safe::set_enable_pin(false);
+    let _ = remanent_board_support::guard_stack();
     let mut uart = uart::Uart0::take();
     let part = catalogue::find("RM-N42SH-D10x5").unwrap_or(&catalogue::PARTS[0]);
     let rig = RefCell::new(Rig::new(RigParams::REFERENCE, part.magnet, 1));
     let cfg = FirmwareConfig::REFERENCE;
-    let board = BoardInfo { name: "qemu-lm3s6965", supply_mv: 3300, ntc_series_ohm: 10_000 };
+    let board = BoardInfo {
+        name: "qemu-lm3s6965",
+        supply_mv: 3300,
+        ntc_series_ohm: 10_000,
+        conversion_us: 1_500,
+        drills: true,
+    };
     let adc = ads1115::Ads1115::new(SimAdcBus::new(&rig), SimDelay, ads1115::DEFAULT_ADDRESS);
     let tc = max31855::Max31855::new(SimThermoSpi::new(&rig));
-    let heater = Heater::new(SimHeaterPwm(&rig), SimHeaterEnable(&rig), cfg.limits.duty_cap_pct);
-    let mut device = Device::new(cfg, board, adc, tc, heater, 0);
+    let drive = HeaterDrive::Pwm { frequency_hz: 500 };
+    let heater = Heater::new(SimHeaterPwm(&rig), SimHeaterEnable(&rig), cfg.limits.duty_cap_pct, drive);
+    let mut device = Device::new(cfg, board, adc, tc, heater, 0, boot);
     let mut frame = [0u8; MAX_DEVICE_FRAME];
     let mut clock = SimClock(&rig);
     let mut last_rx_ms: u32 = 0;
+    if let Some(core) = cortex_m::Peripherals::take() {
+        safe::start_watchdog(core.SYST);
+    }
     loop {
         while let Some(b) = uart.read_byte() {
             let now = clock.now_ms();
             device.receive(now, &[b]);
             last_rx_ms = now;
         }
-        if device.handshaken() && clock.now_ms().wrapping_sub(last_rx_ms) < LOCKSTEP_MS {
+        match device.take_drill() {
+            Some(Drill::Panic) => panic!("fault drill"),
+            Some(Drill::Hang) => loop {
+                cortex_m::asm::nop();
+            },
+            Some(Drill::StackOverflow) => {
+                let depth = remanent_board_support::recurse(0);
+                panic!("the stack guard did not fire (depth {})", depth)
+            }
+            None => {}
+        }
+        let periods = device.periods_completed();
+        let holding = !device.handshaken() || clock.now_ms().wrapping_sub(last_rx_ms) >= LOCKSTEP_MS;
+        if !holding {
             rig.borrow_mut().advance(STEP_S);
             device.poll(clock.now_ms());
         }
+        // fed only when a whole control period completed, or while time is held for the host
+        if holding || device.periods_completed() != periods {
+            safe::feed_watchdog();
+        }
+        safe::set_enable_pin(rig.borrow().enabled);
+        safe::persist(device.persisted());
         while let Some(f) = device.next_frame(&mut frame) {
             uart.write_all(f);
         }
-    }
-}
-
-#[panic_handler]
-fn panic(_info: &PanicInfo) -> ! {
-    cortex_m::interrupt::disable();
-    loop {
-        cortex_m::asm::wfi();
     }
 }

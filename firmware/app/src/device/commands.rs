@@ -1,0 +1,234 @@
+//! The device's answers to host commands: handshake, runs, sampling settings, clearing a
+//! latched fault and drills. Every refusal names its reason; nothing is silently clamped.
+
+use embedded_hal::digital::OutputPin;
+use embedded_hal::pwm::SetDutyCycle;
+use remanent_protocol::{
+    Ack, Command, DeviceHello, DeviceMsg, Drill, HostMsg, Label, Profile, Refusal, RefuseReason,
+    SafetyLimits, SamplingConfig, SensorSetup, ThermoKind, VERSION,
+};
+
+use super::{Device, Mode, FIRMWARE_VERSION};
+use crate::drivers::ads1115::{HALL_FULL_SCALE_UV, PROBE_FULL_SCALE_UV};
+use crate::profile::ProfileRunner;
+use crate::safety::{judge_word, latch};
+use crate::sampler::{OVERSAMPLE_RANGE, PERIOD_RANGE_MS};
+use crate::traits::{Adc, Thermocouple};
+use crate::{fw_info, fw_warn};
+
+/// Time one sample needs beyond its conversions (the thermocouple read, the loop), µs.
+const SAMPLE_OVERHEAD_US: u32 = 1_000;
+
+impl<A, T, P, O> Device<A, T, P, O>
+where
+    A: Adc,
+    T: Thermocouple,
+    P: SetDutyCycle,
+    O: OutputPin,
+{
+    fn hello(&self) -> DeviceHello {
+        DeviceHello {
+            version: VERSION,
+            firmware: FIRMWARE_VERSION,
+            board: Label::new(self.board.name),
+            sensors: SensorSetup {
+                hall_full_scale_uv: HALL_FULL_SCALE_UV,
+                probe_full_scale_uv: PROBE_FULL_SCALE_UV,
+                supply_mv: self.board.supply_mv,
+                ntc_series_ohm: self.board.ntc_series_ohm,
+                thermo: ThermoKind::TypeKLinear,
+                period_ms: self.sampler.period_ms(),
+                oversample: self.sampler.oversample(),
+            },
+            limits: SafetyLimits::from(self.cfg),
+            heater: self.heater.drive_kind(),
+            boot: self.boot,
+        }
+    }
+
+    pub(super) fn handle(&mut self, now_ms: u32, msg: HostMsg) {
+        let id = msg.id;
+        if let Command::Hello(version) = msg.command {
+            if version != VERSION {
+                self.refuse(id, RefuseReason::VersionMismatch(VERSION));
+                return;
+            }
+            if !self.handshaken {
+                // the host's record starts here: first slot one period from now
+                let (period, oversample) = (self.sampler.period_ms(), self.sampler.oversample());
+                let first = now_ms.wrapping_add(u32::from(period));
+                self.sampler.reconfigure(first, period, oversample);
+            }
+            self.handshaken = true;
+            self.interlocks.host_seen(now_ms);
+            let hello = self.hello();
+            self.outbox.reply(DeviceMsg::Hello(hello));
+            self.ack(id);
+            self.send_beacon();
+            if matches!(self.mode, Mode::Faulted(_)) {
+                self.report_state(now_ms); // a boot-latched fault shows at once
+            }
+            return;
+        }
+        if !self.handshaken {
+            self.refuse(id, RefuseReason::HandshakeRequired);
+            return;
+        }
+        self.interlocks.host_seen(now_ms);
+        let result = match msg.command {
+            Command::Hello(_) | Command::Heartbeat => Ok(()),
+            Command::Start(profile) => self.start_profile(now_ms, profile),
+            Command::Manual {
+                setpoint_tenth_c,
+                limit_tenth_c,
+            } => self.start_manual(now_ms, setpoint_tenth_c, limit_tenth_c),
+            Command::Stop => {
+                if !matches!(self.mode, Mode::Faulted(_)) {
+                    self.enter(now_ms, Mode::Idle);
+                }
+                let _ = self.heater.off();
+                Ok(())
+            }
+            Command::Configure(cfg) => self.configure(now_ms, cfg),
+            Command::ClearFault => self.clear_fault(now_ms),
+            Command::InjectFault => {
+                self.trip(now_ms, remanent_protocol::Fault::Injected);
+                Ok(())
+            }
+            Command::Drill(drill) => self.drill(drill),
+        };
+        match result {
+            Ok(()) => self.ack(id),
+            Err(reason) => self.refuse(id, reason),
+        }
+    }
+
+    fn ack(&mut self, id: u16) {
+        self.outbox.reply(DeviceMsg::Ack(Ack { id }));
+    }
+
+    fn refuse(&mut self, id: u16, reason: RefuseReason) {
+        fw_info!("refused command {}: {}", id, reason);
+        self.outbox
+            .reply(DeviceMsg::Refused(Refusal { id, reason }));
+    }
+
+    fn check_limit(&self, limit_tenth_c: i16) -> Result<(), RefuseReason> {
+        let ceiling_tenth_c = self.cfg.ceiling_tenth_c();
+        if limit_tenth_c > ceiling_tenth_c {
+            return Err(RefuseReason::AboveCeiling { ceiling_tenth_c });
+        }
+        Ok(())
+    }
+
+    fn ready_for_run(&self) -> Result<(), RefuseReason> {
+        if self.trips.is_locked() {
+            return Err(RefuseReason::LockedOut {
+                trips: self.trips.trips(),
+            });
+        }
+        match self.mode {
+            Mode::Faulted(f) => Err(RefuseReason::FaultLatched(f)),
+            Mode::Profile(_) => Err(RefuseReason::Busy),
+            Mode::Idle | Mode::Manual(_) => Ok(()),
+        }
+    }
+
+    fn start_profile(&mut self, now_ms: u32, profile: Profile) -> Result<(), RefuseReason> {
+        self.ready_for_run()?;
+        self.check_limit(profile.limit_tenth_c)?;
+        if profile.segments.0.is_empty() {
+            return Err(RefuseReason::Invalid);
+        }
+        for seg in profile.segments.0.iter() {
+            self.check_limit(seg.target_tenth_c)?;
+            if seg.target_tenth_c > profile.limit_tenth_c {
+                return Err(RefuseReason::AboveRunLimit {
+                    limit_tenth_c: profile.limit_tenth_c,
+                });
+            }
+        }
+        // the profile starts from the temperature now, which must be trustworthy
+        let word = self
+            .tc
+            .read_word()
+            .map_err(|_| RefuseReason::FaultLatched(remanent_protocol::Fault::SensorBus))?;
+        let temp = judge_word(&self.cfg, word).map_err(RefuseReason::FaultLatched)?;
+        self.interlocks.set_run_limit(profile.limit_tenth_c);
+        self.interlocks.restart_detectors();
+        self.pi.reset();
+        let (band, wait) = (self.cfg.soak_band_tenth_c, self.cfg.soak_wait_max_ms);
+        let run = ProfileRunner::start(profile, now_ms, temp, band, wait);
+        self.enter(now_ms, Mode::Profile(run));
+        Ok(())
+    }
+
+    fn start_manual(
+        &mut self,
+        now_ms: u32,
+        setpoint_tenth_c: i16,
+        limit_tenth_c: i16,
+    ) -> Result<(), RefuseReason> {
+        self.ready_for_run()?;
+        self.check_limit(limit_tenth_c)?;
+        self.check_limit(setpoint_tenth_c)?;
+        if setpoint_tenth_c > limit_tenth_c {
+            return Err(RefuseReason::AboveRunLimit { limit_tenth_c });
+        }
+        self.interlocks.set_run_limit(limit_tenth_c);
+        if !matches!(self.mode, Mode::Manual(_)) {
+            self.interlocks.restart_detectors();
+            self.pi.reset();
+        }
+        self.enter(now_ms, Mode::Manual(setpoint_tenth_c));
+        Ok(())
+    }
+
+    fn configure(&mut self, now_ms: u32, cfg: SamplingConfig) -> Result<(), RefuseReason> {
+        if !matches!(self.mode, Mode::Idle) {
+            return Err(RefuseReason::Busy);
+        }
+        if !PERIOD_RANGE_MS.contains(&cfg.period_ms) || !OVERSAMPLE_RANGE.contains(&cfg.oversample)
+        {
+            return Err(RefuseReason::Invalid);
+        }
+        // two inputs, each converted `oversample` times, must fit in one period
+        let need_us = 2 * u32::from(cfg.oversample) * self.board.conversion_us + SAMPLE_OVERHEAD_US;
+        if need_us > u32::from(cfg.period_ms) * 1000 {
+            let min_period_ms = need_us.div_ceil(1000).min(u32::from(u16::MAX)) as u16;
+            return Err(RefuseReason::TooFastForBoard { min_period_ms });
+        }
+        self.sampler
+            .reconfigure(now_ms, cfg.period_ms, cfg.oversample);
+        self.send_beacon();
+        Ok(())
+    }
+
+    fn clear_fault(&mut self, now_ms: u32) -> Result<(), RefuseReason> {
+        let fault = match self.mode {
+            Mode::Faulted(f) => f,
+            _ => return Err(RefuseReason::NoFaultLatched),
+        };
+        if self.trips.is_locked() {
+            return Err(RefuseReason::LockedOut {
+                trips: self.trips.trips(),
+            });
+        }
+        let word = self.tc.read_word().ok();
+        latch::may_clear(&self.cfg, fault, word)?;
+        fw_info!("cleared {}", fault);
+        self.interlocks.restart_detectors();
+        self.interlocks.set_run_limit(self.cfg.ceiling_tenth_c());
+        self.enter(now_ms, Mode::Idle);
+        Ok(())
+    }
+
+    fn drill(&mut self, drill: Drill) -> Result<(), RefuseReason> {
+        if !self.board.drills {
+            return Err(RefuseReason::Unsupported);
+        }
+        fw_warn!("fault drill: {}", drill);
+        self.drill = Some(drill);
+        Ok(())
+    }
+}

@@ -1,0 +1,161 @@
+//! Latches that mean it, boot records, refusals of what a board cannot do, and the heater's
+//! time-proportioning output, through the real device.
+
+use remanent_firmware::device::Mode;
+use remanent_firmware::heater::{window_on_ms, Heater};
+use remanent_protocol::*;
+
+use crate::safety_scenarios::{assert_latched, heating_bench};
+use crate::util::{bench_config, Bench, FakePin, FakePwm, Plant, Shared};
+
+/// Detach the heater, wait for the trip, cool to ambient, clear.
+fn trip_and_recover(b: &mut Bench) -> Option<RefuseReason> {
+    let id = b.send(Command::Start(crate::util::profile(
+        150.0,
+        &[(120.0, 30.0, 600)],
+    )));
+    if let Some(Err(r)) = b.reply_to(id) {
+        return Some(r);
+    }
+    b.run_until(120_000, |b| b.plant.borrow().temp_c > 50.0);
+    b.plant.borrow_mut().heater_attached = false;
+    b.run_until(20_000, |b| matches!(b.device.mode(), Mode::Faulted(_)));
+    b.plant.borrow_mut().heater_attached = true;
+    // still hot: refused
+    let id = b.send(Command::ClearFault);
+    assert!(matches!(b.reply_to(id), Some(Err(_))));
+    b.plant.borrow_mut().temp_c = 24.0;
+    b.run_for(1_000);
+    let id = b.send(Command::ClearFault);
+    b.reply_to(id).and_then(|r| r.err())
+}
+
+#[test]
+fn the_third_heating_trip_within_an_hour_locks_heating_until_power_is_cycled() {
+    let mut b = Bench::new();
+    assert_eq!(
+        trip_and_recover(&mut b),
+        None,
+        "first trip clears near ambient"
+    );
+    assert_eq!(trip_and_recover(&mut b), None, "second trip clears too");
+    let third = trip_and_recover(&mut b);
+    assert_eq!(third, Some(RefuseReason::LockedOut { trips: 3 }));
+    let id = b.start_manual(40.0, 100.0);
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::LockedOut { trips: 3 }))
+    );
+    b.run_for(2_000);
+    assert!(b.heater_off());
+    // the lock is what the board keeps across a reset
+    assert!(b.device.persisted().locked);
+}
+
+#[test]
+fn a_fault_that_persists_cannot_be_cleared() {
+    let mut b = heating_bench(60.0);
+    b.plant.borrow_mut().converter_absent = true;
+    b.run_for(200);
+    assert_latched(&b, Fault::ConverterImplausible);
+    b.plant.borrow_mut().temp_c = 22.0;
+    let id = b.send(Command::ClearFault);
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::FaultLatched(Fault::ConverterImplausible)))
+    );
+    b.plant.borrow_mut().converter_absent = false;
+    let id = b.send(Command::ClearFault);
+    assert_eq!(b.reply_to(id), Some(Ok(())));
+}
+
+#[test]
+fn a_board_reset_by_its_watchdog_comes_up_latched_and_says_why() {
+    let boot = BootReport {
+        reset: ResetCause::Watchdog,
+        last_fault: Some(Fault::StuckReading),
+        locked: false,
+    };
+    let mut b = Bench::with(bench_config(), boot, HeaterDrive::Pwm { frequency_hz: 500 });
+    let hello = b.received.iter().find_map(|m| match m {
+        DeviceMsg::Hello(h) => Some(h.clone()),
+        _ => None,
+    });
+    assert_eq!(hello.expect("hello").boot, boot);
+    assert!(matches!(b.device.mode(), Mode::Faulted(Fault::Watchdog)));
+    let id = b.start_manual(40.0, 100.0);
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::FaultLatched(Fault::Watchdog)))
+    );
+    // near ambient: the host may clear it
+    let id = b.send(Command::ClearFault);
+    assert_eq!(b.reply_to(id), Some(Ok(())));
+    // a lock survives the reset
+    let locked = BootReport {
+        locked: true,
+        ..BootReport::POWER_ON
+    };
+    let mut b = Bench::with(
+        bench_config(),
+        locked,
+        HeaterDrive::Pwm { frequency_hz: 500 },
+    );
+    let id = b.start_manual(40.0, 100.0);
+    assert!(matches!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::LockedOut { .. }))
+    ));
+}
+
+#[test]
+fn what_the_board_cannot_do_is_refused_with_the_reason() {
+    let mut b = Bench::new();
+    let id = b.send(Command::Drill(Drill::Panic));
+    assert_eq!(b.reply_to(id), Some(Err(RefuseReason::Unsupported)));
+    // 16 conversions of each input at 1.5 ms do not fit in 20 ms
+    let id = b.send(Command::Configure(SamplingConfig {
+        period_ms: 20,
+        oversample: 16,
+    }));
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::TooFastForBoard { min_period_ms: 49 }))
+    );
+    let id = b.send(Command::Configure(SamplingConfig {
+        period_ms: 50,
+        oversample: 16,
+    }));
+    assert_eq!(b.reply_to(id), Some(Ok(())));
+}
+
+#[test]
+fn time_proportioning_turns_the_output_fully_on_for_whole_half_cycles() {
+    let plant: Shared = Default::default();
+    let drive = HeaterDrive::TimeProportioning {
+        window_ms: 2000,
+        half_cycle_us: 10_000,
+    };
+    let mut heater = Heater::new(FakePwm(plant.clone()), FakePin(plant.clone()), 85, drive);
+    let mut interlocks = remanent_firmware::safety::Interlocks::new(bench_config(), 0);
+    let word = ThermoWord::from_parts(4 * 30, 16 * 25, None);
+    let reading = remanent_firmware::safety::Reading::Word(word);
+    let permit = interlocks.check(0, reading, 0.0, true).unwrap().unwrap();
+    heater.drive(permit, 0.333).unwrap();
+    // three windows at 1 ms steps: the output is only ever fully on or fully off
+    let mut on_ms = 0;
+    for now in 0..6000u32 {
+        heater.tick(now).unwrap();
+        let p: std::cell::Ref<Plant> = plant.borrow();
+        assert!(p.duty == 0.0 || p.duty == 1.0, "partial duty {}", p.duty);
+        on_ms += u32::from(p.duty == 1.0 && p.enabled);
+    }
+    assert_eq!(on_ms, 3 * window_on_ms(0.333, 2000, 10_000));
+    assert_eq!(
+        window_on_ms(0.333, 2000, 10_000),
+        670,
+        "67 half-cycles of 200"
+    );
+    heater.off().unwrap();
+    assert!(!plant.borrow().enabled && plant.borrow().duty == 0.0);
+}
