@@ -1,25 +1,22 @@
 #!/usr/bin/env bash
-# Firmware checks (the second documented command; .ci/run calls it):
-#  1. install Debian's Rust with its library sources, the linker and QEMU (if missing);
-#  2. cross-build the Pico (thumbv6m) and emulated (thumbv7m) images with -Zbuild-std=core;
-#  3. print flash and RAM use and check the Pico image against 64 KiB flash / 16 KiB RAM;
-#  4. make the Pico's UF2 file;
-#  5. boot the emulated board under QEMU with its UART on a pseudo-terminal, record a short heat
-#     cycle from it with `remanent record`, check the record, and run `remanent self-test`
-#     (an injected fault must drive the heater off within one control period).
+# Firmware checks (.ci/run calls it):
+#  1. firmware/setup.sh: Debian's Rust with its library sources, the linker, clippy, rustfmt
+#     and the `remanent-debian` toolchain the board crates name; QEMU if missing;
+#  2. format and lint the board crates;
+#  3. cross-build the Pico (thumbv6m) and emulated (thumbv7m) images with `build-std`;
+#  4. print flash and RAM use and check the Pico image against 64 KiB flash / 16 KiB RAM;
+#  5. make the Pico's UF2 file;
+#  6. boot the emulated board under QEMU with its UART on a pseudo-terminal, record a short heat
+#     cycle from it with `remanent record`, check the record, run `remanent self-test` (an
+#     injected fault must drive the heater off within one control period), then the fault
+#     drills: a panic, a hung loop and a stack overflow must each reset the board, which comes
+#     back latched with the heater off and says why.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 ROOT=$PWD
-export RUSTC_BOOTSTRAP=1
+mkdir -p target
 
-need_pkgs=()
-[ -x /usr/bin/rustc ] && [ -d /usr/lib/rustlib/src/rust ] || need_pkgs+=(rustc-web cargo-web rust-web-src rust-web-llvm)
-[ -x /usr/bin/ld.lld-22 ] || need_pkgs+=(lld-22)
-command -v llvm-size-22 >/dev/null || need_pkgs+=(llvm-22)
-if [ ${#need_pkgs[@]} -gt 0 ]; then
-  echo "-- installing ${need_pkgs[*]}"
-  apt-get update -qq && apt-get install -y -qq --no-install-recommends "${need_pkgs[@]}" >/dev/null
-fi
+bash firmware/setup.sh
 if ! command -v qemu-system-arm >/dev/null; then
   echo "-- installing qemu-system-arm (bookworm-backports)"
   if [ ! -f /etc/apt/sources.list.d/remanent-backports.sources ] && ! grep -rqs bookworm-backports /etc/apt/sources.list.d/; then
@@ -29,10 +26,15 @@ if ! command -v qemu-system-arm >/dev/null; then
   apt-get update -qq && apt-get install -y -qq --no-install-recommends -t bookworm-backports qemu-system-arm >/dev/null
 fi
 
+echo "-- formatting and lints of the board crates"
+for b in support pico emulated; do
+  (cd "firmware/boards/$b" && cargo fmt --check && cargo clippy -q --release -- -D warnings)
+done
+
 echo "-- building the emulated board (thumbv7m-none-eabi)"
 (cd firmware/boards/emulated && cargo build --release -q)
 EMU=firmware/boards/emulated/target/thumbv7m-none-eabi/release/remanent-board-emulated
-echo "-- building the Pico board (thumbv6m-none-eabi)"
+echo "-- building the Pico board (thumbv6m-none-eabi), the image users flash"
 (cd firmware/boards/pico && cargo build --release -q)
 PICO=firmware/boards/pico/target/thumbv6m-none-eabi/release/remanent-board-pico
 
@@ -62,4 +64,8 @@ timeout 300 target/release/remanent record --port "$LINK" --profile firmware/ci/
   --magnet RM-N42SH-D10x5 --out "$RUN"
 REMANENT_CI_RUN="$RUN" cargo test -q -p remanent-tests --test suite ci_record_from_the_emulated_board -- --ignored
 timeout 120 target/release/remanent self-test --port "$LINK"
+for drill in panic hang stack-overflow; do
+  echo "-- fault drill: $drill"
+  timeout 120 target/release/remanent self-test --port "$LINK" --drill "$drill"
+done
 echo "-- firmware checks passed"

@@ -166,6 +166,10 @@ pub fn record<P: Read + Write>(
         hello.firmware[2],
         f64::from(hello.limits.ceiling_tenth_c) / 10.0
     ));
+    progress.note(&format!(
+        "heater drive: {}",
+        crate::link::words::describe_heater(&hello.heater)
+    ));
     if let Some(why) = crate::link::words::describe_boot(&hello.boot) {
         progress.note(&why);
     }

@@ -25,7 +25,9 @@ use remanent_firmware::heater::Heater;
 use remanent_firmware::{Clock, FirmwareConfig};
 use remanent_protocol::{Drill, HeaterDrive, MAX_DEVICE_FRAME};
 use remanent_rig_model::catalogue;
-use remanent_rig_model::peripherals::{SimAdcBus, SimClock, SimDelay, SimHeaterEnable, SimHeaterPwm, SimThermoSpi};
+use remanent_rig_model::peripherals::{
+    SimAdcBus, SimClock, SimDelay, SimHeaterEnable, SimHeaterPwm, SimThermoSpi,
+};
 use remanent_rig_model::{Rig, RigParams};
 
 /// Device time the emulation may run ahead of the host's latest frame, ms.
@@ -52,7 +54,12 @@ fn main() -> ! {
     let adc = ads1115::Ads1115::new(SimAdcBus::new(&rig), SimDelay, ads1115::DEFAULT_ADDRESS);
     let tc = max31855::Max31855::new(SimThermoSpi::new(&rig));
     let drive = HeaterDrive::Pwm { frequency_hz: 500 };
-    let heater = Heater::new(SimHeaterPwm(&rig), SimHeaterEnable(&rig), cfg.limits.duty_cap_pct, drive);
+    let heater = Heater::new(
+        SimHeaterPwm(&rig),
+        SimHeaterEnable(&rig),
+        cfg.limits.duty_cap_pct,
+        drive,
+    );
     let mut device = Device::new(cfg, board, adc, tc, heater, 0, boot);
     let mut frame = [0u8; MAX_DEVICE_FRAME];
     let mut clock = SimClock(&rig);
@@ -78,7 +85,8 @@ fn main() -> ! {
             None => {}
         }
         let periods = device.periods_completed();
-        let holding = !device.handshaken() || clock.now_ms().wrapping_sub(last_rx_ms) >= LOCKSTEP_MS;
+        let holding =
+            !device.handshaken() || clock.now_ms().wrapping_sub(last_rx_ms) >= LOCKSTEP_MS;
         if !holding {
             rig.borrow_mut().advance(STEP_S);
             device.poll(clock.now_ms());

@@ -63,7 +63,9 @@ fn main() -> ! {
     safe::outputs_off();
     let boot = safe::take_boot_report();
     let _ = remanent_board_support::guard_stack();
-    let Some(mut pac) = pac::Peripherals::take() else { panic!("peripherals taken twice") };
+    let Some(mut pac) = pac::Peripherals::take() else {
+        panic!("peripherals taken twice")
+    };
     let mut watchdog = hal::Watchdog::new(pac.WATCHDOG);
     let Ok(clocks) = hal::clocks::init_clocks_and_plls(
         XTAL_FREQ_HZ,
@@ -77,7 +79,12 @@ fn main() -> ! {
         panic!("clocks did not start")
     };
     let sio = hal::Sio::new(pac.SIO);
-    let pins = hal::gpio::Pins::new(pac.IO_BANK0, pac.PADS_BANK0, sio.gpio_bank0, &mut pac.RESETS);
+    let pins = hal::gpio::Pins::new(
+        pac.IO_BANK0,
+        pac.PADS_BANK0,
+        sio.gpio_bank0,
+        &mut pac.RESETS,
+    );
     let timer = hal::Timer::new(pac.TIMER, &mut pac.RESETS, &clocks);
 
     // heater: the output pin driven fully on or off, the enable pin as the second path
@@ -94,13 +101,23 @@ fn main() -> ! {
     let heater = Heater::new(channel, enable, cfg.limits.duty_cap_pct, HEATER_DRIVE);
 
     // sensors
-    let sda: hal::gpio::Pin<_, hal::gpio::FunctionI2C, hal::gpio::PullUp> = pins.gpio4.reconfigure();
-    let scl: hal::gpio::Pin<_, hal::gpio::FunctionI2C, hal::gpio::PullUp> = pins.gpio5.reconfigure();
-    let i2c = hal::I2C::i2c0(pac.I2C0, sda, scl, 400.kHz(), &mut pac.RESETS, &clocks.system_clock);
+    let sda: hal::gpio::Pin<_, hal::gpio::FunctionI2C, hal::gpio::PullUp> =
+        pins.gpio4.reconfigure();
+    let scl: hal::gpio::Pin<_, hal::gpio::FunctionI2C, hal::gpio::PullUp> =
+        pins.gpio5.reconfigure();
+    let i2c = hal::I2C::i2c0(
+        pac.I2C0,
+        sda,
+        scl,
+        400.kHz(),
+        &mut pac.RESETS,
+        &clocks.system_clock,
+    );
     let adc = ads1115::Ads1115::new(i2c, timer, ads1115::DEFAULT_ADDRESS);
     let sck = pins.gpio18.into_function::<hal::gpio::FunctionSpi>();
     // pulled up: with the converter absent the data line reads all ones, never a valid 0 °C
-    let miso: hal::gpio::Pin<_, hal::gpio::FunctionSpi, hal::gpio::PullUp> = pins.gpio16.reconfigure();
+    let miso: hal::gpio::Pin<_, hal::gpio::FunctionSpi, hal::gpio::PullUp> =
+        pins.gpio16.reconfigure();
     let mosi = pins.gpio19.into_function::<hal::gpio::FunctionSpi>();
     let spi = hal::spi::Spi::<_, _, _, 8>::new(pac.SPI0, (mosi, miso, sck)).init(
         &mut pac.RESETS,
@@ -108,12 +125,16 @@ fn main() -> ! {
         4.MHz(),
         embedded_hal::spi::MODE_0,
     );
-    let cs = pins.gpio17.into_push_pull_output_in_state(hal::gpio::PinState::High);
+    let cs = pins
+        .gpio17
+        .into_push_pull_output_in_state(hal::gpio::PinState::High);
     let Ok(tc_dev) = ExclusiveDevice::new(spi, cs, timer);
     let tc = max31855::Max31855::new(tc_dev);
 
     // USB serial to the host, serviced from its interrupt
-    let Some(serial_buf) = cortex_m::singleton!(: [u8; 16] = [0; 16]) else { panic!("serial") };
+    let Some(serial_buf) = cortex_m::singleton!(: [u8; 16] = [0; 16]) else {
+        panic!("serial")
+    };
     let serial_number = usb::serial_number(serial_buf);
     let Some(bus) = cortex_m::singleton!(: UsbBusAllocator<hal::usb::UsbBus> = UsbBusAllocator::new(
         hal::usb::UsbBus::new(pac.USBCTRL_REGS, pac.USBCTRL_DPRAM, clocks.usb_clock, true, &mut pac.RESETS),
@@ -132,7 +153,11 @@ fn main() -> ! {
         drills: cfg!(feature = "drills"),
     };
     let mut device = Device::new(cfg, board, adc, tc, heater, clock.now_ms(), boot);
-    defmt::info!("Remanent firmware {} on the Pico, serial {}", remanent_firmware::device::FIRMWARE_VERSION, serial_number);
+    defmt::info!(
+        "Remanent firmware {} on the Pico, serial {}",
+        remanent_firmware::device::FIRMWARE_VERSION,
+        serial_number
+    );
 
     watchdog.pause_on_debug(true);
     watchdog.start(fugit::MicrosDurationU32::millis(WATCHDOG_MS));
@@ -176,6 +201,10 @@ fn main() -> ! {
             tx.copy_within(n.., 0);
             tx.truncate(rest);
         }
-        let _ = if device.heater_duty() > 0.0 { led.set_high() } else { led.set_low() };
+        let _ = if device.heater_duty() > 0.0 {
+            led.set_high()
+        } else {
+            led.set_low()
+        };
     }
 }
