@@ -3,22 +3,17 @@
 
 use std::path::Path;
 
-use remanent_rig_model::RigParams;
+use remanent_physics::{HallSensor, Standoff, Thermistor};
 use serde::{Deserialize, Serialize};
 
-/// Hall probe calibration.
+/// Hall probe calibration: the sensor's constants as measured, with their uncertainties.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct HallCalibration {
-    /// Sensitivity at 25 °C probe temperature, mV/mT.
-    pub sensitivity_mv_per_mt: f64,
-    /// Temperature coefficient of the sensitivity, %/°C.
-    pub sensitivity_tc_pct_per_c: f64,
-    /// Standard uncertainty of that coefficient, %/°C.
+    /// Sensitivity, its temperature coefficient, offset and offset drift.
+    #[serde(flatten)]
+    pub sensor: HallSensor,
+    /// Standard uncertainty of the sensitivity's temperature coefficient, %/°C.
     pub sensitivity_tc_u_pct_per_c: f64,
-    /// Zero-field offset at 25 °C, mV.
-    pub offset_mv: f64,
-    /// Offset drift, mV/°C.
-    pub offset_tc_mv_per_c: f64,
     /// Standard uncertainty of the offset drift, mV/°C.
     pub offset_tc_u_mv_per_c: f64,
     /// ADC full scale of the Hall channel, mV.
@@ -28,29 +23,21 @@ pub struct HallCalibration {
 /// Probe position and the standoff that carries it.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct GapCalibration {
-    /// Pole face to sensing element at 20 °C, mm.
-    pub gap_mm: f64,
+    /// Gap at 20 °C, standoff length and expansion coefficient.
+    #[serde(flatten)]
+    pub standoff: Standoff,
     /// Standard uncertainty of the gap, mm.
     pub gap_u_mm: f64,
-    /// Length of the standoff whose expansion moves the probe, mm.
-    pub standoff_mm: f64,
-    /// Its expansion coefficient, 1/K.
-    pub standoff_cte_per_k: f64,
     /// Standard uncertainty of the expansion coefficient, 1/K.
     pub standoff_cte_u_per_k: f64,
 }
 
-/// Probe thermistor.
+/// Probe thermistor and its divider.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct NtcCalibration {
-    /// Resistance at 25 °C, Ω.
-    pub r25_ohm: f64,
-    /// Beta, K.
-    pub beta_k: f64,
-    /// Series resistor from the supply, Ω.
-    pub series_ohm: f64,
-    /// Divider supply, mV.
-    pub supply_mv: f64,
+    /// Thermistor and divider constants.
+    #[serde(flatten)]
+    pub thermistor: Thermistor,
     /// ADC full scale of the thermistor channel, mV.
     pub full_scale_mv: f64,
 }
@@ -99,40 +86,6 @@ pub enum CalibrationError {
 }
 
 impl Calibration {
-    /// The calibration of the built-in virtual rig (its model's true constants, with the
-    /// uncertainties a careful calibration of a real rig would reach).
-    pub fn virtual_rig(params: &RigParams) -> Calibration {
-        Calibration {
-            hall: HallCalibration {
-                sensitivity_mv_per_mt: params.hall.sensitivity_mv_per_mt,
-                sensitivity_tc_pct_per_c: params.hall.sensitivity_tc_pct_per_c,
-                sensitivity_tc_u_pct_per_c: 0.002,
-                offset_mv: params.hall.offset_mv,
-                offset_tc_mv_per_c: params.hall.offset_tc_mv_per_c,
-                offset_tc_u_mv_per_c: 0.001,
-                full_scale_mv: params.hall_full_scale_mv,
-            },
-            gap: GapCalibration {
-                gap_mm: params.hall.gap_mm,
-                gap_u_mm: 0.05,
-                standoff_mm: params.hall.standoff_mm,
-                standoff_cte_per_k: params.hall.standoff_cte_per_k,
-                standoff_cte_u_per_k: 1.0e-6,
-            },
-            ntc: NtcCalibration {
-                r25_ohm: params.ntc.r25_ohm,
-                beta_k: params.ntc.beta_k,
-                series_ohm: params.ntc.series_ohm,
-                supply_mv: params.ntc.supply_mv,
-                full_scale_mv: params.probe_full_scale_mv,
-            },
-            thermocouple: ThermocoupleCalibration {
-                offset_c: 0.0,
-                gain_tolerance_pct: 0.4,
-            },
-        }
-    }
-
     /// Read a calibration TOML.
     pub fn load(path: &Path) -> Result<Calibration, CalibrationError> {
         let p = path.display().to_string();

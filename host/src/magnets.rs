@@ -2,8 +2,9 @@
 
 use std::path::Path;
 
+use remanent_physics::Shape;
 use remanent_rig_model::catalogue;
-use remanent_rig_model::{Magnet, Shape};
+use remanent_rig_model::Magnet;
 use serde::{Deserialize, Serialize};
 
 /// What the user states about the magnet under test.

@@ -150,10 +150,10 @@ fn facts(meta: Option<&RunMeta>) -> Vec<(String, String)> {
             "calibration".into(),
             format!(
                 "Hall {:.3} mV/mT, {:+.3} %/°C (u {:.3}); gap {:.2} mm (u {:.2}); thermocouple gain ±{} %",
-                m.calibration.hall.sensitivity_mv_per_mt,
-                m.calibration.hall.sensitivity_tc_pct_per_c,
+                m.calibration.hall.sensor.sensitivity_mv_per_mt,
+                m.calibration.hall.sensor.sensitivity_tc_pct_per_c,
                 m.calibration.hall.sensitivity_tc_u_pct_per_c,
-                m.calibration.gap.gap_mm,
+                m.calibration.gap.standoff.gap_mm,
                 m.calibration.gap.gap_u_mm,
                 m.calibration.thermocouple.gain_tolerance_pct
             ),

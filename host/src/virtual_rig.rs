@@ -15,6 +15,9 @@ use std::sync::{Arc, Mutex};
 use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
+use crate::calibration::{
+    Calibration, GapCalibration, HallCalibration, NtcCalibration, ThermocoupleCalibration,
+};
 use remanent_firmware::device::{BoardInfo, Device};
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::heater::Heater;
@@ -438,5 +441,33 @@ impl Write for SimulatedPort {
     }
     fn flush(&mut self) -> io::Result<()> {
         Ok(())
+    }
+}
+
+impl Calibration {
+    /// The calibration of the built-in virtual rig: its model's true constants, with the
+    /// uncertainties a careful calibration of a real rig would reach.
+    pub fn virtual_rig(params: &RigParams) -> Calibration {
+        Calibration {
+            hall: HallCalibration {
+                sensor: params.hall.sensor,
+                sensitivity_tc_u_pct_per_c: 0.002,
+                offset_tc_u_mv_per_c: 0.001,
+                full_scale_mv: params.hall_full_scale_mv,
+            },
+            gap: GapCalibration {
+                standoff: params.hall.standoff,
+                gap_u_mm: 0.05,
+                standoff_cte_u_per_k: 1.0e-6,
+            },
+            ntc: NtcCalibration {
+                thermistor: params.ntc,
+                full_scale_mv: params.probe_full_scale_mv,
+            },
+            thermocouple: ThermocoupleCalibration {
+                offset_c: 0.0,
+                gain_tolerance_pct: 0.4,
+            },
+        }
     }
 }

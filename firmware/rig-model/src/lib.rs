@@ -7,14 +7,14 @@
 #![forbid(unsafe_code)]
 
 pub mod catalogue;
-pub mod field;
 pub mod magnet;
 pub mod peripherals;
 pub mod probe;
 pub mod rig;
 pub mod rng;
 pub mod thermal;
-pub mod type_k;
 
 pub use magnet::{Magnet, Shape};
+/// The measurement physics the model shares with the host.
+pub use remanent_physics as physics;
 pub use rig::{HeaterSwitch, Rig, RigFaults, RigParams};

@@ -6,10 +6,10 @@ use remanent_protocol::ThermoWord;
 use serde::{Deserialize, Serialize};
 
 use crate::magnet::{Magnet, MagnetState};
-use crate::probe::{adc_code, HallParams, NtcParams};
+use crate::probe::{HallParams, NtcParams, NTC_REFERENCE};
 use crate::rng::Rng;
 use crate::thermal::{ambient_c, ThermalParams, ThermalState};
-use crate::type_k;
+use remanent_physics::{adc, standoff, type_k};
 
 /// Everything fixed about a rig.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
@@ -57,7 +57,7 @@ impl RigParams {
     pub const REFERENCE: RigParams = RigParams {
         thermal: ThermalParams::REFERENCE,
         hall: HallParams::REFERENCE,
-        ntc: NtcParams::REFERENCE,
+        ntc: NTC_REFERENCE,
         hall_full_scale_mv: 2048.0,
         probe_full_scale_mv: 4096.0,
         cold_junction_rise_k: 3.0,
@@ -226,7 +226,7 @@ impl Rig {
 
     /// Standoff temperature (mean of its two ends), °C.
     pub fn standoff_c(&self) -> f64 {
-        0.5 * (self.thermal.plate_c + self.thermal.probe_c)
+        standoff::standoff_c(self.thermal.plate_c, self.thermal.probe_c)
     }
 
     /// Put another magnet in the fixture, at the fixture's temperature, with an earlier
@@ -251,7 +251,7 @@ impl Rig {
         if !self.present {
             return 0.0;
         }
-        let gap = self.params.hall.gap_at_mm(self.standoff_c());
+        let gap = self.params.hall.standoff.gap_at_mm(self.standoff_c());
         self.br_t() * 1000.0 * self.magnet.shape.bz_per_br(gap)
     }
 
@@ -260,15 +260,16 @@ impl Rig {
         let mv = self
             .params
             .hall
+            .sensor
             .output_mv(self.field_mt(), self.thermal.probe_c)
             + self.params.hall.noise_mv * self.rng.gauss();
-        adc_code(mv, self.params.hall_full_scale_mv)
+        adc::code(mv, self.params.hall_full_scale_mv)
     }
 
     /// One thermistor conversion.
     pub fn probe_code(&mut self) -> i16 {
         let mv = self.params.ntc.divider_mv(self.thermal.probe_c) + 0.05 * self.rng.gauss();
-        adc_code(mv, self.params.probe_full_scale_mv)
+        adc::code(mv, self.params.probe_full_scale_mv)
     }
 
     /// Cold-junction temperature, °C.

@@ -1,7 +1,8 @@
 //! Br from the measured field, the magnet's shape and the probe gap (closed forms), and how
 //! sensitive that estimate is to the gap.
 
-use remanent_rig_model::Shape;
+use remanent_physics::shape::dln_bz_per_mm;
+use remanent_physics::Shape;
 
 /// Br estimated from geometry.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
@@ -12,14 +13,6 @@ pub struct BrEstimate {
     pub br_u95_t: f64,
     /// Relative change of the estimate per +0.1 mm of gap, %.
     pub pct_per_0_1_mm: f64,
-}
-
-/// d ln(Bz)/d gap at `gap_mm`, per mm (central difference).
-pub fn dln_bz_per_mm(shape: &Shape, gap_mm: f64) -> f64 {
-    let h = 1e-4;
-    let lo = shape.bz_per_br((gap_mm - h).max(0.0));
-    let hi = shape.bz_per_br(gap_mm + h);
-    (hi.ln() - lo.ln()) / (2.0 * h)
 }
 
 /// Br from the field `b20_mt` (at 20 °C) at `gap_mm`, with the gap's standard uncertainty.

@@ -21,6 +21,8 @@ use crate::magnets::MagnetInfo;
 use crate::specs::SpecTable;
 use dataset::Series;
 use geometry::BrEstimate;
+use remanent_physics::shape::dln_bz_per_mm;
+use remanent_physics::standoff;
 use verdict::{Check, Outcome};
 
 /// What the analysis knows besides the series.
@@ -242,12 +244,11 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     // the gap grows as the standoff warms: refer every reading to the gap at 20 °C
     let flux: Vec<f64> = match (cal, shape, s.probe_c.as_ref()) {
         (Some(c), Some(shape), Some(probe)) => {
-            let g0 = shape.bz_per_br(c.gap.gap_mm);
+            let g0 = shape.bz_per_br(c.gap.standoff.gap_mm);
             (0..n)
                 .map(|i| {
-                    let t_so = 0.5 * (s.temp_c[i] + probe[i]);
-                    let gap =
-                        c.gap.gap_mm + c.gap.standoff_mm * c.gap.standoff_cte_per_k * (t_so - 20.0);
+                    let t_so = standoff::standoff_c(s.temp_c[i], probe[i]);
+                    let gap = c.gap.standoff.gap_at_mm(t_so);
                     s.flux_mt[i] * g0 / shape.bz_per_br(gap)
                 })
                 .collect()
@@ -428,12 +429,13 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
             u: c.hall.sensitivity_tc_u_pct_per_c * probe_slope.abs(),
         });
         if let Some(shape) = shape {
-            let d = geometry::dln_bz_per_mm(&shape, c.gap.gap_mm);
+            let d = dln_bz_per_mm(&shape, c.gap.standoff.gap_mm);
             let dtso = 0.5 * (1.0 + probe_slope);
             budget.push(BudgetLine {
                 source: "standoff expansion coefficient".into(),
                 kind: 'B',
-                u: (d * c.gap.standoff_mm * c.gap.standoff_cte_u_per_k * dtso * 100.0).abs(),
+                u: (d * c.gap.standoff.standoff_mm * c.gap.standoff_cte_u_per_k * dtso * 100.0)
+                    .abs(),
             });
         }
     } else {
@@ -489,7 +491,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     let br = match (cal, shape) {
         (Some(c), Some(shape)) => Some(geometry::estimate_br(
             &shape,
-            c.gap.gap_mm,
+            c.gap.standoff.gap_mm,
             c.gap.gap_u_mm,
             b0,
         )),
@@ -665,7 +667,7 @@ fn reference_loss_full(
     seg: &segments::Segments,
     tm: &[f64],
     cal: Option<&Calibration>,
-    shape: Option<remanent_rig_model::Shape>,
+    shape: Option<remanent_physics::Shape>,
     fit: &lsq::Fit,
 ) -> Option<LossResult> {
     let after = seg.after.as_ref()?;
@@ -719,7 +721,8 @@ fn reference_loss_full(
         ref_probe = Some([p0, p1]);
         let dp = (p1 - p0).abs();
         let s_term = c.hall.sensitivity_tc_u_pct_per_c * dp;
-        let off_term = c.hall.offset_tc_u_mv_per_c * dp / c.hall.sensitivity_mv_per_mt / b0 * 100.0;
+        let off_term =
+            c.hall.offset_tc_u_mv_per_c * dp / c.hall.sensor.sensitivity_mv_per_mt / b0 * 100.0;
         probe_term = (s_term * s_term + off_term * off_term).sqrt();
         budget.push(BudgetLine {
             source: "probe drift between the references".into(),
@@ -727,12 +730,13 @@ fn reference_loss_full(
             u: probe_term,
         });
         if let Some(shape) = shape {
-            let d = geometry::dln_bz_per_mm(&shape, c.gap.gap_mm);
+            let d = dln_bz_per_mm(&shape, c.gap.standoff.gap_mm);
             let dtso = 0.5 * ((t1 - t0) + (p1 - p0));
             budget.push(BudgetLine {
                 source: "standoff expansion between the references".into(),
                 kind: 'B',
-                u: (d * c.gap.standoff_mm * c.gap.standoff_cte_u_per_k * dtso * 100.0).abs(),
+                u: (d * c.gap.standoff.standoff_mm * c.gap.standoff_cte_u_per_k * dtso * 100.0)
+                    .abs(),
             });
         }
     }

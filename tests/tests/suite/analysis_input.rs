@@ -144,7 +144,7 @@ shape = { block = { a_mm = 20, b_mm = 10, length_mm = 4 } }
     .unwrap();
     let m = remanent::magnets::resolve(p.to_str().unwrap()).unwrap();
     assert_eq!(m.info.grade, "N42");
-    assert!(matches!(m.info.shape, remanent_rig_model::Shape::Block { a_mm, .. } if a_mm == 20.0));
+    assert!(matches!(m.info.shape, remanent_physics::Shape::Block { a_mm, .. } if a_mm == 20.0));
     assert_eq!(m.model.unwrap().alpha_pct_per_c, -0.11);
     let e = remanent::magnets::resolve("no-such-part")
         .unwrap_err()
@@ -177,6 +177,6 @@ fn the_calibration_example_in_the_hardware_notes_parses() {
     let start = notes.find("```toml").unwrap() + 7;
     let end = start + notes[start..].find("```").unwrap();
     let cal: remanent::calibration::Calibration = toml::from_str(&notes[start..end]).unwrap();
-    assert_eq!(cal.hall.sensitivity_mv_per_mt, 5.0);
-    assert_eq!(cal.gap.gap_mm, 3.0);
+    assert_eq!(cal.hall.sensor.sensitivity_mv_per_mt, 5.0);
+    assert_eq!(cal.gap.standoff.gap_mm, 3.0);
 }

@@ -1,7 +1,7 @@
 //! The field closed forms against magpylib 6.1.0 (Ortner & Bandeira, SoftwareX 11, 100466,
 //! 2020): on-axis points (offset 0) of cylinders and cuboids with 1 T polarization.
 
-use remanent_rig_model::field::{block_bz_per_br, cylinder_bz_per_br};
+use remanent_physics::field::{block_bz_per_br, cylinder_bz_per_br};
 
 use crate::util::data;
 

@@ -1,7 +1,7 @@
 //! ITS-90 Type K against the NIST table (NIST Monograph 175, ITS-90 Thermocouple Database),
 //! and the converter-chip correction.
 
-use remanent_rig_model::type_k::{chip_reading_c, corrected_c, emf_mv, temperature_c};
+use remanent_physics::type_k::{chip_reading_c, corrected_c, emf_mv, temperature_c};
 
 use crate::util::data;
 
