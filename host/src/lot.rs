@@ -197,25 +197,42 @@ fn opt(v: Option<f64>, p: usize) -> String {
     v.map(|x| format!("{x:.p$}")).unwrap_or_default()
 }
 
-/// The per-magnet table as CSV.
+/// One row of `lot.csv`: numbers at the precision the measurement supports.
+#[derive(Debug, Serialize)]
+struct CsvRow<'a> {
+    id: &'a str,
+    grade: &'a str,
+    #[serde(rename = "alpha_pct_per_C")]
+    alpha: String,
+    #[serde(rename = "alpha_u95_pct_per_C")]
+    alpha_u95: String,
+    loss_pct: String,
+    loss_u95_pct: String,
+    #[serde(rename = "b20_mT")]
+    b20: String,
+    verdict: &'static str,
+    outlier: String,
+}
+
+/// The per-magnet table as CSV (quoted where a field needs it).
 pub fn to_csv(s: &LotSummary) -> String {
-    let mut out = String::from("id,grade,alpha_pct_per_C,alpha_u95_pct_per_C,loss_pct,loss_u95_pct,b20_mT,verdict,outlier\n");
+    let mut w = csv::Writer::from_writer(Vec::new());
     for r in &s.rows {
-        let _ = writeln!(
-            out,
-            "{},{},{:.5},{:.5},{},{},{:.3},{},\"{}\"",
-            r.id,
-            r.grade,
-            r.alpha,
-            r.alpha_u95,
-            opt(r.loss_pct, 4),
-            opt(r.loss_u95_pct, 4),
-            r.b20_mt,
-            format!("{:?}", r.verdict).to_lowercase(),
-            r.outlier.join("; ")
-        );
+        let row = CsvRow {
+            id: &r.id,
+            grade: &r.grade,
+            alpha: format!("{:.5}", r.alpha),
+            alpha_u95: format!("{:.5}", r.alpha_u95),
+            loss_pct: opt(r.loss_pct, 4),
+            loss_u95_pct: opt(r.loss_u95_pct, 4),
+            b20: format!("{:.3}", r.b20_mt),
+            verdict: r.verdict.word(),
+            outlier: r.outlier.join("; "),
+        };
+        // writing into memory cannot fail
+        let _ = w.serialize(row);
     }
-    out
+    String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
 }
 
 /// A short text summary.
@@ -259,7 +276,7 @@ pub fn text(s: &LotSummary) -> String {
             r.alpha,
             opt(r.loss_pct, 3),
             r.b20_mt,
-            format!("{:?}", r.verdict).to_lowercase(),
+            r.verdict.word(),
             r.outlier.join("; ")
         );
     }
@@ -269,6 +286,26 @@ pub fn text(s: &LotSummary) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_comma_in_an_id_stays_in_its_field() {
+        let row = LotRow {
+            id: "RM,7".into(),
+            grade: "N42".into(),
+            alpha: -0.11,
+            alpha_u95: 0.002,
+            loss_pct: None,
+            loss_u95_pct: None,
+            b20_mt: 200.0,
+            verdict: Outcome::Pass,
+            outlier: vec!["flux".into(), "α".into()],
+        };
+        let csv = to_csv(&summarise(vec![row]));
+        let mut r = csv::Reader::from_reader(csv.as_bytes());
+        let rec = r.records().next().unwrap().unwrap();
+        assert_eq!(&rec[0], "RM,7");
+        assert_eq!(rec.len(), 9);
+    }
 
     #[test]
     fn modified_z_flags_the_textbook_outlier() {

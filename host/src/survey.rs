@@ -233,19 +233,34 @@ pub fn rank(readings: &[Reading]) -> Vec<Ranked> {
 
 /// The ranked table as CSV.
 pub fn to_csv(ranked: &[Ranked]) -> String {
-    let mut s = String::from("rank,magnet,flux_mT,deviation_pct,modified_z,temp_C,rel_sd,low\n");
+    let mut w = csv::Writer::from_writer(Vec::new());
     for (i, r) in ranked.iter().enumerate() {
-        s.push_str(&format!(
-            "{},{},{:.3},{:+.3},{:+.2},{:.2},{:.6},{}\n",
-            i + 1,
-            r.reading.index,
-            r.reading.flux_mt,
-            r.deviation_pct,
-            r.z,
-            r.reading.temp_c,
-            r.reading.rel_sd,
-            r.low as u8
-        ));
+        // writing into memory cannot fail
+        let _ = w.serialize(CsvRow {
+            rank: i + 1,
+            magnet: r.reading.index,
+            flux: format!("{:.3}", r.reading.flux_mt),
+            deviation_pct: format!("{:+.3}", r.deviation_pct),
+            modified_z: format!("{:+.2}", r.z),
+            temp: format!("{:.2}", r.reading.temp_c),
+            rel_sd: format!("{:.6}", r.reading.rel_sd),
+            low: u8::from(r.low),
+        });
     }
-    s
+    String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
+}
+
+/// One row of the survey's CSV.
+#[derive(serde::Serialize)]
+struct CsvRow {
+    rank: usize,
+    magnet: usize,
+    #[serde(rename = "flux_mT")]
+    flux: String,
+    deviation_pct: String,
+    modified_z: String,
+    #[serde(rename = "temp_C")]
+    temp: String,
+    rel_sd: String,
+    low: u8,
 }

@@ -1,21 +1,12 @@
-//! The verdict: material family from α (and Br), the grade check against a spec table, and
-//! the heat-damage flag.
+//! The verdict: the grade check against a spec table, and how checks combine. The families
+//! themselves are in [`super::families`].
 
 use serde::Serialize;
 
 use crate::specs::GradeSpec;
 
-/// Typical mean α(Br) per family near 20…100 °C, %/°C (domain notes' table).
-pub const FAMILIES: [(&str, f64, f64); 5] = [
-    ("sintered hard ferrite", -0.22, -0.16),
-    ("sintered NdFeB", -0.135, -0.085),
-    ("SmCo5", -0.05, -0.035),
-    ("Sm2Co17", -0.035, -0.025),
-    ("cast AlNiCo", -0.025, -0.01),
-];
-
 /// Pass, fail or cannot tell.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, serde::Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum Outcome {
     /// Within the limits, uncertainty included.
@@ -35,60 +26,6 @@ pub fn judge(value: f64, u95: f64, min: f64, max: f64) -> Outcome {
     } else {
         Outcome::Indeterminate
     }
-}
-
-/// Typical Curie temperatures per family, °C (domain notes' table; AlNiCo from memory).
-pub const CURIE_RANGES: [(&str, f64, f64); 5] = [
-    ("sintered hard ferrite", 420.0, 480.0),
-    ("sintered NdFeB", 300.0, 410.0),
-    ("SmCo5", 690.0, 760.0),
-    ("Sm2Co17", 790.0, 830.0),
-    ("cast AlNiCo", 820.0, 880.0),
-];
-
-/// Families whose typical α range meets [α − U, α + U]; narrowed by Br and by a measured
-/// Curie collapse when they help.
-pub fn families(
-    alpha: f64,
-    u95: f64,
-    br_t: Option<f64>,
-    curie_c: Option<f64>,
-) -> Vec<&'static str> {
-    let mut hits: Vec<&str> = FAMILIES
-        .iter()
-        .filter(|(_, lo, hi)| alpha + u95 >= *lo && alpha - u95 <= *hi)
-        .map(|(n, _, _)| *n)
-        .collect();
-    if let Some(tc) = curie_c {
-        // the field collapses a little below the Curie point: allow 30 K
-        let by_curie: Vec<&str> = CURIE_RANGES
-            .iter()
-            .filter(|(_, lo, hi)| tc >= lo - 30.0 && tc <= *hi)
-            .map(|(n, _, _)| *n)
-            .collect();
-        let both: Vec<&str> = hits
-            .iter()
-            .copied()
-            .filter(|f| by_curie.contains(f))
-            .collect();
-        hits = if both.is_empty() { by_curie } else { both };
-    }
-    if hits.len() > 1 {
-        if let Some(br) = br_t {
-            // Br ranges (domain notes): SmCo5 0.74–1.00, Sm2Co17 0.93–1.15, AlNiCo 5 1.25–1.30
-            let br_ok = |f: &str| match f {
-                "SmCo5" => (0.7..1.02).contains(&br),
-                "Sm2Co17" => (0.9..1.18).contains(&br),
-                "cast AlNiCo" => (1.1..1.4).contains(&br),
-                _ => true,
-            };
-            let narrowed: Vec<&str> = hits.iter().copied().filter(|f| br_ok(f)).collect();
-            if !narrowed.is_empty() {
-                hits = narrowed;
-            }
-        }
-    }
-    hits
 }
 
 /// One check of the grade test.
@@ -166,5 +103,26 @@ pub fn overall(checks: &[Check]) -> Outcome {
         Outcome::Indeterminate
     } else {
         Outcome::Pass
+    }
+}
+
+impl Outcome {
+    /// The outcome as a lowercase word (table cells, CSV, CSS classes).
+    pub fn word(self) -> &'static str {
+        match self {
+            Outcome::Pass => "pass",
+            Outcome::Fail => "fail",
+            Outcome::Indeterminate => "indeterminate",
+        }
+    }
+}
+
+impl std::fmt::Display for Outcome {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            Outcome::Pass => "PASS",
+            Outcome::Fail => "FAIL",
+            Outcome::Indeterminate => "INDETERMINATE",
+        })
     }
 }

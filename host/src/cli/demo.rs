@@ -66,24 +66,20 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     if summary.end != RecordEnd::Finished {
         return Ok(code);
     }
-    let args = super::analyze::Args {
+    let req = remanent::jobs::InputRequest {
         input: out.clone(),
-        json: false,
-        calibration: None,
-        specs: None,
-        magnet: None,
-        columns: Vec::new(),
-        probe_tc_pct_per_c: None,
+        ..Default::default()
     };
-    let (series, analysis, title) = super::analyze::load_and_analyze(&args)?;
+    let (loaded, analysis) = remanent::jobs::load_and_analyze(&req)?;
+    let (series, title) = (&loaded.series, &loaded.title);
     println!();
-    print!("{}", remanent::analysis::summary::text(&analysis, &title));
+    print!("{}", remanent::analysis::summary::text(&analysis, title));
     println!(
         "  (the virtual rig's truth: α = {:+.4} %/°C over the same range, loss {:.3} %)",
         model.alpha_pct_per_c + model.gamma_pct_per_c2 * (analysis.fit_range_c[1] - 20.0),
         truth.irreversible * 100.0
     );
-    let written = remanent::report::write_all(&out, &series, &analysis, &title, false)?;
+    let written = remanent::report::write_all(&out, series, &analysis, title, false)?;
     println!();
     for f in written {
         println!("wrote {}", f.display());

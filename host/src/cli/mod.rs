@@ -6,6 +6,7 @@ mod analyze;
 mod demo;
 mod lot;
 mod magnets;
+mod options;
 mod ports;
 mod progress;
 mod record;

@@ -7,10 +7,8 @@ use std::sync::Arc;
 use std::time::Duration;
 
 use anyhow::Context;
-use remanent::calibration::Calibration;
 use remanent::record::{record, RecordEnd, RecordOptions, RecordSummary};
 use remanent::{magnets, profiles::ProfileSpec};
-use remanent_rig_model::RigParams;
 
 use super::progress::Bar;
 
@@ -53,13 +51,11 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         magnet.info.max_working_c,
         a.allow_over_rating,
     )?;
-    let calibration = match &a.calibration {
-        Some(p) => Calibration::load(p)?,
-        None => {
-            eprintln!("note: no --calibration given; converting with the virtual rig's constants");
-            Calibration::virtual_rig(&RigParams::REFERENCE)
-        }
-    };
+    let chosen = remanent::jobs::calibration_policy::choose(a.calibration.as_deref())?;
+    if let Some(note) = chosen.note {
+        eprintln!("note: {note}");
+    }
+    let calibration = chosen.calibration;
     let port = remanent::link::port::open(&a.port)?;
     let opts = RecordOptions {
         port_label: a.port.clone(),

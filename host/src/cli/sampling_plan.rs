@@ -25,6 +25,8 @@ pub struct Args {
     /// Write the OC curve to this file stem (.png and .svg).
     #[arg(long)]
     plot: Option<PathBuf>,
+    #[command(flatten)]
+    force: super::options::ForceOpts,
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
@@ -51,7 +53,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         }
     );
     if let Some(stem) = a.plot {
-        for f in remanent::plots::write_oc_plot(&stem, model, &plan, a.aql, a.rql)? {
+        for f in remanent::plots::write_oc_plot(&stem, model, &plan, a.aql, a.rql, a.force.force)? {
             println!("wrote {}", f.display());
         }
     }

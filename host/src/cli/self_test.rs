@@ -3,9 +3,6 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use remanent::calibration::Calibration;
-use remanent_rig_model::RigParams;
-
 #[derive(clap::Args)]
 pub struct Args {
     /// Serial port of the bench.
@@ -46,10 +43,7 @@ fn print_steps(steps: &[remanent::selftest::Step]) -> bool {
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
-    let cal = match &a.calibration {
-        Some(p) => Calibration::load(p)?,
-        None => Calibration::virtual_rig(&RigParams::REFERENCE),
-    };
+    let cal = remanent::jobs::calibration_policy::choose(a.calibration.as_deref())?.calibration;
     let port = remanent::link::port::open(&a.port)?;
     if let Some(kind) = a.drill {
         let drill = match kind {

@@ -4,10 +4,8 @@ use std::io::BufRead;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use remanent::calibration::Calibration;
 use remanent::specs::SpecTable;
 use remanent::survey::{self, Reading, SurveyOptions, SurveyProgress};
-use remanent_rig_model::RigParams;
 
 #[derive(clap::Args)]
 pub struct Args {
@@ -49,14 +47,10 @@ impl SurveyProgress for Print {
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     if let Some(o) = &a.out {
-        if o.exists() {
-            anyhow::bail!("{} already exists; choose another --out", o.display());
-        }
+        remanent::output::refuse_existing([o.clone()], false)?;
     }
-    let calibration = match &a.calibration {
-        Some(p) => Calibration::load(p)?,
-        None => Calibration::virtual_rig(&RigParams::REFERENCE),
-    };
+    let calibration =
+        remanent::jobs::calibration_policy::choose(a.calibration.as_deref())?.calibration;
     let mut opts = SurveyOptions::new(calibration, a.count);
     if let Some(g) = &a.grade {
         let specs = SpecTable::builtin();
@@ -96,7 +90,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         );
     }
     if let Some(o) = a.out {
-        std::fs::write(&o, survey::to_csv(&ranked))?;
+        remanent::output::write(&o, survey::to_csv(&ranked).as_bytes(), false)?;
         println!("wrote {}", o.display());
     }
     Ok(ExitCode::SUCCESS)

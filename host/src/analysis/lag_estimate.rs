@@ -1,0 +1,114 @@
+//! Step 2: the magnet's lag behind the thermocouple. Normally from branch coincidence — the τ
+//! that makes the heating and cooling branches one curve — refined over three rounds with the
+//! loss estimate, then cross-checked against the settling near room temperature; in a Curie
+//! sweep from the settling alone; without a cooling branch not at all.
+
+use super::curie::CURIE_FRACTION;
+use super::prepare::Prepared;
+use super::segments::{self, Segments};
+use super::{lag, loss};
+
+/// Branches need this many samples each to be compared.
+pub const MIN_BRANCH_SAMPLES: usize = 30;
+/// The cooling branch must come back down at least this fraction of the excursion.
+pub const MIN_RETURN_FRACTION: f64 = 0.5;
+/// The branch and settling estimates of τ disagree beyond this fraction: the branches are
+/// disagreeing for another reason (flux lost on the way up) and the settling value is used.
+pub const SETTLING_OVERRIDE_FRACTION: f64 = 0.3;
+/// Rounds of lag search and loss refinement.
+pub const ROUNDS: usize = 3;
+/// The first round searches 0 … 600 s on 60 points; later ones ±30 % around the last on 8.
+pub const FIRST_SEARCH_S: (f64, f64, u32) = (0.0, 600.0, 60);
+
+/// What the lag step found.
+pub struct Lagged {
+    /// The time constant, s (None: not estimated).
+    pub tau_s: Option<f64>,
+    /// Lag-corrected magnet temperature per sample, °C.
+    pub tm: Vec<f64>,
+    /// Segments on the magnet temperature.
+    pub seg: Segments,
+    /// Irreversible loss as estimated along the way (fraction, ≥ 0).
+    pub loss: f64,
+    /// Magnet temperature at the Curie collapse, °C.
+    pub curie_c: Option<f64>,
+}
+
+fn branches_comparable(p: &Prepared, seg: &Segments, span: f64) -> bool {
+    if seg.heating.len() <= MIN_BRANCH_SAMPLES || seg.cooling.len() <= MIN_BRANCH_SAMPLES {
+        return false;
+    }
+    let cool_min = p.s.temp_c[seg.cooling.clone()]
+        .iter()
+        .copied()
+        .fold(f64::INFINITY, f64::min);
+    p.s.temp_c[seg.peak] - cool_min > MIN_RETURN_FRACTION * span
+}
+
+/// Run the lag step on `seg` (segments on the thermocouple) with the excursion `span`, K.
+pub fn estimate(
+    p: &Prepared,
+    seg: Segments,
+    span: f64,
+    collapse: Option<usize>,
+    notes: &mut Vec<String>,
+) -> Lagged {
+    let s = p.s;
+    let mut out = Lagged {
+        tau_s: None,
+        tm: s.temp_c.clone(),
+        seg,
+        loss: 0.0,
+        curie_c: None,
+    };
+    if let Some(ic) = collapse {
+        let tau = lag::from_settling(&s.time_s, &s.temp_c, &p.flux).map(|x| x.0);
+        relag(p, &mut out, tau.unwrap_or(0.0));
+        out.tau_s = tau;
+        out.curie_c = Some(out.tm[ic]);
+        notes.push(format!(
+            "the field fell below {:.0} % of its start at {:.0} °C (magnet temperature{}): the Curie point is at or just below it; the magnet is demagnetized. α comes from the heating branch and includes any irreversible loss below the collapse: take α(Br) from a separate cycle below the magnet's rating",
+            CURIE_FRACTION * 100.0,
+            out.tm[ic],
+            if tau.is_some() { ", lag-corrected" } else { "; lag not estimated" }
+        ));
+        return out;
+    }
+    if !branches_comparable(p, &out.seg, span) {
+        notes.push("no cooling branch to compare with the heating branch: the lag cannot be estimated; fitting the soak points alone".into());
+        return out;
+    }
+    for round in 0..ROUNDS {
+        let (lo, hi, points) = match out.tau_s {
+            Some(t) if round > 0 => (0.7 * t, 1.3 * t + 1.0, 8),
+            _ => FIRST_SEARCH_S,
+        };
+        let (seg, l) = (&out.seg, out.loss);
+        let (best, _) = lag::minimize(lo, hi, points, |t| p.lag_cost(t, seg, l));
+        out.tau_s = Some(best);
+        relag_with_loss(p, &mut out, best);
+    }
+    if let Some((t_settle, _)) = lag::from_settling(&s.time_s, &s.temp_c, &p.flux) {
+        let tau = out.tau_s.unwrap_or(0.0);
+        if (tau - t_settle).abs() > SETTLING_OVERRIDE_FRACTION * t_settle {
+            notes.push(format!(
+                "the branches suggest τ = {tau:.0} s but the settling near room temperature shows {t_settle:.0} s: the branches disagree for another reason (flux lost on the way up?), so the settling value is used"
+            ));
+            out.tau_s = Some(t_settle);
+            relag_with_loss(p, &mut out, t_settle);
+        }
+    }
+    out
+}
+
+fn relag(p: &Prepared, out: &mut Lagged, tau: f64) {
+    out.tm = lag::lagged(&p.s.time_s, &p.s.temp_c, tau);
+    out.seg = segments::find(&p.s.time_s, &out.tm, &p.s.temp_c);
+}
+
+fn relag_with_loss(p: &Prepared, out: &mut Lagged, tau: f64) {
+    relag(p, out, tau);
+    if let Some(l) = loss::quick(p, &out.seg, &out.tm) {
+        out.loss = l.max(0.0);
+    }
+}

@@ -1,0 +1,137 @@
+//! Step 5: the irreversible loss — the settled readings before and after the excursion,
+//! referred to one temperature with the fitted reversible curve — with its own budget.
+
+use super::model::Quadratic;
+use super::prepare::{mean, Prepared};
+use super::segments::Segments;
+use super::{BudgetLine, Context};
+use remanent_physics::shape::dln_bz_per_mm;
+
+/// Readings within a reference window are correlated over about this many samples: the
+/// type-A term counts them as n / this.
+pub const CORRELATED_SAMPLES: f64 = 10.0;
+/// The reversible correction between the references is good to this fraction of itself.
+pub const REVERSIBLE_CORRECTION_REL_U: f64 = 0.05;
+/// First guess of the reversible change between the references inside the lag search,
+/// fraction per K (NdFeB-like; the full loss uses the fitted curve).
+pub const FIRST_GUESS_PER_K: f64 = 0.0011;
+
+/// The loss with its budget.
+pub struct LossResult {
+    /// Loss, %.
+    pub loss_pct: f64,
+    /// Its expanded uncertainty (k = 2), %.
+    pub u95_pct: f64,
+    /// The budget, %.
+    pub budget: Vec<BudgetLine>,
+    /// Magnet temperatures at the two references, °C.
+    pub ref_c: [f64; 2],
+    /// Probe temperatures at the two references, °C.
+    pub ref_probe_c: Option<[f64; 2]>,
+    /// The probe-drift term, %.
+    pub probe_term_pct: f64,
+}
+
+/// Settled part of a reference window: its last 30 %.
+fn settled(r: &std::ops::Range<usize>) -> std::ops::Range<usize> {
+    r.start + (r.end - r.start) * 7 / 10..r.end
+}
+
+/// How much the flux still drifted across a window: the difference of its two halves'
+/// means, relative to the mean, % (a window that has not settled shows it here).
+fn drift_pct(flux: &[f64], r: &std::ops::Range<usize>) -> f64 {
+    let mid = r.start + (r.end - r.start) / 2;
+    let (a, _, _) = mean(flux[r.start..mid].iter().copied());
+    let (b, _, _) = mean(flux[mid..r.end].iter().copied());
+    ((b - a) / (0.5 * (a + b))).abs() * 100.0
+}
+
+/// Quick loss estimate (fraction, no budget) for the lag search.
+pub fn quick(p: &Prepared, seg: &Segments, tm: &[f64]) -> Option<f64> {
+    let after = seg.after.as_ref()?;
+    let (b_before, _, _) = mean(settled(&seg.before).map(|i| p.flux[i]));
+    let (b_after, _, _) = mean(settled(after).map(|i| p.flux[i]));
+    let (t_before, _, _) = mean(settled(&seg.before).map(|i| tm[i]));
+    let (t_after, _, _) = mean(settled(after).map(|i| tm[i]));
+    let ratio = 1.0 - FIRST_GUESS_PER_K * (t_before - t_after);
+    Some((b_before - b_after * ratio) / b_before)
+}
+
+/// The loss with its full budget; `None` when the record does not return to a settled room
+/// temperature.
+pub fn full(
+    p: &Prepared,
+    seg: &Segments,
+    tm: &[f64],
+    ctx: &Context,
+    model: &Quadratic,
+) -> Option<LossResult> {
+    let after = seg.after.as_ref()?;
+    let (before_r, after_r) = (settled(&seg.before), settled(after));
+    let (b0, sd0, n0) = mean(before_r.clone().map(|i| p.flux[i]));
+    let (b1, sd1, n1) = mean(after_r.clone().map(|i| p.flux[i]));
+    // the magnet's temperature in the windows: lag-corrected; how much the lag model moved it
+    // away from the thermocouple goes into the budget
+    let (t0, _, _) = mean(before_r.clone().map(|i| tm[i]));
+    let (t1, _, _) = mean(after_r.clone().map(|i| tm[i]));
+    let (tc0, _, _) = mean(before_r.clone().map(|i| p.s.temp_c[i]));
+    let (tc1, _, _) = mean(after_r.clone().map(|i| p.s.temp_c[i]));
+    let lag_shift_k = ((t0 - tc0).powi(2) + (t1 - tc1).powi(2)).sqrt();
+    let ratio = model.eval_mt(t0) / model.eval_mt(t1);
+    let loss = (b0 - b1 * ratio) / b0;
+    let u_mean = ((sd0 * sd0 / (n0 as f64 / CORRELATED_SAMPLES).max(1.0))
+        + (sd1 * sd1 / (n1 as f64 / CORRELATED_SAMPLES).max(1.0)))
+    .sqrt()
+        / b0
+        * 100.0;
+    let alpha_rel = (model.b1_mt_per_c / model.b0_mt).abs();
+    let mut budget = vec![
+        BudgetLine::a("scatter of the reference readings (type A)", u_mean),
+        BudgetLine::b(
+            "drift within the reference windows (not fully settled)",
+            (drift_pct(&p.flux, &before_r).powi(2) + drift_pct(&p.flux, &after_r).powi(2)).sqrt(),
+        ),
+        BudgetLine::b(
+            "lag correction of the reference temperatures",
+            alpha_rel * lag_shift_k * 100.0,
+        ),
+        BudgetLine::b(
+            "reversible correction between the reference temperatures",
+            alpha_rel * REVERSIBLE_CORRECTION_REL_U * (t1 - t0).abs() * 100.0,
+        ),
+    ];
+    let mut ref_probe = None;
+    let mut probe_term = 0.0;
+    let cal = ctx.calibration.as_ref();
+    if let (Some(probe), Some(c)) = (p.s.probe_c.as_ref(), cal) {
+        let (p0, _, _) = mean(before_r.clone().map(|i| probe[i]));
+        let (p1, _, _) = mean(after_r.clone().map(|i| probe[i]));
+        ref_probe = Some([p0, p1]);
+        let dp = (p1 - p0).abs();
+        let s_term = c.hall.sensitivity_tc_u_pct_per_c * dp;
+        let off_term =
+            c.hall.offset_tc_u_mv_per_c * dp / c.hall.sensor.sensitivity_mv_per_mt / b0 * 100.0;
+        probe_term = (s_term * s_term + off_term * off_term).sqrt();
+        budget.push(BudgetLine::b(
+            "probe drift between the references",
+            probe_term,
+        ));
+        if let Some(shape) = ctx.magnet.as_ref().map(|m| m.shape) {
+            let d = dln_bz_per_mm(&shape, c.gap.standoff.gap_mm);
+            let dtso = 0.5 * ((t1 - t0) + (p1 - p0));
+            let u = d * c.gap.standoff.standoff_mm * c.gap.standoff_cte_u_per_k * dtso * 100.0;
+            budget.push(BudgetLine::b(
+                "standoff expansion between the references",
+                u.abs(),
+            ));
+        }
+    }
+    Some(LossResult {
+        loss_pct: loss * 100.0,
+        u95_pct: 2.0 * BudgetLine::combined(&budget),
+        budget,
+        ref_c: [t0, t1],
+        ref_probe_c: ref_probe,
+        probe_term_pct: probe_term,
+    })
+}

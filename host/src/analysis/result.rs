@@ -1,0 +1,164 @@
+//! The analysis's result: the numbers a report carries (serialised as `analysis.json`), the
+//! uncertainty budget lines, and apart from them the per-sample traces the plots draw.
+
+use serde::Serialize;
+
+use super::geometry::BrEstimate;
+use super::model::Quadratic;
+use super::segments::Segments;
+use super::verdict::{Check, Outcome};
+
+/// One contribution to an uncertainty budget.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct BudgetLine {
+    /// What it is.
+    pub source: String,
+    /// Type A (statistics) or B (other knowledge).
+    pub kind: char,
+    /// Standard uncertainty, in the result's unit.
+    pub u: f64,
+}
+
+impl BudgetLine {
+    /// A type A (statistical) contribution.
+    pub fn a(source: impl Into<String>, u: f64) -> BudgetLine {
+        BudgetLine {
+            source: source.into(),
+            kind: 'A',
+            u,
+        }
+    }
+
+    /// A type B contribution.
+    pub fn b(source: impl Into<String>, u: f64) -> BudgetLine {
+        BudgetLine {
+            source: source.into(),
+            kind: 'B',
+            u,
+        }
+    }
+
+    /// Root sum of squares of a budget.
+    pub fn combined(lines: &[BudgetLine]) -> f64 {
+        lines.iter().map(|l| l.u * l.u).sum::<f64>().sqrt()
+    }
+}
+
+/// The analysis result.
+#[derive(Debug, Clone, Serialize)]
+pub struct Analysis {
+    /// Mean α(Br) between 20 °C and the top of the fitted range, %/°C (the standards' two-point form).
+    #[serde(rename = "alpha_pct_per_C")]
+    pub alpha_pct_per_c: f64,
+    /// Its expanded uncertainty, k = 2, %/°C.
+    #[serde(rename = "alpha_u95_pct_per_C")]
+    pub alpha_u95_pct_per_c: f64,
+    /// Standard error of α from the fit alone, %/°C.
+    #[serde(rename = "alpha_fit_se_pct_per_C")]
+    pub alpha_fit_se_pct_per_c: f64,
+    /// Tangent coefficient at 20 °C (the linear term of the fit), %/°C.
+    #[serde(rename = "alpha_at_20C_pct_per_C")]
+    pub alpha_at_20c_pct_per_c: f64,
+    /// Quadratic term, %/°C².
+    #[serde(rename = "gamma_pct_per_C2")]
+    pub gamma_pct_per_c2: f64,
+    /// Fitted B at 20 °C, mT.
+    #[serde(rename = "b20_mT")]
+    pub b20_mt: f64,
+    /// Lowest and highest magnet temperature in the fit, °C.
+    #[serde(rename = "fit_range_C")]
+    pub fit_range_c: [f64; 2],
+    /// Residual standard deviation of the fit, mT.
+    #[serde(rename = "residual_sd_mT")]
+    pub residual_sd_mt: f64,
+    /// Points fitted.
+    pub fit_points: usize,
+    /// How the fit was made: `lag-corrected ramps` or `soak points`.
+    pub fit_method: String,
+    /// Thermal lag time constant of the magnet behind the thermocouple, s (None: not estimated).
+    pub lag_time_constant_s: Option<f64>,
+    /// Irreversible loss at room temperature, % (None: the record does not return).
+    pub irreversible_loss_pct: Option<f64>,
+    /// Its expanded uncertainty, k = 2, %.
+    pub irreversible_loss_u95_pct: Option<f64>,
+    /// Reference temperatures before and after, °C.
+    #[serde(rename = "reference_C")]
+    pub reference_c: Option<[f64; 2]>,
+    /// Probe temperatures at the two references, °C.
+    #[serde(rename = "reference_probe_C")]
+    pub reference_probe_c: Option<[f64; 2]>,
+    /// Highest magnet temperature reached, °C.
+    #[serde(rename = "max_magnet_temp_C")]
+    pub max_magnet_temp_c: f64,
+    /// Where the field collapsed in a Curie sweep, °C (None: not reached).
+    #[serde(rename = "curie_estimate_C")]
+    pub curie_estimate_c: Option<f64>,
+    /// Br estimate from geometry.
+    pub br: Option<BrEstimate>,
+    /// Material family (or families) α and Br point to.
+    pub material_family: String,
+    /// Overall verdict against the grade's spec.
+    pub verdict: Outcome,
+    /// The grade checked.
+    pub grade: Option<String>,
+    /// Individual checks.
+    pub checks: Vec<Check>,
+    /// The magnet lost flux in this test.
+    pub heat_damaged: bool,
+    /// Uncertainty budget of α, %/°C.
+    pub alpha_budget: Vec<BudgetLine>,
+    /// Uncertainty budget of the loss, %.
+    pub loss_budget: Vec<BudgetLine>,
+    /// Plain words about what was done, assumed or could not be computed.
+    pub notes: Vec<String>,
+    /// Samples analysed.
+    pub samples: usize,
+    /// The fitted reversible model.
+    #[serde(skip)]
+    pub model: Quadratic,
+    /// Per-sample traces for the plots (not part of the result).
+    #[serde(skip)]
+    pub traces: Traces,
+}
+
+/// Per-sample traces the plots draw: the analysis's intermediate series, kept apart from its
+/// result.
+#[derive(Debug, Clone, Default)]
+pub struct Traces {
+    /// Indices of the reference windows, the branches and the peak.
+    pub segments: Option<Segments>,
+    /// Lag-corrected magnet temperature per sample, °C.
+    pub magnet_temp_c: Vec<f64>,
+    /// Flux corrected for the gap's expansion, mT.
+    pub flux_corrected_mt: Vec<f64>,
+}
+
+impl Analysis {
+    /// The fitted reversible B at `t_c`, mT.
+    pub fn fitted_mt(&self, t_c: f64) -> f64 {
+        self.model.eval_mt(t_c)
+    }
+
+    /// Every sample's flux against the fit, mT, with the irreversible loss taken back out of
+    /// the samples after the peak, so the cooling branch is compared with the same curve.
+    pub fn residuals_mt(&self) -> Vec<f64> {
+        let t = &self.traces;
+        let loss = self.loss_fraction();
+        let peak = t.segments.as_ref().map_or(usize::MAX, |s| s.peak);
+        t.flux_corrected_mt
+            .iter()
+            .zip(&t.magnet_temp_c)
+            .enumerate()
+            .map(|(i, (b, tm))| {
+                let b = if i > peak { b / (1.0 - loss) } else { *b };
+                b - self.fitted_mt(*tm)
+            })
+            .collect()
+    }
+
+    /// Loss as a fraction (0 when not computed or negative): what the plots take back out of
+    /// the cooling branch.
+    pub fn loss_fraction(&self) -> f64 {
+        self.irreversible_loss_pct.unwrap_or(0.0).max(0.0) / 100.0
+    }
+}

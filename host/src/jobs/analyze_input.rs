@@ -1,0 +1,146 @@
+//! Analyse an input: a run directory (with its own calibration and magnet, or a new
+//! calibration) or a CSV log (with a magnet and column mapping given), against a spec table.
+
+use std::path::{Path, PathBuf};
+
+use crate::analysis::dataset::{self, CsvOptions, InputError, Series};
+use crate::analysis::{analyze, Analysis, AnalysisError, Context};
+use crate::calibration::{Calibration, CalibrationError};
+use crate::magnets::{self, MagnetError};
+use crate::specs::{SpecError, SpecTable};
+
+/// Thermocouple gain tolerance assumed without a calibration, % (standard-limits Type K
+/// wire: ±0.75 % of reading above 333 °C; common practice to use it throughout).
+pub const DEFAULT_TC_GAIN_PCT: f64 = 0.75;
+
+/// A workflow failed.
+#[derive(Debug, thiserror::Error)]
+pub enum JobError {
+    /// The input could not be read.
+    #[error(transparent)]
+    Dataset(#[from] InputError),
+    /// A calibration could not be read.
+    #[error(transparent)]
+    Calibration(#[from] CalibrationError),
+    /// A spec table could not be read.
+    #[error(transparent)]
+    Specs(#[from] SpecError),
+    /// A magnet could not be found or read.
+    #[error(transparent)]
+    Magnet(#[from] MagnetError),
+    /// The analysis could not produce α.
+    #[error("analysing {path}: {source}")]
+    Analysis {
+        /// The input.
+        path: String,
+        /// Why.
+        source: AnalysisError,
+    },
+}
+
+/// What to analyse and with what.
+#[derive(Debug, Clone, Default)]
+pub struct InputRequest {
+    /// A run directory or a CSV file.
+    pub input: PathBuf,
+    /// Re-convert a run with this calibration (or use it for a CSV log).
+    pub calibration: Option<PathBuf>,
+    /// Grade spec table; default: the built-in one.
+    pub specs: Option<PathBuf>,
+    /// The magnet, for CSV input (demo part id or TOML file).
+    pub magnet: Option<String>,
+    /// CSV column mapping, ours → theirs.
+    pub columns: Vec<(String, String)>,
+    /// For CSV input: the probe's sensitivity coefficient, %/°C.
+    pub probe_tc_pct_per_c: Option<f64>,
+}
+
+/// An analysed input.
+pub struct Analyzed {
+    /// The series as loaded and converted.
+    pub series: Series,
+    /// Everything the analysis needed besides the series.
+    pub context: Context,
+    /// A title for reports: the magnet and the run.
+    pub title: String,
+}
+
+/// The spec table asked for, or the built-in one.
+pub fn spec_table(path: Option<&Path>) -> Result<SpecTable, SpecError> {
+    match path {
+        Some(p) => SpecTable::load(p),
+        None => Ok(SpecTable::builtin()),
+    }
+}
+
+/// The file or folder name of `p`.
+pub fn file_name(p: &Path) -> String {
+    p.file_name()
+        .map(|f| f.to_string_lossy().into_owned())
+        .unwrap_or_default()
+}
+
+/// Load and convert the input, without analysing it yet.
+pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
+    let specs = spec_table(req.specs.as_deref())?;
+    let calibration = req
+        .calibration
+        .as_deref()
+        .map(Calibration::load)
+        .transpose()?;
+    let (series, calibration, magnet, title) = if req.input.is_dir() {
+        let (s, src) = dataset::load_run(&req.input, calibration)?;
+        let run_name = file_name(&req.input);
+        let title = src
+            .magnet
+            .as_ref()
+            .map(|m| format!("{} ({}), run {run_name}", m.id, m.grade))
+            .unwrap_or(run_name);
+        (s, src.calibration, src.magnet, title)
+    } else {
+        let opts = CsvOptions {
+            rename: req.columns.iter().cloned().collect(),
+            probe_tc_pct_per_c: req.probe_tc_pct_per_c,
+        };
+        let s = dataset::load_csv(&req.input, &opts)?;
+        let m = req
+            .magnet
+            .as_deref()
+            .map(magnets::resolve)
+            .transpose()?
+            .map(|m| m.info);
+        let title = m
+            .as_ref()
+            .map(|m| format!("{} ({})", m.id, m.grade))
+            .unwrap_or_else(|| file_name(&req.input));
+        (s, calibration, m, title)
+    };
+    let context = Context {
+        calibration,
+        magnet,
+        specs,
+        default_tc_gain_pct: DEFAULT_TC_GAIN_PCT,
+    };
+    Ok(Analyzed {
+        series,
+        context,
+        title,
+    })
+}
+
+impl Analyzed {
+    /// Run the analysis.
+    pub fn analyze(&self, input: &Path) -> Result<Analysis, JobError> {
+        analyze(&self.series, &self.context).map_err(|source| JobError::Analysis {
+            path: input.display().to_string(),
+            source,
+        })
+    }
+}
+
+/// Load, convert and analyse the input.
+pub fn load_and_analyze(req: &InputRequest) -> Result<(Analyzed, Analysis), JobError> {
+    let loaded = load(req)?;
+    let analysis = loaded.analyze(&req.input)?;
+    Ok((loaded, analysis))
+}

@@ -1,0 +1,99 @@
+//! Analyse a lot: every run analysed (those that cannot be are listed, not fatal), the
+//! summary with robust outliers, and `lot.csv`, `lot.html` and the lot plot in a new folder.
+
+use std::path::{Path, PathBuf};
+
+use super::analyze_input::{load_and_analyze, spec_table, InputRequest, JobError};
+use crate::lot::{self, LotRow, LotSummary};
+use crate::output::{self, OutputError};
+use crate::plots::{self, PlotError};
+use crate::report;
+
+/// The lot job failed.
+#[derive(Debug, thiserror::Error)]
+pub enum LotError {
+    /// None of the runs could be analysed.
+    #[error("none of the {0} runs could be analysed")]
+    Empty(usize),
+    /// A run's metadata, the spec table, or the like.
+    #[error(transparent)]
+    Job(#[from] JobError),
+    /// Reading a run's metadata failed.
+    #[error(transparent)]
+    RunDir(#[from] crate::run_dir::RunDirError),
+    /// Writing an output failed.
+    #[error(transparent)]
+    Output(#[from] OutputError),
+    /// The plot failed.
+    #[error(transparent)]
+    Plot(#[from] PlotError),
+}
+
+/// What the lot job did.
+pub struct LotOutcome {
+    /// The summary.
+    pub summary: LotSummary,
+    /// Runs left out, with why.
+    pub skipped: Vec<(PathBuf, String)>,
+    /// Files written.
+    pub written: Vec<PathBuf>,
+}
+
+/// Analyse `runs` into `out` (a new folder unless `force`).
+pub fn run(
+    runs: &[PathBuf],
+    out: &Path,
+    specs: Option<&Path>,
+    force: bool,
+) -> Result<LotOutcome, LotError> {
+    output::refuse_existing([out.to_path_buf()], force)?;
+    let mut rows = Vec::new();
+    let mut grades = Vec::new();
+    let mut skipped = Vec::new();
+    for run in runs {
+        let req = InputRequest {
+            input: run.clone(),
+            specs: specs.map(Path::to_path_buf),
+            ..InputRequest::default()
+        };
+        let analysis = match load_and_analyze(&req) {
+            Ok((_, a)) => a,
+            Err(e) => {
+                skipped.push((run.clone(), e.to_string()));
+                continue;
+            }
+        };
+        let meta = crate::run_dir::read_meta(run)?;
+        grades.push(meta.magnet.grade.clone());
+        rows.push(LotRow::new(&meta.magnet.id, &meta.magnet.grade, &analysis));
+    }
+    if rows.is_empty() {
+        return Err(LotError::Empty(runs.len()));
+    }
+    let summary = lot::summarise(rows);
+    let table = spec_table(specs).map_err(JobError::from)?;
+    let spec = grades.first().and_then(|g| table.find(g));
+    let title = format!(
+        "{} magnets{}",
+        summary.rows.len(),
+        spec.map(|g| format!(", grade {}", g.grade))
+            .unwrap_or_default()
+    );
+    std::fs::create_dir_all(out).map_err(|source| OutputError::Io {
+        path: out.display().to_string(),
+        source,
+    })?;
+    let csv_path = out.join("lot.csv");
+    output::write(&csv_path, lot::to_csv(&summary).as_bytes(), force)?;
+    let figure = plots::lot_figure(&out.join("lot"), &summary, spec, &title, force)?;
+    let html_path = out.join("lot.html");
+    let html = report::lot_html(&summary, &title, &figure);
+    output::write(&html_path, html.as_bytes(), force)?;
+    let mut written = vec![csv_path, html_path];
+    written.extend(figure.files());
+    Ok(LotOutcome {
+        summary,
+        skipped,
+        written,
+    })
+}

@@ -1,0 +1,10 @@
+//! The workflows a user runs, as library functions the CLI only calls: analyse an input (a
+//! run directory or a CSV log), write a run's report, analyse a lot, and choose the
+//! calibration a recording converts with.
+
+pub mod analyze_input;
+pub mod calibration_policy;
+pub mod lot;
+pub mod report;
+
+pub use analyze_input::{load_and_analyze, Analyzed, InputRequest, JobError};

@@ -1,0 +1,50 @@
+//! Report a run: analyse it and write every output, or — when the record cannot be
+//! analysed — its time series and a plain statement of why.
+
+use std::path::{Path, PathBuf};
+
+use super::analyze_input::{load, InputRequest, JobError};
+use crate::report::{self, ReportError};
+
+/// The report job failed.
+#[derive(Debug, thiserror::Error)]
+pub enum RunReportError {
+    /// Loading the run or the spec table failed.
+    #[error(transparent)]
+    Job(#[from] JobError),
+    /// Writing failed.
+    #[error(transparent)]
+    Report(#[from] ReportError),
+}
+
+/// What was written, and why the analysis was left out if it was.
+pub struct RunReport {
+    /// Files written.
+    pub written: Vec<PathBuf>,
+    /// Why the record could not be analysed.
+    pub not_analysed: Option<String>,
+}
+
+/// Report the run in `dir`.
+pub fn run(dir: &Path, specs: Option<&Path>, force: bool) -> Result<RunReport, RunReportError> {
+    let req = InputRequest {
+        input: dir.to_path_buf(),
+        specs: specs.map(Path::to_path_buf),
+        ..InputRequest::default()
+    };
+    let loaded = load(&req)?;
+    Ok(match loaded.analyze(dir) {
+        Ok(a) => RunReport {
+            written: report::write_all(dir, &loaded.series, &a, &loaded.title, force)?,
+            not_analysed: None,
+        },
+        Err(JobError::Analysis { source, .. }) => {
+            let why = source.to_string();
+            RunReport {
+                written: report::write_unanalysed(dir, &loaded.series, &loaded.title, &why, force)?,
+                not_analysed: Some(why),
+            }
+        }
+        Err(e) => return Err(e.into()),
+    })
+}

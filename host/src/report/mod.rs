@@ -1,0 +1,102 @@
+//! Reports beside a run: the plots, a self-contained HTML page (plots embedded as SVG, no
+//! network), a Markdown version and the machine-readable `analysis.json`; and the report of a
+//! record the analysis could not use. Every file goes through the output policy: nothing is
+//! replaced without `force`, nothing half-written is left behind.
+
+pub mod lot_page;
+pub mod markdown;
+pub mod notes;
+pub mod page;
+pub mod run_page;
+
+use std::path::{Path, PathBuf};
+
+pub use lot_page::lot_html;
+pub use markdown::markdown;
+pub use notes::{METHOD_NOTES, SAFETY_NOTES};
+
+use crate::analysis::dataset::Series;
+use crate::analysis::Analysis;
+use crate::output::{self, OutputError};
+use crate::plots::{self, PlotError};
+use crate::run_dir;
+use page::Page;
+
+/// Writing the report failed.
+#[derive(Debug, thiserror::Error)]
+pub enum ReportError {
+    /// A file is already there, or writing failed.
+    #[error(transparent)]
+    Output(#[from] OutputError),
+    /// A plot failed.
+    #[error(transparent)]
+    Plot(#[from] PlotError),
+}
+
+/// Report file names.
+pub const HTML_FILE: &str = "report.html";
+/// Markdown report.
+pub const MD_FILE: &str = "report.md";
+/// Machine-readable analysis.
+pub const JSON_FILE: &str = "analysis.json";
+
+/// Write every output of a run; returns the files written.
+pub fn write_all(
+    dir: &Path,
+    series: &Series,
+    a: &Analysis,
+    title: &str,
+    force: bool,
+) -> Result<Vec<PathBuf>, ReportError> {
+    let docs = [JSON_FILE, MD_FILE, HTML_FILE].map(|f| dir.join(f));
+    output::refuse_existing(docs.clone(), force)?;
+    let figures = plots::run_figures(dir, series, a, title, force)?;
+    let meta = run_dir::read_meta(dir).ok();
+    let json = serde_json::to_string_pretty(a).expect("analysis serializes");
+    output::write(&docs[0], json.as_bytes(), force)?;
+    output::write(
+        &docs[1],
+        markdown(a, meta.as_ref(), title).as_bytes(),
+        force,
+    )?;
+    let html = run_page::html(a, meta.as_ref(), title, &figures);
+    output::write(&docs[2], html.as_bytes(), force)?;
+    let mut written: Vec<PathBuf> = figures.iter().flat_map(|f| f.files()).collect();
+    written.extend(docs);
+    Ok(written)
+}
+
+/// The report of a record the analysis could not use: the time series, the run's facts and,
+/// plainly, what could not be computed and why.
+pub fn write_unanalysed(
+    dir: &Path,
+    series: &Series,
+    title: &str,
+    reason: &str,
+    force: bool,
+) -> Result<Vec<PathBuf>, ReportError> {
+    let (md_path, html_path) = (dir.join(MD_FILE), dir.join(HTML_FILE));
+    output::refuse_existing([md_path.clone(), html_path.clone()], force)?;
+    let figure = plots::timeline_figure(&dir.join("timeline"), series, title, force)?;
+    let meta = run_dir::read_meta(dir).ok();
+    let facts = notes::facts(meta.as_ref());
+    let mut md = format!("# Remanent report — {title}\n\n**Not analysed:** {reason}\n\n");
+    for (k, v) in &facts {
+        md.push_str(&format!("- **{k}**: {v}\n"));
+    }
+    md.push_str("\n![time series](timeline.png)\n\n## Safety\n\n");
+    for n in SAFETY_NOTES {
+        md.push_str(&format!("- {n}\n"));
+    }
+    output::write(&md_path, md.as_bytes(), force)?;
+    let mut page = Page::new("report", title);
+    page.p(&format!("Not analysed: {reason}"))
+        .facts(&facts)
+        .figure("timeline", figure.svg_element())
+        .h2("Safety")
+        .list(SAFETY_NOTES);
+    output::write(&html_path, page.finish().as_bytes(), force)?;
+    let mut written = figure.files().to_vec();
+    written.extend([md_path, html_path]);
+    Ok(written)
+}

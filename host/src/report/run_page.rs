@@ -1,0 +1,110 @@
+//! The HTML report of a run: the verdict, the facts, the results, the checks with their
+//! reasons, the notes, the budgets, the plots (SVG, embedded), the method and the safety notes.
+
+use super::notes::{budget_rows, facts, METHOD_NOTES, SAFETY_NOTES};
+use super::page::{esc, Page};
+use crate::analysis::Analysis;
+use crate::plots::Figure;
+use crate::run_dir::RunMeta;
+use crate::units;
+
+/// The results table's rows.
+fn results(a: &Analysis) -> Vec<(String, String)> {
+    let mut rows = vec![
+        (
+            "α(Br), mean 20 °C … top of range".to_string(),
+            units::alpha_with_u95(a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
+        ),
+        (
+            "fitted range".into(),
+            format!(
+                "{} ({}, {} points)",
+                units::range_c(a.fit_range_c),
+                a.fit_method,
+                a.fit_points
+            ),
+        ),
+        (
+            "tangent at 20 °C, quadratic term".into(),
+            format!(
+                "{:+.4} %/°C, {:+.6} %/°C²",
+                a.alpha_at_20c_pct_per_c, a.gamma_pct_per_c2
+            ),
+        ),
+        (
+            "thermal lag".into(),
+            a.lag_time_constant_s
+                .map(|t| format!("τ = {t:.1} s"))
+                .unwrap_or_else(|| "not estimated".into()),
+        ),
+        (
+            "irreversible loss".into(),
+            match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
+                (Some(l), Some(u)) => format!(
+                    "{} after {:.1} °C",
+                    units::loss_with_u95(l, u),
+                    a.max_magnet_temp_c
+                ),
+                _ => "not computed".into(),
+            },
+        ),
+    ];
+    if let Some(b) = a.br {
+        rows.push((
+            "Br from geometry".into(),
+            format!(
+                "{:.3} ± {:.3} T (k = 2); {:+.2} % per +0.1 mm gap",
+                b.br_t, b.br_u95_t, b.pct_per_0_1_mm
+            ),
+        ));
+    }
+    rows.push(("material family".into(), a.material_family.clone()));
+    rows
+}
+
+/// The page.
+pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure]) -> String {
+    let mut page = Page::new("report", title);
+    let v = a.verdict;
+    page.raw(&format!("<p class=\"v {}\">Verdict: {v}</p>", v.word()))
+        .facts(&facts(meta))
+        .h2("Results")
+        .facts(&results(a))
+        .h2("Verdict and reasons");
+    let mut checks = String::from("<table><tr><th>check</th><th>outcome</th><th>reason</th></tr>");
+    for c in &a.checks {
+        let o = c.outcome.word();
+        checks.push_str(&format!(
+            "<tr><td>{}</td><td class=\"{o}\">{o}</td><td>{}</td></tr>",
+            esc(&c.what),
+            esc(&c.reason)
+        ));
+    }
+    page.raw(&checks).raw("</table>");
+    for n in &a.notes {
+        page.p(&format!("Note: {n}"));
+    }
+    for (name, lines) in [
+        ("α (%/°C)", &a.alpha_budget),
+        ("irreversible loss (%)", &a.loss_budget),
+    ] {
+        if lines.is_empty() {
+            continue;
+        }
+        let rows: Vec<Vec<String>> = budget_rows(lines)
+            .into_iter()
+            .map(|(s, k, u)| vec![s, k, u])
+            .collect();
+        page.h2(&format!("Uncertainty budget: {name}"))
+            .table(&["source", "type", "standard uncertainty"], &rows);
+    }
+    page.h2("Plots");
+    for f in figures {
+        page.figure(&f.name, f.svg_element());
+    }
+    page.h2("Method")
+        .list(METHOD_NOTES)
+        .h2("Safety")
+        .list(SAFETY_NOTES);
+    page.finish()
+}

@@ -1,0 +1,49 @@
+//! The one place quantities become text: how many decimals each quantity gets and how its
+//! unit and uncertainty are written. Reports, summaries and tables call these, so another
+//! display unit or precision is a change here alone.
+
+/// α with its expanded uncertainty: `-0.1144 ± 0.0021 %/°C (k = 2)`.
+pub fn alpha_with_u95(alpha_pct_per_c: f64, u95: f64) -> String {
+    format!("{alpha_pct_per_c:+.4} ± {u95:.4} %/°C (k = 2)")
+}
+
+/// Irreversible loss with its expanded uncertainty: `0.123 ± 0.010 % (k = 2)`.
+pub fn loss_with_u95(loss_pct: f64, u95: f64) -> String {
+    format!("{loss_pct:.3} ± {u95:.3} % (k = 2)")
+}
+
+/// A temperature range: `21.3 … 99.8 °C`.
+pub fn range_c(r: [f64; 2]) -> String {
+    format!("{:.1} … {:.1} °C", r[0], r[1])
+}
+
+/// A temperature: `99.8 °C`.
+pub fn temp_c(t: f64) -> String {
+    format!("{t:.1} °C")
+}
+
+/// A standard uncertainty in a budget table (in the budget's own unit).
+pub fn uncertainty(u: f64) -> String {
+    format!("{u:.5}")
+}
+
+/// A count with its noun, singular or plural: `1 gap`, `3 gaps`.
+pub fn count(n: u64, singular: &str, plural: &str) -> String {
+    format!("{n} {}", if n == 1 { singular } else { plural })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn quantities_carry_their_units_and_counts_agree_with_their_nouns() {
+        assert_eq!(
+            alpha_with_u95(-0.11436, 0.0021),
+            "-0.1144 ± 0.0021 %/°C (k = 2)"
+        );
+        assert_eq!(range_c([21.26, 99.84]), "21.3 … 99.8 °C");
+        assert_eq!(count(1, "gap", "gaps"), "1 gap");
+        assert_eq!(count(0, "gap", "gaps"), "0 gaps");
+    }
+}
