@@ -38,3 +38,30 @@ pub fn flux_mt(code: i16, probe_c: f64, hall: &HallCalibration) -> f64 {
 pub fn hall_saturated(code: i16) -> bool {
     adc::saturated(code)
 }
+
+/// One sample's raw codes in physical units.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Converted {
+    /// Thermocouple (hot junction), °C; `None` on a converter fault.
+    pub temp_c: Option<f64>,
+    /// Converter's cold junction, °C.
+    pub cold_junction_c: f64,
+    /// Probe temperature, °C; `None` with the thermistor open or shorted.
+    pub probe_c: Option<f64>,
+    /// Flux density, mT; `None` without a probe temperature.
+    pub flux_mt: Option<f64>,
+    /// The Hall code sits at a rail (the field is beyond the range).
+    pub hall_saturated: bool,
+}
+
+/// Convert a sample's codes with `cal`: the one place raw readings become °C and mT.
+pub fn convert(hall_code: i16, probe_code: i16, word: ThermoWord, cal: &Calibration) -> Converted {
+    let probe_c = probe_c(probe_code, &cal.ntc);
+    Converted {
+        temp_c: thermocouple_c(word, cal),
+        cold_junction_c: cold_junction_c(word),
+        probe_c,
+        flux_mt: probe_c.map(|tp| flux_mt(hall_code, tp, &cal.hall)),
+        hall_saturated: hall_saturated(hall_code),
+    }
+}

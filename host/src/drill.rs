@@ -5,11 +5,16 @@
 use std::io::{Read, Write};
 use std::time::{Duration, Instant};
 
-use remanent_protocol::{Command, DeviceMsg, Drill, ResetCause, RunState};
+use remanent_protocol::{Command, Drill, ResetCause, RunState};
 
+use crate::calibration::Calibration;
+use crate::link::acquisition::{Acquisition, Event};
 use crate::link::words::{describe_boot, describe_refusal};
-use crate::link::{LinkError, Session};
+use crate::link::LinkError;
 use crate::selftest::Step;
+
+/// The link may be quiet this long while the device resets.
+const SILENCE: Duration = Duration::from_secs(15);
 
 /// What a drill must lead to.
 fn expected_reset(drill: Drill) -> ResetCause {
@@ -20,55 +25,34 @@ fn expected_reset(drill: Drill) -> ResetCause {
     }
 }
 
-/// Read until `until` holds for a message or `timeout` passes (heartbeats on the way).
-fn read_until<P: Read + Write>(
-    s: &mut Session<P>,
-    timeout: Duration,
-    mut until: impl FnMut(&DeviceMsg) -> bool,
-) -> Result<Option<DeviceMsg>, LinkError> {
-    let start = Instant::now();
-    let mut beat = Instant::now();
-    while start.elapsed() < timeout {
-        if beat.elapsed() > Duration::from_millis(500) {
-            s.send(Command::Heartbeat)?;
-            beat = Instant::now();
-        }
-        for m in s.read()?.frames.into_iter().flatten() {
-            if until(&m) {
-                return Ok(Some(m));
-            }
-        }
-    }
-    Ok(None)
-}
-
 /// Run `drill` on the device at `port`: heat, fail, and check the way back.
-pub fn run<P: Read + Write>(port: P, drill: Drill) -> Result<Vec<Step>, LinkError> {
-    let mut s = Session::new(port);
-    let hello = s.handshake(Duration::from_secs(10), &mut |_| {})?;
+pub fn run<P: Read + Write>(
+    port: P,
+    calibration: Calibration,
+    drill: Drill,
+) -> Result<Vec<Step>, LinkError> {
+    let (mut s, hello, _) = Acquisition::connect(port, calibration, SILENCE)?;
     let mut steps = Vec::new();
     if hello.boot.reset != ResetCause::PowerOn {
         s.send(Command::ClearFault)?;
     }
     // heat gently: 5 K above the reading, limit 20 K above
-    let first = read_until(
-        &mut s,
+    let first = s.wait_for(
         Duration::from_secs(10),
-        |m| matches!(m, DeviceMsg::Sample(x) if x.thermo.fault().is_none()),
+        |e| matches!(e, Event::Sample { placed, .. } if placed.sample.thermo.fault().is_none()),
     )?;
-    let Some(DeviceMsg::Sample(first)) = first else {
+    let Some(Event::Sample { placed, .. }) = first else {
         return Err(LinkError::NoAnswer("samples"));
     };
-    let t0 = first.thermo.tc_tenth_c();
+    let t0 = placed.sample.thermo.tc_tenth_c();
     s.send(Command::Manual {
         setpoint_tenth_c: t0 + 50,
         limit_tenth_c: t0 + 200,
     })?;
-    let heating = read_until(
-        &mut s,
-        Duration::from_secs(10),
-        |m| matches!(m, DeviceMsg::Sample(x) if x.duty > 0 && x.status.heater_enabled()),
-    )?;
+    let heating = s.wait_for(Duration::from_secs(10), |e| {
+        matches!(e, Event::Sample { placed, .. }
+            if placed.sample.duty > 0 && placed.sample.status.heater_enabled())
+    })?;
     steps.push(Step {
         name: "heater on before the drill",
         passed: heating.is_some(),
@@ -81,20 +65,19 @@ pub fn run<P: Read + Write>(port: P, drill: Drill) -> Result<Vec<Step>, LinkErro
     let id = s.send(Command::Drill(drill))?;
     let sent = Instant::now();
     // a board that refuses drills answers at once
-    let refused = read_until(
-        &mut s,
+    let refused = s.wait_for(
         Duration::from_millis(300),
-        |m| matches!(m, DeviceMsg::Refused(r) if r.id == id),
+        |e| matches!(e, Event::Reply { id: i, result: Err(_) } if *i == id),
     )?;
-    if let Some(DeviceMsg::Refused(r)) = refused {
+    if let Some(Event::Reply { result: Err(r), .. }) = refused {
         steps.push(Step {
             name: "drill carried out",
             passed: false,
-            detail: describe_refusal(&r.reason),
+            detail: describe_refusal(&r),
         });
         return Ok(steps);
     }
-    let again = s.handshake(Duration::from_secs(15), &mut |_| {})?;
+    let again = s.rehandshake(Duration::from_secs(15))?;
     let back_s = sent.elapsed().as_secs_f64();
     let want = expected_reset(drill);
     steps.push(Step {
@@ -105,17 +88,37 @@ pub fn run<P: Read + Write>(port: P, drill: Drill) -> Result<Vec<Step>, LinkErro
             describe_boot(&again.boot).unwrap_or_else(|| "a plain power-on (wrong)".into())
         ),
     });
-    let latched = read_until(
-        &mut s,
+    steps.push(comes_up_latched(&mut s)?);
+    let id = s.send(Command::ClearFault)?;
+    let cleared = s.wait_for(
         Duration::from_secs(5),
-        |m| matches!(m, DeviceMsg::Beacon(b) if b.state == RunState::Faulted),
-    )?;
-    let off = read_until(
-        &mut s,
-        Duration::from_secs(5),
-        |m| matches!(m, DeviceMsg::Sample(x) if x.duty == 0 && !x.status.heater_enabled() && x.status.fault_latched()),
+        |e| matches!(e, Event::Reply { id: i, result: Ok(()) } if *i == id),
     )?;
     steps.push(Step {
+        name: "cleared near ambient",
+        passed: cleared.is_some(),
+        detail: if cleared.is_some() {
+            "cleared".into()
+        } else {
+            "clear refused".into()
+        },
+    });
+    Ok(steps)
+}
+
+/// After the reset: the state is latched and the samples show the heater off.
+fn comes_up_latched<P: Read + Write>(s: &mut Acquisition<P>) -> Result<Step, LinkError> {
+    let latched = s.wait_for(
+        Duration::from_secs(5),
+        |e| matches!(e, Event::Beacon(b) if b.state == RunState::Faulted),
+    )?;
+    let off = s.wait_for(Duration::from_secs(5), |e| {
+        matches!(e, Event::Sample { placed, .. } if {
+            let x = placed.sample;
+            x.duty == 0 && !x.status.heater_enabled() && x.status.fault_latched()
+        })
+    })?;
+    Ok(Step {
         name: "comes up latched, heater off",
         passed: latched.is_some() && off.is_some(),
         detail: format!(
@@ -131,21 +134,5 @@ pub fn run<P: Read + Write>(port: P, drill: Drill) -> Result<Vec<Step>, LinkErro
                 "not seen off (wrong)"
             }
         ),
-    });
-    let id = s.send(Command::ClearFault)?;
-    let cleared = read_until(
-        &mut s,
-        Duration::from_secs(5),
-        |m| matches!(m, DeviceMsg::Ack(a) if a.id == id),
-    )?;
-    steps.push(Step {
-        name: "cleared near ambient",
-        passed: cleared.is_some(),
-        detail: if cleared.is_some() {
-            "cleared".into()
-        } else {
-            "clear refused".into()
-        },
-    });
-    Ok(steps)
+    })
 }

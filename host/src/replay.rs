@@ -8,7 +8,8 @@ use remanent_protocol::decoder::DeviceDecoder;
 use remanent_protocol::{DeviceMsg, FrameError};
 
 use crate::calibration::Calibration;
-use crate::frame_log::{FrameLog, Logged};
+use crate::frame_log;
+use crate::link::acquisition::{Event, Ingest};
 use crate::run_dir::{self, Counts, RunDirError, RunWriter, RAW_FILE};
 
 /// Decode `from/raw.bin` into the new run directory `to`; returns the counts.
@@ -28,19 +29,21 @@ pub fn replay(
         path: raw_path.display().to_string(),
         source,
     })?;
+    let mut ingest = Ingest::new(meta.calibration);
     let mut w = RunWriter::create(to, meta)?;
     w.raw(&raw)?;
     let mut decoder = DeviceDecoder::for_device_msgs();
     let mut frames: Vec<Result<DeviceMsg, FrameError>> = Vec::new();
     decoder.feed(&raw, |f| frames.push(f));
-    let mut log = FrameLog::default();
     let mut last_t = None;
     for f in frames {
-        if let Logged::Sample { placed, .. } = log.log(&mut w, f, last_t)? {
+        let e = ingest.frame(f);
+        frame_log::log(&mut w, &e, last_t)?;
+        if let Event::Sample { placed, .. } = &e {
             last_t = Some(placed.device_time_s);
         }
     }
-    log.close(&mut w);
+    frame_log::close(&ingest.timeline, &mut w);
     let counts = w.meta.counts.clone();
     w.finish(&format!("replayed from {}", from.display()))?;
     Ok(counts)

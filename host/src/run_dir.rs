@@ -11,7 +11,7 @@ use remanent_protocol::{DeviceHello, SafetyLimits};
 use serde::{Deserialize, Serialize};
 
 use crate::calibration::Calibration;
-use crate::conversion;
+use crate::conversion::Converted;
 use crate::link::PlacedSample;
 use crate::magnets::MagnetInfo;
 use crate::profiles::ProfileSpec;
@@ -228,13 +228,11 @@ impl RunWriter {
     pub fn sample(
         &mut self,
         p: &PlacedSample,
+        c: &Converted,
         setpoint_c: Option<f64>,
-    ) -> Result<ConvertedRow, RunDirError> {
-        let cal = &self.meta.calibration;
+    ) -> Result<(), RunDirError> {
         let s = &p.sample;
-        let temp_c = conversion::thermocouple_c(s.thermo, cal);
-        let probe_c = conversion::probe_c(s.probe_code, &cal.ntc);
-        let flux_mt = probe_c.map(|pc| conversion::flux_mt(s.hall_code, pc, &cal.hall));
+        let (temp_c, probe_c, flux_mt) = (c.temp_c, c.probe_c, c.flux_mt);
         let fault = match s.thermo.fault() {
             None => "",
             Some(remanent_protocol::thermo_word::ThermoFault::Open) => "open",
@@ -256,18 +254,14 @@ impl RunWriter {
             s.status.fault_latched() as u8,
             fault,
             opt(temp_c, 3),
-            conversion::cold_junction_c(s.thermo),
+            c.cold_junction_c,
             opt(probe_c, 3),
             opt(flux_mt, 4),
             opt(setpoint_c, 1),
         )
         .map_err(io_err(&self.dir))?;
         self.meta.counts.samples += 1;
-        Ok(ConvertedRow {
-            temp_c,
-            probe_c,
-            flux_mt,
-        })
+        Ok(())
     }
 
     /// An event line.
@@ -316,17 +310,6 @@ impl RunWriter {
         self.flush()?;
         Ok(self.dir)
     }
-}
-
-/// Converted values of one row.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct ConvertedRow {
-    /// Thermocouple, °C.
-    pub temp_c: Option<f64>,
-    /// Probe, °C.
-    pub probe_c: Option<f64>,
-    /// Flux density, mT.
-    pub flux_mt: Option<f64>,
 }
 
 /// Read a run's metadata.

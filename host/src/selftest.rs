@@ -1,18 +1,27 @@
-//! The bench self-test: the device answers, every sensor reads sensibly, the heater heats,
-//! and an injected fault drives the heater off within one control period and latches until
-//! cleared. Run it after building or rewiring a rig (and in CI against the emulated board).
+//! The bench self-test: why the device last started, the device answers, every sensor reads
+//! sensibly, the heater heats, and an injected fault drives the heater off within one control
+//! period and latches until cleared. Run it after building or rewiring a rig (and in CI
+//! against the emulated board). It talks to the device through the acquisition engine.
 
 use std::io::{Read, Write};
 use std::time::Duration;
 
-use remanent_protocol::{Command, DeviceHello, DeviceMsg, Fault, RefuseReason, RunState, Sample};
+use remanent_protocol::{Command, DeviceHello, Fault, RefuseReason, RunState, Sample};
 
 use crate::calibration::Calibration;
-use crate::conversion;
-use crate::link::{LinkError, Session, Timeline};
+use crate::conversion::Converted;
+use crate::link::acquisition::{Acquisition, Event};
+use crate::link::words::{describe_boot, describe_refusal};
+use crate::link::LinkError;
 
 /// Steps a complete self-test reports.
 pub const STEPS: usize = 7;
+/// The heating step raises the fixture this far above its start, K.
+pub const HEAT_BY_K: f64 = 8.0;
+/// The run limit sits this far above the heating target, K.
+const LIMIT_ABOVE_TARGET_K: f64 = 15.0;
+/// The link counts as lost after this long without a byte.
+const SILENCE: Duration = Duration::from_secs(5);
 
 /// One step's result.
 #[derive(Debug, Clone, PartialEq)]
@@ -25,43 +34,44 @@ pub struct Step {
     pub detail: String,
 }
 
+/// A sample with its converted values and device time.
+#[derive(Debug, Clone, Copy)]
+struct Seen {
+    sample: Sample,
+    values: Converted,
+    time_s: f64,
+}
+
 struct Probe<P> {
-    s: Session<P>,
-    timeline: Timeline,
-    cal: Calibration,
+    acq: Acquisition<P>,
     replies: Vec<(u16, Result<(), RefuseReason>)>,
     faults: Vec<(Fault, f64)>,
     states: Vec<RunState>,
 }
 
 impl<P: Read + Write> Probe<P> {
-    /// Read until `until` says stop or `max_samples` samples went by; heartbeats on the way.
+    /// Read until `until` says stop or `max_samples` samples went by.
     fn watch(
         &mut self,
         max_samples: usize,
-        mut until: impl FnMut(&Sample, f64) -> bool,
-    ) -> Result<Option<(Sample, f64)>, LinkError> {
+        mut until: impl FnMut(&Seen) -> bool,
+    ) -> Result<Option<Seen>, LinkError> {
         let mut seen = 0;
         while seen < max_samples {
-            let got = self.s.read()?;
-            for f in got.frames.into_iter().flatten() {
-                match f {
-                    DeviceMsg::Beacon(b) => self.timeline.beacon(b),
-                    DeviceMsg::Ack(a) => self.replies.push((a.id, Ok(()))),
-                    DeviceMsg::Refused(r) => self.replies.push((r.id, Err(r.reason))),
-                    DeviceMsg::Fault(r) => {
-                        self.faults.push((r.fault, f64::from(r.time_ms) / 1000.0))
-                    }
-                    DeviceMsg::State(st) => self.states.push(st.state),
-                    DeviceMsg::Sample(smp) => {
-                        if let Some(p) = self.timeline.place(smp) {
-                            seen += 1;
-                            if seen % 4 == 0 {
-                                self.s.send(Command::Heartbeat)?;
-                            }
-                            if until(&smp, p.device_time_s) {
-                                return Ok(Some((smp, p.device_time_s)));
-                            }
+            for e in self.acq.poll()?.events {
+                match e {
+                    Event::Reply { id, result } => self.replies.push((id, result)),
+                    Event::Fault(r) => self.faults.push((r.fault, f64::from(r.time_ms) / 1000.0)),
+                    Event::State(st) => self.states.push(st.state),
+                    Event::Sample { placed, values, .. } => {
+                        seen += 1;
+                        let s = Seen {
+                            sample: placed.sample,
+                            values,
+                            time_s: placed.device_time_s,
+                        };
+                        if until(&s) {
+                            return Ok(Some(s));
                         }
                     }
                     _ => {}
@@ -83,31 +93,25 @@ impl<P: Read + Write> Probe<P> {
         max_samples: usize,
     ) -> Result<Option<Result<(), RefuseReason>>, LinkError> {
         let find = |p: &Self| p.replies.iter().find(|(i, _)| *i == id).map(|(_, r)| *r);
-        if find(self).is_none() {
-            let mut seen = 0;
-            while find(self).is_none() && seen < max_samples {
-                self.watch(1, |_, _| true)?;
-                seen += 1;
-            }
+        let mut seen = 0;
+        while find(self).is_none() && seen < max_samples {
+            self.watch(1, |_| true)?;
+            seen += 1;
         }
         Ok(find(self))
-    }
-
-    fn temp(&self, s: &Sample) -> Option<f64> {
-        conversion::thermocouple_c(s.thermo, &self.cal)
     }
 }
 
 /// Step 0: why the device last started; a latch left by a reset is cleared if it may be.
 fn start_up<P: Read + Write>(p: &mut Probe<P>, hello: &DeviceHello) -> Result<Step, LinkError> {
-    let Some(why) = crate::link::words::describe_boot(&hello.boot) else {
+    let Some(why) = describe_boot(&hello.boot) else {
         return Ok(Step {
             name: "start-up",
             passed: true,
             detail: "power-on, nothing latched".into(),
         });
     };
-    let id = p.s.send(Command::ClearFault)?;
+    let id = p.acq.send(Command::ClearFault)?;
     let reply = p.reply(id, 50)?;
     let passed = matches!(
         reply,
@@ -116,10 +120,7 @@ fn start_up<P: Read + Write>(p: &mut Probe<P>, hello: &DeviceHello) -> Result<St
     let detail = match reply {
         Some(Ok(())) => format!("{why}; cleared"),
         Some(Err(RefuseReason::NoFaultLatched)) => format!("{why}; already cleared"),
-        Some(Err(r)) => format!(
-            "{why}; not cleared: {}",
-            crate::link::words::describe_refusal(&r)
-        ),
+        Some(Err(r)) => format!("{why}; not cleared: {}", describe_refusal(&r)),
         None => format!("{why}; no answer to the clear"),
     };
     Ok(Step {
@@ -129,91 +130,67 @@ fn start_up<P: Read + Write>(p: &mut Probe<P>, hello: &DeviceHello) -> Result<St
     })
 }
 
-/// Run the self-test; the device info and each step.
-pub fn run<P: Read + Write>(
-    port: P,
-    cal: Calibration,
-) -> Result<(DeviceHello, Vec<Step>), LinkError> {
-    let mut s = Session::new(port);
-    let hello = s.handshake(Duration::from_secs(10), &mut |_| {})?;
-    let mut p = Probe {
-        s,
-        timeline: Timeline::default(),
-        cal,
-        replies: Vec::new(),
-        faults: Vec::new(),
-        states: Vec::new(),
-    };
-    let mut steps = vec![start_up(&mut p, &hello)?];
-    // 1. sensors
-    let first = p.watch(30, |_, _| true)?;
-    let Some((smp, _)) = first else {
-        steps.push(Step {
-            name: "samples arrive",
-            passed: false,
-            detail: "no samples after the handshake".into(),
-        });
-        return Ok((hello, steps));
-    };
-    let t0 = p.temp(&smp);
-    let probe = conversion::probe_c(smp.probe_code, &p.cal.ntc);
-    let flux = probe.map(|tp| conversion::flux_mt(smp.hall_code, tp, &p.cal.hall));
+/// Steps 1–3: the sensors read sensibly; the thermocouple's temperature.
+fn sensors(first: &Seen, steps: &mut Vec<Step>) -> Option<f64> {
+    let c = first.values;
+    let plausible = |t: Option<f64>| t.is_some_and(|t| (-20.0..80.0).contains(&t));
     steps.push(Step {
         name: "thermocouple",
-        passed: t0.is_some_and(|t| (-20.0..80.0).contains(&t)),
-        detail: match t0 {
-            Some(t) => format!(
-                "{t:.2} °C (cold junction {:.2} °C)",
-                conversion::cold_junction_c(smp.thermo)
-            ),
-            None => format!("fault {:?}", smp.thermo.fault()),
+        passed: plausible(c.temp_c),
+        detail: match c.temp_c {
+            Some(t) => format!("{t:.2} °C (cold junction {:.2} °C)", c.cold_junction_c),
+            None => format!("fault {:?}", first.sample.thermo.fault()),
         },
     });
     steps.push(Step {
         name: "probe thermistor",
-        passed: probe.is_some_and(|t| (-20.0..80.0).contains(&t)),
-        detail: probe
+        passed: plausible(c.probe_c),
+        detail: c
+            .probe_c
             .map(|t| format!("{t:.2} °C"))
             .unwrap_or_else(|| "open or shorted".into()),
     });
     steps.push(Step {
         name: "Hall probe",
-        passed: !conversion::hall_saturated(smp.hall_code),
-        detail: flux
-            .map(|b| format!("{b:.2} mT (code {})", smp.hall_code))
+        passed: !c.hall_saturated,
+        detail: c
+            .flux_mt
+            .map(|b| format!("{b:.2} mT (code {})", first.sample.hall_code))
             .unwrap_or_default(),
     });
-    let Some(t0) = t0 else {
-        return Ok((hello, steps));
-    };
-    // 2. heating response: 8 K above the start
-    let target = t0 + 8.0;
-    let id = p.s.send(Command::Manual {
+    c.temp_c
+}
+
+/// Step 4: the heater raises the temperature by 2 K on the way to the target.
+fn heats<P: Read + Write>(p: &mut Probe<P>, t0: f64) -> Result<(Step, f64), LinkError> {
+    let target = t0 + HEAT_BY_K;
+    let id = p.acq.send(Command::Manual {
         setpoint_tenth_c: (target * 10.0) as i16,
-        limit_tenth_c: ((target + 15.0) * 10.0) as i16,
+        limit_tenth_c: ((target + LIMIT_ABOVE_TARGET_K) * 10.0) as i16,
     })?;
-    let cal = p.cal;
-    let rose = p.watch(3000, |smp, _| {
-        conversion::thermocouple_c(smp.thermo, &cal).is_some_and(|t| t > t0 + 2.0)
-    })?;
-    steps.push(Step {
+    let rose = p.watch(3000, |s| s.values.temp_c.is_some_and(|t| t > t0 + 2.0))?;
+    let step = Step {
         name: "heater heats",
         passed: rose.is_some() && p.acked(id),
         detail: match rose {
-            Some((smp, t)) => format!(
+            Some(s) => format!(
                 "+2 K after {:.0} s at {:.0} % duty",
-                t,
-                f64::from(smp.duty) / 2.55
+                s.time_s,
+                f64::from(s.sample.duty) / 2.55
             ),
             None => "no 2 K rise within 300 s".into(),
         },
-    });
-    // 3. injected fault: heater off within one control period, latched
-    let id = p.s.send(Command::InjectFault)?;
-    let off = p.watch(20, |smp, _| {
-        smp.duty == 0 && !smp.status.heater_enabled() && smp.status.fault_latched()
+    };
+    Ok((step, target))
+}
+
+/// Step 5: an injected fault drives the heater off within one control period.
+fn fault_trips<P: Read + Write>(p: &mut Probe<P>, period_s: f64) -> Result<Step, LinkError> {
+    let id = p.acq.send(Command::InjectFault)?;
+    let off = p.watch(20, |s| {
+        let st = s.sample.status;
+        s.sample.duty == 0 && !st.heater_enabled() && st.fault_latched()
     })?;
-    let period = f64::from(hello.sensors.period_ms) / 1000.0;
     let tripped = p
         .faults
         .iter()
@@ -222,26 +199,32 @@ pub fn run<P: Read + Write>(
     // the first sample taken after the trip must already show the heater off
     // (a sample is stamped when taken: its slot plus its lateness)
     let delay = match (off, tripped) {
-        (Some((smp, t)), Some(t0)) => Some(t - t0 - f64::from(smp.status.lateness_ms()) / 1000.0),
+        (Some(s), Some(t0)) => {
+            Some(s.time_s - t0 - f64::from(s.sample.status.lateness_ms()) / 1000.0)
+        }
         _ => None,
     };
-    steps.push(Step {
+    Ok(Step {
         name: "fault drives the heater off",
-        passed: tripped.is_some() && p.acked(id) && delay.is_some_and(|d| d <= period + 1e-6),
+        passed: tripped.is_some() && p.acked(id) && delay.is_some_and(|d| d <= period_s + 1e-6),
         detail: match delay {
-            Some(d) => format!("fault reported; heater at 0 % and enable low {:.2} s later (one period is {period:.2} s)", d.max(0.0)),
+            Some(d) => format!("fault reported; heater at 0 % and enable low {:.2} s later (one period is {period_s:.2} s)", d.max(0.0)),
             None => "the heater did not turn off".into(),
         },
-    });
-    let id_refused = p.s.send(Command::Manual {
+    })
+}
+
+/// Step 6: the fault stays latched (a new setpoint is refused) until cleared.
+fn latches<P: Read + Write>(p: &mut Probe<P>, target: f64) -> Result<Step, LinkError> {
+    let id_refused = p.acq.send(Command::Manual {
         setpoint_tenth_c: (target * 10.0) as i16,
-        limit_tenth_c: ((target + 15.0) * 10.0) as i16,
+        limit_tenth_c: ((target + LIMIT_ABOVE_TARGET_K) * 10.0) as i16,
     })?;
     // wait for the device's answer itself: samples already on their way may come first
     let latched = matches!(p.reply(id_refused, 50)?, Some(Err(_)));
-    let id = p.s.send(Command::ClearFault)?;
+    let id = p.acq.send(Command::ClearFault)?;
     p.reply(id, 50)?;
-    steps.push(Step {
+    Ok(Step {
         name: "fault latches until cleared",
         passed: latched && p.acked(id),
         detail: format!(
@@ -253,8 +236,39 @@ pub fn run<P: Read + Write>(
             },
             if p.acked(id) { "accepted" } else { "refused" }
         ),
-    });
-    p.s.send(Command::Stop)?;
-    p.watch(3, |_, _| false)?;
+    })
+}
+
+/// Run the self-test; the device info and each step.
+pub fn run<P: Read + Write>(
+    port: P,
+    cal: Calibration,
+) -> Result<(DeviceHello, Vec<Step>), LinkError> {
+    let (acq, hello, _) = Acquisition::connect(port, cal, SILENCE)?;
+    let mut p = Probe {
+        acq,
+        replies: Vec::new(),
+        faults: Vec::new(),
+        states: Vec::new(),
+    };
+    let mut steps = vec![start_up(&mut p, &hello)?];
+    let Some(first) = p.watch(30, |_| true)? else {
+        steps.push(Step {
+            name: "samples arrive",
+            passed: false,
+            detail: "no samples after the handshake".into(),
+        });
+        return Ok((hello, steps));
+    };
+    let Some(t0) = sensors(&first, &mut steps) else {
+        return Ok((hello, steps));
+    };
+    let (step, target) = heats(&mut p, t0)?;
+    steps.push(step);
+    let period_s = f64::from(hello.sensors.period_ms) / 1000.0;
+    steps.push(fault_trips(&mut p, period_s)?);
+    steps.push(latches(&mut p, target)?);
+    p.acq.send(Command::Stop)?;
+    p.watch(3, |_| false)?;
     Ok((hello, steps))
 }

@@ -6,12 +6,11 @@ use std::io::{Read, Write};
 use std::sync::mpsc::Receiver;
 use std::time::{Duration, Instant};
 
-use remanent_protocol::{Command, DeviceMsg};
 use serde::Serialize;
 
 use crate::calibration::Calibration;
-use crate::conversion;
-use crate::link::{LinkError, Session, Timeline};
+use crate::link::acquisition::{Acquisition, Event};
+use crate::link::LinkError;
 use crate::lot::{median, modified_z, OUTLIER_Z};
 
 /// How readings are taken.
@@ -65,6 +64,9 @@ pub struct Reading {
     pub time_s: f64,
 }
 
+/// The link may be silent this much longer than the idle timeout before it counts as lost.
+const SILENCE_MARGIN: Duration = Duration::from_secs(10);
+
 /// Receives readings as they are taken.
 pub trait SurveyProgress {
     /// A magnet was read.
@@ -87,14 +89,12 @@ pub fn run<P: Read + Write>(
     confirm: Option<Receiver<()>>,
     progress: &mut dyn SurveyProgress,
 ) -> Result<Vec<Reading>, LinkError> {
-    let mut session = Session::new(port);
-    session.handshake(Duration::from_secs(10), &mut |_| {})?;
-    let mut timeline = Timeline::default();
+    let (mut acq, _, _) =
+        Acquisition::connect(port, opts.calibration, opts.idle_timeout + SILENCE_MARGIN)?;
     let mut window: Vec<(f64, f64, f64)> = Vec::new();
     let mut state = State::Empty;
     let mut readings = Vec::new();
     let mut last_progress = Instant::now();
-    let mut last_heartbeat = Instant::now();
     let mut pending_confirm: Option<f64> = None;
     progress.note(if confirm.is_some() {
         "place a magnet and press Enter to read it"
@@ -102,38 +102,20 @@ pub fn run<P: Read + Write>(
         "place the magnets one after another; each is read once its field is stable"
     });
     while readings.len() < opts.count {
-        if last_heartbeat.elapsed() >= Duration::from_millis(300) {
-            session.send(Command::Heartbeat)?;
-            last_heartbeat = Instant::now();
-        }
         if last_progress.elapsed() > opts.idle_timeout {
             progress.note("no new magnet for a while: ending the survey");
             break;
         }
-        for f in session.read()?.frames {
-            let msg = match f {
-                Ok(m) => m,
-                Err(_) => continue,
-            };
-            let sample = match msg {
-                DeviceMsg::Beacon(b) => {
-                    timeline.beacon(b);
-                    continue;
-                }
-                DeviceMsg::Sample(s) => s,
-                _ => continue,
-            };
-            let Some(p) = timeline.place(sample) else {
+        for e in acq.poll()?.events {
+            let Event::Sample {
+                placed: p, values, ..
+            } = e
+            else {
                 continue;
             };
-            let cal = &opts.calibration;
-            let (Some(t), Some(tp)) = (
-                conversion::thermocouple_c(sample.thermo, cal),
-                conversion::probe_c(sample.probe_code, &cal.ntc),
-            ) else {
+            let (Some(t), Some(mut b)) = (values.temp_c, values.flux_mt) else {
                 continue;
             };
-            let mut b = conversion::flux_mt(sample.hall_code, tp, &cal.hall);
             if let Some(a) = opts.alpha_pct_per_c {
                 b /= 1.0 + a / 100.0 * (t - 20.0);
             }

@@ -310,24 +310,25 @@ pub fn load_run(
         let d_txt = field(di, "heater_duty_pct")?;
         let d: f64 = d_txt.parse().map_err(|_| bad(di, d_txt))?;
         check_time(&p, line, t, &s.time_s)?;
-        let Some(tc) = conversion::thermocouple_c(word, &cal) else {
+        let c = conversion::convert(hall, probe_code, word, &cal);
+        let Some(tc) = c.temp_c else {
             s.skipped
                 .push((line, format!("thermocouple fault {:?}", word.fault())));
             continue;
         };
-        let Some(tp) = conversion::probe_c(probe_code, &cal.ntc) else {
+        let (Some(tp), Some(flux)) = (c.probe_c, c.flux_mt) else {
             s.skipped
                 .push((line, "probe thermistor open or shorted".into()));
             continue;
         };
-        if conversion::hall_saturated(hall) {
+        if c.hall_saturated {
             s.skipped
                 .push((line, "Hall reading at the converter's limit".into()));
             continue;
         }
         s.time_s.push(t);
         s.temp_c.push(tc);
-        s.flux_mt.push(conversion::flux_mt(hall, tp, &cal.hall));
+        s.flux_mt.push(flux);
         probe.push(tp);
         duty.push(d);
         setpoint.push(

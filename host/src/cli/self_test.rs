@@ -52,7 +52,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
             DrillKind::StackOverflow => remanent_protocol::Drill::StackOverflow,
         };
         eprintln!("fault drill: the heater will be switched on, then the firmware made to fail");
-        let steps = remanent::drill::run(port, drill)?;
+        let steps = remanent::drill::run(port, cal, drill)?;
         let ok = print_steps(&steps) && steps.len() == 4;
         println!("drill {}", if ok { "passed" } else { "FAILED" });
         return Ok(if ok {

@@ -1,6 +1,7 @@
 //! The serial link to a device: framing both ways, the handshake, commands with their
 //! acknowledgements, and rebuilding full sequence numbers and device times from the beacons.
 
+pub mod acquisition;
 pub mod port;
 pub mod session;
 pub mod timeline;

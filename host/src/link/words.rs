@@ -1,7 +1,9 @@
 //! Plain words for what the device reports: refusals, faults and why it last started. Every
 //! message a user reads about the device's state comes from here.
 
-use remanent_protocol::{BootReport, Fault, HeaterDrive, RefuseReason, ResetCause, VERSION};
+use remanent_protocol::{
+    BootReport, Fault, HeaterDrive, RefuseReason, ResetCause, RunState, VERSION,
+};
 
 fn c(tenth_c: i16) -> f64 {
     f64::from(tenth_c) / 10.0
@@ -114,5 +116,15 @@ pub fn describe_heater(d: &HeaterDrive) -> String {
             f64::from(*window_ms) / 1000.0,
             f64::from(*half_cycle_us) / 1000.0
         ),
+    }
+}
+
+/// The name of a run state, as events and messages show it.
+pub fn describe_state(s: RunState) -> &'static str {
+    match s {
+        RunState::Idle => "Idle",
+        RunState::Profile => "Profile",
+        RunState::Manual => "Manual",
+        RunState::Faulted => "Faulted",
     }
 }

@@ -1,0 +1,321 @@
+//! The recorder's loop: events from the acquisition written as they arrive, the profile
+//! started after the rest pre-roll through an explicit start handshake, and the record ended
+//! on completion, a fault, a user's stop or a lost link.
+
+use std::collections::VecDeque;
+use std::io::{Read, Write};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Arc;
+use std::time::{Duration, Instant};
+
+use remanent_protocol::{Command, RefuseReason, RunState};
+
+use super::{LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions};
+use crate::frame_log::{self, fault_detail};
+use crate::link::acquisition::{Acquisition, Event};
+use crate::link::words::describe_refusal;
+use crate::link::LinkError;
+use crate::run_dir::RunWriter;
+
+/// Beacons that may still say idle after the start before it is sent again (a lost start).
+const IDLE_BEACONS_BEFORE_RESEND: u32 = 3;
+/// The ramp shown is over this much device time, s.
+const RAMP_WINDOW_S: f64 = 30.0;
+/// Progress is shown this often.
+const PROGRESS_EVERY: Duration = Duration::from_millis(100);
+/// A stop is given this long to be acknowledged.
+const STOP_TIMEOUT: Duration = Duration::from_secs(3);
+
+/// Where the start of the profile stands.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Start {
+    /// Recording the rest pre-roll; nothing sent yet.
+    Resting,
+    /// The start was sent as command `id`; `idle_beacons` beacons have said idle since.
+    Sent {
+        /// The command's id.
+        id: u16,
+        /// Idle beacons seen since.
+        idle_beacons: u32,
+    },
+    /// The device runs the profile (acknowledged, or seen in its state).
+    Running,
+}
+
+pub(super) struct Recorder {
+    status: LiveStatus,
+    history: VecDeque<(f64, f64)>,
+    start_device_s: Option<f64>,
+    first_sample_s: Option<f64>,
+    nominal_s: f64,
+    stop: Arc<AtomicBool>,
+    start: Start,
+    resend: bool,
+}
+
+impl Recorder {
+    pub(super) fn new(opts: &RecordOptions) -> Self {
+        Recorder {
+            status: LiveStatus::default(),
+            history: VecDeque::new(),
+            start_device_s: None,
+            first_sample_s: None,
+            nominal_s: opts.profile.nominal_duration_s(22.0),
+            stop: opts.stop.clone(),
+            start: Start::Resting,
+            resend: false,
+        }
+    }
+
+    fn running(&self) -> bool {
+        self.start == Start::Running
+    }
+
+    fn send_start<P: Read + Write>(
+        &mut self,
+        acq: &mut Acquisition<P>,
+        opts: &RecordOptions,
+    ) -> Result<(), LinkError> {
+        let id = acq.send(Command::Start(opts.profile.to_wire()))?;
+        self.start = Start::Sent {
+            id,
+            idle_beacons: 0,
+        };
+        Ok(())
+    }
+
+    pub(super) fn run<P: Read + Write>(
+        &mut self,
+        acq: &mut Acquisition<P>,
+        w: &mut RunWriter,
+        opts: &RecordOptions,
+        progress: &mut dyn Progress,
+    ) -> Result<RecordEnd, RecordError> {
+        if opts.preroll_s > 0.0 {
+            progress.note(&format!(
+                "recording {:.0} s at rest before heating (room-temperature reference)…",
+                opts.preroll_s
+            ));
+        }
+        let mut last_update = Instant::now();
+        loop {
+            if self.stop.load(Ordering::Relaxed) {
+                progress.note("stopping: heater off…");
+                return self.stop_device(acq, w);
+            }
+            let batch = acq.poll()?;
+            w.raw(&batch.bytes)?;
+            // every event of the chunk is written, even those after the one that ends the
+            // record, so the CSV holds exactly what raw.bin holds
+            let mut ended = None;
+            for e in &batch.events {
+                if let Some(end) = self.handle(e, w, progress)? {
+                    ended.get_or_insert(end);
+                }
+            }
+            if let Some(end) = ended {
+                return Ok(end);
+            }
+            if self.resend {
+                self.resend = false;
+                w.event(None, "resent", "no answer to the profile: sent again")?;
+                self.send_start(acq, opts)?;
+            }
+            if self.start == Start::Resting && self.rest_s() >= opts.preroll_s {
+                self.send_start(acq, opts)?;
+            }
+            w.maybe_flush()?;
+            if last_update.elapsed() >= PROGRESS_EVERY {
+                progress.update(&self.status);
+                last_update = Instant::now();
+            }
+        }
+    }
+
+    pub(super) fn handle(
+        &mut self,
+        e: &Event,
+        w: &mut RunWriter,
+        progress: &mut dyn Progress,
+    ) -> Result<Option<RecordEnd>, RecordError> {
+        let t = self.history.back().map(|h| h.0);
+        frame_log::log(w, e, t)?;
+        match e {
+            Event::Rejected(_) => self.status.bad_frames += 1,
+            Event::Sample {
+                placed,
+                values,
+                missing_before,
+                ..
+            } => {
+                self.status.samples = w.meta.counts.samples;
+                self.status.gap_samples += missing_before;
+                let duty = f64::from(placed.sample.duty) / 2.55;
+                self.track(placed.device_time_s, values.temp_c, values.flux_mt, duty);
+            }
+            Event::Beacon(b) => {
+                self.status.state = Some(b.state);
+                let at = Some(f64::from(b.epoch_ms) / 1000.0);
+                return self.on_state(b.state, true, at, w, progress);
+            }
+            Event::State(st) => {
+                self.status.state = Some(st.state);
+                return self.on_state(st.state, false, t, w, progress);
+            }
+            Event::Fault(f) => {
+                self.status.fault = Some(f.fault);
+                progress.note(&format!("device fault: {}; heater off", fault_detail(f)));
+                return Ok(Some(RecordEnd::Fault(f.fault)));
+            }
+            Event::Reply { id, result } => return self.on_reply(*id, result, t, w),
+            Event::Unplaced(_) | Event::Hello(_) => {}
+        }
+        Ok(None)
+    }
+
+    /// A state from a report or (every second) from a beacon (`t`: the beacon's epoch): a lost
+    /// acknowledgement, a lost start, and a lost end all show here, so a noisy link cannot
+    /// leave the record hanging.
+    fn on_state(
+        &mut self,
+        state: RunState,
+        from_beacon: bool,
+        t: Option<f64>,
+        w: &mut RunWriter,
+        progress: &mut dyn Progress,
+    ) -> Result<Option<RecordEnd>, RecordError> {
+        if let Start::Sent { idle_beacons, .. } = &mut self.start {
+            match state {
+                RunState::Profile => {
+                    self.start = Start::Running;
+                    if from_beacon {
+                        w.event(
+                            t,
+                            "started",
+                            "profile running (acknowledgement lost on the link)",
+                        )?;
+                    }
+                }
+                RunState::Idle if from_beacon => {
+                    *idle_beacons += 1;
+                    if *idle_beacons >= IDLE_BEACONS_BEFORE_RESEND {
+                        *idle_beacons = 0;
+                        self.resend = true;
+                    }
+                }
+                _ => {}
+            }
+            return Ok(None);
+        }
+        if !self.running() {
+            return Ok(None);
+        }
+        match state {
+            RunState::Idle => {
+                if from_beacon {
+                    w.event(t, "state", "Idle (from the beacon)")?;
+                }
+                progress.note("profile finished; heater off");
+                Ok(Some(RecordEnd::Finished))
+            }
+            RunState::Faulted if from_beacon => {
+                progress.note(
+                    "the device reports a latched fault (its fault report was lost); heater off",
+                );
+                Ok(Some(RecordEnd::DeviceFaulted))
+            }
+            _ => Ok(None),
+        }
+    }
+
+    fn on_reply(
+        &mut self,
+        id: u16,
+        result: &Result<(), RefuseReason>,
+        t: Option<f64>,
+        w: &mut RunWriter,
+    ) -> Result<Option<RecordEnd>, RecordError> {
+        let ours = matches!(self.start, Start::Sent { id: sent, .. } if sent == id);
+        match result {
+            Ok(()) if ours => {
+                self.start = Start::Running;
+                w.event(t, "started", "profile accepted")?;
+            }
+            // a resent start found the first one running
+            Err(RefuseReason::Busy) if ours => self.start = Start::Running,
+            Err(r) if ours => {
+                w.event(t, "refused", &describe_refusal(r))?;
+                return Err(LinkError::Refused {
+                    command: "the profile",
+                    reason: *r,
+                }
+                .into());
+            }
+            Err(r) => w.event(t, "refused", &describe_refusal(r))?,
+            Ok(()) => {}
+        }
+        Ok(None)
+    }
+
+    /// Device time covered by samples so far, s.
+    fn rest_s(&self) -> f64 {
+        match (self.first_sample_s, self.history.back()) {
+            (Some(a), Some(b)) => b.0 - a,
+            _ => 0.0,
+        }
+    }
+
+    fn track(&mut self, t: f64, temp_c: Option<f64>, flux_mt: Option<f64>, duty_pct: f64) {
+        self.first_sample_s.get_or_insert(t);
+        let start = if self.running() {
+            *self.start_device_s.get_or_insert(t)
+        } else {
+            t
+        };
+        self.status.elapsed_s = t - start;
+        self.status.remaining_s = (self.nominal_s - self.status.elapsed_s).max(0.0);
+        self.status.temp_c = temp_c;
+        self.status.flux_mt = flux_mt;
+        self.status.duty_pct = duty_pct;
+        if let Some(tc) = temp_c {
+            self.history.push_back((t, tc));
+            while self
+                .history
+                .front()
+                .is_some_and(|h| t - h.0 > RAMP_WINDOW_S)
+            {
+                self.history.pop_front();
+            }
+            if let (Some(a), Some(b)) = (self.history.front(), self.history.back()) {
+                if b.0 - a.0 > 5.0 {
+                    self.status.ramp_c_per_min = Some((b.1 - a.1) / (b.0 - a.0) * 60.0);
+                }
+            }
+        }
+    }
+
+    fn stop_device<P: Read + Write>(
+        &mut self,
+        acq: &mut Acquisition<P>,
+        w: &mut RunWriter,
+    ) -> Result<RecordEnd, RecordError> {
+        let id = acq.send(Command::Stop)?;
+        let deadline = Instant::now() + STOP_TIMEOUT;
+        while Instant::now() < deadline {
+            let batch = acq.poll()?;
+            w.raw(&batch.bytes)?;
+            let mut acked = false;
+            for e in &batch.events {
+                if matches!(e, Event::Reply { id: a, result: Ok(()) } if *a == id) {
+                    acked = true;
+                    w.event(None, "stopped", "stop acknowledged; heater off")?;
+                }
+                let _ = self.handle(e, w, &mut Quiet)?;
+            }
+            if acked {
+                return Ok(RecordEnd::Stopped);
+            }
+        }
+        Err(LinkError::NoAnswer("stop").into())
+    }
+}
