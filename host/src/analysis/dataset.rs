@@ -4,12 +4,10 @@
 use std::collections::HashMap;
 use std::path::Path;
 
-use remanent_protocol::ThermoWord;
-
 use crate::calibration::Calibration;
 use crate::conversion;
 use crate::magnets::MagnetInfo;
-use crate::run_dir::{self, RunMeta, SAMPLES_FILE};
+use crate::run_dir::{self, RunMeta};
 
 /// Time series, equal lengths, strictly increasing time.
 #[derive(Debug, Clone, Default, PartialEq)]
@@ -257,63 +255,26 @@ pub fn load_run(
 ) -> Result<(Series, Source), InputError> {
     let meta = run_dir::read_meta(dir)?;
     let cal = calibration.unwrap_or(meta.calibration);
-    let path = dir.join(SAMPLES_FILE);
+    let (path, rows) = run_dir::read_samples(dir)?;
     let p = path.display().to_string();
-    let mut rdr = csv_reader(&path)?;
-    let headers = rdr.headers().map_err(|e| row_err(&p, e))?.clone();
-    let col = |c: &str| {
-        headers
-            .iter()
-            .position(|h| h == c)
-            .ok_or_else(|| InputError::MissingColumn {
-                path: p.clone(),
-                column: c.into(),
-                found: headers.iter().collect::<Vec<_>>().join(", "),
-            })
-    };
-    let si = headers.iter().position(|h| h == "setpoint_C");
-    let (ti, hi, pi, wi, di) = (
-        col("device_time_s")?,
-        col("hall_code")?,
-        col("probe_code")?,
-        col("thermo_word")?,
-        col("heater_duty_pct")?,
-    );
     let mut s = Series::default();
     let mut probe = Vec::new();
     let mut duty = Vec::new();
     let mut setpoint = Vec::new();
-    for (row, rec) in rdr.records().enumerate() {
-        let rec = rec.map_err(|e| row_err(&p, e))?;
-        let line = row + 2;
-        let field = |i: usize, name: &str| -> Result<&str, InputError> {
-            rec.get(i).ok_or_else(|| InputError::Row {
-                path: p.clone(),
-                line,
-                reason: format!("no `{name}` field"),
-            })
-        };
-        let bad = |i: usize, v: &str| InputError::NotANumber {
+    for row in rows {
+        let (line, r) = row.map_err(|e| InputError::Row {
             path: p.clone(),
-            line,
-            column: headers.get(i).unwrap_or("?").into(),
-            value: v.into(),
-        };
-        let t_txt = field(ti, "device_time_s")?;
-        let t: f64 = t_txt.parse().map_err(|_| bad(ti, t_txt))?;
-        let h_txt = field(hi, "hall_code")?;
-        let hall: i16 = h_txt.parse().map_err(|_| bad(hi, h_txt))?;
-        let pr_txt = field(pi, "probe_code")?;
-        let probe_code: i16 = pr_txt.parse().map_err(|_| bad(pi, pr_txt))?;
-        let w_txt = field(wi, "thermo_word")?;
-        let word = ThermoWord(u32::from_str_radix(w_txt, 16).map_err(|_| bad(wi, w_txt))?);
-        let d_txt = field(di, "heater_duty_pct")?;
-        let d: f64 = d_txt.parse().map_err(|_| bad(di, d_txt))?;
-        check_time(&p, line, t, &s.time_s)?;
-        let c = conversion::convert(hall, probe_code, word, &cal);
+            line: e.line as usize,
+            reason: e.reason,
+        })?;
+        let line = line as usize;
+        check_time(&p, line, r.device_time_s, &s.time_s)?;
+        let c = conversion::convert(r.hall_code, r.probe_code, r.thermo_word, &cal);
         let Some(tc) = c.temp_c else {
-            s.skipped
-                .push((line, format!("thermocouple fault {:?}", word.fault())));
+            s.skipped.push((
+                line,
+                format!("thermocouple fault {:?}", r.thermo_word.fault()),
+            ));
             continue;
         };
         let (Some(tp), Some(flux)) = (c.probe_c, c.flux_mt) else {
@@ -326,20 +287,16 @@ pub fn load_run(
                 .push((line, "Hall reading at the converter's limit".into()));
             continue;
         }
-        s.time_s.push(t);
+        s.time_s.push(r.device_time_s);
         s.temp_c.push(tc);
         s.flux_mt.push(flux);
         probe.push(tp);
-        duty.push(d);
-        setpoint.push(
-            si.and_then(|i| rec.get(i))
-                .and_then(|v| v.parse::<f64>().ok())
-                .unwrap_or(f64::NAN),
-        );
+        duty.push(r.heater_duty_pct);
+        setpoint.push(r.setpoint_c.unwrap_or(f64::NAN));
     }
     s.probe_c = Some(probe);
     s.duty_pct = Some(duty);
-    s.setpoint_c = si.map(|_| setpoint);
+    s.setpoint_c = Some(setpoint);
     s.faults = read_faults(&dir.join(run_dir::EVENTS_FILE));
     if s.time_s.len() < MIN_ROWS {
         return Err(InputError::TooFew {

@@ -1,18 +1,25 @@
 //! The run directory of one heat cycle: the raw byte stream exactly as received, the decoded
 //! samples as CSV (raw codes and converted values, units in the headers), events, and the
 //! metadata. Written as data arrive and flushed at least every second; never overwritten.
+//! The writer ([`writer`]) and the reader ([`reader`]) share one row type ([`row`]).
 
-use std::fs::{self, File};
-use std::io::{self, BufWriter, Write};
-use std::path::{Path, PathBuf};
-use std::time::{Duration, Instant, SystemTime};
+mod reader;
+mod row;
+mod writer;
+
+pub use reader::{read_samples, RowError};
+pub use row::SampleRow;
+pub use writer::{RunWriter, FLUSH_INTERVAL};
+
+use std::fs;
+use std::io;
+use std::path::Path;
+use std::time::SystemTime;
 
 use remanent_protocol::{DeviceHello, SafetyLimits};
 use serde::{Deserialize, Serialize};
 
 use crate::calibration::Calibration;
-use crate::conversion::Converted;
-use crate::link::PlacedSample;
 use crate::magnets::MagnetInfo;
 use crate::profiles::ProfileSpec;
 
@@ -146,169 +153,10 @@ pub enum RunDirError {
     },
 }
 
-fn io_err(path: &Path) -> impl FnOnce(io::Error) -> RunDirError + '_ {
+pub(crate) fn io_err(path: &Path) -> impl FnOnce(io::Error) -> RunDirError + '_ {
     move |source| RunDirError::Io {
         path: path.display().to_string(),
         source,
-    }
-}
-
-/// Writes a run as it arrives.
-pub struct RunWriter {
-    dir: PathBuf,
-    raw: BufWriter<File>,
-    samples: BufWriter<File>,
-    events: BufWriter<File>,
-    /// The metadata, rewritten on every flush.
-    pub meta: RunMeta,
-    last_flush: Instant,
-}
-
-/// How often data are forced to disk.
-pub const FLUSH_INTERVAL: Duration = Duration::from_millis(500);
-
-impl RunWriter {
-    /// Create `dir` (its parent must exist or is created; `dir` itself must not exist).
-    pub fn create(dir: &Path, meta: RunMeta) -> Result<RunWriter, RunDirError> {
-        if dir.exists() {
-            return Err(RunDirError::Exists(dir.display().to_string()));
-        }
-        if let Some(parent) = dir.parent().filter(|p| !p.as_os_str().is_empty()) {
-            fs::create_dir_all(parent).map_err(io_err(parent))?;
-        }
-        fs::create_dir(dir).map_err(|e| {
-            if e.kind() == io::ErrorKind::AlreadyExists {
-                RunDirError::Exists(dir.display().to_string())
-            } else {
-                RunDirError::Io {
-                    path: dir.display().to_string(),
-                    source: e,
-                }
-            }
-        })?;
-        let open = |name: &str| {
-            let p = dir.join(name);
-            File::create_new(&p)
-                .map(BufWriter::new)
-                .map_err(|source| RunDirError::Io {
-                    path: p.display().to_string(),
-                    source,
-                })
-        };
-        let raw = open(RAW_FILE)?;
-        let mut samples = open(SAMPLES_FILE)?;
-        let mut events = open(EVENTS_FILE)?;
-        writeln!(samples, "{SAMPLES_HEADER}").map_err(io_err(dir))?;
-        writeln!(events, "device_time_s,kind,detail").map_err(io_err(dir))?;
-        let w = RunWriter {
-            dir: dir.to_path_buf(),
-            raw,
-            samples,
-            events,
-            meta,
-            last_flush: Instant::now(),
-        };
-        w.write_meta()?;
-        Ok(w)
-    }
-
-    /// The directory.
-    pub fn dir(&self) -> &Path {
-        &self.dir
-    }
-
-    /// Bytes exactly as received.
-    pub fn raw(&mut self, bytes: &[u8]) -> Result<(), RunDirError> {
-        self.meta.counts.bytes += bytes.len() as u64;
-        self.raw.write_all(bytes).map_err(io_err(&self.dir))
-    }
-
-    /// One placed sample, raw and converted, with the setpoint then in force (from the latest
-    /// beacon; `None` while the heater is off).
-    pub fn sample(
-        &mut self,
-        p: &PlacedSample,
-        c: &Converted,
-        setpoint_c: Option<f64>,
-    ) -> Result<(), RunDirError> {
-        let s = &p.sample;
-        let (temp_c, probe_c, flux_mt) = (c.temp_c, c.probe_c, c.flux_mt);
-        let fault = match s.thermo.fault() {
-            None => "",
-            Some(remanent_protocol::thermo_word::ThermoFault::Open) => "open",
-            Some(remanent_protocol::thermo_word::ThermoFault::ShortToGnd) => "short_gnd",
-            Some(remanent_protocol::thermo_word::ThermoFault::ShortToVcc) => "short_vcc",
-        };
-        let opt =
-            |v: Option<f64>, prec: usize| v.map(|x| format!("{x:.prec$}")).unwrap_or_default();
-        writeln!(
-            self.samples,
-            "{},{:.3},{},{},{:08x},{:.1},{},{},{},{},{:.4},{},{},{}",
-            p.seq,
-            p.device_time_s,
-            s.hall_code,
-            s.probe_code,
-            s.thermo.0,
-            f64::from(s.duty) / 255.0 * 100.0,
-            s.status.heater_enabled() as u8,
-            s.status.fault_latched() as u8,
-            fault,
-            opt(temp_c, 3),
-            c.cold_junction_c,
-            opt(probe_c, 3),
-            opt(flux_mt, 4),
-            opt(setpoint_c, 1),
-        )
-        .map_err(io_err(&self.dir))?;
-        self.meta.counts.samples += 1;
-        Ok(())
-    }
-
-    /// An event line.
-    pub fn event(
-        &mut self,
-        device_time_s: Option<f64>,
-        kind: &str,
-        detail: &str,
-    ) -> Result<(), RunDirError> {
-        let t = device_time_s.map(|t| format!("{t:.3}")).unwrap_or_default();
-        let detail = detail.replace(['"', '\n'], " ");
-        writeln!(self.events, "{t},{kind},\"{detail}\"").map_err(io_err(&self.dir))
-    }
-
-    /// Flush if the interval has passed.
-    pub fn maybe_flush(&mut self) -> Result<(), RunDirError> {
-        if self.last_flush.elapsed() >= FLUSH_INTERVAL {
-            self.flush()?;
-        }
-        Ok(())
-    }
-
-    /// Everything to disk now.
-    pub fn flush(&mut self) -> Result<(), RunDirError> {
-        self.last_flush = Instant::now();
-        self.raw.flush().map_err(io_err(&self.dir))?;
-        self.samples.flush().map_err(io_err(&self.dir))?;
-        self.events.flush().map_err(io_err(&self.dir))?;
-        self.write_meta()
-    }
-
-    fn write_meta(&self) -> Result<(), RunDirError> {
-        let text = toml::to_string_pretty(&self.meta).map_err(|e| RunDirError::Meta {
-            path: META_FILE.into(),
-            reason: e.to_string(),
-        })?;
-        let tmp = self.dir.join(".run.toml.tmp");
-        fs::write(&tmp, text).map_err(io_err(&tmp))?;
-        fs::rename(&tmp, self.dir.join(META_FILE)).map_err(io_err(&self.dir))
-    }
-
-    /// Close the record with the reason it ended.
-    pub fn finish(mut self, reason: &str) -> Result<PathBuf, RunDirError> {
-        self.meta.end_reason = Some(reason.into());
-        self.meta.finished_utc = Some(utc_now());
-        self.flush()?;
-        Ok(self.dir)
     }
 }
 
