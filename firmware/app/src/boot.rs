@@ -64,6 +64,18 @@ pub fn record(persisted: Persisted) -> [u32; 4] {
     ]
 }
 
+/// The record as a reset path leaves it: `words` (or a fresh record if they hold none) with
+/// the cause of the coming reset.
+pub fn with_cause(words: [u32; 4], cause: ResetCause) -> [u32; 4] {
+    let mut w = if words[0] == MAGIC {
+        words
+    } else {
+        record(Persisted::default())
+    };
+    w[1] = cause_code(cause);
+    w
+}
+
 /// Read a record back at start-up; anything malformed is a power-on.
 pub fn read(words: [u32; 4]) -> BootReport {
     if words[0] != MAGIC {

@@ -1,35 +1,12 @@
 //! Decimation for drawing: large records keep each bin's minimum and maximum, so a stray
 //! reading stays visible however long the record.
 
-/// Keep the minimum and maximum of `y` in each of `bins` equal slices (in order).
+/// Keep the minimum and maximum of `y` in each of `bins` equal slices (in order), as points.
 pub fn decimate_minmax(x: &[f64], y: &[f64], bins: usize) -> Vec<(f64, f64)> {
-    let n = x.len();
-    if n <= 2 * bins {
-        return x.iter().copied().zip(y.iter().copied()).collect();
-    }
-    let mut out = Vec::with_capacity(2 * bins);
-    for b in 0..bins {
-        let (lo, hi) = (b * n / bins, ((b + 1) * n / bins).max(b * n / bins + 1));
-        let (mut imin, mut imax) = (lo, lo);
-        for i in lo..hi {
-            if y[i] < y[imin] {
-                imin = i;
-            }
-            if y[i] > y[imax] {
-                imax = i;
-            }
-        }
-        let (a, c) = if imin <= imax {
-            (imin, imax)
-        } else {
-            (imax, imin)
-        };
-        out.push((x[a], y[a]));
-        if c != a {
-            out.push((x[c], y[c]));
-        }
-    }
-    out
+    minmax_indices(0..x.len(), y, bins)
+        .into_iter()
+        .map(|i| (x[i], y[i]))
+        .collect()
 }
 
 /// Indices of each of `bins` slices of `r`: its minimum and maximum of `y`, in order.

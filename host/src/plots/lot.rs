@@ -5,7 +5,7 @@
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
-use super::style::{legend, DrawResult, COOLING, HEATING};
+use super::style::{legend, Chart, DrawResult, COOLING, HEATING};
 use crate::analysis::judge::HEAT_DAMAGE_PCT;
 use crate::lot::LotSummary;
 use crate::specs::GradeSpec;
@@ -28,6 +28,43 @@ fn id_labeller(s: &LotSummary) -> impl Fn(&f64) -> String {
             String::new()
         }
     }
+}
+
+/// Titles of one per-magnet panel.
+struct Axes<'a> {
+    caption: &'a str,
+    caption_size: u32,
+    x_desc: &'a str,
+    y_desc: &'a str,
+}
+
+/// A panel with one slot per magnet along x (labelled by id) and `y` up the side.
+fn magnet_chart<'a, DB: DrawingBackend>(
+    area: &'a DrawingArea<DB, Shift>,
+    n: usize,
+    y: std::ops::Range<f64>,
+    axes: &Axes,
+    id_of: &dyn Fn(&f64) -> String,
+) -> Result<Chart<'a, DB>, String> {
+    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    let mut c = ChartBuilder::on(area)
+        .caption(axes.caption, ("sans-serif", axes.caption_size))
+        .margin(15)
+        .x_label_area_size(40)
+        .y_label_area_size(80)
+        .build_cartesian_2d(-0.5..(n as f64 - 0.5), y)
+        .map_err(e)?;
+    c.configure_mesh()
+        .x_labels(n.min(24) * 2 + 1)
+        .x_label_formatter(id_of)
+        .disable_x_mesh()
+        .x_desc(axes.x_desc)
+        .y_desc(axes.y_desc)
+        .label_style(("sans-serif", 14))
+        .axis_desc_style(("sans-serif", 16))
+        .draw()
+        .map_err(e)?;
+    Ok(c)
 }
 
 /// The four panels of a lot.
@@ -72,29 +109,17 @@ fn alpha_panel<DB: DrawingBackend>(
         hi = hi.max(g.alpha_max);
     }
     let pad = (hi - lo) * 0.08 + 1e-4;
-    let mut c = ChartBuilder::on(area)
-        .caption(
-            match spec {
-                Some(g) => format!("α(Br) per magnet, {} limits in red — {title}", g.grade),
-                None => format!("α(Br) per magnet — {title}"),
-            },
-            ("sans-serif", 18),
-        )
-        .margin(15)
-        .x_label_area_size(40)
-        .y_label_area_size(80)
-        .build_cartesian_2d(-0.5..(n as f64 - 0.5), (lo - pad)..(hi + pad))
-        .map_err(e)?;
-    c.configure_mesh()
-        .x_labels(n.min(24) * 2 + 1)
-        .x_label_formatter(&id_of)
-        .disable_x_mesh()
-        .x_desc("magnet (ranked by room-temperature flux)")
-        .y_desc("α(Br), %/°C")
-        .label_style(("sans-serif", 14))
-        .axis_desc_style(("sans-serif", 16))
-        .draw()
-        .map_err(e)?;
+    let caption = match spec {
+        Some(g) => format!("α(Br) per magnet, {} limits in red — {title}", g.grade),
+        None => format!("α(Br) per magnet — {title}"),
+    };
+    let axes = Axes {
+        caption: &caption,
+        caption_size: 18,
+        x_desc: "magnet (ranked by room-temperature flux)",
+        y_desc: "α(Br), %/°C",
+    };
+    let mut c = magnet_chart(area, n, (lo - pad)..(hi + pad), &axes, &id_of)?;
     for (i, r) in s.rows.iter().enumerate() {
         let x = i as f64;
         let col = if r.outlier.is_empty() {
@@ -136,23 +161,13 @@ fn loss_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary)
         .collect();
     let lmax = losses.iter().map(|l| l.1 + l.2).fold(0.5f64, f64::max) * 1.15;
     let lmin = losses.iter().map(|l| l.1 - l.2).fold(-0.1f64, f64::min) * 1.15;
-    let mut c = ChartBuilder::on(area)
-        .caption("Irreversible loss per magnet", ("sans-serif", 20))
-        .margin(15)
-        .x_label_area_size(40)
-        .y_label_area_size(80)
-        .build_cartesian_2d(-0.5..(n as f64 - 0.5), lmin..lmax)
-        .map_err(e)?;
-    c.configure_mesh()
-        .x_labels(n.min(24) * 2 + 1)
-        .x_label_formatter(&id_of)
-        .disable_x_mesh()
-        .x_desc("magnet")
-        .y_desc("loss, %")
-        .label_style(("sans-serif", 14))
-        .axis_desc_style(("sans-serif", 16))
-        .draw()
-        .map_err(e)?;
+    let axes = Axes {
+        caption: "Irreversible loss per magnet",
+        caption_size: 20,
+        x_desc: "magnet",
+        y_desc: "loss, %",
+    };
+    let mut c = magnet_chart(area, n, lmin..lmax, &axes, &id_of)?;
     for (i, l, u) in &losses {
         let x = *i as f64;
         let col = if *l > u.max(HEAT_DAMAGE_PCT) {
@@ -237,26 +252,14 @@ fn flux_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary)
         .map(|r| (r.b20_mt - med) / med * 100.0)
         .collect();
     let lim = dev.iter().map(|d| d.abs()).fold(1.0, f64::max) * 1.15;
-    let mut c = ChartBuilder::on(area)
-        .caption(
-            format!("Flux at 20 °C vs the median, {med:.2} mT"),
-            ("sans-serif", 20),
-        )
-        .margin(15)
-        .x_label_area_size(40)
-        .y_label_area_size(80)
-        .build_cartesian_2d(-0.5..(n as f64 - 0.5), -lim..lim)
-        .map_err(e)?;
-    c.configure_mesh()
-        .x_labels(n.min(24) * 2 + 1)
-        .x_label_formatter(&id_of)
-        .disable_x_mesh()
-        .x_desc("magnet")
-        .y_desc("B at 20 °C − median, %")
-        .label_style(("sans-serif", 14))
-        .axis_desc_style(("sans-serif", 16))
-        .draw()
-        .map_err(e)?;
+    let caption = format!("Flux at 20 °C vs the median, {med:.2} mT");
+    let axes = Axes {
+        caption: &caption,
+        caption_size: 20,
+        x_desc: "magnet",
+        y_desc: "B at 20 °C − median, %",
+    };
+    let mut c = magnet_chart(area, n, -lim..lim, &axes, &id_of)?;
     c.draw_series(s.rows.iter().zip(&dev).enumerate().map(|(i, (r, d))| {
         let col = if r.outlier.is_empty() {
             COOLING

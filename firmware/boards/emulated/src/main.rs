@@ -23,7 +23,7 @@ use remanent_firmware::device::{BoardInfo, Device};
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::heater::Heater;
 use remanent_firmware::{Clock, FirmwareConfig};
-use remanent_protocol::{Drill, HeaterDrive, MAX_DEVICE_FRAME};
+use remanent_protocol::{HeaterDrive, MAX_DEVICE_FRAME};
 use remanent_rig_model::catalogue;
 use remanent_rig_model::peripherals::{
     SimAdcBus, SimClock, SimDelay, SimHeaterEnable, SimHeaterPwm, SimThermoSpi,
@@ -73,17 +73,7 @@ fn main() -> ! {
             device.receive(now, &[b]);
             last_rx_ms = now;
         }
-        match device.take_drill() {
-            Some(Drill::Panic) => panic!("fault drill"),
-            Some(Drill::Hang) => loop {
-                cortex_m::asm::nop();
-            },
-            Some(Drill::StackOverflow) => {
-                let depth = remanent_board_support::recurse(0);
-                panic!("the stack guard did not fire (depth {})", depth)
-            }
-            None => {}
-        }
+        remanent_board_support::carry_out(device.take_drill());
         let periods = device.periods_completed();
         let holding =
             !device.handshaken() || clock.now_ms().wrapping_sub(last_rx_ms) >= LOCKSTEP_MS;

@@ -14,7 +14,7 @@ use core::ptr::write_volatile;
 use core::sync::atomic::{AtomicU32, Ordering};
 
 use cortex_m::peripheral::syst::SystClkSource;
-use cortex_m_rt::{exception, ExceptionFrame};
+use cortex_m_rt::exception;
 use remanent_firmware::boot;
 use remanent_protocol::{BootReport, ResetCause};
 
@@ -90,12 +90,8 @@ fn safe_reset(cause: ResetCause) -> ! {
     // SAFETY: MMIO write to GPIO port F, pin 0: heater enable low.
     unsafe { write_volatile(GPIOF_DATA_PIN0, 0) };
     // SAFETY: the record is ours; the main loop never runs again after this.
-    let mut words = unsafe { core::ptr::read_volatile(RECORD.0.get().cast::<[u32; 4]>()) };
-    if words[0] != boot::MAGIC {
-        words = boot::record(Default::default());
-    }
-    words[1] = boot::cause_code(cause);
-    write_record(words);
+    let words = unsafe { core::ptr::read_volatile(RECORD.0.get().cast::<[u32; 4]>()) };
+    write_record(boot::with_cause(words, cause));
     cortex_m::peripheral::SCB::sys_reset()
 }
 
@@ -106,12 +102,4 @@ fn SysTick() {
     }
 }
 
-#[exception]
-unsafe fn HardFault(_frame: &ExceptionFrame) -> ! {
-    safe_reset(ResetCause::HardFault)
-}
-
-#[panic_handler]
-fn panic(_info: &core::panic::PanicInfo) -> ! {
-    safe_reset(ResetCause::Panic)
-}
+remanent_board_support::safe_state_handlers!(safe_reset);

@@ -23,7 +23,7 @@ use remanent_firmware::device::{BoardInfo, Device};
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::heater::Heater;
 use remanent_firmware::{Clock, FirmwareConfig};
-use remanent_protocol::{Drill, HeaterDrive, MAX_DEVICE_FRAME};
+use remanent_protocol::{HeaterDrive, MAX_DEVICE_FRAME};
 use rp2040_hal as hal;
 use rp2040_hal::clocks::Clock as _;
 use rp2040_hal::pac;
@@ -169,17 +169,7 @@ fn main() -> ! {
         if n > 0 {
             device.receive(clock.now_ms(), &rx[..n]);
         }
-        match device.take_drill() {
-            Some(Drill::Panic) => panic!("fault drill"),
-            Some(Drill::Hang) => loop {
-                cortex_m::asm::nop();
-            },
-            Some(Drill::StackOverflow) => {
-                let depth = remanent_board_support::recurse(0);
-                panic!("the stack guard did not fire (depth {})", depth)
-            }
-            None => {}
-        }
+        remanent_board_support::carry_out(device.take_drill());
         let periods = device.periods_completed();
         device.poll(clock.now_ms());
         if device.periods_completed() != periods {

@@ -11,7 +11,6 @@
 
 use core::ptr::{read_volatile, write_volatile};
 
-use cortex_m_rt::{exception, ExceptionFrame};
 use remanent_firmware::boot;
 use remanent_firmware::device::Persisted;
 use remanent_protocol::{BootReport, ResetCause};
@@ -86,12 +85,8 @@ pub fn persist(p: Persisted) {
 fn safe_reset(cause: ResetCause) -> ! {
     cortex_m::interrupt::disable();
     outputs_off();
-    let mut words = scratch();
-    if words[0] != boot::MAGIC {
-        words = boot::record(Persisted::default());
-    }
-    words[1] = boot::cause_code(cause);
-    write_scratch(words);
+    let words = scratch();
+    write_scratch(boot::with_cause(words, cause));
     // SAFETY: setting the watchdog's trigger bit resets the chip at once.
     unsafe { write_volatile(WATCHDOG_CTRL, read_volatile(WATCHDOG_CTRL) | CTRL_TRIGGER) };
     loop {
@@ -99,12 +94,4 @@ fn safe_reset(cause: ResetCause) -> ! {
     }
 }
 
-#[exception]
-unsafe fn HardFault(_frame: &ExceptionFrame) -> ! {
-    safe_reset(ResetCause::HardFault)
-}
-
-#[panic_handler]
-fn panic(_info: &core::panic::PanicInfo) -> ! {
-    safe_reset(ResetCause::Panic)
-}
+remanent_board_support::safe_state_handlers!(safe_reset);

@@ -1,4 +1,4 @@
-//! Board support shared by the Remanent board crates: the stack guard.
+//! Board support shared by the Remanent board crates: the stack guard and the fault drills.
 //!
 //! The stack grows down from the top of RAM toward the statics. Without a guard an overflow
 //! silently overwrites them — the interlock state among them. [`guard_stack`] puts a no-access
@@ -58,4 +58,38 @@ pub fn recurse(depth: u32) -> u32 {
         return frame[0];
     }
     recurse(depth + 1).wrapping_add(core::hint::black_box(frame[15]))
+}
+
+/// Carry out a drill the host asked for on a test build: fail as a bug would, so the board's
+/// safe-state path is proven. Returns only when there is none.
+pub fn carry_out(drill: Option<remanent_protocol::Drill>) {
+    use remanent_protocol::Drill;
+    match drill {
+        Some(Drill::Panic) => panic!("fault drill"),
+        Some(Drill::Hang) => loop {
+            cortex_m::asm::nop();
+        },
+        Some(Drill::StackOverflow) => {
+            let depth = recurse(0);
+            panic!("the stack guard did not fire (depth {})", depth)
+        }
+        None => {}
+    }
+}
+
+/// Define the board's panic and hard-fault handlers: both call `$reset` (the board's own path
+/// to its safe state: outputs off by register, cause recorded, chip reset) with the cause.
+#[macro_export]
+macro_rules! safe_state_handlers {
+    ($reset:path) => {
+        #[cortex_m_rt::exception]
+        unsafe fn HardFault(_frame: &cortex_m_rt::ExceptionFrame) -> ! {
+            $reset(remanent_protocol::ResetCause::HardFault)
+        }
+
+        #[panic_handler]
+        fn panic(_info: &core::panic::PanicInfo) -> ! {
+            $reset(remanent_protocol::ResetCause::Panic)
+        }
+    };
 }
