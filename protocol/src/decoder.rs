@@ -149,9 +149,9 @@ impl<T: DeserializeOwned> FrameDecoder<T> {
 }
 
 /// Decoder for what the device sends (used by the host).
-pub type DeviceDecoder = FrameDecoder<crate::DeviceMsg>;
+pub type DeviceDecoder = FrameDecoder<crate::device::DeviceMsg>;
 /// Decoder for what the host sends (used by the device).
-pub type HostDecoder = FrameDecoder<crate::HostMsg>;
+pub type HostDecoder = FrameDecoder<crate::host::HostMsg>;
 
 impl DeviceDecoder {
     /// A decoder for device messages.

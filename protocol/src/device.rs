@@ -4,7 +4,9 @@ use postcard::experimental::max_size::MaxSize;
 use serde::{Deserialize, Serialize};
 
 use crate::fixed::i16_le;
-use crate::{Label, ThermoWord, Version};
+use crate::handshake::Version;
+use crate::label::Label;
+use crate::thermo_word::ThermoWord;
 
 /// Everything the device sends.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, MaxSize)]

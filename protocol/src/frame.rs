@@ -11,7 +11,8 @@ use postcard::experimental::max_size::MaxSize;
 use postcard::ser_flavors::{crc::CrcModifier, Cobs, Slice};
 use serde::Serialize;
 
-use crate::{DeviceMsg, HostMsg};
+use crate::device::DeviceMsg;
+use crate::host::HostMsg;
 
 /// The frame check.
 pub const FRAME_CRC: Crc<u16> = Crc::<u16>::new(&CRC_16_IBM_3740);

@@ -4,7 +4,7 @@ use heapless::Vec;
 use postcard::experimental::max_size::MaxSize;
 use serde::{Deserialize, Serialize};
 
-use crate::Version;
+use crate::handshake::Version;
 
 /// A command with the id the device echoes in its acknowledgement or refusal.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, MaxSize)]

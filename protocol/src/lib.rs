@@ -28,16 +28,7 @@ pub use device::{
     StateReport, ThermoKind,
 };
 pub use frame::{encode, EncodeError, MAX_DEVICE_FRAME, MAX_FRAME, MAX_HOST_FRAME};
-pub use handshake::{check_compatible, HandshakeError, Version};
+pub use handshake::{check_compatible, HandshakeError, Version, PROTOCOL_VERSION, VERSION};
 pub use host::{Command, Drill, HostMsg, Profile, SamplingConfig, Segment, Segments, MAX_SEGMENTS};
 pub use label::Label;
 pub use thermo_word::ThermoWord;
-
-/// Protocol version: bump on any change a peer of the previous version could not read.
-pub const PROTOCOL_VERSION: u16 = 2;
-
-/// This build's version pair, sent in both hellos.
-pub const VERSION: Version = Version {
-    protocol: PROTOCOL_VERSION,
-    schema: schema::SCHEMA_FINGERPRINT,
-};

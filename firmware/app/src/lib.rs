@@ -12,7 +12,6 @@ pub mod control;
 pub mod device;
 pub mod drivers;
 pub mod heater;
-#[macro_use]
 pub mod log;
 pub mod outbox;
 pub mod profile;

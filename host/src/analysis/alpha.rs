@@ -4,12 +4,14 @@
 
 use remanent_physics::shape::dln_bz_per_mm;
 
+use super::context::{AnalysisError, Context};
 use super::fit_data::FitData;
+use super::lag;
 use super::lag_estimate::Lagged;
 use super::lsq::{self, Fit};
 use super::model::{autocorrelation_inflation, propagate, Quadratic};
 use super::prepare::Prepared;
-use super::{lag, AnalysisError, BudgetLine, Context};
+use super::result::BudgetLine;
 
 /// The lag model's τ is taken as good to this fraction (rectangular).
 pub const LAG_TOLERANCE: f64 = 0.2;

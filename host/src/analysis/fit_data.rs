@@ -2,10 +2,10 @@
 //! Curie collapse, the lag-corrected ramps (the cooling branch alone after a loss), or, with
 //! no lag estimate, the settled soak points.
 
+use super::context::AnalysisError;
 use super::curie::CURIE_MARGIN_K;
 use super::lag_estimate::Lagged;
 use super::prepare::{mean, Prepared, LOSSY};
-use super::AnalysisError;
 
 /// Fewest soak points that make a quadratic worth fitting.
 pub const MIN_SOAKS: usize = 4;

@@ -1,10 +1,10 @@
 //! Step 6: what the numbers mean — Br from geometry, the material family, the grade checks
 //! against the spec table and the heat-damage flag, with plain notes where a caveat applies.
 
+use super::context::Context;
 use super::families;
 use super::geometry::{self, BrEstimate};
 use super::verdict::{self, Check, Outcome};
-use super::Context;
 
 /// A loss above this (and above its own U95) flags heat damage, %.
 pub const HEAT_DAMAGE_PCT: f64 = 0.3;

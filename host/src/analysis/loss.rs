@@ -1,10 +1,11 @@
 //! Step 5: the irreversible loss — the settled readings before and after the excursion,
 //! referred to one temperature with the fitted reversible curve — with its own budget.
 
+use super::context::Context;
 use super::model::Quadratic;
 use super::prepare::{mean, Prepared};
+use super::result::BudgetLine;
 use super::segments::Segments;
-use super::{BudgetLine, Context};
 use remanent_physics::shape::dln_bz_per_mm;
 
 /// Readings within a reference window are correlated over about this many samples: the

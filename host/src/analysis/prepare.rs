@@ -3,10 +3,11 @@
 
 use remanent_physics::standoff;
 
+use super::context::Context;
 use super::dataset::Series;
+use super::lag;
 use super::model::Quadratic;
 use super::segments::Segments;
-use super::{lag, Context};
 
 /// The lag search runs on at most this many points: a first-order response is smooth, so a
 /// 20 000-point series finds τ as well as a million.

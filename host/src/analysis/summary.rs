@@ -2,7 +2,7 @@
 
 use std::fmt::Write;
 
-use super::Analysis;
+use super::result::Analysis;
 
 /// Lines of text describing the result.
 pub fn text(a: &Analysis, title: &str) -> String {

@@ -10,7 +10,7 @@ use std::time::{Duration, Instant};
 
 use remanent_protocol::{Command, RefuseReason, RunState};
 
-use super::{LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions};
+use super::types::{LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions};
 use crate::frame_log::{self, fault_detail};
 use crate::link::acquisition::{Acquisition, Event};
 use crate::link::words::describe_refusal;

@@ -4,8 +4,8 @@
 use std::fs::File;
 use std::path::{Path, PathBuf};
 
+use super::meta::{io_err, RunDirError, SAMPLES_FILE};
 use super::row::SampleRow;
-use super::{io_err, RunDirError, SAMPLES_FILE};
 
 /// A row that could not be read.
 #[derive(Debug, Clone, PartialEq)]

@@ -6,11 +6,11 @@ use std::io::{self, BufWriter, Write};
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 
-use super::row::SampleRow;
-use super::{
+use super::meta::{
     io_err, utc_now, RunDirError, RunMeta, EVENTS_FILE, META_FILE, RAW_FILE, SAMPLES_FILE,
     SAMPLES_HEADER,
 };
+use super::row::SampleRow;
 use remanent_protocol::thermo_word::ThermoFault;
 
 use crate::conversion::Converted;

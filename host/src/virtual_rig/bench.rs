@@ -14,7 +14,7 @@ use remanent_rig_model::peripherals::{
 use remanent_rig_model::rng::Rng;
 use remanent_rig_model::{HeaterSwitch, Magnet, Rig, RigParams};
 
-use super::{RigTruth, VirtualRigOptions, STEP_S};
+use super::options::{RigTruth, VirtualRigOptions, STEP_S};
 
 type Handle = Rc<RefCell<Rig>>;
 type SimDevice = Device<

@@ -4,7 +4,8 @@ use std::io::{self, Read, Write};
 
 use remanent_firmware::FirmwareConfig;
 
-use super::{SimulatedBench, VirtualRigOptions};
+use super::bench::SimulatedBench;
+use super::options::VirtualRigOptions;
 
 /// The virtual rig as an in-process byte stream, driven by its reader: every read advances
 /// simulated time by one sample period (no wall clock, no pseudo-terminal), so a whole cycle

@@ -9,7 +9,8 @@ use std::time::{Duration, Instant};
 
 use serialport::{SerialPort, TTYPort};
 
-use super::{virtual_config, RigTruth, SimulatedBench, VirtualRigOptions, STEP_S};
+use super::bench::SimulatedBench;
+use super::options::{virtual_config, RigTruth, VirtualRigOptions, STEP_S};
 
 /// A running virtual rig.
 pub struct VirtualRig {

@@ -10,11 +10,11 @@ use remanent_protocol::{
 
 use super::{Device, Mode, FIRMWARE_VERSION};
 use crate::drivers::ads1115::{HALL_FULL_SCALE_UV, PROBE_FULL_SCALE_UV};
+use crate::log::{fw_info, fw_warn};
 use crate::profile::ProfileRunner;
 use crate::safety::{judge_word, latch};
 use crate::sampler::{OVERSAMPLE_RANGE, PERIOD_RANGE_MS};
 use crate::traits::{Adc, Thermocouple};
-use crate::{fw_info, fw_warn};
 
 /// Time one sample needs beyond its conversions (the thermocouple read, the loop), µs.
 const SAMPLE_OVERHEAD_US: u32 = 1_000;

@@ -20,13 +20,13 @@ use remanent_protocol::{
 use crate::config::FirmwareConfig;
 use crate::control::Pi;
 use crate::heater::Heater;
+use crate::log::{fw_info, fw_warn};
 use crate::outbox::Outbox;
 use crate::profile::ProfileRunner;
 use crate::safety::latch::TripLog;
 use crate::safety::{Interlocks, Reading};
 use crate::sampler::Sampler;
 use crate::traits::{Adc, Thermocouple};
-use crate::{fw_info, fw_warn};
 
 /// Firmware version reported in the hello.
 pub const FIRMWARE_VERSION: [u8; 3] = [0, 2, 0];

@@ -1,0 +1,31 @@
+//! What the analysis needs besides the series, and how it fails.
+
+use crate::calibration::Calibration;
+use crate::magnets::MagnetInfo;
+use crate::specs::SpecTable;
+
+use super::lsq;
+
+/// What the analysis knows besides the series.
+#[derive(Debug, Clone)]
+pub struct Context {
+    /// Rig calibration (for the type-B terms and the gap correction).
+    pub calibration: Option<Calibration>,
+    /// The magnet (for Br from geometry and the grade check).
+    pub magnet: Option<MagnetInfo>,
+    /// Spec table.
+    pub specs: SpecTable,
+    /// Thermocouple gain tolerance to assume without a calibration, %.
+    pub default_tc_gain_pct: f64,
+}
+
+/// The analysis could not produce α.
+#[derive(Debug, thiserror::Error)]
+pub enum AnalysisError {
+    /// Nothing to fit.
+    #[error("cannot fit α: {0}")]
+    CannotFit(String),
+    /// The fit failed.
+    #[error("cannot fit α: {0}")]
+    Lsq(#[from] lsq::LsqError),
+}

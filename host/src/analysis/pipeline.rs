@@ -1,0 +1,101 @@
+//! The analysis run as its named steps, in order, into one result.
+
+use super::context::{AnalysisError, Context};
+use super::dataset::Series;
+use super::prepare::{Prepared, LOSSY};
+use super::result::{Analysis, Traces};
+use super::{alpha, curie, fit_data, judge, lag_estimate, loss, model, segments, verdict};
+
+/// The temperature span below which α is not worth reporting, K.
+pub const MIN_SPAN_K: f64 = 15.0;
+/// A probe that came back more than this far from where it started is noted, K.
+pub const PROBE_RETURN_K: f64 = 2.0;
+
+/// Analyse a series.
+pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
+    let mut notes = Vec::new();
+    let prep = Prepared::new(s, ctx, &mut notes);
+    let seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
+    let span = s.temp_c[seg.peak] - s.temp_c[seg.before.start];
+    if span < MIN_SPAN_K {
+        return Err(AnalysisError::CannotFit(format!(
+            "the temperature rose only {span:.1} K; at least {MIN_SPAN_K:.0} K is needed"
+        )));
+    }
+    let collapse = curie::collapse(&prep);
+    let lagged = lag_estimate::estimate(&prep, seg, span, collapse, &mut notes);
+    let data = fit_data::select(&prep, &lagged, collapse)?;
+    let a = alpha::estimate(&prep, &lagged, &data, ctx, &mut notes)?;
+    let loss = loss::full(&prep, &lagged.seg, &lagged.tm, ctx, &a.model);
+    note_loss(&loss, &mut notes);
+    let u_c = a.u_c();
+    let measured = judge::Measured {
+        alpha: (a.alpha, 2.0 * u_c),
+        b20_mt: a.model.b0_mt,
+        fit_top_c: a.range_c[1],
+        curie_c: lagged.curie_c,
+        loss: loss.as_ref().map(|l| (l.loss_pct, l.u95_pct)),
+    };
+    let judged = judge::judge(&measured, ctx, &mut notes);
+    if lagged.loss > LOSSY {
+        notes.push(
+            "the magnet lost flux during the excursion: α is fitted on the cooling branch alone (the heating branch mixes reversible and irreversible change); for a datasheet value measure a fresh magnet below its onset".into(),
+        );
+    }
+    let t_hi = a.range_c[1];
+    if t_hi - model::REFERENCE_C < judge::QUOTED_SPAN_K {
+        notes.push(format!(
+            "fitted only up to {t_hi:.0} °C: α is usually quoted for 20…100 °C or 20…150 °C"
+        ));
+    }
+    Ok(Analysis {
+        alpha_pct_per_c: a.alpha,
+        alpha_u95_pct_per_c: 2.0 * u_c,
+        alpha_fit_se_pct_per_c: a.u_fit,
+        alpha_at_20c_pct_per_c: a.model.alpha_at_reference_pct_per_c(),
+        gamma_pct_per_c2: a.model.gamma_pct_per_c2(),
+        b20_mt: a.model.b0_mt,
+        fit_range_c: a.range_c,
+        residual_sd_mt: a.fit.residual_sd,
+        fit_points: a.fit.n,
+        fit_method: data.method.into(),
+        lag_time_constant_s: lagged.tau_s,
+        irreversible_loss_pct: loss.as_ref().map(|l| l.loss_pct),
+        irreversible_loss_u95_pct: loss.as_ref().map(|l| l.u95_pct),
+        reference_c: loss.as_ref().map(|l| l.ref_c),
+        reference_probe_c: loss.as_ref().and_then(|l| l.ref_probe_c),
+        max_magnet_temp_c: lagged.tm[lagged.seg.peak],
+        curie_estimate_c: lagged.curie_c,
+        br: judged.br,
+        material_family: judged.material_family,
+        verdict: verdict::overall(&judged.checks),
+        grade: judged.grade,
+        checks: judged.checks,
+        heat_damaged: judged.heat_damaged,
+        alpha_budget: a.budget,
+        loss_budget: loss.map(|l| l.budget).unwrap_or_default(),
+        notes,
+        samples: s.time_s.len(),
+        model: a.model,
+        traces: Traces {
+            segments: Some(lagged.seg),
+            magnet_temp_c: lagged.tm,
+            flux_corrected_mt: prep.flux,
+        },
+    })
+}
+
+/// Notes about the loss: not computed, or a probe that had not cooled back.
+fn note_loss(loss: &Option<loss::LossResult>, notes: &mut Vec<String>) {
+    match loss {
+        None => notes.push("the record does not return to a settled room temperature: irreversible loss not computed".into()),
+        Some(l) => {
+            if let Some(p) = l.ref_probe_c.filter(|p| (p[1] - p[0]).abs() > PROBE_RETURN_K) {
+                notes.push(format!(
+                    "the probe had not cooled back ({:.1} °C before, {:.1} °C after): its own drift is corrected by calibration and counted in the loss budget ({:.3} %)",
+                    p[0], p[1], l.probe_term_pct
+                ));
+            }
+        }
+    }
+}
