@@ -3,6 +3,7 @@
 //! Hall code to mT with the probe's own temperature coefficient.
 
 use remanent_physics::{adc, type_k};
+use remanent_protocol::thermo_word::ThermoFault;
 use remanent_protocol::ThermoWord;
 
 use crate::calibration::{Calibration, HallCalibration, NtcCalibration};
@@ -63,5 +64,14 @@ pub fn convert(hall_code: i16, probe_code: i16, word: ThermoWord, cal: &Calibrat
         probe_c,
         flux_mt: probe_c.map(|tp| flux_mt(hall_code, tp, &cal.hall)),
         hall_saturated: hall_saturated(hall_code),
+    }
+}
+
+/// The converter's fault as the record names it: `open`, `short_gnd`, `short_vcc`.
+pub fn thermo_fault_name(f: ThermoFault) -> &'static str {
+    match f {
+        ThermoFault::Open => "open",
+        ThermoFault::ShortToGnd => "short_gnd",
+        ThermoFault::ShortToVcc => "short_vcc",
     }
 }

@@ -273,7 +273,12 @@ pub fn load_run(
         let Some(tc) = c.temp_c else {
             s.skipped.push((
                 line,
-                format!("thermocouple fault {:?}", r.thermo_word.fault()),
+                format!(
+                    "thermocouple fault {}",
+                    r.thermo_word
+                        .fault()
+                        .map_or("", conversion::thermo_fault_name)
+                ),
             ));
             continue;
         };

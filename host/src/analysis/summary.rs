@@ -60,7 +60,7 @@ pub fn text(a: &Analysis, title: &str) -> String {
     let _ = writeln!(
         s,
         "  verdict:              {}{}{}",
-        format!("{:?}", a.verdict).to_uppercase(),
+        a.verdict,
         a.grade
             .as_ref()
             .map(|g| format!(" against grade {g}"))
@@ -76,7 +76,7 @@ pub fn text(a: &Analysis, title: &str) -> String {
             s,
             "    {:<18} {:<13} {}",
             c.what,
-            format!("{:?}", c.outcome).to_lowercase(),
+            c.outcome.word(),
             c.reason
         );
     }

@@ -36,7 +36,7 @@ impl Progress for Bar {
         self.bar.set_position(s.elapsed_s as u64);
         let fault = s
             .fault
-            .map(|f| format!("  FAULT {f:?}"))
+            .map(|f| format!("  FAULT: {}", remanent::link::words::describe_fault(f)))
             .unwrap_or_default();
         self.bar.set_message(format!(
             "{:>5.0} s elapsed, ~{:>5.0} s left | {} | {} | heater {:>3.0} % | {} | {} samples, {} missing, {} bad frames{fault}",

@@ -11,9 +11,7 @@ use super::meta::{
     SAMPLES_HEADER,
 };
 use super::row::SampleRow;
-use remanent_protocol::thermo_word::ThermoFault;
-
-use crate::conversion::Converted;
+use crate::conversion::{thermo_fault_name, Converted};
 use crate::link::PlacedSample;
 
 /// Writes a run as it arrives.
@@ -104,12 +102,7 @@ impl RunWriter {
         setpoint_c: Option<f64>,
     ) -> Result<(), RunDirError> {
         let s = &p.sample;
-        let tc_fault = match s.thermo.fault() {
-            None => "",
-            Some(ThermoFault::Open) => "open",
-            Some(ThermoFault::ShortToGnd) => "short_gnd",
-            Some(ThermoFault::ShortToVcc) => "short_vcc",
-        };
+        let tc_fault = s.thermo.fault().map_or("", thermo_fault_name);
         let row = SampleRow {
             seq: p.seq,
             device_time_s: p.device_time_s,
