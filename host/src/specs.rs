@@ -68,7 +68,30 @@ impl SpecTable {
             reason,
         };
         let text = std::fs::read_to_string(path).map_err(|e| err(e.to_string()))?;
-        toml::from_str(&text).map_err(|e| err(e.to_string()))
+        let table: SpecTable = toml::from_str(&text).map_err(|e| err(e.to_string()))?;
+        table.check_families().map_err(err)?;
+        Ok(table)
+    }
+
+    /// Every grade names a family the analysis knows (`analysis::families`).
+    fn check_families(&self) -> Result<(), String> {
+        match self
+            .grades
+            .iter()
+            .find(|g| crate::analysis::families::find(&g.family).is_none())
+        {
+            Some(g) => Err(format!(
+                "grade {} names the family `{}`, which is not one of: {}",
+                g.grade,
+                g.family,
+                crate::analysis::families::FAMILIES
+                    .iter()
+                    .map(|f| f.name)
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            )),
+            None => Ok(()),
+        }
     }
 
     /// The row for `grade` (case-insensitive).
@@ -76,5 +99,15 @@ impl SpecTable {
         self.grades
             .iter()
             .find(|g| g.grade.eq_ignore_ascii_case(grade))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_built_in_grade_names_a_known_family() {
+        assert_eq!(SpecTable::builtin().check_families(), Ok(()));
     }
 }
