@@ -64,9 +64,13 @@ pub fn log(w: &mut RunWriter, e: &Event, t: Option<f64>) -> Result<(), RunDirErr
     }
 }
 
-/// Copy the timeline's gap and drop counts into the run's metadata.
-pub fn close(timeline: &Timeline, w: &mut RunWriter) {
-    w.meta.counts.gaps = timeline.gaps;
-    w.meta.counts.gap_samples = timeline.gap_samples;
-    w.meta.counts.device_dropped = timeline.device_dropped;
+/// Discard what no beacon settled, and copy the timeline's counts into the run's metadata.
+pub fn close(timeline: &mut Timeline, w: &mut RunWriter) {
+    timeline.finish();
+    let c = &mut w.meta.counts;
+    c.gaps = timeline.gaps;
+    c.gap_samples = timeline.gap_samples;
+    c.device_dropped = timeline.device_dropped;
+    c.stale_samples = timeline.stale;
+    c.unsettled_samples = timeline.unsettled;
 }

@@ -36,14 +36,18 @@ pub fn replay(
     let mut frames: Vec<Result<DeviceMsg, FrameError>> = Vec::new();
     decoder.feed(&raw, |f| frames.push(f));
     let mut last_t = None;
+    let mut events = Vec::new();
     for f in frames {
-        let e = ingest.frame(f);
-        frame_log::log(&mut w, &e, last_t)?;
-        if let Event::Sample { placed, .. } = &e {
-            last_t = Some(placed.device_time_s);
+        events.clear();
+        ingest.frame_into(f, &mut events);
+        for e in &events {
+            frame_log::log(&mut w, e, last_t)?;
+            if let Event::Sample { placed, .. } = e {
+                last_t = Some(placed.device_time_s);
+            }
         }
     }
-    frame_log::close(&ingest.timeline, &mut w);
+    frame_log::close(&mut ingest.timeline, &mut w);
     let counts = w.meta.counts.clone();
     w.finish(&format!("replayed from {}", from.display()))?;
     Ok(counts)

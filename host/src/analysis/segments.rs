@@ -20,6 +20,9 @@ pub struct Segments {
     pub soaks: Vec<Range<usize>>,
 }
 
+/// The record's final temperature is the median of this many last readings.
+pub const END_SAMPLES: usize = 21;
+
 /// How far the temperature may stray and still count as the reference, K.
 pub const REFERENCE_BAND_K: f64 = 0.6;
 /// Soaks: the temperature stays within this band of where the stretch began, K …
@@ -47,7 +50,13 @@ pub fn find(time_s: &[f64], temp_c: &[f64], thermocouple_c: &[f64]) -> Segments 
         .max_by(|a, b| a.1.total_cmp(b.1))
         .map(|(i, _)| i)
         .unwrap_or(0);
-    let end_t = temp_c[n - 1];
+    // the final value as the median of the last readings, so one noisy last sample cannot
+    // decide where the settled tail ends
+    let end_t = {
+        let mut last: Vec<f64> = temp_c[n.saturating_sub(END_SAMPLES)..].to_vec();
+        last.sort_by(f64::total_cmp);
+        last[last.len() / 2]
+    };
     // the settled tail: back from the end while within the band of the final value
     let mut tail = n - 1;
     while tail > peak && (temp_c[tail - 1] - end_t).abs() < REFERENCE_BAND_K * 0.5 {

@@ -8,8 +8,7 @@ use std::io::{Read, Write};
 use std::time::{Duration, Instant};
 
 use remanent_protocol::{
-    Beacon, Command, DeviceHello, DeviceMsg, FaultReport, FrameError, RefuseReason, Sample,
-    StateReport,
+    Beacon, Command, DeviceHello, DeviceMsg, FaultReport, FrameError, RefuseReason, StateReport,
 };
 
 use super::session::{LinkError, Received, Session};
@@ -36,8 +35,6 @@ pub enum Event {
         /// The setpoint in force (from the latest beacon; `None` while the heater is off), °C.
         setpoint_c: Option<f64>,
     },
-    /// A sample that cannot be placed yet (no beacon so far).
-    Unplaced(Sample),
     /// A beacon (the timeline has taken it).
     Beacon(Beacon),
     /// A state change.
@@ -57,12 +54,26 @@ pub enum Event {
     Rejected(FrameError),
 }
 
+/// Where a session stands: a record holds only what the device sent after its hello.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Phase {
+    /// Before the device's hello: anything here is from an earlier session (dropped).
+    BeforeHello,
+    /// After the hello, before the first beacon that says which samples are new.
+    AwaitingBeacon,
+    /// Recording.
+    Running,
+}
+
 /// Frames to events: the timeline and the calibration.
 #[derive(Debug)]
 pub struct Ingest {
     /// Sequence numbers, device times and gap counts.
     pub timeline: Timeline,
     calibration: Calibration,
+    phase: Phase,
+    /// Frames dropped because they came before the device's hello (an earlier session's).
+    pub before_hello: u64,
 }
 
 impl Ingest {
@@ -71,54 +82,69 @@ impl Ingest {
         Ingest {
             timeline: Timeline::default(),
             calibration,
+            phase: Phase::BeforeHello,
+            before_hello: 0,
         }
     }
 
-    /// The calibration in use.
-    pub fn calibration(&self) -> &Calibration {
-        &self.calibration
+    /// The device's hello was taken by someone else (a renewed handshake): start anew after it.
+    pub fn restart_after_hello(&mut self) {
+        self.timeline = Timeline::default();
+        self.phase = Phase::AwaitingBeacon;
     }
 
-    /// One decoded frame.
-    pub fn frame(&mut self, frame: Result<DeviceMsg, FrameError>) -> Event {
+    /// One decoded frame: the events it makes (a beacon settles the held samples) into `out`.
+    pub fn frame_into(&mut self, frame: Result<DeviceMsg, FrameError>, out: &mut Vec<Event>) {
         let msg = match frame {
             Ok(m) => m,
-            Err(e) => return Event::Rejected(e),
+            Err(e) => {
+                out.push(Event::Rejected(e));
+                return;
+            }
         };
+        match (self.phase, &msg) {
+            (Phase::BeforeHello, DeviceMsg::Hello(_)) => self.phase = Phase::AwaitingBeacon,
+            (Phase::BeforeHello, _) => {
+                self.before_hello += 1;
+                return;
+            }
+            _ => {}
+        }
         match msg {
-            DeviceMsg::Sample(s) => {
-                let gaps_before = self.timeline.gap_samples;
-                let Some(placed) = self.timeline.place(s) else {
-                    return Event::Unplaced(s);
-                };
-                let setpoint_c = self
-                    .timeline
-                    .latest_beacon()
-                    .filter(|b| b.setpoint_tenth_c != 0)
-                    .map(|b| f64::from(b.setpoint_tenth_c) / 10.0);
-                let cal = &self.calibration;
-                Event::Sample {
-                    values: conversion::convert(s.hall_code, s.probe_code, s.thermo, cal),
-                    placed,
-                    missing_before: self.timeline.gap_samples - gaps_before,
-                    setpoint_c,
-                }
-            }
+            DeviceMsg::Sample(s) => self.timeline.hold(s),
             DeviceMsg::Beacon(b) => {
-                self.timeline.beacon(b);
-                Event::Beacon(b)
+                let settled = self.timeline.beacon(b);
+                if self.phase == Phase::AwaitingBeacon {
+                    self.timeline.start_after_latest_beacon();
+                    self.phase = Phase::Running;
+                }
+                for placed in settled {
+                    out.push(self.sample_event(placed));
+                }
+                out.push(Event::Beacon(b));
             }
-            DeviceMsg::State(st) => Event::State(st),
-            DeviceMsg::Fault(f) => Event::Fault(f),
-            DeviceMsg::Ack(a) => Event::Reply {
+            DeviceMsg::State(st) => out.push(Event::State(st)),
+            DeviceMsg::Fault(f) => out.push(Event::Fault(f)),
+            DeviceMsg::Ack(a) => out.push(Event::Reply {
                 id: a.id,
                 result: Ok(()),
-            },
-            DeviceMsg::Refused(r) => Event::Reply {
+            }),
+            DeviceMsg::Refused(r) => out.push(Event::Reply {
                 id: r.id,
                 result: Err(r.reason),
-            },
-            DeviceMsg::Hello(h) => Event::Hello(h),
+            }),
+            DeviceMsg::Hello(h) => out.push(Event::Hello(h)),
+        }
+    }
+
+    fn sample_event(&self, placed: PlacedSample) -> Event {
+        let s = placed.sample;
+        Event::Sample {
+            values: conversion::convert(s.hall_code, s.probe_code, s.thermo, &self.calibration),
+            missing_before: placed.missing_before,
+            setpoint_c: (placed.setpoint_tenth_c != 0)
+                .then(|| f64::from(placed.setpoint_tenth_c) / 10.0),
+            placed,
         }
     }
 }
@@ -172,19 +198,26 @@ impl<P: Read + Write> Acquisition<P> {
         for r in early {
             batch.bytes.extend(r.bytes);
             for f in r.frames {
-                let e = acq.take(f);
-                batch.events.push(e);
+                acq.take(f, &mut batch.events);
             }
         }
         Ok((acq, hello, batch))
     }
 
-    fn take(&mut self, f: Result<DeviceMsg, FrameError>) -> Event {
-        let e = self.ingest.frame(f);
-        if let Event::Sample { placed, .. } = &e {
-            self.device_now_s = placed.device_time_s;
+    /// Ingest one frame. Device time moves on one period with every sample that arrives (its
+    /// number is settled later, by a beacon), and never lags what has been placed: the
+    /// heartbeat's device-time clock must not wait for beacons.
+    fn take(&mut self, f: Result<DeviceMsg, FrameError>, out: &mut Vec<Event>) {
+        if let (Ok(DeviceMsg::Sample(_)), Some(b)) = (&f, self.ingest.timeline.latest_beacon()) {
+            self.device_now_s += f64::from(b.period_ms) / 1000.0;
         }
-        e
+        let from = out.len();
+        self.ingest.frame_into(f, out);
+        for e in &out[from..] {
+            if let Event::Sample { placed, .. } = e {
+                self.device_now_s = self.device_now_s.max(placed.device_time_s);
+            }
+        }
     }
 
     /// Send a command; its id.
@@ -220,8 +253,7 @@ impl<P: Read + Write> Acquisition<P> {
             events: Vec::with_capacity(got.frames.len()),
         };
         for f in got.frames {
-            let e = self.take(f);
-            batch.events.push(e);
+            self.take(f, &mut batch.events);
         }
         Ok(batch)
     }
@@ -246,7 +278,7 @@ impl<P: Read + Write> Acquisition<P> {
     /// Handshake again (after the device reset).
     pub fn rehandshake(&mut self, timeout: Duration) -> Result<DeviceHello, LinkError> {
         let hello = self.session.handshake(timeout, &mut |_| {})?;
-        self.ingest.timeline = Timeline::default();
+        self.ingest.restart_after_hello();
         self.last_byte = Instant::now();
         Ok(hello)
     }

@@ -1,5 +1,9 @@
-//! Rebuilds each sample's full sequence number and device time from the low byte it carries
-//! and the latest beacon, and counts the gaps. Never invents a sample.
+//! Rebuilds each sample's full sequence number and device time, and counts the gaps. Never
+//! invents a sample and never guesses: a sample carries only the low byte of its number, so it
+//! is held until the next beacon — which names the newest sample taken — settles its number
+//! (the device sends a beacon every second, before the samples still in its queue). Samples
+//! still held when a record ends are discarded and counted. Only samples taken after the
+//! record's start belong to it: older ones (a previous session's) are dropped and counted.
 
 use remanent_protocol::{Beacon, Sample};
 
@@ -10,38 +14,44 @@ pub struct PlacedSample {
     pub seq: u32,
     /// Device time, s.
     pub device_time_s: f64,
+    /// The setpoint in force when it arrived (0: heater off), 0.1 °C.
+    pub setpoint_tenth_c: i16,
+    /// Samples found missing just before it.
+    pub missing_before: u64,
     /// The sample as received.
     pub sample: Sample,
 }
+
+/// More samples than this are never held (a beacon comes every second).
+const MAX_HELD: usize = 4096;
 
 /// Sequence and clock state.
 #[derive(Debug, Default, Clone)]
 pub struct Timeline {
     beacon: Option<Beacon>,
     last_seq: Option<u32>,
-    rebase: bool,
+    held: Vec<(Sample, i16)>,
+    start_after: Option<u32>,
     /// Samples missing between received ones.
     pub gap_samples: u64,
     /// Separate gaps.
     pub gaps: u64,
     /// Samples received before any beacon (cannot be placed; dropped and counted).
     pub unplaced: u64,
+    /// Samples held and then discarded because no beacon came to settle them.
+    pub unsettled: u64,
+    /// Samples taken before the record's start (a previous session's), dropped.
+    pub stale: u64,
     /// Samples the device itself reported dropping (latest beacon).
     pub device_dropped: u32,
 }
 
 impl Timeline {
-    /// A beacon arrived.
-    pub fn beacon(&mut self, b: Beacon) {
-        // a beacon far ahead of the running count means more than 128 samples were lost:
-        // re-base on it so the next sample is placed correctly
-        if let Some(last) = self.last_seq {
-            if b.seq.wrapping_sub(last) as i32 > 128 {
-                self.rebase = true;
-            }
-        }
-        self.device_dropped = b.dropped_total;
-        self.beacon = Some(b);
+    /// Only samples taken after the latest beacon's newest belong to the record.
+    pub fn start_after_latest_beacon(&mut self) {
+        self.start_after = self.beacon.map(|b| b.seq);
+        self.unplaced += self.held.len() as u64;
+        self.held.clear();
     }
 
     /// The latest beacon.
@@ -49,28 +59,64 @@ impl Timeline {
         self.beacon.as_ref()
     }
 
-    /// Place a sample; `None` if no beacon has arrived yet, or if it is a repeat.
-    pub fn place(&mut self, sample: Sample) -> Option<PlacedSample> {
+    /// A sample arrived: held until the next beacon (dropped and counted before any beacon).
+    pub fn hold(&mut self, sample: Sample) {
         let Some(b) = self.beacon else {
             self.unplaced += 1;
-            return None;
+            return;
         };
-        let base = if self.rebase {
-            b.seq
+        if self.held.len() < MAX_HELD {
+            self.held.push((sample, b.setpoint_tenth_c));
         } else {
-            self.last_seq.unwrap_or(b.seq)
-        };
-        self.rebase = false;
-        let delta = sample.seq_lo.wrapping_sub(base as u8) as i8 as i32;
-        let seq = base.wrapping_add(delta as u32);
+            self.unsettled += 1;
+        }
+    }
+
+    /// A beacon arrived; the held samples it settles, placed, in order. Each held sample was
+    /// sent before this beacon, so it was taken at or before `b.seq`: its number is the
+    /// largest at or below `b.seq` with its low byte.
+    pub fn beacon(&mut self, b: Beacon) -> Vec<PlacedSample> {
+        self.device_dropped = b.dropped_total;
+        self.beacon = Some(b);
+        let held = std::mem::take(&mut self.held);
+        let mut out = Vec::with_capacity(held.len());
+        for (s, setpoint) in held {
+            let seq = b
+                .seq
+                .wrapping_sub(u32::from((b.seq as u8).wrapping_sub(s.seq_lo)));
+            if let Some(p) = self.accept(seq, s, setpoint) {
+                out.push(p);
+            }
+        }
+        out
+    }
+
+    /// Discard what is still held (the record ended); counted in [`Timeline::unsettled`].
+    pub fn finish(&mut self) {
+        self.unsettled += self.held.len() as u64;
+        self.held.clear();
+    }
+
+    /// Take a sample whose full number is known.
+    fn accept(&mut self, seq: u32, sample: Sample, setpoint: i16) -> Option<PlacedSample> {
+        let b = self.beacon?;
+        if self
+            .start_after
+            .is_some_and(|s| seq.wrapping_sub(s) as i32 <= 0)
+        {
+            self.stale += 1;
+            return None;
+        }
+        let mut missing_before = 0;
         if let Some(last) = self.last_seq {
             let step = seq.wrapping_sub(last) as i32;
             if step <= 0 {
                 return None; // a repeat or out of order: a serial link does not reorder
             }
             if step > 1 {
+                missing_before = (step - 1) as u64;
                 self.gaps += 1;
-                self.gap_samples += (step - 1) as u64;
+                self.gap_samples += missing_before;
             }
         }
         self.last_seq = Some(seq);
@@ -80,6 +126,8 @@ impl Timeline {
         Some(PlacedSample {
             seq,
             device_time_s,
+            setpoint_tenth_c: setpoint,
+            missing_before,
             sample,
         })
     }
@@ -113,25 +161,70 @@ mod tests {
         }
     }
 
+    /// Feed samples `seqs`, a beacon after every tenth; everything placed.
+    fn run(tl: &mut Timeline, seqs: impl Iterator<Item = u32>) -> Vec<PlacedSample> {
+        let mut out = Vec::new();
+        for s in seqs {
+            tl.hold(sample(s));
+            if s % 10 == 0 {
+                out.extend(tl.beacon(beacon(s)));
+            }
+        }
+        out
+    }
+
     #[test]
     fn rebuilds_sequence_and_time_across_wraps_and_counts_gaps() {
         let mut tl = Timeline::default();
-        assert_eq!(tl.place(sample(300)), None);
+        tl.hold(sample(300));
         assert_eq!(tl.unplaced, 1);
-        tl.beacon(beacon(298));
-        let mut seqs = Vec::new();
-        for s in (299..800).filter(|s| s % 97 != 0) {
-            let p = tl.place(sample(s)).unwrap();
-            assert_eq!(p.seq, s);
+        assert!(tl.beacon(beacon(298)).is_empty());
+        let placed = run(&mut tl, (299..=800).filter(|s| s % 97 != 0));
+        for p in &placed {
             // slot 10 is at 5.000 s; each later slot 0.1 s on; 2 ms late
+            let s = p.seq;
             assert!((p.device_time_s - (5.0 + (s - 10) as f64 * 0.1 + 0.002)).abs() < 1e-9);
-            seqs.push(s);
         }
+        let seqs: Vec<u32> = placed.iter().map(|p| p.seq).collect();
+        let want: Vec<u32> = (299..=800).filter(|s| s % 97 != 0).collect();
+        assert_eq!(seqs, want);
         assert_eq!(tl.gaps, 5); // 388, 485, 582, 679, 776
         assert_eq!(tl.gap_samples, 5);
-        // a long outage: the next beacon re-bases
-        tl.beacon(beacon(5_000));
-        assert_eq!(tl.place(sample(5_001)).unwrap().seq, 5_001);
-        assert_eq!(tl.gap_samples, 5 + (5_001 - 799 - 1));
+    }
+
+    #[test]
+    fn after_a_long_outage_the_numbers_come_from_the_beacon_not_a_guess() {
+        let mut tl = Timeline::default();
+        tl.beacon(beacon(100));
+        run(&mut tl, 101..=110);
+        // 200 samples lost with the link; the low byte of 311 looks like a small step from 110
+        for s in 311..=318 {
+            tl.hold(sample(s));
+        }
+        let placed = tl.beacon(beacon(320));
+        let seqs: Vec<u32> = placed.iter().map(|p| p.seq).collect();
+        assert_eq!(seqs, (311..=318).collect::<Vec<_>>());
+        assert_eq!(tl.gap_samples, 200);
+        // what no beacon settles is discarded and counted
+        tl.hold(sample(321));
+        tl.finish();
+        assert_eq!(tl.unsettled, 1);
+    }
+
+    #[test]
+    fn samples_from_before_the_start_are_dropped_and_counted() {
+        let mut tl = Timeline::default();
+        tl.beacon(beacon(500));
+        tl.start_after_latest_beacon();
+        for s in 490..=502 {
+            tl.hold(sample(s));
+        }
+        let placed = tl.beacon(beacon(502));
+        assert_eq!(
+            placed.iter().map(|p| p.seq).collect::<Vec<_>>(),
+            vec![501, 502]
+        );
+        assert_eq!(tl.stale, 11);
+        assert_eq!(tl.gap_samples, 0);
     }
 }

@@ -73,7 +73,13 @@ pub fn record<P: Read + Write>(
             return Err(e);
         }
     };
-    frame_log::close(&acq.ingest.timeline, &mut w);
+    if !matches!(end, RecordEnd::LinkLost(_)) {
+        // the samples since the last beacon wait for the next one to settle their numbers
+        if let Err(e) = rec.settle(&mut acq, &mut w) {
+            let _ = w.event(None, "settle", &format!("after the end: {e}"));
+        }
+    }
+    frame_log::close(&mut acq.ingest.timeline, &mut w);
     let counts = w.meta.counts.clone();
     let dir = w.finish(&end.describe())?;
     Ok(RecordSummary { dir, end, counts })

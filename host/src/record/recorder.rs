@@ -25,6 +25,9 @@ const RAMP_WINDOW_S: f64 = 30.0;
 const PROGRESS_EVERY: Duration = Duration::from_millis(100);
 /// A stop is given this long to be acknowledged.
 const STOP_TIMEOUT: Duration = Duration::from_secs(3);
+/// After the end, a beacon to settle the last samples is waited for this long (one comes every
+/// second of device time).
+const SETTLE_TIMEOUT: Duration = Duration::from_millis(2500);
 
 /// Where the start of the profile stands.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -168,7 +171,7 @@ impl Recorder {
                 return Ok(Some(RecordEnd::Fault(f.fault)));
             }
             Event::Reply { id, result } => return self.on_reply(*id, result, t, w),
-            Event::Unplaced(_) | Event::Hello(_) => {}
+            Event::Hello(_) => {}
         }
         Ok(None)
     }
@@ -255,6 +258,29 @@ impl Recorder {
             Ok(()) => {}
         }
         Ok(None)
+    }
+
+    /// After the end: read on until a beacon settles the samples still held, writing all.
+    pub(super) fn settle<P: Read + Write>(
+        &mut self,
+        acq: &mut Acquisition<P>,
+        w: &mut RunWriter,
+    ) -> Result<(), RecordError> {
+        let deadline = Instant::now() + SETTLE_TIMEOUT;
+        while Instant::now() < deadline {
+            let batch = acq.poll()?;
+            w.raw(&batch.bytes)?;
+            let t = self.history.back().map(|h| h.0);
+            let mut settled = false;
+            for e in &batch.events {
+                frame_log::log(w, e, t)?;
+                settled |= matches!(e, Event::Beacon(_));
+            }
+            if settled {
+                return Ok(());
+            }
+        }
+        Ok(())
     }
 
     /// Device time covered by samples so far, s.

@@ -46,6 +46,12 @@ pub struct Counts {
     pub bytes: u64,
     /// Faults the device reported.
     pub faults: u64,
+    /// Samples taken before the record's start (a previous session's), left out.
+    #[serde(default)]
+    pub stale_samples: u64,
+    /// Samples no beacon settled before the record ended, left out.
+    #[serde(default)]
+    pub unsettled_samples: u64,
 }
 
 /// Device facts from its hello.
