@@ -261,12 +261,24 @@ pub fn load_run(
     let mut probe = Vec::new();
     let mut duty = Vec::new();
     let mut setpoint = Vec::new();
-    for row in rows {
-        let (line, r) = row.map_err(|e| InputError::Row {
-            path: p.clone(),
-            line: e.line as usize,
-            reason: e.reason,
-        })?;
+    let mut rows = rows.peekable();
+    while let Some(row) = rows.next() {
+        let (line, r) = match row {
+            Ok(x) => x,
+            // a record cut off by power loss or a full disk ends in a torn row: use the rest
+            Err(e) if rows.peek().is_none() => {
+                s.skipped
+                    .push((e.line as usize, format!("last row torn ({})", e.reason)));
+                break;
+            }
+            Err(e) => {
+                return Err(InputError::Row {
+                    path: p.clone(),
+                    line: e.line as usize,
+                    reason: e.reason,
+                })
+            }
+        };
         let line = line as usize;
         check_time(&p, line, r.device_time_s, &s.time_s)?;
         let c = conversion::convert(r.hall_code, r.probe_code, r.thermo_word, &cal);

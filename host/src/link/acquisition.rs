@@ -168,7 +168,12 @@ pub struct Acquisition<P> {
     last_beat: Instant,
     last_beat_device_s: f64,
     device_now_s: f64,
+    empty_reads: u32,
 }
+
+/// While nothing arrives, a heartbeat goes out every this many empty reads too: device time
+/// cannot be seen then, and a device-to-host outage must not cost the heartbeat.
+pub const HEARTBEAT_EMPTY_READS: u32 = 5;
 
 impl<P: Read + Write> Acquisition<P> {
     /// Handshake on `port`; the device's hello and what arrived with it, ingested.
@@ -193,6 +198,7 @@ impl<P: Read + Write> Acquisition<P> {
             last_beat: Instant::now(),
             last_beat_device_s: 0.0,
             device_now_s: 0.0,
+            empty_reads: 0,
         };
         let mut batch = Batch::default();
         for r in early {
@@ -235,17 +241,21 @@ impl<P: Read + Write> Acquisition<P> {
     pub fn poll(&mut self) -> Result<Batch, LinkError> {
         if self.last_beat.elapsed() >= HEARTBEAT_WALL
             || self.device_now_s - self.last_beat_device_s >= HEARTBEAT_DEVICE_S
+            || self.empty_reads >= HEARTBEAT_EMPTY_READS
         {
+            self.empty_reads = 0;
             self.session.send(Command::Heartbeat)?;
             self.last_beat = Instant::now();
             self.last_beat_device_s = self.device_now_s;
         }
         let got = self.session.read()?;
         if got.bytes.is_empty() {
+            self.empty_reads += 1;
             if self.last_byte.elapsed() > self.silence {
                 return Err(LinkError::Silent(self.silence.as_secs_f64()));
             }
         } else {
+            self.empty_reads = 0;
             self.last_byte = Instant::now();
         }
         let mut batch = Batch {

@@ -1,9 +1,12 @@
 //! Rebuilds each sample's full sequence number and device time, and counts the gaps. Never
 //! invents a sample and never guesses: a sample carries only the low byte of its number, so it
-//! is held until the next beacon — which names the newest sample taken — settles its number
-//! (the device sends a beacon every second, before the samples still in its queue). Samples
-//! still held when a record ends are discarded and counted. Only samples taken after the
-//! record's start belong to it: older ones (a previous session's) are dropped and counted.
+//! is held until the next beacon settles it. Between a lower bound (the last sample placed, or
+//! the previous beacon less the device's queue) and the beacon's newest sample, the held
+//! samples are numbered with the smallest steps their low bytes allow; that numbering is the
+//! only one possible when it ends less than 256 below the beacon. Otherwise (an outage of 256
+//! samples or more among them) they are discarded and counted, as are samples still held when
+//! a record ends. Only samples taken after the record's start belong to it: older ones (a
+//! previous session's) are dropped and counted.
 
 use remanent_protocol::{Beacon, Sample};
 
@@ -24,6 +27,9 @@ pub struct PlacedSample {
 
 /// More samples than this are never held (a beacon comes every second).
 const MAX_HELD: usize = 4096;
+/// Samples sent after a beacon were taken after its newest less the device's queue (16) and
+/// this margin.
+const QUEUE_MARGIN: u32 = 20;
 
 /// Sequence and clock state.
 #[derive(Debug, Default, Clone)]
@@ -77,13 +83,34 @@ impl Timeline {
     /// largest at or below `b.seq` with its low byte.
     pub fn beacon(&mut self, b: Beacon) -> Vec<PlacedSample> {
         self.device_dropped = b.dropped_total;
-        self.beacon = Some(b);
+        let previous = self.beacon.replace(b);
         let held = std::mem::take(&mut self.held);
+        let floor = match (self.last_seq, previous) {
+            (Some(l), Some(p)) => l.max(p.seq.wrapping_sub(QUEUE_MARGIN)),
+            (Some(l), None) => l,
+            (None, Some(p)) => p.seq.wrapping_sub(QUEUE_MARGIN),
+            (None, None) => return Vec::new(),
+        };
+        let mut cur = floor;
+        let seqs: Vec<u32> = held
+            .iter()
+            .map(|(s, _)| {
+                let step = match s.seq_lo.wrapping_sub(cur as u8) {
+                    0 => 256,
+                    d => u32::from(d),
+                };
+                cur = cur.wrapping_add(step);
+                cur
+            })
+            .collect();
+        let behind = b.seq.wrapping_sub(cur) as i32;
+        if !held.is_empty() && !(0..256).contains(&behind) {
+            // more than one numbering fits (or none): discard rather than guess
+            self.unsettled += held.len() as u64;
+            return Vec::new();
+        }
         let mut out = Vec::with_capacity(held.len());
-        for (s, setpoint) in held {
-            let seq = b
-                .seq
-                .wrapping_sub(u32::from((b.seq as u8).wrapping_sub(s.seq_lo)));
+        for ((s, setpoint), seq) in held.into_iter().zip(seqs) {
             if let Some(p) = self.accept(seq, s, setpoint) {
                 out.push(p);
             }
@@ -193,11 +220,11 @@ mod tests {
     }
 
     #[test]
-    fn after_a_long_outage_the_numbers_come_from_the_beacon_not_a_guess() {
+    fn after_a_long_outage_samples_are_settled_by_the_beacon_or_discarded_never_guessed() {
         let mut tl = Timeline::default();
         tl.beacon(beacon(100));
         run(&mut tl, 101..=110);
-        // 200 samples lost with the link; the low byte of 311 looks like a small step from 110
+        // 200 samples lost: the low bytes still say how far, and the beacon agrees
         for s in 311..=318 {
             tl.hold(sample(s));
         }
@@ -205,10 +232,21 @@ mod tests {
         let seqs: Vec<u32> = placed.iter().map(|p| p.seq).collect();
         assert_eq!(seqs, (311..=318).collect::<Vec<_>>());
         assert_eq!(tl.gap_samples, 200);
+        // 300 lost: the low byte of 621 looks like a small step from 318; the beacon shows
+        // the numbering cannot be known, so they are discarded, not placed 256 too early
+        for s in 621..=628 {
+            tl.hold(sample(s));
+        }
+        assert!(tl.beacon(beacon(630)).is_empty());
+        assert_eq!(tl.unsettled, 8);
+        // and the next second goes on correctly
+        let placed = run(&mut tl, 631..=640);
+        assert_eq!(placed.first().unwrap().seq, 631);
+        assert_eq!(tl.gap_samples, 200 + 312);
         // what no beacon settles is discarded and counted
-        tl.hold(sample(321));
+        tl.hold(sample(641));
         tl.finish();
-        assert_eq!(tl.unsettled, 1);
+        assert_eq!(tl.unsettled, 9);
     }
 
     #[test]

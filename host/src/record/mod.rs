@@ -11,6 +11,8 @@ pub use types::{
 
 use std::io::{Read, Write};
 
+use remanent_protocol::Command;
+
 use crate::frame_log;
 use crate::link::acquisition::Acquisition;
 use crate::link::words::{describe_boot, describe_heater};
@@ -64,15 +66,25 @@ pub fn record<P: Read + Write>(
     let end = match rec.run(&mut acq, &mut w, &opts, progress) {
         Ok(end) => end,
         Err(RecordError::Link(e @ LinkError::Refused { .. })) => {
-            w.finish(&format!("not started: {e}"))?;
+            // nothing was recorded: leave no directory behind to block the name
+            let _ = acq.send(Command::Stop);
+            w.discard();
             return Err(e.into());
         }
         Err(RecordError::Link(e)) => RecordEnd::LinkLost(e.to_string()),
-        Err(e) => {
-            let _ = w.flush();
-            return Err(e);
-        }
+        Err(RecordError::RunDir(e)) => RecordEnd::WriteFailed(e.to_string()),
     };
+    // the heater goes off on every way out, not only when the device says it did
+    if end != RecordEnd::Stopped && acq.send(Command::Stop).is_ok() {
+        let t = acq.device_now_s();
+        let _ = w.event(Some(t), "stop", "heater off requested as the record ends");
+    }
+    if let RecordEnd::WriteFailed(_) = &end {
+        frame_log::close(&mut acq.ingest.timeline, &mut w);
+        let counts = w.meta.counts.clone();
+        let dir = w.finish_after_failure(&end.describe());
+        return Ok(RecordSummary { dir, end, counts });
+    }
     if !matches!(end, RecordEnd::LinkLost(_)) {
         // the samples since the last beacon wait for the next one to settle their numbers
         if let Err(e) = rec.settle(&mut acq, &mut w) {

@@ -158,7 +158,10 @@ impl Recorder {
             }
             Event::Beacon(b) => {
                 self.status.state = Some(b.state);
-                let at = Some(f64::from(b.epoch_ms) / 1000.0);
+                // the time of the beacon's newest sample: when the device said it
+                let slot_ms = f64::from(b.epoch_ms)
+                    + f64::from(b.seq.wrapping_sub(b.epoch_seq)) * f64::from(b.period_ms);
+                let at = Some(slot_ms / 1000.0);
                 return self.on_state(b.state, true, at, w, progress);
             }
             Event::State(st) => {

@@ -32,7 +32,7 @@ pub struct RecordOptions {
     /// Device time recorded with the heater off before the profile starts, s: a settled
     /// room-temperature reference with the magnet at rest.
     pub preroll_s: f64,
-    /// Set to stop (Ctrl-C).
+    /// Set to stop (Ctrl-C, or a termination or hang-up signal).
     pub stop: Arc<AtomicBool>,
 }
 
@@ -91,6 +91,8 @@ pub enum RecordEnd {
     DeviceFaulted,
     /// The link went away; everything received is kept.
     LinkLost(String),
+    /// The record could not be written (a full disk); every complete row is kept.
+    WriteFailed(String),
 }
 
 impl RecordEnd {
@@ -104,6 +106,9 @@ impl RecordEnd {
                 "the device reports a latched fault (report lost on the link): heater off".into()
             }
             RecordEnd::LinkLost(why) => format!("link lost: {why}"),
+            RecordEnd::WriteFailed(why) => {
+                format!("could not write the record ({why}); every complete row is kept")
+            }
         }
     }
 }

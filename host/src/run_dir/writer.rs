@@ -18,8 +18,14 @@ use crate::link::PlacedSample;
 pub struct RunWriter {
     dir: PathBuf,
     raw: BufWriter<File>,
-    samples: csv::Writer<File>,
+    samples: csv::Writer<StopAfterError<File>>,
     events: BufWriter<File>,
+    /// Events not yet written, kept in device-time order.
+    pending_events: Vec<(f64, String)>,
+    /// Device time of the latest sample written, s.
+    latest_s: f64,
+    /// Space set aside so the end of the record can still be written on a full disk.
+    reserve: Option<PathBuf>,
     /// The metadata, rewritten on every flush.
     pub meta: RunMeta,
     last_flush: Instant,
@@ -27,6 +33,13 @@ pub struct RunWriter {
 
 /// How often data are forced to disk.
 pub const FLUSH_INTERVAL: Duration = Duration::from_millis(500);
+/// Events are written once the samples are this far past them, so `events.csv` is in time
+/// order (samples are placed up to a second after they arrive), s.
+pub const EVENT_SETTLE_S: f64 = 3.0;
+/// Space set aside for the end of a record, bytes.
+pub const RESERVE_BYTES: usize = 64 * 1024;
+/// The reserve's file name.
+const RESERVE_FILE: &str = ".space-reserve";
 
 impl RunWriter {
     /// Create `dir` (its parent must exist or is created; `dir` itself must not exist).
@@ -57,29 +70,63 @@ impl RunWriter {
                 })
         };
         let raw = open(RAW_FILE)?;
-        let mut samples = csv::WriterBuilder::new().has_headers(false).from_writer(
-            open(SAMPLES_FILE)?
-                .into_inner()
-                .map_err(|e| RunDirError::Io {
-                    path: dir.join(SAMPLES_FILE).display().to_string(),
-                    source: e.into_error(),
-                })?,
-        );
+        let samples_file = open(SAMPLES_FILE)?
+            .into_inner()
+            .map_err(|e| RunDirError::Io {
+                path: dir.join(SAMPLES_FILE).display().to_string(),
+                source: e.into_error(),
+            })?;
+        let mut samples = csv::WriterBuilder::new()
+            .has_headers(false)
+            .from_writer(StopAfterError::new(samples_file));
         samples
             .write_record(SAMPLES_HEADER.split(','))
             .map_err(|e| csv_err(dir, e))?;
         let mut events = open(EVENTS_FILE)?;
         writeln!(events, "device_time_s,kind,detail").map_err(io_err(dir))?;
+        let reserve = dir.join(RESERVE_FILE);
+        fs::write(&reserve, vec![0u8; RESERVE_BYTES]).map_err(io_err(&reserve))?;
         let w = RunWriter {
             dir: dir.to_path_buf(),
             raw,
             samples,
             events,
+            pending_events: Vec::new(),
+            latest_s: 0.0,
+            reserve: Some(reserve),
             meta,
             last_flush: Instant::now(),
         };
         w.write_meta()?;
         Ok(w)
+    }
+
+    /// Give back the space set aside (before the last writes of a record).
+    fn release_reserve(&mut self) {
+        if let Some(r) = self.reserve.take() {
+            let _ = fs::remove_file(r);
+        }
+    }
+
+    /// A record that never started: remove its directory, so the name is free again.
+    pub fn discard(mut self) {
+        self.release_reserve();
+        let _ = fs::remove_dir_all(&self.dir);
+    }
+
+    /// Close a record whose writing failed (a full disk): the space set aside is given back,
+    /// what can still be written is, and `run.toml` says why it ended.
+    pub fn finish_after_failure(mut self, reason: &str) -> PathBuf {
+        self.release_reserve();
+        self.meta.end_reason = Some(reason.into());
+        self.meta.finished_utc = Some(utc_now());
+        let _ = self.write_events(f64::INFINITY);
+        let _ = self.raw.flush();
+        // not the samples: a failed CSV write would be retried from its start, tearing a row
+        // in the middle; what reached the disk ends in at most one torn row
+        let _ = self.events.flush();
+        let _ = self.write_meta();
+        self.dir
     }
 
     /// The directory.
@@ -122,20 +169,34 @@ impl RunWriter {
         self.samples
             .serialize(row)
             .map_err(|e| csv_err(&self.dir, e))?;
+        self.latest_s = self.latest_s.max(p.device_time_s);
         self.meta.counts.samples += 1;
         Ok(())
     }
 
-    /// An event line.
+    /// An event, at its device time (or, without one, the latest sample's); written in time
+    /// order once the samples have passed it.
     pub fn event(
         &mut self,
         device_time_s: Option<f64>,
         kind: &str,
         detail: &str,
     ) -> Result<(), RunDirError> {
-        let t = device_time_s.map(|t| format!("{t:.3}")).unwrap_or_default();
+        let t = device_time_s.unwrap_or(self.latest_s);
         let detail = detail.replace(['"', '\n'], " ");
-        writeln!(self.events, "{t},{kind},\"{detail}\"").map_err(io_err(&self.dir))
+        let line = format!("{t:.3},{kind},\"{detail}\"");
+        let at = self.pending_events.partition_point(|(u, _)| *u <= t);
+        self.pending_events.insert(at, (t, line));
+        Ok(())
+    }
+
+    /// Write the pending events up to `until_s`, in order.
+    fn write_events(&mut self, until_s: f64) -> Result<(), RunDirError> {
+        let n = self.pending_events.partition_point(|(u, _)| *u <= until_s);
+        for (_, line) in self.pending_events.drain(..n) {
+            writeln!(self.events, "{line}").map_err(io_err(&self.dir))?;
+        }
+        Ok(())
     }
 
     /// Flush if the interval has passed.
@@ -149,6 +210,7 @@ impl RunWriter {
     /// Everything to disk now.
     pub fn flush(&mut self) -> Result<(), RunDirError> {
         self.last_flush = Instant::now();
+        self.write_events(self.latest_s - EVENT_SETTLE_S)?;
         self.raw.flush().map_err(io_err(&self.dir))?;
         self.samples.flush().map_err(io_err(&self.dir))?;
         self.events.flush().map_err(io_err(&self.dir))?;
@@ -161,16 +223,55 @@ impl RunWriter {
             reason: e.to_string(),
         })?;
         let tmp = self.dir.join(".run.toml.tmp");
-        fs::write(&tmp, text).map_err(io_err(&tmp))?;
-        fs::rename(&tmp, self.dir.join(META_FILE)).map_err(io_err(&self.dir))
+        let written = fs::write(&tmp, text)
+            .map_err(io_err(&tmp))
+            .and_then(|()| fs::rename(&tmp, self.dir.join(META_FILE)).map_err(io_err(&self.dir)));
+        if written.is_err() {
+            let _ = fs::remove_file(&tmp);
+        }
+        written
     }
 
     /// Close the record with the reason it ended.
     pub fn finish(mut self, reason: &str) -> Result<PathBuf, RunDirError> {
+        self.release_reserve();
         self.meta.end_reason = Some(reason.into());
         self.meta.finished_utc = Some(utc_now());
+        self.write_events(f64::INFINITY)?;
         self.flush()?;
         Ok(self.dir)
+    }
+}
+
+/// A writer that refuses every write after one has failed. The CSV writer retries a failed
+/// buffer from its start (on its next flush, or when dropped), which on a disk that has
+/// regained a little space would tear a row in the middle of the file.
+pub struct StopAfterError<W> {
+    inner: W,
+    failed: bool,
+}
+
+impl<W> StopAfterError<W> {
+    fn new(inner: W) -> Self {
+        StopAfterError {
+            inner,
+            failed: false,
+        }
+    }
+}
+
+impl<W: Write> Write for StopAfterError<W> {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        if self.failed {
+            return Err(io::Error::other("an earlier write failed"));
+        }
+        self.inner.write(buf).inspect_err(|_| self.failed = true)
+    }
+    fn flush(&mut self) -> io::Result<()> {
+        if self.failed {
+            return Err(io::Error::other("an earlier write failed"));
+        }
+        self.inner.flush()
     }
 }
 

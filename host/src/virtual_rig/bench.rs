@@ -35,6 +35,36 @@ pub fn heater_drive(params: &RigParams) -> HeaterDrive {
     }
 }
 
+/// Every sample the device sent, numbered from the undamaged stream (a test's truth).
+#[derive(Default)]
+pub struct SentLog {
+    decoder: Option<remanent_protocol::decoder::DeviceDecoder>,
+    timeline: crate::link::Timeline,
+    /// Samples by full sequence number.
+    pub samples: std::collections::BTreeMap<u32, remanent_protocol::Sample>,
+}
+
+impl SentLog {
+    fn feed(&mut self, bytes: &[u8]) {
+        let dec = self
+            .decoder
+            .get_or_insert_with(remanent_protocol::decoder::DeviceDecoder::for_device_msgs);
+        let mut msgs = Vec::new();
+        dec.feed(bytes, |m| msgs.push(m));
+        for m in msgs.into_iter().flatten() {
+            match m {
+                remanent_protocol::DeviceMsg::Sample(s) => self.timeline.hold(s),
+                remanent_protocol::DeviceMsg::Beacon(b) => {
+                    for p in self.timeline.beacon(b) {
+                        self.samples.insert(p.seq, p.sample);
+                    }
+                }
+                _ => {}
+            }
+        }
+    }
+}
+
 /// The firmware on the model, advanced in simulated time by its owner: the engine behind the
 /// pseudo-terminal rig and the in-process [`SimulatedPort`].
 pub struct SimulatedBench {
@@ -43,6 +73,8 @@ pub struct SimulatedBench {
     noise: Rng,
     flip: f64,
     drop: f64,
+    outage_s: Option<(f64, f64)>,
+    sent: Option<SentLog>,
     damaged: u64,
     survey: Vec<(Magnet, f64)>,
     survey_dwell_s: f64,
@@ -89,6 +121,8 @@ impl SimulatedBench {
             noise: Rng::new(opts.seed ^ 0x005e_ed11),
             flip: opts.link_flip_probability,
             drop: opts.link_drop_probability,
+            outage_s: opts.link_outage_s,
+            sent: opts.keep_sent.then(SentLog::default),
             damaged: 0,
         }
     }
@@ -123,6 +157,14 @@ impl SimulatedBench {
             let now = self.rig.borrow().time_ms();
             self.device.poll(now);
         }
+        if let Some(log) = &mut self.sent {
+            log.feed(&clean);
+        }
+        let now_s = self.time_s();
+        if self.outage_s.is_some_and(|(a, b)| (a..b).contains(&now_s)) {
+            self.damaged += clean.len() as u64;
+            return Vec::new();
+        }
         if self.flip == 0.0 && self.drop == 0.0 {
             return clean;
         }
@@ -153,6 +195,13 @@ impl SimulatedBench {
             self.survey_slot = want;
             self.rig.borrow_mut().swap(want.map(|i| self.survey[i]));
         }
+    }
+
+    /// Every sample the device sent so far (with [`VirtualRigOptions::keep_sent`]).
+    pub fn sent_samples(
+        &self,
+    ) -> Option<&std::collections::BTreeMap<u32, remanent_protocol::Sample>> {
+        self.sent.as_ref().map(|l| &l.samples)
     }
 
     /// The model's truth now.

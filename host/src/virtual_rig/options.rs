@@ -30,6 +30,10 @@ pub struct VirtualRigOptions {
     pub link_flip_probability: f64,
     /// Probability that a byte sent to the host is lost.
     pub link_drop_probability: f64,
+    /// Every byte to the host is lost between these device times, s (an outage).
+    pub link_outage_s: Option<(f64, f64)>,
+    /// Keep every sample the device sends, numbered, as the truth a test compares with.
+    pub keep_sent: bool,
     /// A room-temperature survey: magnets (with an earlier irreversible loss, a fraction)
     /// placed in the fixture one after another, as a user would.
     pub survey: Vec<(Magnet, f64)>,
@@ -48,6 +52,8 @@ impl VirtualRigOptions {
             faults: RigFaults::default(),
             link_flip_probability: 0.0,
             link_drop_probability: 0.0,
+            link_outage_s: None,
+            keep_sent: false,
             survey: Vec::new(),
             survey_dwell_s: 20.0,
         }

@@ -35,14 +35,18 @@ impl SimulatedPort {
     }
 }
 
+/// Simulated time a read waits for bytes before it times out, s.
+const READ_TIMEOUT_S: f64 = 0.2;
+
 impl Read for SimulatedPort {
     fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
         if self.cut_at_s.is_some_and(|t| self.bench.time_s() >= t) {
             return Err(io::Error::from(io::ErrorKind::BrokenPipe));
         }
+        // like a port's read timeout: give up after a little simulated time with nothing
         let mut waited = 0.0;
         while self.pending.is_empty() {
-            if waited >= 5.0 {
+            if waited >= READ_TIMEOUT_S {
                 return Err(io::Error::from(io::ErrorKind::TimedOut));
             }
             self.pending = self.bench.advance(self.read_step_s);

@@ -3,6 +3,7 @@
 mod accuracy;
 mod analysis_input;
 mod end_to_end;
+mod integrity;
 mod outputs;
 mod reference_field;
 mod reference_lsq;
