@@ -5,6 +5,7 @@
 
 pub mod analysis;
 pub mod calibration;
+pub mod clear_fault;
 pub mod conversion;
 pub mod drill;
 pub mod frame_log;

@@ -49,6 +49,8 @@ pub struct DeviceHello {
     pub heater: HeaterDrive,
     /// Why the device last started, and what was latched then.
     pub boot: BootReport,
+    /// The fault latched now, if any (the heater stays off until it is cleared).
+    pub latched: Option<Fault>,
 }
 
 /// How the firmware drives the heater's switch.

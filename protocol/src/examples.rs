@@ -54,6 +54,7 @@ pub fn device() -> [(&'static str, DeviceMsg); 7] {
                     last_fault: Some(Fault::StuckReading),
                     locked: false,
                 },
+                latched: Some(Fault::Watchdog),
             }),
         ),
         ("sample", DeviceMsg::Sample(sample())),

@@ -7,7 +7,7 @@
 /// Field-by-field description of the wire layout.
 pub const SCHEMA: &str = "\
 DeviceMsg{Hello(DeviceHello),Sample(Sample),Beacon(Beacon),State(StateReport),Fault(FaultReport),Ack(Ack),Refused(Refusal)}
-DeviceHello{version:Version,firmware:[u8;3],board:Label,sensors:SensorSetup,limits:SafetyLimits,heater:HeaterDrive,boot:BootReport}
+DeviceHello{version:Version,firmware:[u8;3],board:Label,sensors:SensorSetup,limits:SafetyLimits,heater:HeaterDrive,boot:BootReport,latched:Option<Fault>}
 HeaterDrive{Pwm{u16},TimeProportioning{u16,u16}}
 BootReport{reset:ResetCause{PowerOn,Watchdog,Panic,HardFault},last_fault:Option<Fault>,locked:bool}
 Version{protocol:u16,schema:u32}

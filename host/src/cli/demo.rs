@@ -19,7 +19,7 @@ pub struct Args {
     #[arg(long, default_value = "quick-alpha")]
     profile: String,
     /// Simulated seconds per wall-clock second.
-    #[arg(long, default_value_t = 100.0)]
+    #[arg(long, default_value_t = 100.0, value_parser = super::options::parse_speed)]
     speed: f64,
     /// Where to put the run (default: a new folder under `remanent-runs/`).
     #[arg(long)]

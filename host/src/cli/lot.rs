@@ -17,13 +17,24 @@ pub struct Args {
     out: PathBuf,
     #[command(flatten)]
     specs: SpecOpts,
+    /// Compare runs of different grades (a lot is normally one grade).
+    #[arg(long)]
+    mixed_grades: bool,
     #[command(flatten)]
     force: ForceOpts,
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
-    let outcome =
-        remanent::jobs::lot::run(&a.runs, &a.out, a.specs.specs.as_deref(), a.force.force)?;
+    let outcome = remanent::jobs::lot::run(
+        &a.runs,
+        &a.out,
+        a.specs.specs.as_deref(),
+        a.mixed_grades,
+        a.force.force,
+    )?;
+    for w in &outcome.warnings {
+        eprintln!("warning: {w}");
+    }
     for (run, why) in &outcome.skipped {
         eprintln!("left out of the lot: {}: {why}", run.display());
     }
@@ -43,5 +54,10 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     for f in &outcome.written {
         println!("wrote {}", f.display());
     }
-    Ok(ExitCode::SUCCESS)
+    // a lot with runs left out is not the lot asked for
+    Ok(if outcome.skipped.is_empty() {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(3)
+    })
 }

@@ -3,17 +3,20 @@
 use clap::{Parser, Subcommand};
 
 mod analyze;
+mod clear_fault;
 mod demo;
 mod lot;
 mod magnets;
 mod options;
 mod ports;
+mod profiles;
 mod progress;
 mod record;
 mod replay;
 mod report;
 mod sampling_plan;
 mod self_test;
+mod specs;
 mod survey;
 mod virtual_rig;
 
@@ -37,6 +40,12 @@ enum Cmd {
     Ports,
     /// List the built-in demo magnets.
     Magnets,
+    /// List the built-in heating profiles.
+    Profiles,
+    /// List the grade spec table.
+    Specs(specs::Args),
+    /// Show the device's latched fault and clear it when it is safe to.
+    ClearFault(clear_fault::Args),
     /// Analyse a run directory or a CSV log: α, irreversible loss, verdict.
     Analyze(analyze::Args),
     /// Write plots and an HTML and Markdown report for a run.
@@ -61,6 +70,9 @@ pub fn main() -> std::process::ExitCode {
         Cmd::VirtualRig(a) => virtual_rig::run(a),
         Cmd::Ports => ports::run(),
         Cmd::Magnets => magnets::run(),
+        Cmd::Profiles => profiles::run(),
+        Cmd::Specs(a) => specs::run(a),
+        Cmd::ClearFault(a) => clear_fault::run(a),
         Cmd::Analyze(a) => analyze::run(a),
         Cmd::Report(a) => report::run(a),
         Cmd::Replay(a) => replay::run(a),

@@ -25,3 +25,15 @@ pub struct CalibrationOpts {
     #[arg(long)]
     pub calibration: Option<PathBuf>,
 }
+
+/// A speed-up of simulated time: finite and above zero (zero would never advance, and a
+/// negative one would run backwards).
+pub fn parse_speed(s: &str) -> Result<f64, String> {
+    match s.trim().parse::<f64>() {
+        Ok(v) if v.is_finite() && v > 0.0 && v <= 10_000.0 => Ok(v),
+        Ok(v) => Err(format!(
+            "{v} is not a speed: give a number above 0 and at most 10000"
+        )),
+        Err(_) => Err(format!("`{s}` is not a number")),
+    }
+}

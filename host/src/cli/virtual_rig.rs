@@ -14,7 +14,7 @@ pub struct Args {
     #[arg(long, default_value = "RM-N42SH-D10x5")]
     magnet: String,
     /// Simulated seconds per wall-clock second.
-    #[arg(long, default_value_t = 60.0)]
+    #[arg(long, default_value_t = 60.0, value_parser = super::options::parse_speed)]
     speed: f64,
     /// Noise seed.
     #[arg(long, default_value_t = 1)]

@@ -15,6 +15,9 @@ pub enum LotError {
     /// None of the runs could be analysed.
     #[error("none of the {0} runs could be analysed")]
     Empty(usize),
+    /// The runs are of more than one grade.
+    #[error("the runs are of several grades ({0}); a lot is one grade — pass --mixed-grades to compare them anyway")]
+    MixedGrades(String),
     /// A run's metadata, the spec table, or the like.
     #[error(transparent)]
     Job(#[from] JobError),
@@ -37,6 +40,37 @@ pub struct LotOutcome {
     pub skipped: Vec<(PathBuf, String)>,
     /// Files written.
     pub written: Vec<PathBuf>,
+    /// Things the user should know (duplicate runs or magnets).
+    pub warnings: Vec<String>,
+}
+
+/// Warnings for the same run given twice, or the same magnet id in two runs.
+fn duplicates(runs: &[PathBuf], ids: &[(PathBuf, String)]) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut seen = std::collections::BTreeMap::new();
+    for r in runs {
+        let key = std::fs::canonicalize(r).unwrap_or_else(|_| r.clone());
+        if let Some(first) = seen.insert(key, r.clone()) {
+            out.push(format!(
+                "{} and {} are the same run",
+                first.display(),
+                r.display()
+            ));
+        }
+    }
+    let mut by_id = std::collections::BTreeMap::new();
+    for (r, id) in ids {
+        if let Some(first) = by_id.insert(id.clone(), r.clone()) {
+            if std::fs::canonicalize(&first).ok() != std::fs::canonicalize(r).ok() {
+                out.push(format!(
+                    "magnet {id} appears twice ({} and {})",
+                    first.display(),
+                    r.display()
+                ));
+            }
+        }
+    }
+    out
 }
 
 /// Analyse `runs` into `out` (a new folder unless `force`).
@@ -44,11 +78,13 @@ pub fn run(
     runs: &[PathBuf],
     out: &Path,
     specs: Option<&Path>,
+    mixed_grades: bool,
     force: bool,
 ) -> Result<LotOutcome, LotError> {
     output::refuse_existing([out.to_path_buf()], force)?;
     let mut rows = Vec::new();
-    let mut grades = Vec::new();
+    let mut grades: Vec<String> = Vec::new();
+    let mut ids = Vec::new();
     let mut skipped = Vec::new();
     for run in runs {
         let req = InputRequest {
@@ -65,11 +101,19 @@ pub fn run(
         };
         let meta = crate::run_dir::read_meta(run)?;
         grades.push(meta.magnet.grade.clone());
+        ids.push((run.clone(), meta.magnet.id.clone()));
         rows.push(LotRow::new(&meta.magnet.id, &meta.magnet.grade, &analysis));
     }
     if rows.is_empty() {
         return Err(LotError::Empty(runs.len()));
     }
+    let mut distinct: Vec<&str> = grades.iter().map(String::as_str).collect();
+    distinct.sort_unstable();
+    distinct.dedup();
+    if distinct.len() > 1 && !mixed_grades {
+        return Err(LotError::MixedGrades(distinct.join(", ")));
+    }
+    let warnings = duplicates(runs, &ids);
     let summary = lot::summarise(rows);
     let table = spec_table(specs).map_err(JobError::from)?;
     let spec = grades.first().and_then(|g| table.find(g));
@@ -95,5 +139,6 @@ pub fn run(
         summary,
         skipped,
         written,
+        warnings,
     })
 }

@@ -4,6 +4,7 @@ mod accuracy;
 mod analysis_input;
 mod end_to_end;
 mod integrity;
+mod operator;
 mod outputs;
 mod reference_field;
 mod reference_lsq;

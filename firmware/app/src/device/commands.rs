@@ -43,6 +43,10 @@ where
             limits: SafetyLimits::from(self.cfg),
             heater: self.heater.drive_kind(),
             boot: self.boot,
+            latched: match self.mode {
+                Mode::Faulted(f) => Some(f),
+                _ => None,
+            },
         }
     }
 

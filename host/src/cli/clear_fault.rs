@@ -1,0 +1,42 @@
+//! `remanent clear-fault`: show the latched fault and its reason, and clear it when safe.
+
+use std::process::ExitCode;
+
+use remanent::clear_fault::Cleared;
+use remanent::link::words::{describe_boot, describe_fault, describe_refusal};
+
+use super::options::CalibrationOpts;
+
+#[derive(clap::Args)]
+pub struct Args {
+    /// Serial port of the bench.
+    #[arg(long)]
+    port: String,
+    #[command(flatten)]
+    calibration: CalibrationOpts,
+}
+
+pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+    let cal = remanent::jobs::calibration_policy::choose(a.calibration.calibration.as_deref())?;
+    let port = remanent::link::port::open(&a.port)?;
+    let (hello, outcome) = remanent::clear_fault::run(port, cal.calibration)?;
+    if let Some(why) = describe_boot(&hello.boot) {
+        println!("{why}");
+    }
+    Ok(match outcome {
+        Cleared::NothingLatched => {
+            println!("no fault is latched: the device is ready");
+            ExitCode::SUCCESS
+        }
+        Cleared::Cleared(f) => {
+            println!("latched: {}", describe_fault(f));
+            println!("cleared: the device is ready");
+            ExitCode::SUCCESS
+        }
+        Cleared::Refused(f, r) => {
+            println!("latched: {}", describe_fault(f));
+            println!("not cleared: {}", describe_refusal(&r));
+            ExitCode::from(3)
+        }
+    })
+}

@@ -1,0 +1,55 @@
+//! What the command line refuses, run as a user would run it.
+
+use std::process::Command;
+
+const BIN: &str = env!("CARGO_BIN_EXE_remanent");
+
+fn run(args: &[&str]) -> (i32, String) {
+    let out = Command::new(BIN).args(args).output().unwrap();
+    let text =
+        String::from_utf8_lossy(&out.stderr).into_owned() + &String::from_utf8_lossy(&out.stdout);
+    (out.status.code().unwrap_or(-1), text)
+}
+
+#[test]
+fn a_speed_of_zero_or_below_is_refused_at_once() {
+    for bad in ["--speed=0", "--speed=-3", "--speed=nan"] {
+        let (code, text) = run(&["virtual-rig", bad]);
+        assert_eq!(code, 2, "{bad}: {text}");
+        assert!(text.contains("speed") || text.contains("number"), "{text}");
+        let (code, _) = run(&["demo", bad]);
+        assert_eq!(code, 2, "{bad}");
+    }
+}
+
+#[test]
+fn sampling_plan_never_replaces_a_plot_without_force() {
+    let dir = tempfile::tempdir().unwrap();
+    let stem = dir.path().join("oc");
+    let stem = stem.to_str().unwrap();
+    let args = [
+        "sampling-plan",
+        "--aql",
+        "0.01",
+        "--rql",
+        "0.06",
+        "--plot",
+        stem,
+    ];
+    assert_eq!(run(&args).0, 0);
+    let before = std::fs::metadata(format!("{stem}.png"))
+        .unwrap()
+        .modified()
+        .unwrap();
+    let (code, text) = run(&args);
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("already exists"), "{text}");
+    let after = std::fs::metadata(format!("{stem}.png"))
+        .unwrap()
+        .modified()
+        .unwrap();
+    assert_eq!(before, after);
+    let mut forced = args.to_vec();
+    forced.push("--force");
+    assert_eq!(run(&forced).0, 0);
+}

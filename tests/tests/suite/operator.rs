@@ -1,0 +1,110 @@
+//! The operator's commands: clearing a latched fault on purpose, and what the CLI refuses.
+
+use remanent::calibration::Calibration;
+use remanent::clear_fault::Cleared;
+use remanent::magnets;
+use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
+use remanent_protocol::{Fault, RefuseReason};
+
+fn rig(tc_open: bool) -> (SimulatedPort, Calibration) {
+    let m = magnets::resolve("RM-N42SH-D10x5").unwrap();
+    let mut opts = VirtualRigOptions::new(m.model.unwrap());
+    if tc_open {
+        opts.faults.thermocouple_open_at_s = Some(0.0);
+    }
+    let cal = Calibration::virtual_rig(&opts.params);
+    (SimulatedPort::new(opts), cal)
+}
+
+#[test]
+fn clear_fault_names_the_latched_fault_and_refuses_while_its_cause_persists() {
+    let (port, cal) = rig(false);
+    let (_, outcome) = remanent::clear_fault::run(port, cal).unwrap();
+    assert_eq!(outcome, Cleared::NothingLatched);
+    // an open thermocouple latches even with the heater idle; it cannot be cleared while open
+    let (mut port, cal) = rig(true);
+    let mut buf = [0u8; 64];
+    for _ in 0..20 {
+        // let the device run a few periods before the host says hello
+        let _ = std::io::Read::read(&mut port, &mut buf);
+    }
+    let (hello, outcome) = remanent::clear_fault::run(port, cal).unwrap();
+    assert_eq!(hello.latched, Some(Fault::ThermocoupleOpen));
+    assert_eq!(
+        outcome,
+        Cleared::Refused(
+            Fault::ThermocoupleOpen,
+            RefuseReason::FaultLatched(Fault::ThermocoupleOpen)
+        )
+    );
+}
+
+fn recorded(dir: &std::path::Path, name: &str, magnet: &str) -> std::path::PathBuf {
+    use remanent::profiles::{ProfileSpec, SegmentSpec};
+    use remanent::record::{record, Quiet, RecordOptions};
+    use std::sync::{atomic::AtomicBool, Arc};
+    let m = magnets::resolve(magnet).unwrap();
+    let opts = VirtualRigOptions::new(m.model.unwrap());
+    let seg = |target_c, ramp_c_per_min, hold_s| SegmentSpec {
+        target_c,
+        ramp_c_per_min,
+        hold_s,
+    };
+    let out = dir.join(name);
+    let rec = RecordOptions {
+        port_label: "simulated".into(),
+        magnet: m.info.clone(),
+        profile: ProfileSpec {
+            name: "lot".into(),
+            description: "a short cycle".into(),
+            limit_c: 80.0,
+            segments: vec![
+                seg(25.0, 0.0, 120.0),
+                seg(60.0, 8.0, 60.0),
+                seg(25.0, 8.0, 240.0),
+            ],
+        },
+        calibration: Calibration::virtual_rig(&opts.params),
+        out: out.clone(),
+        silence_timeout: std::time::Duration::from_secs(5),
+        preroll_s: 30.0,
+        stop: Arc::new(AtomicBool::new(false)),
+    };
+    record(&mut SimulatedPort::new(opts), rec, &mut Quiet).unwrap();
+    out
+}
+
+#[test]
+fn a_lot_is_one_grade_unless_told_and_duplicates_and_unreadable_runs_are_reported() {
+    use remanent::jobs::lot::{self, LotError};
+    let dir = tempfile::tempdir().unwrap();
+    let a = recorded(dir.path(), "a", "RM-N42SH-D10x5");
+    let b = recorded(dir.path(), "b", "RM-N42-D10x5");
+    let out = dir.path().join("lot");
+    let e = lot::run(&[a.clone(), b.clone()], &out, None, false, false)
+        .err()
+        .unwrap();
+    assert!(matches!(e, LotError::MixedGrades(_)), "{e}");
+    assert!(e.to_string().contains("N42, N42SH"), "{e}");
+    // the same run twice is warned about; an unreadable one is listed, not hidden
+    let empty = dir.path().join("empty");
+    std::fs::create_dir(&empty).unwrap();
+    let done = lot::run(
+        &[a.clone(), a.clone(), empty.clone()],
+        &out,
+        None,
+        false,
+        false,
+    )
+    .unwrap();
+    assert!(
+        done.warnings.iter().any(|w| w.contains("same run")),
+        "{:?}",
+        done.warnings
+    );
+    assert_eq!(done.skipped.len(), 1);
+    assert_eq!(done.skipped[0].0, empty);
+    // with --mixed-grades the two grades go side by side
+    let mixed = lot::run(&[a, b], &dir.path().join("mixed"), None, true, false).unwrap();
+    assert_eq!(mixed.summary.rows.len(), 2);
+}
