@@ -11,13 +11,17 @@ use remanent_protocol::{Command, DeviceHello, Fault, RefuseReason, RunState, Sam
 use crate::calibration::Calibration;
 use crate::conversion::Converted;
 use crate::link::acquisition::{Acquisition, Event};
-use crate::link::words::{describe_boot, describe_refusal};
+use crate::link::words::{describe_boot, describe_fault, describe_refusal};
 use crate::link::LinkError;
 
 /// Steps a complete self-test reports.
 pub const STEPS: usize = 7;
-/// The heating step raises the fixture this far above its start, K.
+/// The heating step sets a target this far above the start, K …
 pub const HEAT_BY_K: f64 = 8.0;
+/// … and checks that the reading rises by this much toward it, K.
+pub const RISE_CHECK_K: f64 = 2.0;
+/// The rise must come within this much device time, s.
+pub const RISE_WITHIN_S: f64 = 300.0;
 /// The run limit sits this far above the heating target, K.
 const LIMIT_ABOVE_TARGET_K: f64 = 15.0;
 /// The link counts as lost after this long without a byte.
@@ -102,14 +106,23 @@ impl<P: Read + Write> Probe<P> {
     }
 }
 
-/// Step 0: why the device last started; a latch left by a reset is cleared if it may be.
+/// Step 0: why the device last started and what is latched now; a latch is cleared if it
+/// may be (and if not, the device's reason is given).
 fn start_up<P: Read + Write>(p: &mut Probe<P>, hello: &DeviceHello) -> Result<Step, LinkError> {
-    let Some(why) = describe_boot(&hello.boot) else {
-        return Ok(Step {
-            name: "start-up",
-            passed: true,
-            detail: "power-on, nothing latched".into(),
-        });
+    let boot = describe_boot(&hello.boot);
+    let latched = hello
+        .latched
+        .map(|f| format!("latched: {}", describe_fault(f)));
+    let why = match (boot, latched) {
+        (None, None) => {
+            return Ok(Step {
+                name: "start-up",
+                passed: true,
+                detail: "power-on, nothing latched".into(),
+            })
+        }
+        (Some(b), Some(l)) => format!("{b}; {l}"),
+        (Some(x), None) | (None, Some(x)) => x,
     };
     let id = p.acq.send(Command::ClearFault)?;
     let reply = p.reply(id, 50)?;
@@ -139,7 +152,14 @@ fn sensors(first: &Seen, steps: &mut Vec<Step>) -> Option<f64> {
         passed: plausible(c.temp_c),
         detail: match c.temp_c {
             Some(t) => format!("{t:.2} °C (cold junction {:.2} °C)", c.cold_junction_c),
-            None => format!("fault {:?}", first.sample.thermo.fault()),
+            None => format!(
+                "converter fault: {}",
+                first
+                    .sample
+                    .thermo
+                    .fault()
+                    .map_or("implausible word", crate::conversion::thermo_fault_name)
+            ),
         },
     });
     steps.push(Step {
@@ -161,24 +181,38 @@ fn sensors(first: &Seen, steps: &mut Vec<Step>) -> Option<f64> {
     c.temp_c
 }
 
-/// Step 4: the heater raises the temperature by 2 K on the way to the target.
+/// Step 4: the heater raises the temperature by [`RISE_CHECK_K`] toward a target
+/// [`HEAT_BY_K`] above the start; the time is counted from the step's own start.
 fn heats<P: Read + Write>(p: &mut Probe<P>, t0: f64) -> Result<(Step, f64), LinkError> {
     let target = t0 + HEAT_BY_K;
+    let started_s = p.acq.device_now_s();
     let id = p.acq.send(Command::Manual {
         setpoint_tenth_c: (target * 10.0) as i16,
         limit_tenth_c: ((target + LIMIT_ABOVE_TARGET_K) * 10.0) as i16,
     })?;
-    let rose = p.watch(3000, |s| s.values.temp_c.is_some_and(|t| t > t0 + 2.0))?;
+    if let Some(Err(r)) = p.reply(id, 50)? {
+        // a latched fault (or another refusal) is named, not mistaken for a weak heater
+        let step = Step {
+            name: "heater heats",
+            passed: false,
+            detail: format!("not started: {}", describe_refusal(&r)),
+        };
+        return Ok((step, target));
+    }
+    let max_samples = (RISE_WITHIN_S * 10.0) as usize;
+    let rose = p.watch(max_samples, |s| {
+        s.values.temp_c.is_some_and(|t| t > t0 + RISE_CHECK_K)
+    })?;
     let step = Step {
         name: "heater heats",
         passed: rose.is_some() && p.acked(id),
         detail: match rose {
             Some(s) => format!(
-                "+2 K after {:.0} s at {:.0} % duty",
-                s.time_s,
+                "+{RISE_CHECK_K:.0} K (toward +{HEAT_BY_K:.0} K) after {:.0} s at {:.0} % duty",
+                s.time_s - started_s,
                 f64::from(s.sample.duty) / 2.55
             ),
-            None => "no 2 K rise within 300 s".into(),
+            None => format!("no {RISE_CHECK_K:.0} K rise within {RISE_WITHIN_S:.0} s"),
         },
     };
     Ok((step, target))

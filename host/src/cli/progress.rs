@@ -39,7 +39,7 @@ impl Progress for Bar {
             .map(|f| format!("  FAULT: {}", remanent::link::words::describe_fault(f)))
             .unwrap_or_default();
         self.bar.set_message(format!(
-            "{:>5.0} s elapsed, ~{:>5.0} s left | {} | {} | heater {:>3.0} % | {} | {} samples, {} missing, {} bad frames{fault}",
+            "device time {:>5.0} s, ~{:>5.0} s left | {} | {} | heater {:>3.0} % | {} | {} samples, {} missing, {} bad frames{fault}",
             s.elapsed_s,
             s.remaining_s,
             fmt_opt(s.temp_c, "°C", 1),

@@ -61,7 +61,11 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
             ExitCode::from(1)
         });
     }
-    eprintln!("self-test: the heater will warm the fixture by about 8 K, then be tripped");
+    eprintln!(
+        "self-test: the heater will raise the reading by {:.0} K (toward a target {:.0} K above), then be tripped",
+        remanent::selftest::RISE_CHECK_K,
+        remanent::selftest::HEAT_BY_K
+    );
     let (hello, steps) = remanent::selftest::run(port, cal)?;
     println!(
         "device: board `{}`, firmware {}.{}.{}, {}",

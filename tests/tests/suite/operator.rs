@@ -108,3 +108,46 @@ fn a_lot_is_one_grade_unless_told_and_duplicates_and_unreadable_runs_are_reporte
     let mixed = lot::run(&[a, b], &dir.path().join("mixed"), None, true, false).unwrap();
     assert_eq!(mixed.summary.rows.len(), 2);
 }
+
+#[test]
+fn the_self_test_names_a_latched_fault_and_measures_from_its_own_start() {
+    use remanent::link::Session;
+    use remanent_protocol::Command;
+    // a fault the last session left latched: named at start-up, cleared, and the test goes on
+    let (mut port, cal) = rig(false);
+    let mut s = Session::new(&mut port);
+    s.handshake(std::time::Duration::from_secs(5), &mut |_| {})
+        .unwrap();
+    s.send(Command::InjectFault).unwrap();
+    for _ in 0..10 {
+        s.read().unwrap();
+    }
+    drop(s);
+    let (_, steps) = remanent::selftest::run(&mut port, cal).unwrap();
+    let start = &steps[0];
+    assert!(start.passed, "{start:?}");
+    assert!(
+        start.detail.contains("emergency stop") && start.detail.contains("cleared"),
+        "{start:?}"
+    );
+    let heats = steps.iter().find(|s| s.name == "heater heats").unwrap();
+    assert!(heats.passed, "{heats:?}");
+    // the time is the step's own, not the rig's since power-on
+    let secs: f64 = heats
+        .detail
+        .split(" after ")
+        .nth(1)
+        .unwrap()
+        .split(' ')
+        .next()
+        .unwrap()
+        .parse()
+        .unwrap();
+    assert!(secs < 120.0, "{heats:?}");
+    // a thermocouple fault is named where it is, not reported as a weak heater
+    let (port, cal) = rig(true);
+    let (_, steps) = remanent::selftest::run(port, cal).unwrap();
+    let tc = steps.iter().find(|s| s.name == "thermocouple").unwrap();
+    assert!(!tc.passed && tc.detail.contains("open"), "{tc:?}");
+    assert!(steps.iter().all(|s| s.name != "heater heats"), "{steps:#?}");
+}
