@@ -76,12 +76,12 @@ pub enum CalibrationError {
         source: std::io::Error,
     },
     /// The TOML is malformed or incomplete.
-    #[error("calibration {path} is not valid: {source}")]
+    #[error("calibration {path} is not valid: {reason}")]
     Parse {
         /// The file.
         path: String,
-        /// Why.
-        source: toml::de::Error,
+        /// Why (unknown keys with their lines, every missing key).
+        reason: String,
     },
 }
 
@@ -93,6 +93,11 @@ impl Calibration {
             path: p.clone(),
             source,
         })?;
-        toml::from_str(&text).map_err(|source| CalibrationError::Parse { path: p, source })
+        let parse = |reason: String| CalibrationError::Parse {
+            path: p.clone(),
+            reason,
+        };
+        crate::formats::check(crate::formats::Kind::Calibration, &text).map_err(parse)?;
+        toml::from_str(&text).map_err(|e| parse(crate::formats::bounded(&e.to_string())))
     }
 }

@@ -8,6 +8,7 @@ pub mod calibration;
 pub mod clear_fault;
 pub mod conversion;
 pub mod drill;
+pub mod formats;
 pub mod frame_log;
 pub mod jobs;
 pub mod link;

@@ -7,6 +7,8 @@ use remanent_rig_model::catalogue;
 use remanent_rig_model::Magnet;
 use serde::{Deserialize, Serialize};
 
+use crate::formats;
+
 /// What the user states about the magnet under test.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct MagnetInfo {
@@ -73,5 +75,6 @@ pub fn resolve(id_or_path: &str) -> Result<MagnetFile, MagnetError> {
         reason,
     };
     let text = std::fs::read_to_string(path).map_err(|e| err(e.to_string()))?;
-    toml::from_str(&text).map_err(|e| err(e.to_string()))
+    formats::check(formats::Kind::Magnet, &text).map_err(err)?;
+    toml::from_str(&text).map_err(|e| err(formats::bounded(&e.to_string())))
 }

@@ -46,12 +46,12 @@ pub enum ProfileError {
         source: std::io::Error,
     },
     /// Not valid TOML for a profile.
-    #[error("profile {path} is not valid: {source}")]
+    #[error("profile {path} is not valid: {reason}")]
     Parse {
         /// The file.
         path: String,
-        /// Why.
-        source: toml::de::Error,
+        /// Why (unknown keys with their lines, every missing key).
+        reason: String,
     },
     /// Not a built-in name and no such file.
     #[error(
@@ -134,8 +134,13 @@ impl ProfileSpec {
             path: p.clone(),
             source,
         })?;
+        let parse = |reason: String| ProfileError::Parse {
+            path: p.clone(),
+            reason,
+        };
+        crate::formats::check(crate::formats::Kind::Profile, &text).map_err(parse)?;
         let spec: ProfileSpec =
-            toml::from_str(&text).map_err(|source| ProfileError::Parse { path: p, source })?;
+            toml::from_str(&text).map_err(|e| parse(crate::formats::bounded(&e.to_string())))?;
         spec.validate()?;
         Ok(spec)
     }

@@ -68,7 +68,9 @@ impl SpecTable {
             reason,
         };
         let text = std::fs::read_to_string(path).map_err(|e| err(e.to_string()))?;
-        let table: SpecTable = toml::from_str(&text).map_err(|e| err(e.to_string()))?;
+        crate::formats::check(crate::formats::Kind::Specs, &text).map_err(err)?;
+        let table: SpecTable =
+            toml::from_str(&text).map_err(|e| err(crate::formats::bounded(&e.to_string())))?;
         table.check_families().map_err(err)?;
         Ok(table)
     }

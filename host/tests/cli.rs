@@ -53,3 +53,50 @@ fn sampling_plan_never_replaces_a_plot_without_force() {
     forced.push("--force");
     assert_eq!(run(&forced).0, 0);
 }
+
+#[test]
+fn a_survey_started_late_still_reads_every_magnet_and_flags_the_damaged_one() {
+    use std::io::{BufRead, BufReader};
+    use std::process::Stdio;
+    let mut rig = Command::new(BIN)
+        .args([
+            "virtual-rig",
+            "--survey",
+            "6",
+            "--survey-damaged",
+            "3",
+            "--speed",
+            "20",
+        ])
+        .stdout(Stdio::piped())
+        .stderr(Stdio::null())
+        .spawn()
+        .unwrap();
+    let mut port = String::new();
+    BufReader::new(rig.stdout.take().unwrap())
+        .read_line(&mut port)
+        .unwrap();
+    // the operator comes to the bench a while after the rig was switched on
+    std::thread::sleep(std::time::Duration::from_secs(5));
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("survey.csv");
+    let (code, text) = run(&[
+        "survey",
+        "--port",
+        port.trim(),
+        "--count",
+        "6",
+        "--label",
+        "pole",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    let _ = rig.kill();
+    let _ = rig.wait();
+    assert_eq!(code, 0, "{text}");
+    assert!(text.contains("pole   3") && text.contains("LOW"), "{text}");
+    let low: Vec<&str> = text.lines().filter(|l| l.contains("LOW")).collect();
+    assert_eq!(low.len(), 1, "{text}");
+    assert!(low[0].contains("pole   3"), "{text}");
+    assert_eq!(std::fs::read_to_string(&out).unwrap().lines().count(), 7);
+}

@@ -24,16 +24,23 @@ pub struct Args {
     /// Rig calibration TOML (default: the virtual rig's constants).
     #[arg(long)]
     calibration: Option<PathBuf>,
-    /// Write the ranked table here (CSV; must not exist).
+    /// Write the ranked table here (CSV; must not exist). Default: a new file
+    /// `remanent-runs/survey-<time>.csv`.
     #[arg(long)]
     out: Option<PathBuf>,
+    /// What to call each position: `pole` reads as pole 1, pole 2, … (default: magnet).
+    #[arg(long, default_value = "magnet")]
+    label: String,
 }
 
-struct Print;
+struct Print {
+    label: String,
+}
 impl SurveyProgress for Print {
     fn reading(&mut self, r: &Reading) {
         println!(
-            "magnet {:>3}: {:>9.3} mT at {:.1} °C (scatter {:.3} %)",
+            "{} {:>3}: {:>9.3} mT at {:.1} °C (scatter {:.3} %)",
+            self.label,
             r.index,
             r.flux_mt,
             r.temp_c,
@@ -46,9 +53,11 @@ impl SurveyProgress for Print {
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
-    if let Some(o) = &a.out {
-        remanent::output::refuse_existing([o.clone()], false)?;
-    }
+    let out = a.out.clone().unwrap_or_else(|| {
+        let stamp = remanent::run_dir::utc_now().replace([':', '-'], "");
+        PathBuf::from("remanent-runs").join(format!("survey-{stamp}.csv"))
+    });
+    remanent::output::refuse_existing([out.clone()], false)?;
     let calibration =
         remanent::jobs::calibration_policy::choose(a.calibration.as_deref())?.calibration;
     let mut opts = SurveyOptions::new(calibration, a.count);
@@ -71,13 +80,21 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         rx
     });
     let port = remanent::link::port::open(&a.port)?;
-    let readings = survey::run(port, &opts, confirm, &mut Print)?;
+    let readings = survey::run(
+        port,
+        &opts,
+        confirm,
+        &mut Print {
+            label: a.label.clone(),
+        },
+    )?;
     let ranked = survey::rank(&readings);
     println!("\nranked, lowest first (median-relative):");
     for (i, r) in ranked.iter().enumerate() {
         println!(
-            "{:>3}. magnet {:>3}  {:>9.3} mT  {:+7.2} %  M = {:+6.1}{}",
+            "{:>3}. {} {:>3}  {:>9.3} mT  {:+7.2} %  M = {:+6.1}{}",
             i + 1,
+            a.label,
             r.reading.index,
             r.reading.flux_mt,
             r.deviation_pct,
@@ -89,9 +106,19 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
             }
         );
     }
-    if let Some(o) = a.out {
-        remanent::output::write(&o, survey::to_csv(&ranked).as_bytes(), false)?;
-        println!("wrote {}", o.display());
+    if let Some(dir) = out.parent().filter(|d| !d.as_os_str().is_empty()) {
+        std::fs::create_dir_all(dir)?;
+    }
+    remanent::output::write(&out, survey::to_csv(&ranked).as_bytes(), false)?;
+    println!("wrote {}", out.display());
+    if readings.len() < a.count {
+        eprintln!(
+            "only {} of {} {}s were read: the survey is incomplete",
+            readings.len(),
+            a.count,
+            a.label
+        );
+        return Ok(ExitCode::from(3));
     }
     Ok(ExitCode::SUCCESS)
 }

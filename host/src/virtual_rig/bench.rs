@@ -79,6 +79,7 @@ pub struct SimulatedBench {
     survey: Vec<(Magnet, f64)>,
     survey_dwell_s: f64,
     survey_slot: Option<usize>,
+    survey_t0: Option<f64>,
 }
 
 /// Empty fixture between survey magnets, s.
@@ -116,6 +117,7 @@ impl SimulatedBench {
             survey: opts.survey,
             survey_dwell_s: opts.survey_dwell_s,
             survey_slot: None,
+            survey_t0: None,
             rig,
             device,
             noise: Rng::new(opts.seed ^ 0x005e_ed11),
@@ -186,8 +188,14 @@ impl SimulatedBench {
         if self.survey.is_empty() {
             return;
         }
+        // an operator starts placing magnets once the host is there to read them
+        let now = self.time_s();
+        if !self.device.handshaken() {
+            return;
+        }
+        let t0 = *self.survey_t0.get_or_insert(now);
         let period = SURVEY_GAP_S + self.survey_dwell_s;
-        let t = self.time_s();
+        let t = now - t0;
         let index = (t / period) as usize;
         let placed = t - index as f64 * period >= SURVEY_GAP_S && index < self.survey.len();
         let want = placed.then_some(index);

@@ -151,3 +151,56 @@ fn the_self_test_names_a_latched_fault_and_measures_from_its_own_start() {
     assert!(!tc.passed && tc.detail.contains("open"), "{tc:?}");
     assert!(steps.iter().all(|s| s.name != "heater heats"), "{steps:#?}");
 }
+
+/// The ```toml blocks of a notes file, in order.
+fn toml_blocks(file: &str) -> Vec<String> {
+    let notes = std::fs::read_to_string(format!(
+        "{}/../hardware-notes/{file}",
+        env!("CARGO_MANIFEST_DIR")
+    ))
+    .unwrap();
+    notes
+        .split("```toml")
+        .skip(1)
+        .map(|b| b.split("```").next().unwrap().to_string())
+        .collect()
+}
+
+#[test]
+fn every_file_format_example_in_the_notes_is_accepted() {
+    let dir = tempfile::tempdir().unwrap();
+    let blocks = toml_blocks("file-formats.md");
+    assert_eq!(blocks.len(), 3);
+    let write = |name: &str, text: &str| {
+        let p = dir.path().join(name);
+        std::fs::write(&p, text).unwrap();
+        p
+    };
+    let m = remanent::magnets::resolve(write("m.toml", &blocks[0]).to_str().unwrap()).unwrap();
+    assert_eq!(m.info.grade, "N42SH");
+    let p = remanent::profiles::ProfileSpec::resolve(write("p.toml", &blocks[1]).to_str().unwrap())
+        .unwrap();
+    assert_eq!(p.segments.len(), 3);
+    let s = remanent::specs::SpecTable::load(&write("s.toml", &blocks[2])).unwrap();
+    assert_eq!(s.find("n42sh").unwrap().alpha_min, -0.125);
+    let cal = write("c.toml", &toml_blocks("calibration.md")[0]);
+    remanent::calibration::Calibration::load(&cal).unwrap();
+    // a misspelt key is named with its line, and every missing key at once
+    let bad = blocks[1].replace("hold_s = 240", "hold_sec = 240");
+    let e = remanent::profiles::ProfileSpec::resolve(write("bad.toml", &bad).to_str().unwrap())
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.contains("unknown key `segment[].hold_sec` (line 14)"),
+        "{e}"
+    );
+    assert!(e.contains("missing: segment[].hold_s"), "{e}");
+    let e =
+        remanent::calibration::Calibration::load(&write("c2.toml", "[hall]\noffset_mv = 1.5\n"))
+            .unwrap_err()
+            .to_string();
+    assert!(
+        e.contains("gap") && e.contains("ntc") && e.contains("hall.full_scale_mv"),
+        "{e}"
+    );
+}

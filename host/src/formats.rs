@@ -1,0 +1,252 @@
+//! The user's TOML files — magnet, profile, spec table, rig calibration — checked before they
+//! are read: every unknown key is named with its line, every missing required key is named at
+//! once, and messages stay short however long the offending line (the formats and a tested
+//! example of each are in `hardware-notes/file-formats.md`).
+
+use std::collections::BTreeMap;
+
+/// Longest message a format error gives, characters.
+pub const MAX_MESSAGE_CHARS: usize = 400;
+
+/// Which file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Kind {
+    /// A magnet file.
+    Magnet,
+    /// A heating profile.
+    Profile,
+    /// A grade spec table.
+    Specs,
+    /// A rig calibration.
+    Calibration,
+}
+
+struct Keys {
+    allowed: &'static [&'static str],
+    required: &'static [&'static str],
+}
+
+fn keys(kind: Kind) -> Keys {
+    match kind {
+        Kind::Magnet => Keys {
+            allowed: &[
+                "id",
+                "grade",
+                "description",
+                "max_working_C",
+                "shape",
+                "shape.cylinder",
+                "shape.cylinder.diameter_mm",
+                "shape.cylinder.length_mm",
+                "shape.block",
+                "shape.block.a_mm",
+                "shape.block.b_mm",
+                "shape.block.length_mm",
+                "model",
+                "model.*",
+            ],
+            required: &["id", "grade", "max_working_C", "shape"],
+        },
+        Kind::Profile => Keys {
+            allowed: &[
+                "name",
+                "description",
+                "limit_C",
+                "segment",
+                "segment[].target_C",
+                "segment[].ramp_C_per_min",
+                "segment[].hold_s",
+            ],
+            required: &[
+                "name",
+                "description",
+                "limit_C",
+                "segment",
+                "segment[].target_C",
+                "segment[].ramp_C_per_min",
+                "segment[].hold_s",
+            ],
+        },
+        Kind::Specs => Keys {
+            allowed: SPEC_KEYS,
+            required: SPEC_KEYS,
+        },
+        Kind::Calibration => Keys {
+            allowed: CALIBRATION_KEYS,
+            required: CALIBRATION_KEYS,
+        },
+    }
+}
+
+const SPEC_KEYS: &[&str] = &[
+    "grade",
+    "grade[].grade",
+    "grade[].family",
+    "grade[].br_min_T",
+    "grade[].br_max_T",
+    "grade[].alpha_min_pct_per_C",
+    "grade[].alpha_max_pct_per_C",
+    "grade[].max_working_C",
+    "grade[].source",
+];
+
+const CALIBRATION_KEYS: &[&str] = &[
+    "hall",
+    "hall.sensitivity_mv_per_mt",
+    "hall.sensitivity_tc_pct_per_c",
+    "hall.sensitivity_tc_u_pct_per_c",
+    "hall.offset_mv",
+    "hall.offset_tc_mv_per_c",
+    "hall.offset_tc_u_mv_per_c",
+    "hall.full_scale_mv",
+    "gap",
+    "gap.gap_mm",
+    "gap.gap_u_mm",
+    "gap.standoff_mm",
+    "gap.standoff_cte_per_k",
+    "gap.standoff_cte_u_per_k",
+    "ntc",
+    "ntc.r25_ohm",
+    "ntc.beta_k",
+    "ntc.series_ohm",
+    "ntc.supply_mv",
+    "ntc.full_scale_mv",
+    "thermocouple",
+    "thermocouple.offset_c",
+    "thermocouple.gain_tolerance_pct",
+];
+
+/// Cut a message to [`MAX_MESSAGE_CHARS`].
+pub fn bounded(msg: &str) -> String {
+    if msg.chars().count() <= MAX_MESSAGE_CHARS {
+        return msg.to_string();
+    }
+    let cut: String = msg.chars().take(MAX_MESSAGE_CHARS).collect();
+    format!("{cut}… (message cut)")
+}
+
+/// Every key of a parsed table, as dotted paths (`segment[].hold_s` for arrays of tables).
+fn walk(t: &toml::Table, prefix: &str, out: &mut Vec<String>) {
+    for (k, v) in t {
+        let path = if prefix.is_empty() {
+            k.clone()
+        } else {
+            format!("{prefix}.{k}")
+        };
+        out.push(path.clone());
+        match v {
+            toml::Value::Table(sub) => walk(sub, &path, out),
+            toml::Value::Array(items) if items.iter().all(|i| i.is_table()) => {
+                for item in items {
+                    if let toml::Value::Table(sub) = item {
+                        walk(sub, &format!("{path}[]"), out);
+                    }
+                }
+            }
+            _ => {}
+        }
+    }
+}
+
+/// The line of each key (1-based), from the headers and `key =` lines.
+fn key_lines(text: &str) -> BTreeMap<String, usize> {
+    let mut out = BTreeMap::new();
+    let mut section = String::new();
+    for (n, line) in text.lines().enumerate() {
+        let l = line.trim();
+        if let Some(h) = l.strip_prefix("[[").and_then(|h| h.split("]]").next()) {
+            section = format!("{}[]", h.trim());
+            out.entry(h.trim().to_string()).or_insert(n + 1);
+        } else if let Some(h) = l.strip_prefix('[').and_then(|h| h.split(']').next()) {
+            section = h.trim().to_string();
+            out.entry(section.clone()).or_insert(n + 1);
+        } else if let Some((k, _)) = l.split_once('=') {
+            let k = k.trim().trim_matches('"');
+            let path = if section.is_empty() {
+                k.to_string()
+            } else {
+                format!("{section}.{k}")
+            };
+            out.entry(path).or_insert(n + 1);
+        }
+    }
+    out
+}
+
+fn allowed(keys: &Keys, path: &str) -> bool {
+    keys.allowed.iter().any(|a| match a.strip_suffix(".*") {
+        Some(prefix) => path.starts_with(&format!("{prefix}.")),
+        None => *a == path,
+    })
+}
+
+/// Check `text` as a file of `kind`: parses, no unknown keys, no missing required ones.
+pub fn check(kind: Kind, text: &str) -> Result<(), String> {
+    let table: toml::Table = text
+        .parse()
+        .map_err(|e: toml::de::Error| bounded(&e.to_string()))?;
+    let keys = keys(kind);
+    let mut present = Vec::new();
+    walk(&table, "", &mut present);
+    let lines = key_lines(text);
+    let mut problems = Vec::new();
+    for p in present.iter().filter(|p| !allowed(&keys, p)) {
+        match lines.get(p.as_str()) {
+            Some(n) => problems.push(format!("unknown key `{p}` (line {n})")),
+            None => problems.push(format!("unknown key `{p}`")),
+        }
+    }
+    let missing: Vec<&str> = keys
+        .required
+        .iter()
+        .filter(|r| {
+            match r.split_once("[].") {
+                // every element of the array must have it
+                Some((array, key)) => match table.get(array) {
+                    Some(toml::Value::Array(items)) => items
+                        .iter()
+                        .any(|i| i.as_table().is_some_and(|t| !t.contains_key(key))),
+                    _ => false,
+                },
+                None => !present.iter().any(|p| p == *r),
+            }
+        })
+        .copied()
+        .collect();
+    if !missing.is_empty() {
+        problems.push(format!("missing: {}", missing.join(", ")));
+    }
+    if problems.is_empty() {
+        Ok(())
+    } else {
+        Err(bounded(&problems.join("; ")))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn unknown_keys_are_named_with_their_lines_and_missing_ones_all_at_once() {
+        let text = "name = \"x\"\nlimit_C = 90.0\ncolour = \"red\"\n\n[[segment]]\ntarget_C = 50.0\nhold_s = 10\nspeed = 3\n";
+        let e = check(Kind::Profile, text).unwrap_err();
+        assert!(e.contains("unknown key `colour` (line 3)"), "{e}");
+        assert!(e.contains("unknown key `segment[].speed` (line 8)"), "{e}");
+        assert!(
+            e.contains("missing: description, segment[].ramp_C_per_min"),
+            "{e}"
+        );
+    }
+
+    #[test]
+    fn a_huge_line_gives_a_short_message() {
+        let text = format!("name = \"{}", "x".repeat(1_000_000));
+        let e = check(Kind::Profile, &text).unwrap_err();
+        assert!(
+            e.chars().count() < MAX_MESSAGE_CHARS + 40,
+            "{} chars",
+            e.len()
+        );
+    }
+}
