@@ -48,24 +48,8 @@ fn keys(kind: Kind) -> Keys {
             required: &["id", "grade", "max_working_C", "shape"],
         },
         Kind::Profile => Keys {
-            allowed: &[
-                "name",
-                "description",
-                "limit_C",
-                "segment",
-                "segment[].target_C",
-                "segment[].ramp_C_per_min",
-                "segment[].hold_s",
-            ],
-            required: &[
-                "name",
-                "description",
-                "limit_C",
-                "segment",
-                "segment[].target_C",
-                "segment[].ramp_C_per_min",
-                "segment[].hold_s",
-            ],
+            allowed: PROFILE_KEYS,
+            required: PROFILE_KEYS,
         },
         Kind::Specs => Keys {
             allowed: SPEC_KEYS,
@@ -77,6 +61,16 @@ fn keys(kind: Kind) -> Keys {
         },
     }
 }
+
+const PROFILE_KEYS: &[&str] = &[
+    "name",
+    "description",
+    "limit_C",
+    "segment",
+    "segment[].target_C",
+    "segment[].ramp_C_per_min",
+    "segment[].hold_s",
+];
 
 const SPEC_KEYS: &[&str] = &[
     "grade",
