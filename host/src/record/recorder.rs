@@ -166,7 +166,8 @@ impl Recorder {
             }
             Event::State(st) => {
                 self.status.state = Some(st.state);
-                return self.on_state(st.state, false, t, w, progress);
+                let at = Some(f64::from(st.time_ms) / 1000.0);
+                return self.on_state(st.state, false, at, w, progress);
             }
             Event::Fault(f) => {
                 self.status.fault = Some(f.fault);
@@ -194,13 +195,12 @@ impl Recorder {
             match state {
                 RunState::Profile => {
                     self.start = Start::Running;
-                    if from_beacon {
-                        w.event(
-                            t,
-                            "started",
-                            "profile running (acknowledgement lost on the link)",
-                        )?;
-                    }
+                    let detail = if from_beacon {
+                        "profile running (acknowledgement lost on the link)"
+                    } else {
+                        "profile accepted: the device reports it running"
+                    };
+                    w.event(t, "started", detail)?;
                 }
                 RunState::Idle if from_beacon => {
                     *idle_beacons += 1;
