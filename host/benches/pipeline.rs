@@ -46,8 +46,9 @@ impl Write for StreamingDevice {
                 Command::Hello(_) => {
                     let (_, hello) = examples::device()[0].clone();
                     self.push(&hello);
+                    // like the firmware: the beacon names the newest sample taken (none yet)
                     self.push(&DeviceMsg::Beacon(Beacon {
-                        seq: 0,
+                        seq: self.sent.wrapping_sub(1),
                         epoch_seq: 0,
                         epoch_ms: 0,
                         period_ms: 10,

@@ -71,6 +71,7 @@ pub fn close(timeline: &mut Timeline, w: &mut RunWriter) {
     c.gaps = timeline.gaps;
     c.gap_samples = timeline.gap_samples;
     c.device_dropped = timeline.device_dropped;
-    c.stale_samples = timeline.stale;
+    // samples before any beacon (after the hello) are left out the same way as stale ones
+    c.stale_samples = timeline.stale + timeline.unplaced;
     c.unsettled_samples = timeline.unsettled;
 }

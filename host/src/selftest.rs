@@ -6,7 +6,7 @@
 use std::io::{Read, Write};
 use std::time::Duration;
 
-use remanent_protocol::{Command, DeviceHello, Fault, RefuseReason, RunState, Sample};
+use remanent_protocol::{Command, DeviceHello, Fault, RefuseReason, Sample};
 
 use crate::calibration::Calibration;
 use crate::conversion::Converted;
@@ -50,7 +50,6 @@ struct Probe<P> {
     acq: Acquisition<P>,
     replies: Vec<(u16, Result<(), RefuseReason>)>,
     faults: Vec<(Fault, f64)>,
-    states: Vec<RunState>,
 }
 
 impl<P: Read + Write> Probe<P> {
@@ -66,7 +65,6 @@ impl<P: Read + Write> Probe<P> {
                 match e {
                     Event::Reply { id, result } => self.replies.push((id, result)),
                     Event::Fault(r) => self.faults.push((r.fault, f64::from(r.time_ms) / 1000.0)),
-                    Event::State(st) => self.states.push(st.state),
                     Event::Sample { placed, values, .. } => {
                         seen += 1;
                         let s = Seen {
@@ -283,7 +281,6 @@ pub fn run<P: Read + Write>(
         acq,
         replies: Vec::new(),
         faults: Vec::new(),
-        states: Vec::new(),
     };
     let mut steps = vec![start_up(&mut p, &hello)?];
     let Some(first) = p.watch(30, |_| true)? else {

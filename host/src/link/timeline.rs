@@ -118,6 +118,11 @@ impl Timeline {
         out
     }
 
+    /// Samples waiting for a beacon.
+    pub fn holding(&self) -> usize {
+        self.held.len()
+    }
+
     /// Discard what is still held (the record ended); counted in [`Timeline::unsettled`].
     pub fn finish(&mut self) {
         self.unsettled += self.held.len() as u64;

@@ -270,7 +270,7 @@ impl Recorder {
         w: &mut RunWriter,
     ) -> Result<(), RecordError> {
         let deadline = Instant::now() + SETTLE_TIMEOUT;
-        while Instant::now() < deadline {
+        while Instant::now() < deadline && acq.ingest.timeline.holding() > 0 {
             let batch = acq.poll()?;
             w.raw(&batch.bytes)?;
             let t = self.history.back().map(|h| h.0);

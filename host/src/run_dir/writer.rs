@@ -185,8 +185,13 @@ impl RunWriter {
         let t = device_time_s.unwrap_or(self.latest_s);
         let detail = detail.replace(['"', '\n'], " ");
         let line = format!("{t:.3},{kind},\"{detail}\"");
-        let at = self.pending_events.partition_point(|(u, _)| *u <= t);
-        self.pending_events.insert(at, (t, line));
+        // events come nearly in order: append, or insert where an earlier one belongs
+        if self.pending_events.last().is_none_or(|(u, _)| *u <= t) {
+            self.pending_events.push((t, line));
+        } else {
+            let at = self.pending_events.partition_point(|(u, _)| *u <= t);
+            self.pending_events.insert(at, (t, line));
+        }
         Ok(())
     }
 
