@@ -190,6 +190,12 @@ where
         self.periods
     }
 
+    /// When the host's last valid frame arrived, ms (a board in lockstep with its host waits
+    /// on this: bytes that do not make a frame are not the host keeping up).
+    pub fn host_last_seen_ms(&self) -> u32 {
+        self.interlocks.host_last_seen_ms()
+    }
+
     /// Whether the host has completed the handshake.
     pub fn handshaken(&self) -> bool {
         self.handshaken

@@ -85,6 +85,11 @@ impl Interlocks {
         self.last_host_ms = now_ms;
     }
 
+    /// When the host's last valid frame arrived, ms.
+    pub fn host_last_seen_ms(&self) -> u32 {
+        self.last_host_ms
+    }
+
     /// Set the run's own limit (already checked to be at most the ceiling).
     pub fn set_run_limit(&mut self, limit_tenth_c: i16) {
         self.run_limit_tenth_c = limit_tenth_c.min(self.cfg.ceiling_tenth_c());

@@ -5,8 +5,8 @@
 //! rig uses. The host talks to it over UART0, which QEMU puts on a pseudo-terminal.
 //!
 //! Simulated time advances 10 ms per loop pass, in lockstep with the host: at most one second
-//! of device time beyond the host's latest frame, so the emulation never outruns a host that is
-//! still reading. (The heartbeat interlock is exercised by the host-side tests and the virtual
+//! of device time beyond the host's latest valid frame (bytes lost in the UART's small FIFO do
+//! not count), so the emulation never outruns a host that is still reading. (The heartbeat interlock is exercised by the host-side tests and the virtual
 //! rig, where time runs on its own.) A panic, a hard fault (a stack overflow hits the MPU
 //! guard) or a hung loop resets the board through [`safe`]; it comes back latched and says why
 //! in its hello. This board carries out the host's fault drills.
@@ -63,7 +63,6 @@ fn main() -> ! {
     let mut device = Device::new(cfg, board, adc, tc, heater, 0, boot);
     let mut frame = [0u8; MAX_DEVICE_FRAME];
     let mut clock = SimClock(&rig);
-    let mut last_rx_ms: u32 = 0;
     if let Some(core) = cortex_m::Peripherals::take() {
         safe::start_watchdog(core.SYST);
     }
@@ -71,12 +70,11 @@ fn main() -> ! {
         while let Some(b) = uart.read_byte() {
             let now = clock.now_ms();
             device.receive(now, &[b]);
-            last_rx_ms = now;
         }
         remanent_board_support::carry_out(device.take_drill());
         let periods = device.periods_completed();
-        let holding =
-            !device.handshaken() || clock.now_ms().wrapping_sub(last_rx_ms) >= LOCKSTEP_MS;
+        let holding = !device.handshaken()
+            || clock.now_ms().wrapping_sub(device.host_last_seen_ms()) >= LOCKSTEP_MS;
         if !holding {
             rig.borrow_mut().advance(STEP_S);
             device.poll(clock.now_ms());
