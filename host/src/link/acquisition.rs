@@ -72,8 +72,6 @@ pub struct Ingest {
     pub timeline: Timeline,
     calibration: Calibration,
     phase: Phase,
-    /// Frames dropped because they came before the device's hello (an earlier session's).
-    pub before_hello: u64,
 }
 
 impl Ingest {
@@ -83,7 +81,6 @@ impl Ingest {
             timeline: Timeline::default(),
             calibration,
             phase: Phase::BeforeHello,
-            before_hello: 0,
         }
     }
 
@@ -104,10 +101,8 @@ impl Ingest {
         };
         match (self.phase, &msg) {
             (Phase::BeforeHello, DeviceMsg::Hello(_)) => self.phase = Phase::AwaitingBeacon,
-            (Phase::BeforeHello, _) => {
-                self.before_hello += 1;
-                return;
-            }
+            // an earlier session's frames: not this record's
+            (Phase::BeforeHello, _) => return,
             _ => {}
         }
         match msg {
