@@ -143,7 +143,7 @@ fn walk(t: &toml::Table, prefix: &str, out: &mut Vec<String>) {
 }
 
 /// The line of each key (1-based), from the headers and `key =` lines.
-fn key_lines(text: &str) -> BTreeMap<String, usize> {
+pub(crate) fn key_lines(text: &str) -> BTreeMap<String, usize> {
     let mut out = BTreeMap::new();
     let mut section = String::new();
     for (n, line) in text.lines().enumerate() {
@@ -211,7 +211,7 @@ pub fn check(kind: Kind, text: &str) -> Result<(), String> {
         problems.push(format!("missing: {}", missing.join(", ")));
     }
     if problems.is_empty() {
-        Ok(())
+        crate::values::check(kind, text, "")
     } else {
         Err(bounded(&problems.join("; ")))
     }

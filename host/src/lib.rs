@@ -26,4 +26,5 @@ pub mod selftest;
 pub mod specs;
 pub mod survey;
 pub mod units;
+pub mod values;
 pub mod virtual_rig;

@@ -25,6 +25,9 @@ pub enum AnalysisError {
     /// Nothing to fit.
     #[error("cannot fit α: {0}")]
     CannotFit(String),
+    /// A value that cannot be true reached the analysis (it is never judged).
+    #[error("cannot analyse: {0}")]
+    NotFinite(String),
     /// The fit failed.
     #[error("cannot fit α: {0}")]
     Lsq(#[from] lsq::LsqError),

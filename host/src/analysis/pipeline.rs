@@ -13,6 +13,7 @@ pub const PROBE_RETURN_K: f64 = 2.0;
 
 /// Analyse a series.
 pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
+    check_finite(s)?;
     let mut notes = Vec::new();
     let prep = Prepared::new(s, ctx, &mut notes);
     let seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
@@ -26,9 +27,16 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     let lagged = lag_estimate::estimate(&prep, seg, span, collapse, &mut notes);
     let data = fit_data::select(&prep, &lagged, collapse)?;
     let a = alpha::estimate(&prep, &lagged, &data, ctx, &mut notes)?;
-    let loss = loss::full(&prep, &lagged.seg, &lagged.tm, ctx, &a.model);
+    let loss = loss::full(&prep, &lagged.seg, &lagged.tm, ctx, &a.model)
+        .filter(|l| l.loss_pct.is_finite() && l.u95_pct.is_finite());
     note_loss(&loss, &mut notes);
     let u_c = a.u_c();
+    if !(a.alpha.is_finite() && u_c.is_finite() && a.model.b0_mt.is_finite()) {
+        return Err(AnalysisError::NotFinite(format!(
+            "the fit gave α = {} ± {} %/°C; nothing is judged from it",
+            a.alpha, u_c
+        )));
+    }
     let measured = judge::Measured {
         alpha: (a.alpha, 2.0 * u_c),
         b20_mt: a.model.b0_mt,
@@ -83,6 +91,29 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
             flux_corrected_mt: prep.flux,
         },
     })
+}
+
+/// Refuse a series with a value that is not a finite number, naming the sample and the field.
+fn check_finite(s: &Series) -> Result<(), AnalysisError> {
+    let mut fields: Vec<(&str, &[f64])> = vec![
+        ("time_s", &s.time_s),
+        ("temp_C", &s.temp_c),
+        ("flux_mT", &s.flux_mt),
+    ];
+    if let Some(p) = &s.probe_c {
+        fields.push(("probe_temp_C", p));
+    }
+    for (name, v) in fields {
+        if let Some(i) = v.iter().position(|x| !x.is_finite()) {
+            return Err(AnalysisError::NotFinite(format!(
+                "sample {} (t = {} s): {name} is {}",
+                i + 1,
+                s.time_s[i],
+                v[i]
+            )));
+        }
+    }
+    Ok(())
 }
 
 /// Notes about the loss: not computed, or a probe that had not cooled back.

@@ -19,7 +19,10 @@ pub enum Outcome {
 
 /// A measured value against limits, allowing for its expanded uncertainty.
 pub fn judge(value: f64, u95: f64, min: f64, max: f64) -> Outcome {
-    if value - u95 >= min && value + u95 <= max {
+    if !(value.is_finite() && u95.is_finite() && u95 >= 0.0) {
+        // a number that is not one decides nothing
+        Outcome::Indeterminate
+    } else if value - u95 >= min && value + u95 <= max {
         Outcome::Pass
     } else if value + u95 < min || value - u95 > max {
         Outcome::Fail

@@ -26,8 +26,9 @@ pub struct Args {
     /// Map a column for CSV input, e.g. `--column temp_C=Temperature`.
     #[arg(long = "column", value_parser = parse_mapping)]
     pub columns: Vec<(String, String)>,
-    /// For CSV input: the probe's sensitivity coefficient, %/°C (needs probe_temp_C).
-    #[arg(long)]
+    /// For CSV input: the probe's sensitivity coefficient, %/°C, usually negative (needs a
+    /// probe_temp_C column).
+    #[arg(long, allow_negative_numbers = true, value_parser = super::options::parse_finite)]
     pub probe_tc_pct_per_c: Option<f64>,
 }
 

@@ -37,3 +37,12 @@ pub fn parse_speed(s: &str) -> Result<f64, String> {
         Err(_) => Err(format!("`{s}` is not a number")),
     }
 }
+
+/// Any finite number, negative ones included (a probe coefficient is usually negative).
+pub fn parse_finite(s: &str) -> Result<f64, String> {
+    match s.trim().parse::<f64>() {
+        Ok(v) if v.is_finite() => Ok(v),
+        Ok(v) => Err(format!("{v} is not a finite number")),
+        Err(_) => Err(format!("`{s}` is not a number")),
+    }
+}

@@ -5,7 +5,7 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::decimate::minmax_indices;
-use super::style::{legend, range, DrawResult, COOLING, FIT, HEATING, REFERENCE};
+use super::style::{legend, range, tickable, DrawResult, COOLING, FIT, HEATING, REFERENCE};
 use crate::analysis::dataset::Series;
 use crate::analysis::Analysis;
 
@@ -138,7 +138,7 @@ pub fn residuals<DB: DrawingBackend>(
         .margin(20)
         .x_label_area_size(50)
         .y_label_area_size(80)
-        .build_cartesian_2d(tlo..thi, -lim..lim)
+        .build_cartesian_2d(tlo..thi, tickable(-lim..lim))
         .map_err(e)?;
     chart
         .configure_mesh()

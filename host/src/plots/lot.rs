@@ -5,7 +5,7 @@
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
-use super::style::{legend, Chart, DrawResult, COOLING, HEATING};
+use super::style::{legend, tickable, Chart, DrawResult, COOLING, HEATING};
 use crate::analysis::judge::HEAT_DAMAGE_PCT;
 use crate::lot::LotSummary;
 use crate::specs::GradeSpec;
@@ -52,7 +52,7 @@ fn magnet_chart<'a, DB: DrawingBackend>(
         .margin(15)
         .x_label_area_size(40)
         .y_label_area_size(80)
-        .build_cartesian_2d(-0.5..(n as f64 - 0.5), y)
+        .build_cartesian_2d(-0.5..(n as f64 - 0.5), tickable(y))
         .map_err(e)?;
     c.configure_mesh()
         .x_labels(n.min(24) * 2 + 1)

@@ -25,11 +25,26 @@ pub fn every(n: usize, max: usize) -> usize {
 
 /// The range of `v` with 5 % padding.
 pub fn range(v: impl Iterator<Item = f64>) -> (f64, f64) {
-    let (lo, hi) = v.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
-        (a.min(x), b.max(x))
-    });
-    let pad = ((hi - lo) * 0.05).max(1e-6);
+    let (lo, hi) = v
+        .filter(|x| x.is_finite())
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
+            (a.min(x), b.max(x))
+        });
+    if lo > hi {
+        // nothing finite to show: an empty unit axis rather than one plotters cannot tick
+        return (0.0, 1.0);
+    }
+    let pad = ((hi - lo) * 0.05).max(1e-6 * (1.0 + hi.abs()));
     (lo - pad, hi + pad)
+}
+
+/// An axis range plotters can tick: finite, in order, not empty (else 0 … 1).
+pub fn tickable(r: std::ops::Range<f64>) -> std::ops::Range<f64> {
+    if r.start.is_finite() && r.end.is_finite() && r.end > r.start {
+        r
+    } else {
+        0.0..1.0
+    }
 }
 
 /// What a drawing function returns (plotters' errors as text).
@@ -61,7 +76,7 @@ pub fn time_panel<'a, DB: DrawingBackend>(
         .margin(10)
         .x_label_area_size(if x_desc.is_some() { 45 } else { 30 })
         .y_label_area_size(80)
-        .build_cartesian_2d(x, y)
+        .build_cartesian_2d(tickable(x), tickable(y))
         .map_err(e)?;
     let mut mesh = c.configure_mesh();
     mesh.y_desc(y_desc)

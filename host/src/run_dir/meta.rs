@@ -10,6 +10,7 @@ use remanent_protocol::{DeviceHello, SafetyLimits};
 use serde::{Deserialize, Serialize};
 
 use crate::calibration::Calibration;
+use crate::formats::Kind;
 use crate::magnets::MagnetInfo;
 use crate::profiles::ProfileSpec;
 
@@ -160,10 +161,14 @@ pub(crate) fn io_err(path: &Path) -> impl FnOnce(io::Error) -> RunDirError + '_ 
 pub fn read_meta(dir: &Path) -> Result<RunMeta, RunDirError> {
     let path = dir.join(META_FILE);
     let text = fs::read_to_string(&path).map_err(io_err(&path))?;
-    toml::from_str(&text).map_err(|e| RunDirError::Meta {
+    let meta_err = |reason: String| RunDirError::Meta {
         path: path.display().to_string(),
-        reason: e.to_string(),
-    })
+        reason,
+    };
+    for (kind, table) in [(Kind::Calibration, "calibration"), (Kind::Magnet, "magnet")] {
+        crate::values::check(kind, &text, table).map_err(meta_err)?;
+    }
+    toml::from_str(&text).map_err(|e| meta_err(e.to_string()))
 }
 
 /// Now as RFC 3339 UTC, to the second.

@@ -3,6 +3,7 @@
 mod accuracy;
 mod analysis_input;
 mod end_to_end;
+mod impossible_values;
 mod integrity;
 mod operator;
 mod outputs;
