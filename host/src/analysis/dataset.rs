@@ -1,7 +1,6 @@
 //! The analysis input: a time series of temperature and flux density (and the probe's
 //! temperature when known), from a run directory (re-converted from raw codes) or a CSV log.
 
-use std::collections::HashMap;
 use std::path::Path;
 
 use crate::calibration::Calibration;
@@ -26,8 +25,11 @@ pub struct Series {
     pub setpoint_c: Option<Vec<f64>>,
     /// Faults the device reported: device time, s, and what (for plots).
     pub faults: Vec<(f64, String)>,
-    /// Rows left out (thermocouple faults, saturated Hall readings), with why.
+    /// Rows left out (thermocouple faults, saturated Hall readings, blank cells), with their
+    /// line and why.
     pub skipped: Vec<(usize, String)>,
+    /// Thermocouple spikes rejected: time, s, and the reading, °C.
+    pub spikes: Vec<(f64, f64)>,
 }
 
 /// Where the series came from and what is known about it.
@@ -76,6 +78,18 @@ pub enum InputError {
         /// The cell.
         value: String,
     },
+    /// A value that cannot be true (NaN, infinity).
+    #[error("{path}: line {line}, column `{column}`: `{value}` is not a finite number")]
+    NotFinite {
+        /// File.
+        path: String,
+        /// 1-based line.
+        line: usize,
+        /// Column.
+        column: String,
+        /// The cell.
+        value: String,
+    },
     /// Time goes backwards or repeats.
     #[error("{path}: line {line}, column `time_s`: time {value} s does not increase (previous {previous} s)")]
     TimeOrder {
@@ -113,37 +127,10 @@ pub enum InputError {
     Run(#[from] run_dir::RunDirError),
 }
 
+pub use super::csv_log::{load_csv, CsvOptions};
+
 /// Fewest rows worth analysing.
 pub const MIN_ROWS: usize = 20;
-
-/// Options for plain CSV logs.
-#[derive(Debug, Clone, Default)]
-pub struct CsvOptions {
-    /// Our column name → the file's column name.
-    pub rename: HashMap<String, String>,
-    /// Probe sensitivity coefficient, %/°C, to correct flux with `probe_temp_C`.
-    pub probe_tc_pct_per_c: Option<f64>,
-}
-
-fn csv_reader(path: &Path) -> Result<csv::Reader<std::fs::File>, InputError> {
-    csv::ReaderBuilder::new()
-        .trim(csv::Trim::All)
-        .comment(Some(b'#'))
-        .from_path(path)
-        .map_err(|e| InputError::Io {
-            path: path.display().to_string(),
-            reason: e.to_string(),
-        })
-}
-
-fn row_err(path: &str, e: csv::Error) -> InputError {
-    let line = e.position().map(|p| p.line() as usize).unwrap_or(0);
-    InputError::Row {
-        path: path.into(),
-        line,
-        reason: e.to_string(),
-    }
-}
 
 fn check_time(path: &str, line: usize, t: f64, times: &[f64]) -> Result<(), InputError> {
     if let Some(&prev) = times.last() {
@@ -157,82 +144,6 @@ fn check_time(path: &str, line: usize, t: f64, times: &[f64]) -> Result<(), Inpu
         }
     }
     Ok(())
-}
-
-/// Load a plain CSV log: `time_s`, `temp_C`, one of `flux_mT` / `flux_T` / `flux_G`, and
-/// optionally `probe_temp_C`.
-pub fn load_csv(path: &Path, opts: &CsvOptions) -> Result<Series, InputError> {
-    let p = path.display().to_string();
-    let mut rdr = csv_reader(path)?;
-    let headers = rdr.headers().map_err(|e| row_err(&p, e))?.clone();
-    let name = |ours: &str| {
-        opts.rename
-            .get(ours)
-            .cloned()
-            .unwrap_or_else(|| ours.to_string())
-    };
-    let find = |col: &str| headers.iter().position(|h| h == col);
-    let need = |ours: &str| {
-        let col = name(ours);
-        find(&col).ok_or_else(|| InputError::MissingColumn {
-            path: p.clone(),
-            column: col,
-            found: headers.iter().collect::<Vec<_>>().join(", "),
-        })
-    };
-    let time_i = need("time_s")?;
-    let temp_i = need("temp_C")?;
-    let (flux_i, to_mt) = [("flux_mT", 1.0), ("flux_T", 1000.0), ("flux_G", 0.1)]
-        .iter()
-        .find_map(|(c, f)| find(&name(c)).map(|i| (i, *f)))
-        .ok_or_else(|| InputError::MissingColumn {
-            path: p.clone(),
-            column: "flux_mT (or flux_T, flux_G)".into(),
-            found: headers.iter().collect::<Vec<_>>().join(", "),
-        })?;
-    let probe_i = find(&name("probe_temp_C"));
-    let mut s = Series::default();
-    let mut probe = Vec::new();
-    for rec in rdr.records() {
-        let rec = rec.map_err(|e| row_err(&p, e))?;
-        let line = rec.position().map(|q| q.line() as usize).unwrap_or(0);
-        let num = |i: usize| -> Result<f64, InputError> {
-            let v = rec.get(i).unwrap_or("");
-            v.parse::<f64>()
-                .ok()
-                .filter(|x| x.is_finite())
-                .ok_or_else(|| InputError::NotANumber {
-                    path: p.clone(),
-                    line,
-                    column: headers.get(i).unwrap_or("?").to_string(),
-                    value: v.to_string(),
-                })
-        };
-        let t = num(time_i)?;
-        check_time(&p, line, t, &s.time_s)?;
-        let mut b = num(flux_i)? * to_mt;
-        let tp = probe_i.map(num).transpose()?;
-        if let (Some(tc), Some(tp)) = (opts.probe_tc_pct_per_c, tp) {
-            b /= 1.0 + tc / 100.0 * (tp - 25.0);
-        }
-        s.time_s.push(t);
-        s.temp_c.push(num(temp_i)?);
-        s.flux_mt.push(b);
-        if let Some(tp) = tp {
-            probe.push(tp);
-        }
-    }
-    if probe_i.is_some() {
-        s.probe_c = Some(probe);
-    }
-    if s.time_s.len() < MIN_ROWS {
-        return Err(InputError::TooFew {
-            path: p,
-            n: s.time_s.len(),
-            min: MIN_ROWS,
-        });
-    }
-    Ok(s)
 }
 
 /// The faults listed in a run's events file (missing or unreadable: none).
@@ -315,6 +226,7 @@ pub fn load_run(
     s.duty_pct = Some(duty);
     s.setpoint_c = Some(setpoint);
     s.faults = read_faults(&dir.join(run_dir::EVENTS_FILE));
+    super::clean::despike(&mut s);
     if s.time_s.len() < MIN_ROWS {
         return Err(InputError::TooFew {
             path: p,

@@ -8,6 +8,8 @@ use super::verdict::{self, Check, Outcome};
 
 /// A loss above this (and above its own U95) flags heat damage, %.
 pub const HEAT_DAMAGE_PCT: f64 = 0.3;
+/// The families' table gives α between 20 °C and this, °C.
+pub const TABLE_TOP_C: f64 = 100.0;
 /// α is usually quoted for 20…100 °C or 20…150 °C: a fit that stops short of 20 + this is
 /// noted, K.
 pub const QUOTED_SPAN_K: f64 = 60.0;
@@ -30,6 +32,9 @@ pub struct Judged {
 pub struct Measured {
     /// Mean α, %/°C, and its U95.
     pub alpha: (f64, f64),
+    /// Mean α over the families' table range (20…100 °C), %/°C, from the fitted curve when it
+    /// reaches 100 °C (else the fitted α), and its U95.
+    pub alpha_table: (f64, f64),
     /// B at 20 °C, mT.
     pub b20_mt: f64,
     /// Top of the fitted range, °C.
@@ -52,7 +57,12 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
         )),
         _ => None,
     };
-    let family = families::matching(alpha, alpha_u95, br.map(|b| b.br_t), m.curie_c);
+    let family = families::matching(
+        m.alpha_table.0,
+        m.alpha_table.1,
+        br.map(|b| b.br_t),
+        m.curie_c,
+    );
     let material_family = if family.is_empty() {
         "unknown".to_string()
     } else {

@@ -11,8 +11,40 @@ use remanent_physics::shape::dln_bz_per_mm;
 /// Readings within a reference window are correlated over about this many samples: the
 /// type-A term counts them as n / this.
 pub const CORRELATED_SAMPLES: f64 = 10.0;
-/// The reversible correction between the references is good to this fraction of itself.
-pub const REVERSIBLE_CORRECTION_REL_U: f64 = 0.05;
+/// The reversible correction between the references is known as well as α itself (the same
+/// fitted curve, the same thermocouple gain and lag), relatively; never better than this
+/// fraction of itself …
+pub const REVERSIBLE_CORRECTION_REL_U: f64 = 0.01;
+/// … and the loss is refused when that correction alone would carry more than this (k = 2),
+/// %: the accuracy the loss is quoted to.
+pub const LOSS_TOLERANCE_PCT: f64 = 0.1;
+
+/// Why the loss was not computed.
+#[derive(Debug, Clone, PartialEq)]
+pub enum NoLoss {
+    /// The record has no settled reading after the excursion.
+    NoReturn,
+    /// The references are too far apart in temperature for the fitted curve to bridge them.
+    CorrectionTooUncertain {
+        /// Magnet temperatures of the two references, °C.
+        ref_c: [f64; 2],
+        /// The correction's expanded uncertainty, %.
+        u95_pct: f64,
+    },
+}
+
+impl NoLoss {
+    /// In words, for the notes.
+    pub fn explain(&self) -> String {
+        match self {
+            NoLoss::NoReturn => "the record does not return to a settled temperature near where it started: irreversible loss not computed".into(),
+            NoLoss::CorrectionTooUncertain { ref_c, u95_pct } => format!(
+                "the record ended at {:.1} °C, {:.1} K from where it started ({:.1} °C): referring the two readings to one temperature would carry ±{u95_pct:.2} % (k = 2), more than the {LOSS_TOLERANCE_PCT} % the loss is quoted to ({:.1}× too much); irreversible loss not computed — let the fixture cool further",
+                ref_c[1], (ref_c[1] - ref_c[0]).abs(), ref_c[0], u95_pct / LOSS_TOLERANCE_PCT
+            ),
+        }
+    }
+}
 /// First guess of the reversible change between the references inside the lag search,
 /// fraction per K (NdFeB-like; the full loss uses the fitted curve).
 pub const FIRST_GUESS_PER_K: f64 = 0.0011;
@@ -66,8 +98,9 @@ pub fn full(
     tm: &[f64],
     ctx: &Context,
     model: &Quadratic,
-) -> Option<LossResult> {
-    let after = seg.after.as_ref()?;
+    alpha: (f64, f64),
+) -> Result<LossResult, NoLoss> {
+    let after = seg.after.as_ref().ok_or(NoLoss::NoReturn)?;
     let (before_r, after_r) = (settled(&seg.before), settled(after));
     let (b0, sd0, n0) = mean(before_r.clone().map(|i| p.flux[i]));
     let (b1, sd1, n1) = mean(after_r.clone().map(|i| p.flux[i]));
@@ -86,6 +119,16 @@ pub fn full(
         / b0
         * 100.0;
     let alpha_rel = (model.b1_mt_per_c / model.b0_mt).abs();
+    // the curve bridges the references: the correction is known as well as α, relatively
+    let correction_pct = (ratio - 1.0).abs() * 100.0;
+    let alpha_rel_u = (alpha.1 / alpha.0.abs().max(1e-9)).max(REVERSIBLE_CORRECTION_REL_U);
+    let correction_u = correction_pct * alpha_rel_u;
+    if 2.0 * correction_u > LOSS_TOLERANCE_PCT {
+        return Err(NoLoss::CorrectionTooUncertain {
+            ref_c: [t0, t1],
+            u95_pct: 2.0 * correction_u,
+        });
+    }
     let mut budget = vec![
         BudgetLine::a("scatter of the reference readings (type A)", u_mean),
         BudgetLine::b(
@@ -98,7 +141,7 @@ pub fn full(
         ),
         BudgetLine::b(
             "reversible correction between the reference temperatures",
-            alpha_rel * REVERSIBLE_CORRECTION_REL_U * (t1 - t0).abs() * 100.0,
+            correction_u,
         ),
     ];
     let mut ref_probe = None;
@@ -127,7 +170,7 @@ pub fn full(
             ));
         }
     }
-    Some(LossResult {
+    Ok(LossResult {
         loss_pct: loss * 100.0,
         u95_pct: 2.0 * BudgetLine::combined(&budget),
         budget,

@@ -10,6 +10,9 @@
 //! [`judge`] turns the numbers into Br, the family ([`families`]) and the verdict.
 
 pub mod alpha;
+pub mod clean;
+pub mod clock;
+pub mod csv_log;
 pub mod curie;
 pub mod dataset;
 pub mod families;
@@ -32,4 +35,4 @@ pub mod pipeline;
 
 pub use context::{AnalysisError, Context};
 pub use pipeline::{analyze, MIN_SPAN_K};
-pub use result::{Analysis, BudgetLine, Traces};
+pub use result::{Analysis, BudgetLine, CycleResult, Traces};

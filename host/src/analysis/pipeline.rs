@@ -4,7 +4,7 @@ use super::context::{AnalysisError, Context};
 use super::dataset::Series;
 use super::prepare::{Prepared, LOSSY};
 use super::result::{Analysis, Traces};
-use super::{alpha, curie, fit_data, judge, lag_estimate, loss, model, segments, verdict};
+use super::{alpha, clean, curie, fit_data, judge, lag_estimate, loss, model, segments, verdict};
 
 /// The temperature span below which α is not worth reporting, K.
 pub const MIN_SPAN_K: f64 = 15.0;
@@ -14,7 +14,7 @@ pub const PROBE_RETURN_K: f64 = 2.0;
 /// Analyse a series.
 pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     check_finite(s)?;
-    let mut notes = Vec::new();
+    let mut notes = clean::notes(s);
     let prep = Prepared::new(s, ctx, &mut notes);
     let seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
     let span = s.temp_c[seg.peak] - s.temp_c[seg.before.start];
@@ -27,17 +27,38 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     let lagged = lag_estimate::estimate(&prep, seg, span, collapse, &mut notes);
     let data = fit_data::select(&prep, &lagged, collapse)?;
     let a = alpha::estimate(&prep, &lagged, &data, ctx, &mut notes)?;
-    let loss = loss::full(&prep, &lagged.seg, &lagged.tm, ctx, &a.model)
-        .filter(|l| l.loss_pct.is_finite() && l.u95_pct.is_finite());
-    note_loss(&loss, &mut notes);
     let u_c = a.u_c();
+    let loss = loss::full(
+        &prep,
+        &lagged.seg,
+        &lagged.tm,
+        ctx,
+        &a.model,
+        (a.alpha, u_c),
+    );
+    note_loss(&loss, &mut notes);
+    let loss = loss
+        .ok()
+        .filter(|l| l.loss_pct.is_finite() && l.u95_pct.is_finite());
     if !(a.alpha.is_finite() && u_c.is_finite() && a.model.b0_mt.is_finite()) {
         return Err(AnalysisError::NotFinite(format!(
             "the fit gave α = {} ± {} %/°C; nothing is judged from it",
             a.alpha, u_c
         )));
     }
+    // the families' table states α over 20…100 °C: convert a wider fit's curve to that range
+    let alpha_table = if a.range_c[1] > judge::TABLE_TOP_C {
+        let at = a.model.mean_alpha_pct_per_c(judge::TABLE_TOP_C);
+        notes.push(format!(
+            "the material family is judged on α over 20…{:.0} °C from the fitted curve ({at:.4} %/°C), the range the families' table states",
+            judge::TABLE_TOP_C
+        ));
+        (at, 2.0 * u_c)
+    } else {
+        (a.alpha, 2.0 * u_c)
+    };
     let measured = judge::Measured {
+        alpha_table,
         alpha: (a.alpha, 2.0 * u_c),
         b20_mt: a.model.b0_mt,
         fit_top_c: a.range_c[1],
@@ -83,7 +104,10 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         alpha_budget: a.budget,
         loss_budget: loss.map(|l| l.budget).unwrap_or_default(),
         notes,
+        cycles: Vec::new(),
         samples: s.time_s.len(),
+        rows_left_out: s.skipped.len(),
+        spikes_rejected: s.spikes.len(),
         model: a.model,
         traces: Traces {
             segments: Some(lagged.seg),
@@ -117,11 +141,14 @@ fn check_finite(s: &Series) -> Result<(), AnalysisError> {
 }
 
 /// Notes about the loss: not computed, or a probe that had not cooled back.
-fn note_loss(loss: &Option<loss::LossResult>, notes: &mut Vec<String>) {
+fn note_loss(loss: &Result<loss::LossResult, loss::NoLoss>, notes: &mut Vec<String>) {
     match loss {
-        None => notes.push("the record does not return to a settled room temperature: irreversible loss not computed".into()),
-        Some(l) => {
-            if let Some(p) = l.ref_probe_c.filter(|p| (p[1] - p[0]).abs() > PROBE_RETURN_K) {
+        Err(why) => notes.push(why.explain()),
+        Ok(l) => {
+            if let Some(p) = l
+                .ref_probe_c
+                .filter(|p| (p[1] - p[0]).abs() > PROBE_RETURN_K)
+            {
                 notes.push(format!(
                     "the probe had not cooled back ({:.1} °C before, {:.1} °C after): its own drift is corrected by calibration and counted in the loss budget ({:.3} %)",
                     p[0], p[1], l.probe_term_pct

@@ -44,6 +44,21 @@ impl BudgetLine {
     }
 }
 
+/// One heat cycle of a record with several.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct CycleResult {
+    /// Where it starts and ends, device time, s.
+    #[serde(rename = "span_s")]
+    pub span_s: [f64; 2],
+    /// Its highest magnet temperature, °C.
+    #[serde(rename = "peak_C")]
+    pub peak_c: f64,
+    /// The flux it lost, relative to the flux it started with, %.
+    pub irreversible_loss_pct: Option<f64>,
+    /// Its expanded uncertainty (k = 2), %.
+    pub irreversible_loss_u95_pct: Option<f64>,
+}
+
 /// The analysis result.
 #[derive(Debug, Clone, Serialize)]
 pub struct Analysis {
@@ -112,7 +127,13 @@ pub struct Analysis {
     /// Plain words about what was done, assumed or could not be computed.
     pub notes: Vec<String>,
     /// Samples analysed.
+    /// Each heat cycle found in the record, in order (one for a plain record).
+    pub cycles: Vec<CycleResult>,
     pub samples: usize,
+    /// Rows of the input left out (blank cells, sensor faults, a torn last line).
+    pub rows_left_out: usize,
+    /// Thermocouple spikes rejected.
+    pub spikes_rejected: usize,
     /// The fitted reversible model.
     #[serde(skip)]
     pub model: Quadratic,

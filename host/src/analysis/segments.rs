@@ -25,6 +25,10 @@ pub const END_SAMPLES: usize = 21;
 
 /// How far the temperature may stray and still count as the reference, K.
 pub const REFERENCE_BAND_K: f64 = 0.6;
+/// A final plateau counts as the return when it is below the start plus this fraction of the
+/// excursion (a fixture that has not cooled all the way back: the loss step refers both
+/// references to one temperature with the fitted curve and budgets that correction).
+pub const RETURN_FRACTION: f64 = 0.35;
 /// Soaks: the temperature stays within this band of where the stretch began, K …
 pub const SOAK_BAND_K: f64 = 0.15;
 /// … for at least this long, s.
@@ -62,8 +66,8 @@ pub fn find(time_s: &[f64], temp_c: &[f64], thermocouple_c: &[f64]) -> Segments 
     while tail > peak && (temp_c[tail - 1] - end_t).abs() < REFERENCE_BAND_K * 0.5 {
         tail -= 1;
     }
-    let returned =
-        (end_t - start).abs() < 5.0 && peak < tail && time_s[n - 1] - time_s[tail] >= 30.0;
+    let near_start = |t: f64| (t - start).abs() < RETURN_FRACTION * (temp_c[peak] - start).max(0.0);
+    let returned = near_start(end_t) && peak < tail && time_s[n - 1] - time_s[tail] >= 30.0;
     let mut after = returned.then_some(tail..n);
     let soaks = soaks(time_s, temp_c, thermocouple_c);
     // prefer settled soaks near room temperature as the references: the last soak before
@@ -73,10 +77,12 @@ pub fn find(time_s: &[f64], temp_c: &[f64], thermocouple_c: &[f64]) -> Segments 
     if let Some(b) = soaks.iter().rev().find(|r| r.end <= peak && near_room(r)) {
         before = b.clone();
     }
-    if let Some(a) = soaks.iter().rev().find(|r| r.start > peak && near_room(r)) {
-        if (temp_c[a.start] - temp_c[before.start]).abs() < 5.0 {
-            after = Some(a.clone());
-        }
+    if let Some(a) = soaks
+        .iter()
+        .rev()
+        .find(|r| r.start > peak && near_start(temp_c[r.start]))
+    {
+        after = Some(a.clone());
     }
     let heating = before.end.min(peak)..peak;
     let cooling = peak..after.as_ref().map(|a| a.start).unwrap_or(n);

@@ -2,7 +2,9 @@
 
 mod accuracy;
 mod analysis_input;
+mod bench_model;
 mod end_to_end;
+mod imperfect_records;
 mod impossible_values;
 mod integrity;
 mod operator;

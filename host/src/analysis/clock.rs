@@ -1,0 +1,105 @@
+//! Clock timestamps in loggers' files — `14:22:05.250`, `2026-11-03 14:22:05`,
+//! `2026-11-03T14:22:05.5Z` — made seconds since the first row, across midnight for a clock
+//! that shows the time of day only.
+
+/// Seconds since the first timestamp seen.
+#[derive(Debug, Default)]
+pub struct Clock {
+    first: Option<f64>,
+    last: f64,
+    /// Days added for a time-of-day clock that passed midnight.
+    rollover_s: f64,
+}
+
+/// Half a day: a time of day that goes back more than this passed midnight, s.
+const ROLLOVER_S: f64 = 43_200.0;
+
+impl Clock {
+    /// The seconds since the first row for `cell`, or `None` if it is not a timestamp.
+    pub fn seconds(&mut self, cell: &str) -> Option<f64> {
+        let v = cell.trim().trim_matches('"').trim();
+        let (date, time) = match v.split_once(['T', ' ']) {
+            Some((d, t)) => (Some(d), t),
+            None => (None, v),
+        };
+        let days = match date {
+            Some(d) => days_from_civil(d)?,
+            None => 0,
+        };
+        let mut abs = days as f64 * 86_400.0 + time_of_day(time)?;
+        if date.is_none() {
+            abs += self.rollover_s;
+            if self.first.is_some() && abs < self.last - ROLLOVER_S {
+                self.rollover_s += 86_400.0;
+                abs += 86_400.0;
+            }
+        }
+        self.last = abs;
+        let first = *self.first.get_or_insert(abs);
+        Some(abs - first)
+    }
+}
+
+/// `HH:MM:SS(.fff)` with an optional zone (`Z` or `+01:00`, ignored: one logger, one zone).
+fn time_of_day(t: &str) -> Option<f64> {
+    let t = t.trim_end_matches('Z');
+    let t = match t.rfind(['+', '-']) {
+        Some(i) if i >= 8 => &t[..i],
+        _ => t,
+    };
+    let mut parts = t.split(':');
+    let h: f64 = parts.next()?.parse().ok()?;
+    let m: f64 = parts.next()?.parse().ok()?;
+    let s: f64 = parts.next().unwrap_or("0").replace(',', ".").parse().ok()?;
+    if parts.next().is_some()
+        || !(0.0..24.0).contains(&h)
+        || !(0.0..60.0).contains(&m)
+        || !(0.0..61.0).contains(&s)
+    {
+        return None;
+    }
+    Some(h * 3600.0 + m * 60.0 + s)
+}
+
+/// Days since 1970-01-01 of `YYYY-MM-DD` (the proleptic Gregorian calendar; Howard Hinnant's
+/// days-from-civil).
+fn days_from_civil(d: &str) -> Option<i64> {
+    let mut parts = d.split('-');
+    let y: i64 = parts.next()?.parse().ok()?;
+    let m: i64 = parts.next()?.parse().ok()?;
+    let day: i64 = parts.next()?.parse().ok()?;
+    if parts.next().is_some() || !(1..=12).contains(&m) || !(1..=31).contains(&day) {
+        return None;
+    }
+    let y = if m <= 2 { y - 1 } else { y };
+    let era = y.div_euclid(400);
+    let yoe = y - era * 400;
+    let mp = (m + 9) % 12;
+    let doy = (153 * mp + 2) / 5 + day - 1;
+    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
+    Some(era * 146_097 + doe - 719_468)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn days_match_the_unix_epoch_and_a_known_date() {
+        assert_eq!(days_from_civil("1970-01-01"), Some(0));
+        // 2000-03-01 is day 11017 of the Unix epoch (POSIX time 951868800 / 86400)
+        assert_eq!(days_from_civil("2000-03-01"), Some(11_017));
+        assert_eq!(days_from_civil("2026-13-01"), None);
+    }
+
+    #[test]
+    fn time_of_day_clocks_cross_midnight_and_dates_cross_months() {
+        let mut c = Clock::default();
+        assert_eq!(c.seconds("23:59:59.5"), Some(0.0));
+        assert_eq!(c.seconds("00:00:00.5"), Some(1.0));
+        let mut d = Clock::default();
+        d.seconds("2026-11-30T23:59:59Z").unwrap();
+        assert_eq!(d.seconds("2026-12-01 00:00:01"), Some(2.0));
+        assert_eq!(d.seconds("12.5"), None);
+    }
+}

@@ -1,0 +1,416 @@
+//! Other loggers' CSV files as an analysis input: comma, semicolon or tab separated, decimal
+//! commas, units in the column names (°C/°F/K; mT/T/G/kG; seconds or clock timestamps), blank
+//! cells skipped and counted, a torn last line used up to what is complete, and headers that
+//! differ from ours only in case answered with the `--column` that fixes them.
+
+use std::collections::HashMap;
+use std::fs::File;
+use std::io::{BufRead, BufReader};
+use std::path::Path;
+
+use super::clock;
+use super::dataset::{InputError, Series, MIN_ROWS};
+
+/// Options for plain CSV logs.
+#[derive(Debug, Clone, Default)]
+pub struct CsvOptions {
+    /// Our column name → the file's column name.
+    pub rename: HashMap<String, String>,
+    /// Probe sensitivity coefficient, %/°C, to correct flux with `probe_temp_C`.
+    pub probe_tc_pct_per_c: Option<f64>,
+}
+
+/// How a column's numbers become ours.
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum Unit {
+    /// value · factor + offset.
+    Linear(f64, f64),
+    /// A clock timestamp, made seconds from the first row.
+    Clock,
+}
+
+/// Our names for each quantity, with the conversion to s, °C or mT.
+const TIME: &[(&str, Unit)] = &[
+    ("time_s", Unit::Linear(1.0, 0.0)),
+    ("time_ms", Unit::Linear(0.001, 0.0)),
+    ("time_min", Unit::Linear(60.0, 0.0)),
+    ("clock", Unit::Clock),
+];
+const TEMP: &[(&str, Unit)] = &[
+    ("temp_C", Unit::Linear(1.0, 0.0)),
+    ("temp_F", Unit::Linear(5.0 / 9.0, -32.0 * 5.0 / 9.0)),
+    ("temp_K", Unit::Linear(1.0, -273.15)),
+];
+const FLUX: &[(&str, Unit)] = &[
+    ("flux_mT", Unit::Linear(1.0, 0.0)),
+    ("flux_T", Unit::Linear(1000.0, 0.0)),
+    ("flux_G", Unit::Linear(0.1, 0.0)),
+    ("flux_kG", Unit::Linear(100.0, 0.0)),
+];
+const PROBE: &[(&str, Unit)] = &[
+    ("probe_temp_C", Unit::Linear(1.0, 0.0)),
+    ("probe_temp_F", Unit::Linear(5.0 / 9.0, -32.0 * 5.0 / 9.0)),
+    ("probe_temp_K", Unit::Linear(1.0, -273.15)),
+];
+
+/// Cells that mean "no value" in common loggers' exports.
+const MISSING: &[&str] = &["", "NA", "N/A", "n/a", "-", "--", "null", "NULL", "None"];
+
+/// A column found in the header.
+#[derive(Debug, Clone, Copy)]
+struct Col {
+    index: usize,
+    unit: Unit,
+}
+
+struct Header {
+    names: Vec<String>,
+    delimiter: u8,
+    decimal_comma: bool,
+}
+
+impl Header {
+    fn parse(line: &str) -> Header {
+        let line = line.trim_start_matches('\u{feff}').trim_end();
+        let delimiter = if line.contains(';') {
+            b';'
+        } else if line.contains('\t') {
+            b'\t'
+        } else {
+            b','
+        };
+        let mut cells = Vec::new();
+        spans(line, delimiter, &mut cells);
+        let names = cells
+            .into_iter()
+            .map(|r| line[r].trim().trim_matches('"').trim().to_string())
+            .collect();
+        Header {
+            names,
+            delimiter,
+            decimal_comma: delimiter != b',',
+        }
+    }
+
+    fn found(&self) -> String {
+        self.names.join(", ")
+    }
+
+    /// The column for one quantity: the first of `ours` present (under its `--column` name),
+    /// or an error that says which names were looked for and, for a near miss in case only,
+    /// the `--column` that would fix it.
+    fn resolve(
+        &self,
+        path: &str,
+        ours: &[(&str, Unit)],
+        rename: &HashMap<String, String>,
+    ) -> Result<Option<Col>, InputError> {
+        for (name, unit) in ours {
+            let theirs = rename.get(*name).map_or(*name, String::as_str);
+            match self.names.iter().position(|h| h == theirs) {
+                Some(index) => return Ok(Some(Col { index, unit: *unit })),
+                None if rename.contains_key(*name) => {
+                    return Err(InputError::MissingColumn {
+                        path: path.into(),
+                        column: format!("{theirs}` (given by `--column {name}={theirs}`)"),
+                        found: self.found(),
+                    })
+                }
+                None => {}
+            }
+        }
+        for (name, _) in ours {
+            if let Some(h) = self.names.iter().find(|h| h.eq_ignore_ascii_case(name)) {
+                return Err(InputError::MissingColumn {
+                    path: path.into(),
+                    column: format!(
+                        "{name}` (`{h}` differs only in case: add `--column {name}={h}`)"
+                    ),
+                    found: self.found(),
+                });
+            }
+        }
+        Ok(None)
+    }
+}
+
+/// The cells of a line split at `delimiter` (delimiters inside double quotes kept), as byte
+/// ranges into `out`, which is reused from line to line.
+fn spans(line: &str, delimiter: u8, out: &mut Vec<std::ops::Range<usize>>) {
+    out.clear();
+    let mut start = 0;
+    let mut quoted = false;
+    for (i, &b) in line.as_bytes().iter().enumerate() {
+        if b == b'"' {
+            quoted = !quoted;
+        } else if b == delimiter && !quoted {
+            out.push(start..i);
+            start = i + 1;
+        }
+    }
+    out.push(start..line.len());
+}
+
+/// What one cell held.
+enum Cell {
+    Value(f64),
+    Missing,
+}
+
+fn parse_cell(raw: &str, decimal_comma: bool, scratch: &mut String) -> Result<Cell, ()> {
+    let v = raw.trim().trim_matches('"').trim();
+    if MISSING.contains(&v) {
+        return Ok(Cell::Missing);
+    }
+    let text = if decimal_comma && v.contains(',') {
+        scratch.clear();
+        scratch.extend(v.chars().map(|c| if c == ',' { '.' } else { c }));
+        scratch.as_str()
+    } else {
+        v
+    };
+    text.parse::<f64>().map(Cell::Value).map_err(|_| ())
+}
+
+/// Load a CSV log with a time, a temperature and a flux column (and optionally the probe's
+/// temperature). The columns' names carry their units: see [`TIME`], [`TEMP`], [`FLUX`].
+pub fn load_csv(path: &Path, opts: &CsvOptions) -> Result<Series, InputError> {
+    let p = path.display().to_string();
+    let io = |e: std::io::Error| InputError::Io {
+        path: p.clone(),
+        reason: e.to_string(),
+    };
+    let mut rdr = BufReader::with_capacity(1 << 20, File::open(path).map_err(io)?);
+    let mut buf = Vec::new();
+    let mut line_no = 0usize;
+    // the header: the first line that is neither blank nor a comment
+    let header = loop {
+        buf.clear();
+        if rdr.read_until(b'\n', &mut buf).map_err(io)? == 0 {
+            return Err(InputError::TooFew {
+                path: p,
+                n: 0,
+                min: MIN_ROWS,
+            });
+        }
+        line_no += 1;
+        let l = String::from_utf8_lossy(&buf);
+        if !l.trim().is_empty() && !l.trim_start().starts_with('#') {
+            break Header::parse(&l);
+        }
+    };
+    let known: Vec<&str> = [TIME, TEMP, FLUX, PROBE]
+        .iter()
+        .flat_map(|q| q.iter().map(|c| c.0))
+        .collect();
+    if let Some(bad) = opts.rename.keys().find(|k| !known.contains(&k.as_str())) {
+        return Err(InputError::Row {
+            path: p,
+            line: 1,
+            reason: format!(
+                "`--column {bad}=…`: `{bad}` is not one of our names ({})",
+                known.join(", ")
+            ),
+        });
+    }
+    let need = |q: &[(&str, Unit)], what: &str| -> Result<Col, InputError> {
+        header
+            .resolve(&p, q, &opts.rename)?
+            .ok_or_else(|| InputError::MissingColumn {
+                path: p.clone(),
+                column: format!(
+                    "{what}` (or {})",
+                    q.iter().map(|c| c.0).collect::<Vec<_>>().join(", ")
+                ),
+                found: header.found(),
+            })
+    };
+    let cols = [
+        need(TIME, "time_s")?,
+        need(TEMP, "temp_C")?,
+        need(FLUX, "flux_mT")?,
+    ];
+    let probe = header.resolve(&p, PROBE, &opts.rename)?;
+    if opts.probe_tc_pct_per_c.is_some() && probe.is_none() {
+        return Err(InputError::MissingColumn {
+            path: p,
+            column: "probe_temp_C` (needed by `--probe-tc-pct-per-c`)".into(),
+            found: header.found(),
+        });
+    }
+    let mut rows = Rows::new(p.clone(), header, cols, probe, opts.probe_tc_pct_per_c);
+    loop {
+        buf.clear();
+        if rdr.read_until(b'\n', &mut buf).map_err(io)? == 0 {
+            break;
+        }
+        line_no += 1;
+        rows.line(&buf, line_no, rdr.fill_buf().map_err(io)?.is_empty())?;
+    }
+    rows.finish()
+}
+
+/// The rows read so far, into a series.
+struct Rows {
+    path: String,
+    header: Header,
+    cols: [Col; 3],
+    probe: Option<Col>,
+    probe_tc: Option<f64>,
+    s: Series,
+    probe_c: Vec<f64>,
+    clock: clock::Clock,
+    scratch: String,
+    cells: Vec<std::ops::Range<usize>>,
+}
+
+impl Rows {
+    fn new(
+        path: String,
+        header: Header,
+        cols: [Col; 3],
+        probe: Option<Col>,
+        probe_tc: Option<f64>,
+    ) -> Rows {
+        Rows {
+            path,
+            header,
+            cols,
+            probe,
+            probe_tc,
+            s: Series::default(),
+            probe_c: Vec::new(),
+            clock: clock::Clock::default(),
+            scratch: String::new(),
+            cells: Vec::new(),
+        }
+    }
+
+    /// One line of the file (`last`: nothing follows it).
+    fn line(&mut self, raw: &[u8], line: usize, last: bool) -> Result<(), InputError> {
+        let torn = last && !raw.ends_with(b"\n");
+        let text = String::from_utf8_lossy(raw);
+        let text = text.trim_end_matches(['\n', '\r']);
+        if text.trim().is_empty() || text.trim_start().starts_with('#') {
+            return Ok(());
+        }
+        spans(text, self.header.delimiter, &mut self.cells);
+        let wanted = [
+            Some(self.cols[0]),
+            Some(self.cols[1]),
+            Some(self.cols[2]),
+            self.probe,
+        ];
+        let mut values = [0.0f64; 4];
+        for (k, col) in wanted.into_iter().enumerate() {
+            let Some(col) = col else { continue };
+            match self.cell(text, col, line, torn)? {
+                Some(v) => values[k] = v,
+                None => return Ok(()),
+            }
+        }
+        let [t, temp, mut flux, probe] = values;
+        if let Some(&prev) = self.s.time_s.last() {
+            if t <= prev {
+                return Err(InputError::TimeOrder {
+                    path: self.path.clone(),
+                    line,
+                    value: t,
+                    previous: prev,
+                });
+            }
+        }
+        if let (Some(tc), Some(_)) = (self.probe_tc, self.probe) {
+            flux /= 1.0 + tc / 100.0 * (probe - 25.0);
+        }
+        self.s.time_s.push(t);
+        self.s.temp_c.push(temp);
+        self.s.flux_mt.push(flux);
+        if self.probe.is_some() {
+            self.probe_c.push(probe);
+        }
+        Ok(())
+    }
+
+    /// The value of `col` in this line, converted to our unit; `None` when the row is
+    /// skipped (a blank cell, or the torn last line).
+    fn cell(
+        &mut self,
+        text: &str,
+        col: Col,
+        line: usize,
+        torn: bool,
+    ) -> Result<Option<f64>, InputError> {
+        const TORN: &str = "last line incomplete (the record was cut off)";
+        let Some(raw) = self.cells.get(col.index).map(|r| &text[r.clone()]) else {
+            if torn {
+                return self.skip(line, TORN);
+            }
+            return Err(InputError::Row {
+                path: self.path.clone(),
+                line,
+                reason: format!(
+                    "{} fields, {} in the header",
+                    self.cells.len(),
+                    self.header.names.len()
+                ),
+            });
+        };
+        let parsed = match col.unit {
+            Unit::Clock => match self.clock.seconds(raw) {
+                Some(v) => Ok(Cell::Value(v)),
+                None if raw.trim().is_empty() => Ok(Cell::Missing),
+                None => Err(()),
+            },
+            Unit::Linear(..) => parse_cell(raw, self.header.decimal_comma, &mut self.scratch),
+        };
+        let v = match parsed {
+            Ok(Cell::Value(v)) => v,
+            Ok(Cell::Missing) => {
+                let why = format!("blank `{}`", self.header.names[col.index]);
+                return self.skip(line, &why);
+            }
+            Err(()) if torn => return self.skip(line, TORN),
+            Err(()) => {
+                return Err(InputError::NotANumber {
+                    path: self.path.clone(),
+                    line,
+                    column: self.header.names[col.index].clone(),
+                    value: raw.trim().to_string(),
+                })
+            }
+        };
+        if !v.is_finite() {
+            return Err(InputError::NotFinite {
+                path: self.path.clone(),
+                line,
+                column: self.header.names[col.index].clone(),
+                value: raw.trim().to_string(),
+            });
+        }
+        Ok(Some(match col.unit {
+            Unit::Linear(f, o) => v * f + o,
+            Unit::Clock => v,
+        }))
+    }
+
+    fn skip(&mut self, line: usize, why: &str) -> Result<Option<f64>, InputError> {
+        self.s.skipped.push((line, why.to_string()));
+        Ok(None)
+    }
+
+    fn finish(mut self) -> Result<Series, InputError> {
+        if self.probe.is_some() {
+            self.s.probe_c = Some(self.probe_c);
+        }
+        super::clean::despike(&mut self.s);
+        if self.s.time_s.len() < MIN_ROWS {
+            return Err(InputError::TooFew {
+                path: self.path,
+                n: self.s.time_s.len(),
+                min: MIN_ROWS,
+            });
+        }
+        Ok(self.s)
+    }
+}
