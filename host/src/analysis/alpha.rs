@@ -94,10 +94,15 @@ pub fn estimate(
                 .map(|(m, _)| m.mean_alpha_pct_per_c(t_hi))
                 .unwrap_or(alpha)
         };
-        let spread =
-            (a_at(tau * (1.0 + LAG_TOLERANCE)) - a_at(tau * (1.0 - LAG_TOLERANCE))).abs() / 2.0;
+        // ±20 % of τ, or every τ the branches leave possible if that is wider
+        let (lo, hi) = lagged.tau_range_s.unwrap_or((tau, tau));
+        let (lo, hi) = (
+            lo.min(tau * (1.0 - LAG_TOLERANCE)),
+            hi.max(tau * (1.0 + LAG_TOLERANCE)),
+        );
+        let spread = (a_at(hi) - a_at(lo)).abs() / 2.0;
         budget.push(BudgetLine::b(
-            "lag model (τ ± 20 %, rectangular)",
+            format!("lag model (τ {lo:.0} … {hi:.0} s, rectangular)"),
             spread / 3f64.sqrt(),
         ));
     }

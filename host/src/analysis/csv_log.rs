@@ -1,6 +1,6 @@
 //! Other loggers' CSV files as an analysis input: comma, semicolon or tab separated, decimal
 //! commas, units in the column names (°C/°F/K; mT/T/G/kG; seconds or clock timestamps), blank
-//! cells skipped and counted, a torn last line used up to what is complete, and headers that
+//! cells skipped and counted, a torn last line (no line end) left out and said, and headers that
 //! differ from ours only in case answered with the `--column` that fixes them.
 
 use std::collections::HashMap;
@@ -294,6 +294,14 @@ impl Rows {
         if text.trim().is_empty() || text.trim_start().starts_with('#') {
             return Ok(());
         }
+        if torn {
+            // a record cut off mid-line may have lost digits that still parse: never trust it
+            self.skip(
+                line,
+                "last line incomplete (no line end: the record was cut off)",
+            )?;
+            return Ok(());
+        }
         spans(text, self.header.delimiter, &mut self.cells);
         let wanted = [
             Some(self.cols[0]),
@@ -304,7 +312,7 @@ impl Rows {
         let mut values = [0.0f64; 4];
         for (k, col) in wanted.into_iter().enumerate() {
             let Some(col) = col else { continue };
-            match self.cell(text, col, line, torn)? {
+            match self.cell(text, col, line)? {
                 Some(v) => values[k] = v,
                 None => return Ok(()),
             }
@@ -333,19 +341,9 @@ impl Rows {
     }
 
     /// The value of `col` in this line, converted to our unit; `None` when the row is
-    /// skipped (a blank cell, or the torn last line).
-    fn cell(
-        &mut self,
-        text: &str,
-        col: Col,
-        line: usize,
-        torn: bool,
-    ) -> Result<Option<f64>, InputError> {
-        const TORN: &str = "last line incomplete (the record was cut off)";
+    /// skipped (a blank cell).
+    fn cell(&mut self, text: &str, col: Col, line: usize) -> Result<Option<f64>, InputError> {
         let Some(raw) = self.cells.get(col.index).map(|r| &text[r.clone()]) else {
-            if torn {
-                return self.skip(line, TORN);
-            }
             return Err(InputError::Row {
                 path: self.path.clone(),
                 line,
@@ -370,7 +368,6 @@ impl Rows {
                 let why = format!("blank `{}`", self.header.names[col.index]);
                 return self.skip(line, &why);
             }
-            Err(()) if torn => return self.skip(line, TORN),
             Err(()) => {
                 return Err(InputError::NotANumber {
                     path: self.path.clone(),

@@ -6,15 +6,16 @@
 use super::curie::CURIE_FRACTION;
 use super::prepare::Prepared;
 use super::segments::{self, Segments};
-use super::{lag, loss};
+use super::{branch_loss, lag, loss};
 
 /// Branches need this many samples each to be compared.
 pub const MIN_BRANCH_SAMPLES: usize = 30;
 /// The cooling branch must come back down at least this fraction of the excursion.
 pub const MIN_RETURN_FRACTION: f64 = 0.5;
-/// The branch and settling estimates of τ disagree beyond this fraction: the branches are
-/// disagreeing for another reason (flux lost on the way up) and the settling value is used.
-pub const SETTLING_OVERRIDE_FRACTION: f64 = 0.3;
+/// The branches reject a τ when it leaves them this much more residual than the best one
+/// (relative); a settling estimate they do not reject is preferred, and every τ they do not
+/// reject is covered by the budget.
+pub const BRANCH_DISCRIMINATION: f64 = 0.02;
 /// Rounds of lag search and loss refinement.
 pub const ROUNDS: usize = 3;
 /// The first round searches 0 … 600 s on 60 points; later ones ±30 % around the last on 8.
@@ -32,6 +33,8 @@ pub struct Lagged {
     pub loss: f64,
     /// Magnet temperature at the Curie collapse, °C.
     pub curie_c: Option<f64>,
+    /// The τ the evidence leaves possible, s (the budget covers it).
+    pub tau_range_s: Option<(f64, f64)>,
 }
 
 fn branches_comparable(p: &Prepared, seg: &Segments, span: f64) -> bool {
@@ -60,6 +63,7 @@ pub fn estimate(
         seg,
         loss: 0.0,
         curie_c: None,
+        tau_range_s: None,
     };
     if let Some(ic) = collapse {
         let tau = lag::from_settling(&s.time_s, &s.temp_c, &p.flux).map(|x| x.0);
@@ -84,21 +88,64 @@ pub fn estimate(
             _ => FIRST_SEARCH_S,
         };
         let (seg, l) = (&out.seg, out.loss);
-        let (best, _) = lag::minimize(lo, hi, points, |t| p.lag_cost(t, seg, l));
+        let (best, _) = if seg.after.is_none() {
+            lag::minimize(lo, hi, points, |t| p.lag_cost_profiled(t, seg).0)
+        } else {
+            lag::minimize(lo, hi, points, |t| p.lag_cost(t, seg, l))
+        };
         out.tau_s = Some(best);
         relag_with_loss(p, &mut out, best);
     }
-    if let Some((t_settle, _)) = lag::from_settling(&s.time_s, &s.temp_c, &p.flux) {
-        let tau = out.tau_s.unwrap_or(0.0);
-        if (tau - t_settle).abs() > SETTLING_OVERRIDE_FRACTION * t_settle {
-            notes.push(format!(
-                "the branches suggest τ = {tau:.0} s but the settling near room temperature shows {t_settle:.0} s: the branches disagree for another reason (flux lost on the way up?), so the settling value is used"
-            ));
-            out.tau_s = Some(t_settle);
-            relag_with_loss(p, &mut out, t_settle);
+    decide(p, &mut out, notes);
+    out
+}
+
+/// Weigh the branch estimate against the settling near room temperature: the settling value
+/// is used only when the branches cannot tell it from their own; the range of τ the branches
+/// leave possible goes to the budget.
+fn decide(p: &Prepared, out: &mut Lagged, notes: &mut Vec<String>) {
+    let Some(tau) = out.tau_s else { return };
+    let (seg, l) = (out.seg.clone(), out.loss);
+    let cost = |t: f64| {
+        if seg.after.is_none() {
+            p.lag_cost_profiled(t, &seg).0
+        } else {
+            p.lag_cost(t, &seg, l)
+        }
+    };
+    let best = cost(tau);
+    let limit = best * (1.0 + BRANCH_DISCRIMINATION);
+    // walk out from the best τ in 2 % steps while the branches cannot tell
+    let edge = |dir: f64| {
+        let mut t = tau;
+        for _ in 0..60 {
+            let next = t * (1.0 + dir * 0.02);
+            if next <= 0.0 || cost(next) > limit {
+                break;
+            }
+            t = next;
+        }
+        t
+    };
+    let range = (edge(-1.0), edge(1.0));
+    out.tau_range_s = Some(range);
+    if let Some((t_settle, _)) = lag::from_settling(&p.s.time_s, &p.s.temp_c, &p.flux) {
+        if (t_settle - tau).abs() > 0.05 * tau {
+            if cost(t_settle) <= limit {
+                notes.push(format!(
+                    "the branches allow τ from {:.0} to {:.0} s and the settling near room temperature shows {t_settle:.0} s: the settling value is used",
+                    range.0, range.1
+                ));
+                out.tau_s = Some(t_settle);
+                relag_with_loss(p, out, t_settle);
+            } else {
+                notes.push(format!(
+                    "the settling near room temperature suggests τ = {t_settle:.0} s, but the heating and cooling branches rule it out (they allow {:.0} … {:.0} s): the fixture was still moving there, so the branch value {tau:.0} s is used",
+                    range.0, range.1
+                ));
+            }
         }
     }
-    out
 }
 
 fn relag(p: &Prepared, out: &mut Lagged, tau: f64) {
@@ -108,7 +155,12 @@ fn relag(p: &Prepared, out: &mut Lagged, tau: f64) {
 
 fn relag_with_loss(p: &Prepared, out: &mut Lagged, tau: f64) {
     relag(p, out, tau);
-    if let Some(l) = loss::quick(p, &out.seg, &out.tm) {
+    let l = if out.seg.after.is_some() {
+        loss::quick(p, &out.seg, &out.tm)
+    } else {
+        branch_loss::quick(p, &out.seg, &out.tm)
+    };
+    if let Some(l) = l {
         out.loss = l.max(0.0);
     }
 }

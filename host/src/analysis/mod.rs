@@ -10,10 +10,12 @@
 //! [`judge`] turns the numbers into Br, the family ([`families`]) and the verdict.
 
 pub mod alpha;
+pub mod branch_loss;
 pub mod clean;
 pub mod clock;
 pub mod csv_log;
 pub mod curie;
+pub mod cycles;
 pub mod dataset;
 pub mod families;
 pub mod fit_data;

@@ -3,8 +3,11 @@
 use super::context::{AnalysisError, Context};
 use super::dataset::Series;
 use super::prepare::{Prepared, LOSSY};
-use super::result::{Analysis, Traces};
-use super::{alpha, clean, curie, fit_data, judge, lag_estimate, loss, model, segments, verdict};
+use super::result::{Analysis, CycleResult, Traces};
+use super::{
+    alpha, branch_loss, clean, curie, cycles, fit_data, judge, lag_estimate, loss, model, prepare,
+    segments, verdict,
+};
 
 /// The temperature span below which α is not worth reporting, K.
 pub const MIN_SPAN_K: f64 = 15.0;
@@ -14,7 +17,100 @@ pub const PROBE_RETURN_K: f64 = 2.0;
 /// Analyse a series.
 pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     check_finite(s)?;
+    let ranges = cycles::find(&s.temp_c);
+    if ranges.len() < 2 {
+        let mut a = analyze_cycle(s, ctx, clean::notes(s))?;
+        a.cycles = vec![cycle_of(&a, s)];
+        return Ok(a);
+    }
+    let parts: Vec<Series> = ranges.iter().map(|r| cycles::slice(s, r.clone())).collect();
+    let results: Vec<Result<Analysis, AnalysisError>> = parts
+        .iter()
+        .map(|part| analyze_cycle(part, ctx, Vec::new()))
+        .collect();
     let mut notes = clean::notes(s);
+    let summary: Vec<String> = results
+        .iter()
+        .zip(&parts)
+        .enumerate()
+        .map(|(k, (r, part))| match r {
+            Ok(a) => format!(
+                "cycle {} to {:.0} °C: loss {}",
+                k + 1,
+                a.max_magnet_temp_c,
+                a.irreversible_loss_pct
+                    .zip(a.irreversible_loss_u95_pct)
+                    .map_or("not computed".into(), |(l, u)| format!("{l:.3} ± {u:.3} %"))
+            ),
+            Err(e) => format!("cycle {} from t = {:.0} s: {e}", k + 1, part.time_s[0]),
+        })
+        .collect();
+    notes.push(format!(
+        "{} heat cycles found ({}); α and the verdict come from the last, stabilised cycle",
+        parts.len(),
+        summary.join("; ")
+    ));
+    let cycle_list: Vec<CycleResult> = results
+        .iter()
+        .zip(&parts)
+        .map(|(r, part)| match r {
+            Ok(a) => cycle_of(a, part),
+            Err(_) => CycleResult {
+                span_s: [part.time_s[0], part.time_s[part.time_s.len() - 1]],
+                peak_c: part
+                    .temp_c
+                    .iter()
+                    .copied()
+                    .fold(f64::NEG_INFINITY, f64::max),
+                irreversible_loss_pct: None,
+                irreversible_loss_u95_pct: None,
+            },
+        })
+        .collect();
+    let offset = ranges[ranges.len() - 1].start;
+    let mut traces_tm = Vec::with_capacity(s.time_s.len());
+    let mut traces_flux = Vec::with_capacity(s.time_s.len());
+    for (r, part) in results.iter().zip(&parts) {
+        match r {
+            Ok(a) => {
+                traces_tm.extend_from_slice(&a.traces.magnet_temp_c);
+                traces_flux.extend_from_slice(&a.traces.flux_corrected_mt);
+            }
+            Err(_) => {
+                traces_tm.extend_from_slice(&part.temp_c);
+                traces_flux.extend_from_slice(&part.flux_mt);
+            }
+        }
+    }
+    let mut a = results.into_iter().last().expect("two or more cycles")?;
+    notes.append(&mut a.notes);
+    a.notes = notes;
+    a.cycles = cycle_list;
+    a.samples = s.time_s.len();
+    a.rows_left_out = s.skipped.len();
+    a.spikes_rejected = s.spikes.len();
+    a.traces.magnet_temp_c = traces_tm;
+    a.traces.flux_corrected_mt = traces_flux;
+    a.traces.segments = a.traces.segments.map(|g| g.shifted(offset));
+    Ok(a)
+}
+
+/// The cycle summary of one analysed cycle.
+fn cycle_of(a: &Analysis, s: &Series) -> CycleResult {
+    CycleResult {
+        span_s: [s.time_s[0], s.time_s[s.time_s.len() - 1]],
+        peak_c: a.max_magnet_temp_c,
+        irreversible_loss_pct: a.irreversible_loss_pct,
+        irreversible_loss_u95_pct: a.irreversible_loss_u95_pct,
+    }
+}
+
+/// Analyse one heat cycle; `notes` so far.
+fn analyze_cycle(
+    s: &Series,
+    ctx: &Context,
+    mut notes: Vec<String>,
+) -> Result<Analysis, AnalysisError> {
     let prep = Prepared::new(s, ctx, &mut notes);
     let seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
     let span = s.temp_c[seg.peak] - s.temp_c[seg.before.start];
@@ -36,6 +132,20 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         &a.model,
         (a.alpha, u_c),
     );
+    let loss = match (loss, lagged.tau_s) {
+        // no return, but the branches show the magnet lost flux: the loss between them
+        (Err(loss::NoLoss::NoReturn), Some(tau)) if lagged.loss > LOSSY => {
+            let l = branch_loss::full(&prep, &lagged.seg, &lagged.tm, tau, alpha::LAG_TOLERANCE);
+            if let Some(l) = &l {
+                notes.push(format!(
+                    "the record does not return to a settled temperature, but the heating and cooling branches disagree at the same magnet temperature: the loss is seen between the branches ({:.2} % at the same temperature below {:.0} °C)",
+                    l.loss_pct, l.ref_c[0] + prepare::LOSSY_COMPARE_FRACTION * (lagged.tm[lagged.seg.peak] - l.ref_c[0])
+                ));
+            }
+            l.ok_or(loss::NoLoss::NoReturn)
+        }
+        (l, _) => l,
+    };
     note_loss(&loss, &mut notes);
     let loss = loss
         .ok()

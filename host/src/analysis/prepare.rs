@@ -17,6 +17,10 @@ pub const LAG_SEARCH_POINTS: usize = 20_000;
 /// heating branch then mixes reversible and irreversible change.
 pub const LOSSY: f64 = 0.001;
 
+/// After a loss above [`LOSSY`] the branches are compared only in the lower part of the
+/// excursion, below this fraction of it, where the heating branch had not begun to lose …
+pub const LOSSY_COMPARE_FRACTION: f64 = 0.5;
+
 /// A magnet losing more than this (fraction) was losing flux during the top soak …
 pub const TOP_SOAK_LOSS: f64 = 0.0005;
 /// … which is then left out of the fit: readings within this of the peak, K.
@@ -75,6 +79,16 @@ impl<'a> Prepared<'a> {
         loss > TOP_SOAK_LOSS && tmax - tm_i < TOP_SOAK_BAND_K
     }
 
+    /// Whether a sample at `tm_i` can judge the lag: after a loss, only the lower part of the
+    /// excursion (`tmin` … `tmax`), where both branches hold the same magnet.
+    fn compares(loss: f64, tmin: f64, tmax: f64, tm_i: f64) -> bool {
+        if loss > LOSSY {
+            tm_i < tmin + LOSSY_COMPARE_FRACTION * (tmax - tmin)
+        } else {
+            !Self::in_lossy_top(loss, tmax, tm_i)
+        }
+    }
+
     /// Indices used for the fit: from the start of heating to the end, skipping the top soak
     /// when the magnet was losing flux there.
     pub fn fit_indices(&self, seg: &Segments, tm: &[f64], loss: f64) -> Vec<usize> {
@@ -114,12 +128,36 @@ impl<'a> Prepared<'a> {
     }
 
     /// How badly the branches disagree for a lag `tau`: the residual sum of squares of the
-    /// quadratic through both (on the decimated series).
+    /// quadratic through both (on the decimated series), with the cooling branch corrected for
+    /// the loss `loss`.
     pub fn lag_cost(&self, tau: f64, seg: &Segments, loss: f64) -> f64 {
         let tm = lag::lagged(&self.time_dec, &self.temp_dec, tau);
+        self.cost_with(&tm, seg, loss)
+    }
+
+    /// As [`Prepared::lag_cost`] for a record with no return, the loss profiled out: for each
+    /// τ the loss the branches show at that τ (a lag error and a loss both part the branches;
+    /// only the shape of the ramps' corners tells them apart).
+    pub fn lag_cost_profiled(&self, tau: f64, seg: &Segments) -> (f64, f64) {
+        let tm = lag::lagged(&self.time_dec, &self.temp_dec, tau);
+        let (h0, pk) = (seg.heating.start / self.stride, seg.peak / self.stride);
+        let loss = super::branch_loss::ratios_on(
+            &tm,
+            |k| self.flux[k * self.stride],
+            h0..pk,
+            pk..tm.len(),
+            1,
+        )
+        .map(|r| super::branch_loss::from_ratios(&r).max(0.0))
+        .unwrap_or(0.0);
+        (self.cost_with(&tm, seg, loss), loss)
+    }
+
+    fn cost_with(&self, tm: &[f64], seg: &Segments, loss: f64) -> f64 {
         let tmax = tm.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let tmin = tm.iter().copied().fold(f64::INFINITY, f64::min);
         let keep: Vec<usize> = (0..tm.len())
-            .filter(|&k| !Self::in_lossy_top(loss, tmax, tm[k]))
+            .filter(|&k| Self::compares(loss, tmin, tmax, tm[k]))
             .collect();
         let t: Vec<f64> = keep.iter().map(|&k| tm[k]).collect();
         let b: Vec<f64> = keep

@@ -20,6 +20,21 @@ pub struct Segments {
     pub soaks: Vec<Range<usize>>,
 }
 
+impl Segments {
+    /// The same parts `k` samples later (a cycle's parts placed in the whole record).
+    pub fn shifted(self, k: usize) -> Segments {
+        let sh = |r: Range<usize>| r.start + k..r.end + k;
+        Segments {
+            before: sh(self.before),
+            after: self.after.map(sh),
+            peak: self.peak + k,
+            heating: sh(self.heating),
+            cooling: sh(self.cooling),
+            soaks: self.soaks.into_iter().map(sh).collect(),
+        }
+    }
+}
+
 /// The record's final temperature is the median of this many last readings.
 pub const END_SAMPLES: usize = 21;
 

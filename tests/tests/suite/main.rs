@@ -7,6 +7,7 @@ mod end_to_end;
 mod imperfect_records;
 mod impossible_values;
 mod integrity;
+mod messy_files;
 mod operator;
 mod outputs;
 mod reference_field;

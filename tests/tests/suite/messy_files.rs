@@ -1,0 +1,203 @@
+//! Loggers' files as they come: one record from the independent bench model written the ways
+//! other loggers write it, each read back to the same α as the clean file. Unit conversions
+//! are the SI definitions (1 G = 0.1 mT, 1 kG = 100 mT; °F = °C·9/5 + 32; K = °C + 273.15).
+
+use remanent::analysis::dataset::{self, CsvOptions, InputError};
+use remanent::analysis::{analyze, Context};
+use remanent::specs::SpecTable;
+
+use crate::bench_model::{self as bm, Bench, Row, NDFEB};
+
+fn ctx() -> Context {
+    Context {
+        calibration: None,
+        magnet: None,
+        specs: SpecTable::builtin(),
+        default_tc_gain_pct: 0.75,
+    }
+}
+
+fn rows() -> Vec<Row> {
+    let b = Bench::default();
+    bm::run(&b, &NDFEB, &bm::cycle(b.ambient_c, 110.0, b.ambient_c, 5.0)).0
+}
+
+fn write(text: &str) -> (tempfile::TempDir, std::path::PathBuf) {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("log.csv");
+    std::fs::write(&p, text).unwrap();
+    (dir, p)
+}
+
+fn alpha_of(text: &str, opts: &CsvOptions) -> (f64, remanent::analysis::Analysis) {
+    let (_d, p) = write(text);
+    let s = dataset::load_csv(&p, opts).unwrap();
+    let a = analyze(&s, &ctx()).unwrap();
+    (a.alpha_pct_per_c, a)
+}
+
+fn clean_alpha() -> f64 {
+    alpha_of(&bm::csv(&rows()), &CsvOptions::default()).0
+}
+
+/// Render the rows with a header and a row formatter.
+fn render(header: &str, f: impl Fn(usize, &Row) -> String) -> String {
+    let mut out = format!("{header}\n");
+    for (i, r) in rows().iter().enumerate() {
+        out.push_str(&f(i, r));
+        out.push('\n');
+    }
+    out
+}
+
+#[test]
+fn semicolons_and_decimal_commas_read_the_same() {
+    let text = render("time_s;temp_C;flux_mT", |_, r| {
+        format!("{:.2};{:.2};{:.3}", r.time_s, r.temp_c, r.flux_mt).replace('.', ",")
+    });
+    let (a, _) = alpha_of(&text, &CsvOptions::default());
+    assert!((a - clean_alpha()).abs() < 1e-9, "{a}");
+}
+
+#[test]
+fn fahrenheit_kelvin_gauss_kilogauss_and_tesla_are_converted() {
+    let clean = clean_alpha();
+    let cases: [(&str, fn(&Row) -> String); 3] = [
+        ("time_s,temp_F,flux_G", |r| {
+            format!(
+                "{:.2},{:.4},{:.3}",
+                r.time_s,
+                r.temp_c * 1.8 + 32.0,
+                r.flux_mt * 10.0
+            )
+        }),
+        ("time_s,temp_K,flux_kG", |r| {
+            format!(
+                "{:.2},{:.4},{:.6}",
+                r.time_s,
+                r.temp_c + 273.15,
+                r.flux_mt / 100.0
+            )
+        }),
+        ("time_s,temp_C,flux_T", |r| {
+            format!("{:.2},{:.2},{:.7}", r.time_s, r.temp_c, r.flux_mt / 1000.0)
+        }),
+    ];
+    for (header, f) in cases {
+        let (a, _) = alpha_of(&render(header, |_, r| f(r)), &CsvOptions::default());
+        assert!((a - clean).abs() < 1e-6, "{header}: {a} against {clean}");
+    }
+}
+
+#[test]
+fn clock_timestamps_become_seconds() {
+    // the bench started at 23:40:00 and ran past midnight
+    let text = render("clock,temp_C,flux_mT", |_, r| {
+        let t = 23.0 * 3600.0 + 40.0 * 60.0 + r.time_s;
+        let t = t % 86_400.0;
+        let (h, m, s) = ((t / 3600.0) as u32, ((t % 3600.0) / 60.0) as u32, t % 60.0);
+        format!("{h:02}:{m:02}:{s:05.2},{:.2},{:.3}", r.temp_c, r.flux_mt)
+    });
+    let (a, _) = alpha_of(&text, &CsvOptions::default());
+    assert!((a - clean_alpha()).abs() < 1e-6, "{a}");
+}
+
+#[test]
+fn blank_cells_are_skipped_and_counted() {
+    let text = render("time_s,temp_C,flux_mT", |i, r| match i % 97 {
+        13 => format!("{:.2},,{:.3}", r.time_s, r.flux_mt),
+        40 => format!("{:.2},{:.2},NA", r.time_s, r.temp_c),
+        _ => format!("{:.2},{:.2},{:.3}", r.time_s, r.temp_c, r.flux_mt),
+    });
+    let expected = (0..rows().len())
+        .filter(|i| i % 97 == 13 || i % 97 == 40)
+        .count();
+    let (a, an) = alpha_of(&text, &CsvOptions::default());
+    assert!((a - clean_alpha()).abs() < 2e-4, "{a}");
+    assert_eq!(an.rows_left_out, expected);
+    assert!(
+        an.notes
+            .iter()
+            .any(|n| n.contains("rows left out: blank `temp_C`")),
+        "{:#?}",
+        an.notes
+    );
+}
+
+#[test]
+fn a_torn_last_line_is_left_out_and_said() {
+    let mut text = bm::csv(&rows());
+    text.truncate(text.len() - 5); // power lost while the last line was written
+    let (_d, p) = write(&text);
+    let s = dataset::load_csv(&p, &CsvOptions::default()).unwrap();
+    assert_eq!(s.time_s.len(), rows().len() - 1);
+    let a = analyze(&s, &ctx()).unwrap();
+    assert!(
+        a.notes.iter().any(|n| n.contains("last line incomplete")),
+        "{:#?}",
+        a.notes
+    );
+}
+
+#[test]
+fn thermocouple_spikes_are_rejected_and_counted() {
+    let text = render("time_s,temp_C,flux_mT", |i, r| {
+        let temp = match i % 500 {
+            77 => 1372.0,           // the converter's open-circuit full scale
+            301 => r.temp_c - 60.0, // a pickup dip
+            _ => r.temp_c,
+        };
+        format!("{:.2},{:.2},{:.3}", r.time_s, temp, r.flux_mt)
+    });
+    let spikes = (0..rows().len())
+        .filter(|i| i % 500 == 77 || i % 500 == 301)
+        .count();
+    let (a, an) = alpha_of(&text, &CsvOptions::default());
+    assert_eq!(an.spikes_rejected, spikes);
+    assert!((a - clean_alpha()).abs() < 1e-4, "{a}");
+}
+
+#[test]
+fn a_header_that_differs_only_in_case_gets_the_column_option_that_fixes_it() {
+    let (_d, p) = write(&bm::csv(&rows()).replacen("temp_C", "Temp_c", 1));
+    let e = dataset::load_csv(&p, &CsvOptions::default()).unwrap_err();
+    assert!(matches!(e, InputError::MissingColumn { .. }));
+    assert!(e.to_string().contains("--column temp_C=Temp_c"), "{e}");
+}
+
+#[test]
+fn an_option_that_needs_a_missing_column_is_an_error() {
+    let (_d, p) = write(&bm::csv(&rows()));
+    let opts = CsvOptions {
+        probe_tc_pct_per_c: Some(-0.06),
+        ..CsvOptions::default()
+    };
+    let e = dataset::load_csv(&p, &opts).unwrap_err().to_string();
+    assert!(
+        e.contains("probe_temp_C") && e.contains("--probe-tc-pct-per-c"),
+        "{e}"
+    );
+    let opts = CsvOptions {
+        rename: [("temp_C".to_string(), "Temperatur".to_string())].into(),
+        ..CsvOptions::default()
+    };
+    let e = dataset::load_csv(&p, &opts).unwrap_err().to_string();
+    assert!(e.contains("--column temp_C=Temperatur"), "{e}");
+}
+
+#[test]
+fn nan_and_infinity_in_a_file_are_refused_with_line_and_column() {
+    let mut text = bm::csv(&rows());
+    let line = 101;
+    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+    lines[line - 1] = "50.00,nan,200.0".into();
+    text = lines.join("\n");
+    let (_d, p) = write(&text);
+    let e = dataset::load_csv(&p, &CsvOptions::default())
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.contains("line 101, column `temp_C`") && e.contains("not a finite number"),
+        "{e}"
+    );
+}
