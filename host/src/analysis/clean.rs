@@ -80,7 +80,7 @@ fn median(v: &mut [f64]) -> f64 {
 /// What the loader left out, in words: rows by reason (with the first line of each) and the
 /// spikes rejected.
 pub fn notes(s: &Series) -> Vec<String> {
-    let mut out = Vec::new();
+    let mut out = s.notes.clone();
     let mut reasons: Vec<(&str, usize, usize)> = Vec::new();
     for (line, why) in &s.skipped {
         match reasons.iter_mut().find(|r| r.0 == why) {

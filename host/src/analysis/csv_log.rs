@@ -9,6 +9,7 @@ use std::io::{BufRead, BufReader};
 use std::path::Path;
 
 use super::clock;
+use super::csv_cells::{parse_cell, spans, Cell};
 use super::dataset::{InputError, Series, MIN_ROWS};
 
 /// Options for plain CSV logs.
@@ -52,9 +53,6 @@ const PROBE: &[(&str, Unit)] = &[
     ("probe_temp_F", Unit::Linear(5.0 / 9.0, -32.0 * 5.0 / 9.0)),
     ("probe_temp_K", Unit::Linear(1.0, -273.15)),
 ];
-
-/// Cells that mean "no value" in common loggers' exports.
-const MISSING: &[&str] = &["", "NA", "N/A", "n/a", "-", "--", "null", "NULL", "None"];
 
 /// A column found in the header.
 #[derive(Debug, Clone, Copy)]
@@ -132,44 +130,6 @@ impl Header {
         }
         Ok(None)
     }
-}
-
-/// The cells of a line split at `delimiter` (delimiters inside double quotes kept), as byte
-/// ranges into `out`, which is reused from line to line.
-fn spans(line: &str, delimiter: u8, out: &mut Vec<std::ops::Range<usize>>) {
-    out.clear();
-    let mut start = 0;
-    let mut quoted = false;
-    for (i, &b) in line.as_bytes().iter().enumerate() {
-        if b == b'"' {
-            quoted = !quoted;
-        } else if b == delimiter && !quoted {
-            out.push(start..i);
-            start = i + 1;
-        }
-    }
-    out.push(start..line.len());
-}
-
-/// What one cell held.
-enum Cell {
-    Value(f64),
-    Missing,
-}
-
-fn parse_cell(raw: &str, decimal_comma: bool, scratch: &mut String) -> Result<Cell, ()> {
-    let v = raw.trim().trim_matches('"').trim();
-    if MISSING.contains(&v) {
-        return Ok(Cell::Missing);
-    }
-    let text = if decimal_comma && v.contains(',') {
-        scratch.clear();
-        scratch.extend(v.chars().map(|c| if c == ',' { '.' } else { c }));
-        scratch.as_str()
-    } else {
-        v
-    };
-    text.parse::<f64>().map(Cell::Value).map_err(|_| ())
 }
 
 /// Load a CSV log with a time, a temperature and a flux column (and optionally the probe's
@@ -356,19 +316,19 @@ impl Rows {
         };
         let parsed = match col.unit {
             Unit::Clock => match self.clock.seconds(raw) {
-                Some(v) => Ok(Cell::Value(v)),
-                None if raw.trim().is_empty() => Ok(Cell::Missing),
-                None => Err(()),
+                Some(v) => Some(Cell::Value(v)),
+                None if raw.trim().is_empty() => Some(Cell::Missing),
+                None => None,
             },
             Unit::Linear(..) => parse_cell(raw, self.header.decimal_comma, &mut self.scratch),
         };
         let v = match parsed {
-            Ok(Cell::Value(v)) => v,
-            Ok(Cell::Missing) => {
+            Some(Cell::Value(v)) => v,
+            Some(Cell::Missing) => {
                 let why = format!("blank `{}`", self.header.names[col.index]);
                 return self.skip(line, &why);
             }
-            Err(()) => {
+            None => {
                 return Err(InputError::NotANumber {
                     path: self.path.clone(),
                     line,

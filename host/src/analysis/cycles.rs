@@ -15,7 +15,7 @@ pub const RETURN_FRACTION: f64 = 0.25;
 pub fn find(temp_c: &[f64]) -> Vec<Range<usize>> {
     let n = temp_c.len();
     if n == 0 {
-        return vec![0..0];
+        return std::iter::once(0..0).collect();
     }
     let start = temp_c[..n.min(20)].iter().sum::<f64>() / n.min(20) as f64;
     // (rise, return) index pairs of each excursion
@@ -41,7 +41,7 @@ pub fn find(temp_c: &[f64]) -> Vec<Range<usize>> {
         i = k;
     }
     if excursions.len() < 2 {
-        return vec![0..n];
+        return std::iter::once(0..n).collect();
     }
     // split between one excursion's return and the next one's rise, at the middle of the
     // coolest stretch there
@@ -82,5 +82,6 @@ pub fn slice(s: &Series, r: Range<usize>) -> Series {
             .collect(),
         skipped: Vec::new(),
         spikes: Vec::new(),
+        notes: Vec::new(),
     }
 }

@@ -3,6 +3,7 @@
 
 use std::path::Path;
 
+use super::blocks::{self, Blocks};
 use crate::calibration::Calibration;
 use crate::conversion;
 use crate::magnets::MagnetInfo;
@@ -30,6 +31,8 @@ pub struct Series {
     pub skipped: Vec<(usize, String)>,
     /// Thermocouple spikes rejected: time, s, and the reading, °C.
     pub spikes: Vec<(f64, f64)>,
+    /// What the loader did that the report should say.
+    pub notes: Vec<String>,
 }
 
 /// Where the series came from and what is known about it.
@@ -166,21 +169,34 @@ pub fn load_run(
 ) -> Result<(Series, Source), InputError> {
     let meta = run_dir::read_meta(dir)?;
     let cal = calibration.unwrap_or(meta.calibration);
-    let (path, rows) = run_dir::read_samples(dir)?;
+    let path = dir.join(run_dir::SAMPLES_FILE);
     let p = path.display().to_string();
+    let lines = blocks::count_lines(&path).map_err(|e| InputError::Io {
+        path: p.clone(),
+        reason: e.to_string(),
+    })?;
+    let mut blocks = Blocks::<6>::for_rows(lines);
     let mut s = Series::default();
-    let mut probe = Vec::new();
-    let mut duty = Vec::new();
-    let mut setpoint = Vec::new();
-    let mut rows = rows.peekable();
-    while let Some(row) = rows.next() {
+    let mut probe = Vec::with_capacity(lines / blocks.k() + 1);
+    let mut duty = Vec::with_capacity(lines / blocks.k() + 1);
+    let mut setpoint = Vec::with_capacity(lines / blocks.k() + 1);
+    let mut push = |s: &mut Series, v: [f64; 6]| {
+        s.time_s.push(v[0]);
+        s.temp_c.push(v[1]);
+        s.flux_mt.push(v[2]);
+        probe.push(v[3]);
+        duty.push(v[4]);
+        setpoint.push(v[5]);
+    };
+    let mut last_t = f64::NEG_INFINITY;
+    run_dir::for_each_row(dir, |row, is_last| -> Result<(), InputError> {
         let (line, r) = match row {
             Ok(x) => x,
             // a record cut off by power loss or a full disk ends in a torn row: use the rest
-            Err(e) if rows.peek().is_none() => {
+            Err(e) if is_last => {
                 s.skipped
                     .push((e.line as usize, format!("last row torn ({})", e.reason)));
-                break;
+                return Ok(());
             }
             Err(e) => {
                 return Err(InputError::Row {
@@ -191,36 +207,46 @@ pub fn load_run(
             }
         };
         let line = line as usize;
-        check_time(&p, line, r.device_time_s, &s.time_s)?;
+        check_time(&p, line, r.device_time_s, &[last_t])?;
+        last_t = r.device_time_s;
         let c = conversion::convert(r.hall_code, r.probe_code, r.thermo_word, &cal);
-        let Some(tc) = c.temp_c else {
-            s.skipped.push((
-                line,
-                format!(
-                    "thermocouple fault {}",
-                    r.thermo_word
-                        .fault()
-                        .map_or("", conversion::thermo_fault_name)
-                ),
-            ));
-            continue;
+        let why = match (c.temp_c, c.probe_c, c.flux_mt) {
+            (None, _, _) => Some(format!(
+                "thermocouple fault {}",
+                r.thermo_word
+                    .fault()
+                    .map_or("", conversion::thermo_fault_name)
+            )),
+            (_, None, _) | (_, _, None) => Some("probe thermistor open or shorted".into()),
+            _ if c.hall_saturated => Some("Hall reading at the converter's limit".into()),
+            (Some(tc), Some(tp), Some(flux)) => {
+                let v = [
+                    r.device_time_s,
+                    tc,
+                    flux,
+                    tp,
+                    r.heater_duty_pct,
+                    r.setpoint_c.unwrap_or(f64::NAN),
+                ];
+                if let Some(m) = blocks.add(v) {
+                    push(&mut s, m);
+                }
+                None
+            }
         };
-        let (Some(tp), Some(flux)) = (c.probe_c, c.flux_mt) else {
-            s.skipped
-                .push((line, "probe thermistor open or shorted".into()));
-            continue;
-        };
-        if c.hall_saturated {
-            s.skipped
-                .push((line, "Hall reading at the converter's limit".into()));
-            continue;
+        if let Some(why) = why {
+            s.skipped.push((line, why));
         }
-        s.time_s.push(r.device_time_s);
-        s.temp_c.push(tc);
-        s.flux_mt.push(flux);
-        probe.push(tp);
-        duty.push(r.heater_duty_pct);
-        setpoint.push(r.setpoint_c.unwrap_or(f64::NAN));
+        Ok(())
+    })??;
+    if let Some(m) = blocks.finish() {
+        push(&mut s, m);
+    }
+    if blocks.k() > 1 {
+        s.notes.push(format!(
+            "a long record ({lines} rows): analysed as means of {} consecutive samples",
+            blocks.k()
+        ));
     }
     s.probe_c = Some(probe);
     s.duty_pct = Some(duty);

@@ -194,6 +194,76 @@ pub fn polyfit(x: &[f64], y: &[f64], degree: usize) -> Result<Fit, LsqError> {
     })
 }
 
+/// Residual sum of squares of the least-squares quadratic through (x, y), from sums in centred
+/// and scaled coordinates (normal equations): a cheap ranking of many candidate fits, where
+/// the reported fit uses [`polyfit`]'s QR. Infinite when the points cannot carry a quadratic.
+pub fn quadratic_rss(x: &[f64], y: &[f64]) -> f64 {
+    let n = x.len().min(y.len());
+    if n < 4 {
+        return f64::INFINITY;
+    }
+    let nf = n as f64;
+    let (mx, my) = (x.iter().sum::<f64>() / nf, y.iter().sum::<f64>() / nf);
+    let sx = x
+        .iter()
+        .map(|v| (v - mx).abs())
+        .fold(0.0, f64::max)
+        .max(1e-12);
+    // sums of u^k (k = 0..4) and u^k·v (k = 0..2), u = (x − x̄)/s, v = y − ȳ
+    let (mut su, mut sv, mut vv) = ([0.0f64; 5], [0.0f64; 3], 0.0);
+    for (xi, yi) in x.iter().zip(y) {
+        let u = (xi - mx) / sx;
+        let v = yi - my;
+        let u2 = u * u;
+        su[1] += u;
+        su[2] += u2;
+        su[3] += u2 * u;
+        su[4] += u2 * u2;
+        sv[0] += v;
+        sv[1] += u * v;
+        sv[2] += u2 * v;
+        vv += v * v;
+    }
+    su[0] = nf;
+    let a = [
+        [su[0], su[1], su[2]],
+        [su[1], su[2], su[3]],
+        [su[2], su[3], su[4]],
+    ];
+    match solve3(a, sv) {
+        Some(c) => (vv - (c[0] * sv[0] + c[1] * sv[1] + c[2] * sv[2])).max(0.0),
+        None => f64::INFINITY,
+    }
+}
+
+/// Solve a symmetric positive-definite 3×3 system by Cholesky; `None` if it is singular.
+fn solve3(a: [[f64; 3]; 3], b: [f64; 3]) -> Option<[f64; 3]> {
+    let mut l = [[0.0f64; 3]; 3];
+    for i in 0..3 {
+        for j in 0..=i {
+            let s: f64 = (0..j).map(|k| l[i][k] * l[j][k]).sum();
+            if i == j {
+                let d = a[i][i] - s;
+                if d <= a[i][i].abs() * 1e-12 {
+                    return None;
+                }
+                l[i][i] = d.sqrt();
+            } else {
+                l[i][j] = (a[i][j] - s) / l[j][j];
+            }
+        }
+    }
+    let mut z = [0.0f64; 3];
+    for i in 0..3 {
+        z[i] = (b[i] - (0..i).map(|k| l[i][k] * z[k]).sum::<f64>()) / l[i][i];
+    }
+    let mut c = [0.0f64; 3];
+    for i in (0..3).rev() {
+        c[i] = (z[i] - (i + 1..3).map(|k| l[k][i] * c[k]).sum::<f64>()) / l[i][i];
+    }
+    Some(c)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -217,6 +287,22 @@ mod tests {
         assert_eq!(
             polyfit(&[5.0; 6], &[1.0; 6], 1).unwrap_err(),
             LsqError::RankDeficient
+        );
+    }
+
+    #[test]
+    fn the_cheap_rss_matches_the_qr_fit() {
+        let x: Vec<f64> = (0..500).map(|i| 20.0 + 0.3 * f64::from(i)).collect();
+        let y: Vec<f64> = x
+            .iter()
+            .enumerate()
+            .map(|(i, t)| 215.0 - 0.23 * t - 2e-4 * t * t + 0.01 * ((i * 7919 % 13) as f64 - 6.0))
+            .collect();
+        let qr = polyfit(&x, &y, 2).unwrap().rss;
+        let cheap = quadratic_rss(&x, &y);
+        assert!(
+            (cheap - qr).abs() <= 1e-9 * qr.max(1e-12) + 1e-12,
+            "{cheap} against {qr}"
         );
     }
 }

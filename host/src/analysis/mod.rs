@@ -10,9 +10,11 @@
 //! [`judge`] turns the numbers into Br, the family ([`families`]) and the verdict.
 
 pub mod alpha;
+pub mod blocks;
 pub mod branch_loss;
 pub mod clean;
 pub mod clock;
+pub mod csv_cells;
 pub mod csv_log;
 pub mod curie;
 pub mod cycles;

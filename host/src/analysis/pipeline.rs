@@ -132,20 +132,7 @@ fn analyze_cycle(
         &a.model,
         (a.alpha, u_c),
     );
-    let loss = match (loss, lagged.tau_s) {
-        // no return, but the branches show the magnet lost flux: the loss between them
-        (Err(loss::NoLoss::NoReturn), Some(tau)) if lagged.loss > LOSSY => {
-            let l = branch_loss::full(&prep, &lagged.seg, &lagged.tm, tau, alpha::LAG_TOLERANCE);
-            if let Some(l) = &l {
-                notes.push(format!(
-                    "the record does not return to a settled temperature, but the heating and cooling branches disagree at the same magnet temperature: the loss is seen between the branches ({:.2} % at the same temperature below {:.0} °C)",
-                    l.loss_pct, l.ref_c[0] + prepare::LOSSY_COMPARE_FRACTION * (lagged.tm[lagged.seg.peak] - l.ref_c[0])
-                ));
-            }
-            l.ok_or(loss::NoLoss::NoReturn)
-        }
-        (l, _) => l,
-    };
+    let loss = with_branch_loss(loss, &prep, &lagged, &mut notes);
     note_loss(&loss, &mut notes);
     let loss = loss
         .ok()
@@ -225,6 +212,29 @@ fn analyze_cycle(
             flux_corrected_mt: prep.flux,
         },
     })
+}
+
+/// A record with no return whose branches show a loss: the loss between the branches.
+fn with_branch_loss(
+    loss: Result<loss::LossResult, loss::NoLoss>,
+    prep: &Prepared,
+    lagged: &lag_estimate::Lagged,
+    notes: &mut Vec<String>,
+) -> Result<loss::LossResult, loss::NoLoss> {
+    match (loss, lagged.tau_s) {
+        // no return, but the branches show the magnet lost flux: the loss between them
+        (Err(loss::NoLoss::NoReturn), Some(tau)) if lagged.loss > LOSSY => {
+            let l = branch_loss::full(prep, &lagged.seg, &lagged.tm, tau, alpha::LAG_TOLERANCE);
+            if let Some(l) = &l {
+                notes.push(format!(
+                    "the record does not return to a settled temperature, but the heating and cooling branches disagree at the same magnet temperature: the loss is seen between the branches ({:.2} % at the same temperature below {:.0} °C)",
+                    l.loss_pct, l.ref_c[0] + prepare::LOSSY_COMPARE_FRACTION * (lagged.tm[lagged.seg.peak] - l.ref_c[0])
+                ));
+            }
+            l.ok_or(loss::NoLoss::NoReturn)
+        }
+        (l, _) => l,
+    }
 }
 
 /// Refuse a series with a value that is not a finite number, naming the sample and the field.

@@ -6,7 +6,6 @@ use remanent_physics::standoff;
 use super::context::Context;
 use super::dataset::Series;
 use super::lag;
-use super::model::Quadratic;
 use super::segments::Segments;
 
 /// The lag search runs on at most this many points: a first-order response is smooth, so a
@@ -164,9 +163,7 @@ impl<'a> Prepared<'a> {
             .iter()
             .map(|&k| self.adjusted(k * self.stride, seg, loss))
             .collect();
-        Quadratic::fit(&t, &b)
-            .map(|(_, f)| f.rss)
-            .unwrap_or(f64::INFINITY)
+        super::lsq::quadratic_rss(&t, &b)
     }
 }
 

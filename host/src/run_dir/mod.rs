@@ -9,6 +9,6 @@ mod row;
 mod writer;
 
 pub use meta::*;
-pub use reader::{read_samples, RowError};
+pub use reader::{for_each_row, read_samples, RowError};
 pub use row::SampleRow;
 pub use writer::{RunWriter, FLUSH_INTERVAL};

@@ -62,7 +62,8 @@ fn semicolons_and_decimal_commas_read_the_same() {
 #[test]
 fn fahrenheit_kelvin_gauss_kilogauss_and_tesla_are_converted() {
     let clean = clean_alpha();
-    let cases: [(&str, fn(&Row) -> String); 3] = [
+    type Format = fn(&Row) -> String;
+    let cases: [(&str, Format); 3] = [
         ("time_s,temp_F,flux_G", |r| {
             format!(
                 "{:.2},{:.4},{:.3}",
