@@ -100,3 +100,27 @@ fn a_survey_started_late_still_reads_every_magnet_and_flags_the_damaged_one() {
     assert!(low[0].contains("pole   3"), "{text}");
     assert_eq!(std::fs::read_to_string(&out).unwrap().lines().count(), 7);
 }
+
+#[test]
+fn a_negative_probe_coefficient_is_accepted_and_a_missing_probe_column_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("log.csv");
+    let mut text = String::from("time_s,temp_C,flux_mT\n");
+    for i in 0..100 {
+        text.push_str(&format!("{i},25.0,200.0\n"));
+    }
+    std::fs::write(&p, text).unwrap();
+    // negative is the usual sign of a probe's coefficient: the option must take it
+    let (code, text) = run(&[
+        "analyze",
+        p.to_str().unwrap(),
+        "--probe-tc-pct-per-c",
+        "-0.06",
+    ]);
+    assert!(!text.contains("unexpected argument"), "{text}");
+    assert_eq!(code, 2, "{text}");
+    assert!(
+        text.contains("probe_temp_C") && text.contains("--probe-tc-pct-per-c"),
+        "the option needs a probe column the file does not have: {text}"
+    );
+}
