@@ -100,7 +100,12 @@ pub fn estimate(
             lo.min(tau * (1.0 - LAG_TOLERANCE)),
             hi.max(tau * (1.0 + LAG_TOLERANCE)),
         );
-        let spread = (a_at(hi) - a_at(lo)).abs() / 2.0;
+        // the two ends are independent: one on each core
+        let (a_hi, a_lo) = std::thread::scope(|sc| {
+            let h = sc.spawn(|| a_at(hi));
+            (h.join().unwrap_or(alpha), a_at(lo))
+        });
+        let spread = (a_hi - a_lo).abs() / 2.0;
         budget.push(BudgetLine::b(
             format!("lag model (τ {lo:.0} … {hi:.0} s, rectangular)"),
             spread / 3f64.sqrt(),

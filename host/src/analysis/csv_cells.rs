@@ -41,5 +41,5 @@ pub fn parse_cell(raw: &str, decimal_comma: bool, scratch: &mut String) -> Optio
     } else {
         v
     };
-    text.parse::<f64>().ok().map(Cell::Value)
+    crate::run_dir::decimal(text.as_bytes()).map(Cell::Value)
 }

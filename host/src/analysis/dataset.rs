@@ -7,7 +7,8 @@ use super::blocks::{self, Blocks};
 use crate::calibration::Calibration;
 use crate::conversion;
 use crate::magnets::MagnetInfo;
-use crate::run_dir::{self, RunMeta};
+use crate::run_dir::{self, CodesRow, RunMeta};
+use remanent_protocol::ThermoWord;
 
 /// Time series, equal lengths, strictly increasing time.
 #[derive(Debug, Clone, Default, PartialEq)]
@@ -149,6 +150,36 @@ fn check_time(path: &str, line: usize, t: f64, times: &[f64]) -> Result<(), Inpu
     Ok(())
 }
 
+/// A row of a run as the loader's threads hand it over.
+enum Converted {
+    /// Time, temperature, flux, probe temperature, duty, setpoint.
+    Values([f64; 6]),
+    /// Left out (at this time), and why.
+    Skip(f64, Skip),
+}
+
+/// Why a run's row is left out.
+#[derive(Clone, Copy)]
+enum Skip {
+    Thermocouple(ThermoWord),
+    Probe,
+    Saturated,
+}
+
+impl std::fmt::Display for Skip {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Skip::Thermocouple(w) => write!(
+                f,
+                "thermocouple fault {}",
+                w.fault().map_or("", conversion::thermo_fault_name)
+            ),
+            Skip::Probe => f.write_str("probe thermistor open or shorted"),
+            Skip::Saturated => f.write_str("Hall reading at the converter's limit"),
+        }
+    }
+}
+
 /// The faults listed in a run's events file (missing or unreadable: none).
 fn read_faults(path: &Path) -> Vec<(f64, String)> {
     let Ok(mut rdr) = csv::Reader::from_path(path) else {
@@ -171,7 +202,7 @@ pub fn load_run(
     let cal = calibration.unwrap_or(meta.calibration);
     let path = dir.join(run_dir::SAMPLES_FILE);
     let p = path.display().to_string();
-    let lines = blocks::count_lines(&path).map_err(|e| InputError::Io {
+    let lines = blocks::estimate_rows(&path).map_err(|e| InputError::Io {
         path: p.clone(),
         reason: e.to_string(),
     })?;
@@ -189,8 +220,26 @@ pub fn load_run(
         setpoint.push(v[5]);
     };
     let mut last_t = f64::NEG_INFINITY;
-    run_dir::for_each_row(dir, |row, is_last| -> Result<(), InputError> {
-        let (line, r) = match row {
+    // rows are read and converted on two threads into plain values; placed here in order
+    let parse = |line: &[u8]| -> Result<Converted, String> {
+        let r = CodesRow::parse_line(line)?;
+        let c = conversion::convert_memo(r.hall_code, r.probe_code, r.thermo_word, &cal);
+        Ok(match (c.temp_c, c.probe_c, c.flux_mt) {
+            (None, _, _) => Converted::Skip(r.device_time_s, Skip::Thermocouple(r.thermo_word)),
+            (_, None, _) | (_, _, None) => Converted::Skip(r.device_time_s, Skip::Probe),
+            _ if c.hall_saturated => Converted::Skip(r.device_time_s, Skip::Saturated),
+            (Some(tc), Some(tp), Some(flux)) => Converted::Values([
+                r.device_time_s,
+                tc,
+                flux,
+                tp,
+                r.heater_duty_pct,
+                r.setpoint_c.unwrap_or(f64::NAN),
+            ]),
+        })
+    };
+    run_dir::for_each_row(dir, &parse, |row, is_last| -> Result<(), InputError> {
+        let (line, row) = match row {
             Ok(x) => x,
             // a record cut off by power loss or a full disk ends in a torn row: use the rest
             Err(e) if is_last => {
@@ -207,35 +256,19 @@ pub fn load_run(
             }
         };
         let line = line as usize;
-        check_time(&p, line, r.device_time_s, &[last_t])?;
-        last_t = r.device_time_s;
-        let c = conversion::convert(r.hall_code, r.probe_code, r.thermo_word, &cal);
-        let why = match (c.temp_c, c.probe_c, c.flux_mt) {
-            (None, _, _) => Some(format!(
-                "thermocouple fault {}",
-                r.thermo_word
-                    .fault()
-                    .map_or("", conversion::thermo_fault_name)
-            )),
-            (_, None, _) | (_, _, None) => Some("probe thermistor open or shorted".into()),
-            _ if c.hall_saturated => Some("Hall reading at the converter's limit".into()),
-            (Some(tc), Some(tp), Some(flux)) => {
-                let v = [
-                    r.device_time_s,
-                    tc,
-                    flux,
-                    tp,
-                    r.heater_duty_pct,
-                    r.setpoint_c.unwrap_or(f64::NAN),
-                ];
+        let t = match row {
+            Converted::Values(v) => v[0],
+            Converted::Skip(t, _) => t,
+        };
+        check_time(&p, line, t, &[last_t])?;
+        last_t = t;
+        match row {
+            Converted::Values(v) => {
                 if let Some(m) = blocks.add(v) {
                     push(&mut s, m);
                 }
-                None
             }
-        };
-        if let Some(why) = why {
-            s.skipped.push((line, why));
+            Converted::Skip(_, why) => s.skipped.push((line, why.to_string())),
         }
         Ok(())
     })??;

@@ -16,7 +16,8 @@ pub fn lagged(time_s: &[f64], temp_c: &[f64], tau_s: f64) -> Vec<f64> {
             m = temp_c[i];
         } else {
             let dt = time_s[i] - time_s[i - 1];
-            if dt != last_dt {
+            // times written to the millisecond differ in their last bits from step to step
+            if (dt - last_dt).abs() > 1e-9 * dt.abs() || last_dt.is_nan() {
                 last_dt = dt;
                 k = 1.0 - (-dt / tau_s).exp();
             }
@@ -34,11 +35,18 @@ pub const GOLDEN_STEPS: usize = 16;
 
 /// Minimize `cost(τ)` over `[lo_s, hi_s]`: a coarse grid of `points`, then golden-section
 /// refinement around the best grid point.
-pub fn minimize(lo_s: f64, hi_s: f64, points: u32, mut cost: impl FnMut(f64) -> f64) -> (f64, f64) {
+pub fn minimize(lo_s: f64, hi_s: f64, points: u32, cost: impl Fn(f64) -> f64 + Sync) -> (f64, f64) {
     let grid: Vec<f64> = (0..=points)
         .map(|i| lo_s + (hi_s - lo_s) * f64::from(i) / f64::from(points))
         .collect();
-    let costs: Vec<f64> = grid.iter().map(|&t| cost(t)).collect();
+    // the grid's points are independent: half on each core
+    let half = grid.len() / 2;
+    let costs: Vec<f64> = std::thread::scope(|sc| {
+        let upper = sc.spawn(|| grid[half..].iter().map(|&t| cost(t)).collect::<Vec<f64>>());
+        let mut lower: Vec<f64> = grid[..half].iter().map(|&t| cost(t)).collect();
+        lower.extend(upper.join().expect("grid half"));
+        lower
+    });
     let best = costs
         .iter()
         .enumerate()
@@ -77,12 +85,21 @@ pub fn minimize(lo_s: f64, hi_s: f64, points: u32, mut cost: impl FnMut(f64) -> 
     }
 }
 
+/// The settling search runs on at most this many points.
+pub const SETTLING_POINTS: usize = 200_000;
+
 /// The lag from a settling: where the thermocouple holds still but the flux still relaxes, the
 /// magnet is catching up with the thermocouple, B(t) = B∞ + A·exp(−t/τ). Returns τ and the
 /// flux change explained, from the clearest such stretch at the lowest temperature (a settling
 /// near room temperature is free of irreversible loss). `None` when no stretch shows one.
 pub fn from_settling(time_s: &[f64], temp_c: &[f64], flux: &[f64]) -> Option<(f64, f64)> {
     let n = time_s.len();
+    if n > SETTLING_POINTS {
+        // a settling of tens of seconds is as clear in 200 000 points as in millions
+        let stride = n.div_ceil(SETTLING_POINTS);
+        let pick = |v: &[f64]| v.iter().step_by(stride).copied().collect::<Vec<f64>>();
+        return from_settling(&pick(time_s), &pick(temp_c), &pick(flux));
+    }
     if n < 100 {
         return None;
     }
@@ -117,12 +134,7 @@ pub fn from_settling(time_s: &[f64], temp_c: &[f64], flux: &[f64]) -> Option<(f6
                     / (bs.len() - bs.len() * 9 / 10) as f64)
                 .abs();
             // fit B = c + a·exp(−(t − t0)/τ) for each τ; linear in (c, a)
-            let sse = |tau: f64| -> f64 {
-                let x: Vec<f64> = ts.iter().map(|t| (-(t - t0) / tau).exp()).collect();
-                super::lsq::polyfit(&x, bs, 1)
-                    .map(|f| f.rss)
-                    .unwrap_or(f64::INFINITY)
-            };
+            let sse = |tau: f64| line_rss(ts.iter().map(|t| (-(t - t0) / tau).exp()), bs);
             let (tau, _) = minimize(5.0, (span / 2.0).min(600.0), 40, sse);
             let score =
                 change / (1.0 + smooth[i] - smooth.iter().copied().fold(f64::INFINITY, f64::min));
@@ -133,4 +145,23 @@ pub fn from_settling(time_s: &[f64], temp_c: &[f64], flux: &[f64]) -> Option<(f6
         i = j + 1;
     }
     best.map(|b| (b.1, b.2))
+}
+
+/// Residual sum of squares of the least-squares line through (x, y), from centred sums (cheap
+/// enough to rank many candidate τ; infinite when x does not vary).
+fn line_rss(x: impl Iterator<Item = f64> + Clone, y: &[f64]) -> f64 {
+    let n = y.len() as f64;
+    let mx = x.clone().sum::<f64>() / n;
+    let my = y.iter().sum::<f64>() / n;
+    let (mut sxx, mut sxy, mut syy) = (0.0, 0.0, 0.0);
+    for (xi, yi) in x.zip(y) {
+        let (dx, dy) = (xi - mx, yi - my);
+        sxx += dx * dx;
+        sxy += dx * dy;
+        syy += dy * dy;
+    }
+    if sxx <= 0.0 {
+        return f64::INFINITY;
+    }
+    (syy - sxy * sxy / sxx).max(0.0)
 }

@@ -18,6 +18,11 @@ pub const MIN_RETURN_FRACTION: f64 = 0.5;
 pub const BRANCH_DISCRIMINATION: f64 = 0.02;
 /// Rounds of lag search and loss refinement.
 pub const ROUNDS: usize = 3;
+/// The settling is consulted only when the branches leave τ open by more than this fraction
+/// either side.
+pub const SETTLING_WORTH: f64 = 0.25;
+/// A round that moves τ by less than this fraction has converged.
+pub const CONVERGED: f64 = 0.005;
 /// The first round searches 0 … 600 s on 60 points; later ones ±30 % around the last on 8.
 pub const FIRST_SEARCH_S: (f64, f64, u32) = (0.0, 600.0, 60);
 
@@ -93,7 +98,13 @@ pub fn estimate(
         } else {
             lag::minimize(lo, hi, points, |t| p.lag_cost(t, seg, l))
         };
+        let settled = out
+            .tau_s
+            .is_some_and(|t| (best - t).abs() <= CONVERGED * t.max(1.0));
         out.tau_s = Some(best);
+        if settled {
+            break; // the loss estimate did not move τ: the last relag stands
+        }
         relag_with_loss(p, &mut out, best);
     }
     decide(p, &mut out, notes);
@@ -101,7 +112,8 @@ pub fn estimate(
 }
 
 /// Weigh the branch estimate against the settling near room temperature: the settling value
-/// is used only when the branches cannot tell it from their own; the range of τ the branches
+/// is used only when the branches cannot tell it from their own (and is not looked for when
+/// they pin τ within ±25 %); the range of τ the branches
 /// leave possible goes to the budget.
 fn decide(p: &Prepared, out: &mut Lagged, notes: &mut Vec<String>) {
     let Some(tau) = out.tau_s else { return };
@@ -115,20 +127,39 @@ fn decide(p: &Prepared, out: &mut Lagged, notes: &mut Vec<String>) {
     };
     let best = cost(tau);
     let limit = best * (1.0 + BRANCH_DISCRIMINATION);
-    // walk out from the best τ in 2 % steps while the branches cannot tell
+    // out from the best τ while the branches cannot tell: double the step until they can, then
+    // halve the interval to 1 % of τ
     let edge = |dir: f64| {
-        let mut t = tau;
-        for _ in 0..60 {
-            let next = t * (1.0 + dir * 0.02);
-            if next <= 0.0 || cost(next) > limit {
+        let at = |f: f64| (tau * (1.0 + dir * f)).max(0.0);
+        let (mut inside, mut step) = (0.0f64, 0.02f64);
+        let mut outside = None;
+        while inside + step <= 3.0 {
+            let f = inside + step;
+            if at(f) <= 0.0 || cost(at(f)) > limit {
+                outside = Some(f);
                 break;
             }
-            t = next;
+            inside = f;
+            step *= 2.0;
         }
-        t
+        let Some(mut out_f) = outside else {
+            return at(inside);
+        };
+        while out_f - inside > 0.01 {
+            let mid = 0.5 * (inside + out_f);
+            if cost(at(mid)) > limit {
+                out_f = mid;
+            } else {
+                inside = mid;
+            }
+        }
+        at(inside)
     };
     let range = (edge(-1.0), edge(1.0));
     out.tau_range_s = Some(range);
+    if range.1 - range.0 < 2.0 * SETTLING_WORTH * tau {
+        return; // the branches pin τ: a settling could only agree or be ruled out
+    }
     if let Some((t_settle, _)) = lag::from_settling(&p.s.time_s, &p.s.temp_c, &p.flux) {
         if (t_settle - tau).abs() > 0.05 * tau {
             if cost(t_settle) <= limit {

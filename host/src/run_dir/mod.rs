@@ -3,12 +3,14 @@
 //! metadata. Written as data arrive and flushed at least every second; never overwritten.
 //! The writer ([`writer`]) and the reader ([`reader`]) share one row type ([`row`]).
 
+mod codes;
 mod meta;
 mod reader;
 mod row;
 mod writer;
 
+pub use codes::{decimal, CodesRow};
 pub use meta::*;
-pub use reader::{for_each_row, read_samples, RowError};
+pub use reader::{for_each_row, read_samples, Parsed, RowError};
 pub use row::SampleRow;
 pub use writer::{RunWriter, FLUSH_INTERVAL};
