@@ -110,7 +110,7 @@ impl Header {
                 None if rename.contains_key(*name) => {
                     return Err(InputError::MissingColumn {
                         path: path.into(),
-                        column: format!("{theirs}` (given by `--column {name}={theirs}`)"),
+                        column: format!("`{theirs}` column (given by `--column {name}={theirs}`)"),
                         found: self.found(),
                     })
                 }
@@ -122,7 +122,7 @@ impl Header {
                 return Err(InputError::MissingColumn {
                     path: path.into(),
                     column: format!(
-                        "{name}` (`{h}` differs only in case: add `--column {name}={h}`)"
+                        "`{name}` column (`{h}` differs only in case: add `--column {name}={h}`)"
                     ),
                     found: self.found(),
                 });
@@ -179,22 +179,26 @@ pub fn load_csv(path: &Path, opts: &CsvOptions) -> Result<Series, InputError> {
             .ok_or_else(|| InputError::MissingColumn {
                 path: p.clone(),
                 column: format!(
-                    "{what}` (or {})",
-                    q.iter().map(|c| c.0).collect::<Vec<_>>().join(", ")
+                    "{what} column ({}; name yours with `--column {}=<its name>`)",
+                    q.iter()
+                        .map(|c| format!("`{}`", c.0))
+                        .collect::<Vec<_>>()
+                        .join(", "),
+                    q[0].0
                 ),
                 found: header.found(),
             })
     };
     let cols = [
-        need(TIME, "time_s")?,
-        need(TEMP, "temp_C")?,
-        need(FLUX, "flux_mT")?,
+        need(TIME, "time")?,
+        need(TEMP, "temperature")?,
+        need(FLUX, "flux")?,
     ];
     let probe = header.resolve(&p, PROBE, &opts.rename)?;
     if opts.probe_tc_pct_per_c.is_some() && probe.is_none() {
         return Err(InputError::MissingColumn {
             path: p,
-            column: "probe_temp_C` (needed by `--probe-tc-pct-per-c`)".into(),
+            column: "`probe_temp_C` column (needed by `--probe-tc-pct-per-c`)".into(),
             found: header.found(),
         });
     }

@@ -61,11 +61,11 @@ pub enum InputError {
         reason: String,
     },
     /// A required column is missing.
-    #[error("{path}: line 1: no `{column}` column (columns found: {found})")]
+    #[error("{path}: line 1: no {column} (columns found: {found})")]
     MissingColumn {
         /// File.
         path: String,
-        /// Column wanted.
+        /// Column wanted, in words with its backticks and any hint.
         column: String,
         /// Columns present.
         found: String,

@@ -10,7 +10,9 @@ use super::options::SpecOpts;
 
 #[derive(clap::Args, Clone)]
 pub struct Args {
-    /// A run directory, or a CSV file with time_s, temp_C and flux_mT (or flux_T, flux_G).
+    /// A run directory, or a CSV log: a time column (time_s, time_ms, time_min or clock
+    /// timestamps), a temperature (temp_C, temp_F, temp_K) and a flux (flux_mT, flux_T, flux_G,
+    /// flux_kG); comma, semicolon or tab separated, decimal commas allowed.
     pub input: PathBuf,
     /// Print the machine-readable report (JSON) instead of the summary.
     #[arg(long)]
