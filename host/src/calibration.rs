@@ -6,6 +6,8 @@ use std::path::Path;
 use remanent_physics::{HallSensor, Standoff, Thermistor};
 use serde::{Deserialize, Serialize};
 
+pub use crate::calibration_dates::{Dates, Stamp};
+
 /// Hall probe calibration: the sensor's constants as measured, with their uncertainties.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct HallCalibration {
@@ -18,6 +20,12 @@ pub struct HallCalibration {
     pub offset_tc_u_mv_per_c: f64,
     /// ADC full scale of the Hall channel, mV.
     pub full_scale_mv: f64,
+    /// Standard uncertainty of the offset, mV (0 when not calibrated).
+    #[serde(default)]
+    pub offset_u_mv: f64,
+    /// Standard uncertainty of the sensitivity, % (0 when not calibrated).
+    #[serde(default)]
+    pub sensitivity_u_pct: f64,
 }
 
 /// Probe position and the standoff that carries it.
@@ -49,6 +57,9 @@ pub struct ThermocoupleCalibration {
     pub offset_c: f64,
     /// Gain tolerance of the wire as a relative half-width, % (0.4 for special limits).
     pub gain_tolerance_pct: f64,
+    /// Standard uncertainty of the offset, °C (0 when not calibrated).
+    #[serde(default)]
+    pub offset_u_c: f64,
 }
 
 /// A rig's full calibration.
@@ -62,6 +73,9 @@ pub struct Calibration {
     pub ntc: NtcCalibration,
     /// Thermocouple.
     pub thermocouple: ThermocoupleCalibration,
+    /// When each calibration step was last done.
+    #[serde(default, skip_serializing_if = "Dates::is_empty")]
+    pub dates: Dates,
 }
 
 /// Reading a calibration failed.

@@ -56,7 +56,7 @@ fn keys(kind: Kind) -> Keys {
             required: SPEC_KEYS,
         },
         Kind::Calibration => Keys {
-            allowed: CALIBRATION_KEYS,
+            allowed: CALIBRATION_OPTIONAL_KEYS,
             required: CALIBRATION_KEYS,
         },
     }
@@ -108,6 +108,39 @@ const CALIBRATION_KEYS: &[&str] = &[
     "thermocouple",
     "thermocouple.offset_c",
     "thermocouple.gain_tolerance_pct",
+];
+
+/// The calibration's keys that older files do not have: uncertainties of the zero, the
+/// sensitivity and the thermocouple offset, and the dates of the calibration steps.
+const CALIBRATION_OPTIONAL_KEYS: &[&str] = &[
+    "hall",
+    "hall.sensitivity_mv_per_mt",
+    "hall.sensitivity_tc_pct_per_c",
+    "hall.sensitivity_tc_u_pct_per_c",
+    "hall.offset_mv",
+    "hall.offset_tc_mv_per_c",
+    "hall.offset_tc_u_mv_per_c",
+    "hall.full_scale_mv",
+    "hall.offset_u_mv",
+    "hall.sensitivity_u_pct",
+    "gap",
+    "gap.gap_mm",
+    "gap.gap_u_mm",
+    "gap.standoff_mm",
+    "gap.standoff_cte_per_k",
+    "gap.standoff_cte_u_per_k",
+    "ntc",
+    "ntc.r25_ohm",
+    "ntc.beta_k",
+    "ntc.series_ohm",
+    "ntc.supply_mv",
+    "ntc.full_scale_mv",
+    "thermocouple",
+    "thermocouple.offset_c",
+    "thermocouple.gain_tolerance_pct",
+    "thermocouple.offset_u_c",
+    "dates",
+    "dates.*",
 ];
 
 /// Cut a message to [`MAX_MESSAGE_CHARS`].

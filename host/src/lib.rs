@@ -4,7 +4,9 @@
 //! irreversible loss, judge the magnet, and plot and report it.
 
 pub mod analysis;
+pub mod calibrate;
 pub mod calibration;
+pub mod calibration_dates;
 pub mod clear_fault;
 pub mod conversion;
 pub mod drill;

@@ -54,6 +54,9 @@ fn rules(kind: Kind) -> &'static [(&'static str, Rule)] {
             ("ntc.supply_mv", Pos),
             ("ntc.full_scale_mv", Pos),
             ("thermocouple.gain_tolerance_pct", NonNeg),
+            ("thermocouple.offset_u_c", NonNeg),
+            ("hall.offset_u_mv", NonNeg),
+            ("hall.sensitivity_u_pct", NonNeg),
         ],
         Kind::Magnet => &[
             ("shape.cylinder.diameter_mm", Pos),

@@ -12,9 +12,11 @@ pub mod peripherals;
 pub mod probe;
 pub mod rig;
 pub mod rng;
+pub mod scene;
 pub mod thermal;
 
 pub use magnet::{Magnet, Shape};
 /// The measurement physics the model shares with the host.
 pub use remanent_physics as physics;
 pub use rig::{HeaterSwitch, Rig, RigFaults, RigParams};
+pub use scene::Scene;

@@ -8,6 +8,7 @@ use serde::{Deserialize, Serialize};
 use crate::magnet::{Magnet, MagnetState};
 use crate::probe::{HallParams, NtcParams, NTC_REFERENCE};
 use crate::rng::Rng;
+use crate::scene::Scene;
 use crate::thermal::{ambient_c, ThermalParams, ThermalState};
 use remanent_physics::{adc, standoff, type_k};
 
@@ -31,6 +32,9 @@ pub struct RigParams {
     /// The switch between the heater output and the heater.
     #[serde(default)]
     pub switch: HeaterSwitch,
+    /// The thermocouple's own error at its junction (a wire off its table), K.
+    #[serde(default)]
+    pub tc_offset_c: f64,
 }
 
 /// The heater's switch.
@@ -63,6 +67,7 @@ impl RigParams {
         cold_junction_rise_k: 3.0,
         tc_noise_c: 0.08,
         switch: HeaterSwitch::Dc,
+        tc_offset_c: 0.0,
     };
 }
 
@@ -109,6 +114,8 @@ pub struct Rig {
     pub enabled: bool,
     /// Whether a magnet is in the fixture (a survey takes them in and out).
     pub present: bool,
+    /// Where the sensors are (a calibration step moves them).
+    pub scene: Scene,
     /// A zero-crossing relay is conducting this half-cycle.
     relay_on: bool,
     /// Plate temperature when the thermocouple came off, °C.
@@ -130,6 +137,7 @@ impl Rig {
             duty: 0.0,
             enabled: false,
             present: true,
+            scene: Scene::Fixture,
             relay_on: false,
             detached_from_c: None,
             time_s: 0.0,
@@ -214,6 +222,9 @@ impl Rig {
             self.thermal.advance(&self.params.thermal, amb, power, h);
             self.magnet_state
                 .advance(&self.magnet, self.thermal.magnet_c, h);
+            if let Some(p) = self.scene.probe_after(self.thermal.probe_c, h) {
+                self.thermal.probe_c = p;
+            }
             self.time_s += h;
             left -= h;
         }
@@ -248,11 +259,13 @@ impl Rig {
 
     /// True field at the sensing element, mT.
     pub fn field_mt(&self) -> f64 {
-        if !self.present {
-            return 0.0;
-        }
-        let gap = self.params.hall.standoff.gap_at_mm(self.standoff_c());
-        self.br_t() * 1000.0 * self.magnet.shape.bz_per_br(gap)
+        let fixture = if self.present {
+            let gap = self.params.hall.standoff.gap_at_mm(self.standoff_c());
+            self.br_t() * 1000.0 * self.magnet.shape.bz_per_br(gap)
+        } else {
+            0.0
+        };
+        self.scene.field_mt(fixture)
     }
 
     /// One Hall conversion, with noise.
@@ -291,7 +304,7 @@ impl Rig {
         if open {
             return ThermoWord::from_parts(0, cj_counts, Some(ThermoFault::Open));
         }
-        let junction_c = self.thermocouple_junction_c();
+        let junction_c = self.thermocouple_junction_c() + self.params.tc_offset_c;
         let reported =
             type_k::chip_reading_c(junction_c, cj) + self.params.tc_noise_c * self.rng.gauss();
         ThermoWord::from_parts(libm::round(reported * 4.0) as i16, cj_counts, None)
@@ -299,6 +312,9 @@ impl Rig {
 
     /// Where the thermocouple's junction is: on the plate, or in the air once detached.
     fn thermocouple_junction_c(&mut self) -> f64 {
+        if let Some(t) = self.scene.junction_c() {
+            return t;
+        }
         let Some(at_s) = self.faults.thermocouple_detached_at_s else {
             return self.thermal.plate_c;
         };

@@ -16,6 +16,8 @@ use remanent_rig_model::{HeaterSwitch, Magnet, Rig, RigParams};
 
 use super::options::{RigTruth, VirtualRigOptions, STEP_S};
 
+use remanent_rig_model::Scene;
+
 type Handle = Rc<RefCell<Rig>>;
 type SimDevice = Device<
     ads1115::Ads1115<SimAdcBus<Handle>, SimDelay>,
@@ -82,6 +84,34 @@ pub struct SimulatedBench {
     survey_t0: Option<f64>,
 }
 
+/// A hand on the virtual rig's set-up: what surrounds its sensors (for calibration steps) and
+/// which magnet is in the fixture.
+pub struct SceneControl(Handle);
+
+impl SceneControl {
+    /// Move the sensors into `scene`.
+    pub fn set(&self, scene: Scene) {
+        self.0.borrow_mut().scene = scene;
+    }
+
+    /// Put `magnet` in the fixture.
+    pub fn place(&self, magnet: Magnet) {
+        self.0.borrow_mut().swap(Some((magnet, 0.0)));
+    }
+
+    /// Ambient now, °C.
+    pub fn ambient_c(&self) -> f64 {
+        self.0.borrow().ambient_c()
+    }
+
+    /// Let the probe cool back to the fixture's temperature (a person waits before the next
+    /// step).
+    pub fn cool_probe(&self) {
+        let mut rig = self.0.borrow_mut();
+        rig.thermal.probe_c = rig.thermal.plate_c;
+    }
+}
+
 /// Empty fixture between survey magnets, s.
 pub const SURVEY_GAP_S: f64 = 8.0;
 
@@ -127,6 +157,11 @@ impl SimulatedBench {
             sent: opts.keep_sent.then(SentLog::default),
             damaged: 0,
         }
+    }
+
+    /// A hand on the rig's set-up.
+    pub fn scene_control(&self) -> SceneControl {
+        SceneControl(self.rig.clone())
     }
 
     /// Simulated time, s.

@@ -12,7 +12,7 @@ mod options;
 mod port;
 mod pty;
 
-pub use bench::{heater_drive, SimulatedBench, SURVEY_GAP_S};
+pub use bench::{heater_drive, SceneControl, SimulatedBench, SURVEY_GAP_S};
 pub use options::{survey_set, virtual_config, RigTruth, VirtualRigOptions};
 pub use port::SimulatedPort;
 pub use pty::VirtualRig;

@@ -116,6 +116,8 @@ impl Calibration {
                 sensitivity_tc_u_pct_per_c: 0.002,
                 offset_tc_u_mv_per_c: 0.001,
                 full_scale_mv: params.hall_full_scale_mv,
+                offset_u_mv: 0.0,
+                sensitivity_u_pct: 0.0,
             },
             gap: GapCalibration {
                 standoff: params.hall.standoff,
@@ -129,7 +131,9 @@ impl Calibration {
             thermocouple: ThermocoupleCalibration {
                 offset_c: 0.0,
                 gain_tolerance_pct: 0.4,
+                offset_u_c: 0.0,
             },
+            dates: Default::default(),
         }
     }
 }

@@ -3,6 +3,7 @@
 mod accuracy;
 mod analysis_input;
 mod bench_model;
+mod calibration_steps;
 mod end_to_end;
 mod imperfect_records;
 mod impossible_values;
