@@ -60,6 +60,7 @@ fn write_run(dir: &Path, n: usize) {
         device: None,
         profile: ProfileSpec::resolve("quick-alpha").unwrap(),
         calibration: cal,
+        calibration_basis: None,
         counts: Counts::default(),
     };
     std::fs::write(dir.join(META_FILE), toml::to_string(&meta).unwrap()).unwrap();

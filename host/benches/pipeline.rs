@@ -197,6 +197,11 @@ fn main() {
         magnet: m.info,
         profile: ProfileSpec::resolve("quick-alpha").unwrap(),
         calibration: Calibration::virtual_rig(&RigParams::REFERENCE),
+        // the fake device is no virtual rig: measure without a calibration, as a test bench
+        policy: remanent::calibration_policy::Policy {
+            uncalibrated: true,
+            ..Default::default()
+        },
         out: dir.join("run"),
         silence_timeout: Duration::from_secs(5),
         preroll_s: 0.0,

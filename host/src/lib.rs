@@ -7,6 +7,7 @@ pub mod analysis;
 pub mod calibrate;
 pub mod calibration;
 pub mod calibration_dates;
+pub mod calibration_policy;
 pub mod clear_fault;
 pub mod conversion;
 pub mod drill;

@@ -24,6 +24,22 @@ pub struct MagnetInfo {
     pub max_working_c: f64,
     /// Geometry.
     pub shape: Shape,
+    /// For a reference part: its certified (or lab-measured) Br.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reference: Option<ReferenceBr>,
+}
+
+/// A reference part's known Br, from its certificate or a lab's measurement.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ReferenceBr {
+    /// Br at 20 °C, T.
+    #[serde(rename = "br_T")]
+    pub br_t: f64,
+    /// Its standard uncertainty (k = 1), T.
+    #[serde(rename = "br_u_T")]
+    pub br_u_t: f64,
+    /// Who measured it (certificate number, lab).
+    pub source: String,
 }
 
 /// A magnet file: the facts, plus (for the virtual rig) a model of how it behaves.
@@ -62,6 +78,7 @@ pub fn resolve(id_or_path: &str) -> Result<MagnetFile, MagnetError> {
                 description: p.description.into(),
                 max_working_c: p.magnet.max_working_c,
                 shape: p.magnet.shape,
+                reference: None,
             },
             model: Some(p.magnet),
         });

@@ -30,6 +30,8 @@ pub struct SurveyOptions {
     pub alpha_pct_per_c: Option<f64>,
     /// Give up after this long without a new reading (wall clock).
     pub idle_timeout: Duration,
+    /// Whether the bench may measure with the calibration.
+    pub policy: crate::calibration_policy::Policy,
 }
 
 impl SurveyOptions {
@@ -43,6 +45,7 @@ impl SurveyOptions {
             empty_mt: 5.0,
             alpha_pct_per_c: None,
             idle_timeout: Duration::from_secs(120),
+            policy: Default::default(),
         }
     }
 }
@@ -89,8 +92,15 @@ pub fn run<P: Read + Write>(
     confirm: Option<Receiver<()>>,
     progress: &mut dyn SurveyProgress,
 ) -> Result<Vec<Reading>, LinkError> {
-    let (mut acq, _, _) =
+    let (mut acq, hello, _) =
         Acquisition::connect(port, opts.calibration, opts.idle_timeout + SILENCE_MARGIN)?;
+    if opts
+        .policy
+        .accept(&hello, &opts.calibration, crate::calibration::Stamp::now())?
+        == crate::calibration_policy::Basis::Uncalibrated
+    {
+        progress.note("UNCALIBRATED: readings from a bench without a valid calibration, as asked");
+    }
     let mut window: Vec<(f64, f64, f64)> = Vec::new();
     let mut state = State::Empty;
     let mut readings = Vec::new();

@@ -64,6 +64,8 @@ fn rules(kind: Kind) -> &'static [(&'static str, Rule)] {
             ("shape.block.a_mm", Pos),
             ("shape.block.b_mm", Pos),
             ("shape.block.length_mm", Pos),
+            ("reference.br_T", Pos),
+            ("reference.br_u_T", Pos),
         ],
         Kind::Profile => &[
             ("segment[].ramp_C_per_min", NonNeg),

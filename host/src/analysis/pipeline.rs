@@ -201,6 +201,7 @@ fn analyze_cycle(
         alpha_budget: a.budget,
         loss_budget: loss.map(|l| l.budget).unwrap_or_default(),
         notes,
+        uncalibrated: false,
         cycles: Vec::new(),
         samples: s.time_s.len(),
         rows_left_out: s.skipped.len(),

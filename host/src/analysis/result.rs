@@ -127,6 +127,8 @@ pub struct Analysis {
     /// Plain words about what was done, assumed or could not be computed.
     pub notes: Vec<String>,
     /// Samples analysed.
+    /// Measured on a bench without a valid calibration (the user said `--uncalibrated`).
+    pub uncalibrated: bool,
     /// Each heat cycle found in the record, in order (one for a plain record).
     pub cycles: Vec<CycleResult>,
     pub samples: usize,

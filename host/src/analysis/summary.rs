@@ -57,6 +57,9 @@ pub fn text(a: &Analysis, title: &str) -> String {
         let _ = writeln!(s, "  Curie collapse:       at about {tc:.0} °C");
     }
     let _ = writeln!(s, "  material family:      {}", a.material_family);
+    if a.uncalibrated {
+        let _ = writeln!(s, "  UNCALIBRATED BENCH: recorded without a valid calibration; the numbers are not traceable");
+    }
     let _ = writeln!(
         s,
         "  verdict:              {}{}{}",

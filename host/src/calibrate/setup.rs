@@ -6,6 +6,7 @@ use std::sync::mpsc::Receiver;
 use remanent_physics::boiling;
 use remanent_rig_model::{Magnet, Scene};
 
+use super::steps::Pressure;
 use super::Step;
 use crate::virtual_rig::SceneControl;
 
@@ -38,8 +39,8 @@ impl Setup for Person {
 pub struct VirtualSetup {
     /// The rig's scene.
     pub control: SceneControl,
-    /// The true pressure for the boiling point, kPa.
-    pub true_pressure_kpa: f64,
+    /// The true pressure for the boiling point, kPa (None: what the step is told).
+    pub true_pressure_kpa: Option<f64>,
     /// The reference magnet as it truly is (its Br may differ from the stated one within its
     /// uncertainty).
     pub reference: Option<Magnet>,
@@ -52,7 +53,7 @@ impl VirtualSetup {
     pub fn exact(control: SceneControl) -> VirtualSetup {
         VirtualSetup {
             control,
-            true_pressure_kpa: 101.325,
+            true_pressure_kpa: None,
             reference: None,
             coil_factor: 1.0,
         }
@@ -79,9 +80,15 @@ impl Setup for VirtualSetup {
                 top_c: warm_to,
             },
             Step::IcePoint => Scene::Bath { temp_c: 0.0 },
-            Step::BoilingPoint(_) => Scene::Bath {
-                temp_c: boiling::saturation_c(self.true_pressure_kpa),
-            },
+            Step::BoilingPoint(p) => {
+                let stated = match p {
+                    Pressure::Measured(v, _) => *v,
+                    Pressure::Altitude(h) => boiling::standard_pressure_kpa(*h),
+                };
+                Scene::Bath {
+                    temp_c: boiling::saturation_c(self.true_pressure_kpa.unwrap_or(stated)),
+                }
+            }
             Step::Gap(r) => {
                 let m = self.reference.unwrap_or_else(|| {
                     let mut m = remanent_rig_model::catalogue::PARTS[0].magnet;

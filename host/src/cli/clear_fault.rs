@@ -17,9 +17,10 @@ pub struct Args {
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
-    let cal = remanent::jobs::calibration_policy::choose(a.calibration.calibration.as_deref())?;
+    // clearing a fault converts nothing that is kept: any calibration will do
+    let cal = a.calibration.policy().provisional()?;
     let port = remanent::link::port::open(&a.port)?;
-    let (hello, outcome) = remanent::clear_fault::run(port, cal.calibration)?;
+    let (hello, outcome) = remanent::clear_fault::run(port, cal)?;
     if let Some(why) = describe_boot(&hello.boot) {
         println!("{why}");
     }

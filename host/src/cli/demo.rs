@@ -55,6 +55,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         magnet: m.info.clone(),
         profile,
         calibration: Calibration::virtual_rig(&params),
+        policy: Default::default(),
         out: out.clone(),
         silence_timeout: Duration::from_secs(3),
         preroll_s: 60.0,

@@ -3,6 +3,7 @@
 use clap::{Parser, Subcommand};
 
 mod analyze;
+mod calibrate;
 mod clear_fault;
 mod demo;
 mod lot;
@@ -60,6 +61,8 @@ enum Cmd {
     Survey(survey::Args),
     /// Check a bench: sensors, heating, and that a fault drives the heater off.
     SelfTest(self_test::Args),
+    /// Calibrate a rig step by step (probe zero, sensitivity, coefficients, thermocouple, gap).
+    Calibrate(calibrate::Args),
 }
 
 pub fn main() -> std::process::ExitCode {
@@ -78,6 +81,7 @@ pub fn main() -> std::process::ExitCode {
         Cmd::Replay(a) => replay::run(a),
         Cmd::Lot(a) => lot::run(a),
         Cmd::SamplingPlan(a) => sampling_plan::run(a),
+        Cmd::Calibrate(a) => calibrate::run(a),
         Cmd::Survey(a) => survey::run(a),
         Cmd::SelfTest(a) => self_test::run(a),
     };

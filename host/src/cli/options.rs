@@ -18,12 +18,30 @@ pub struct ForceOpts {
     pub force: bool,
 }
 
-/// Which calibration converts the raw codes.
+/// Which calibration converts the raw codes, and whether a bench may measure without one.
 #[derive(clap::Args, Clone, Debug)]
 pub struct CalibrationOpts {
-    /// Rig calibration TOML (default: the virtual rig's constants, with a note).
+    /// Rig calibration TOML from `remanent calibrate` (a virtual rig needs none: it hands
+    /// over its own constants).
     #[arg(long)]
     pub calibration: Option<PathBuf>,
+    /// Measure on a bench without a valid calibration; every output is marked UNCALIBRATED.
+    #[arg(long)]
+    pub uncalibrated: bool,
+    /// Refuse a calibration whose oldest step is older than this, days.
+    #[arg(long, default_value_t = remanent::calibration_policy::DEFAULT_MAX_AGE_DAYS)]
+    pub max_calibration_age_days: f64,
+}
+
+impl CalibrationOpts {
+    /// The policy these options state.
+    pub fn policy(&self) -> remanent::calibration_policy::Policy {
+        remanent::calibration_policy::Policy {
+            file: self.calibration.clone(),
+            uncalibrated: self.uncalibrated,
+            max_age_days: self.max_calibration_age_days,
+        }
+    }
 }
 
 /// A speed-up of simulated time: finite and above zero (zero would never advance, and a

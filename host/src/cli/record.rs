@@ -26,9 +26,8 @@ pub struct Args {
     /// New run directory (must not exist).
     #[arg(long)]
     out: PathBuf,
-    /// Rig calibration TOML (default: the virtual rig's constants).
-    #[arg(long)]
-    calibration: Option<PathBuf>,
+    #[command(flatten)]
+    calibration: super::options::CalibrationOpts,
     /// Run a profile that exceeds the magnet's rated maximum temperature.
     #[arg(long)]
     allow_over_rating: bool,
@@ -51,17 +50,15 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         magnet.info.max_working_c,
         a.allow_over_rating,
     )?;
-    let chosen = remanent::jobs::calibration_policy::choose(a.calibration.as_deref())?;
-    if let Some(note) = chosen.note {
-        eprintln!("note: {note}");
-    }
-    let calibration = chosen.calibration;
+    let policy = a.calibration.policy();
+    let calibration = policy.provisional()?;
     let port = remanent::link::port::open(&a.port)?;
     let opts = RecordOptions {
         port_label: a.port.clone(),
         magnet: magnet.info,
         profile,
         calibration,
+        policy,
         out: a.out,
         silence_timeout: Duration::from_secs(3),
         preroll_s: 60.0,

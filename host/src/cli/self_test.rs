@@ -1,6 +1,5 @@
 //! `remanent self-test`: sensors, heating, and the fault path, on a bench or an emulated board.
 
-use std::path::PathBuf;
 use std::process::ExitCode;
 
 #[derive(clap::Args)]
@@ -8,9 +7,8 @@ pub struct Args {
     /// Serial port of the bench.
     #[arg(long)]
     port: String,
-    /// Rig calibration TOML (default: the virtual rig's constants).
-    #[arg(long)]
-    calibration: Option<PathBuf>,
+    #[command(flatten)]
+    calibration: super::options::CalibrationOpts,
     /// Instead of the self-test, run a fault drill on a test build of the firmware: make it
     /// panic or hang while heating, and check it resets, latched, heater off, and says why.
     #[arg(long, value_enum)]
@@ -43,7 +41,8 @@ fn print_steps(steps: &[remanent::selftest::Step]) -> bool {
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
-    let cal = remanent::jobs::calibration_policy::choose(a.calibration.as_deref())?.calibration;
+    let policy = a.calibration.policy();
+    let cal = policy.provisional()?;
     let port = remanent::link::port::open(&a.port)?;
     if let Some(kind) = a.drill {
         let drill = match kind {
@@ -66,7 +65,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         remanent::selftest::RISE_CHECK_K,
         remanent::selftest::HEAT_BY_K
     );
-    let (hello, steps) = remanent::selftest::run(port, cal)?;
+    let (hello, steps) = remanent::selftest::run(port, cal, &policy)?;
     println!(
         "device: board `{}`, firmware {}.{}.{}, {}",
         hello.board.as_str(),

@@ -21,9 +21,8 @@ pub struct Args {
     /// Grade of the set: its typical α refers the readings to 20 °C.
     #[arg(long)]
     grade: Option<String>,
-    /// Rig calibration TOML (default: the virtual rig's constants).
-    #[arg(long)]
-    calibration: Option<PathBuf>,
+    #[command(flatten)]
+    calibration: super::options::CalibrationOpts,
     /// Write the ranked table here (CSV; must not exist). Default: a new file
     /// `remanent-runs/survey-<time>.csv`.
     #[arg(long)]
@@ -58,9 +57,9 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         PathBuf::from("remanent-runs").join(format!("survey-{stamp}.csv"))
     });
     remanent::output::refuse_existing([out.clone()], false)?;
-    let calibration =
-        remanent::jobs::calibration_policy::choose(a.calibration.as_deref())?.calibration;
-    let mut opts = SurveyOptions::new(calibration, a.count);
+    let policy = a.calibration.policy();
+    let mut opts = SurveyOptions::new(policy.provisional()?, a.count);
+    opts.policy = policy;
     if let Some(g) = &a.grade {
         let specs = SpecTable::builtin();
         let spec = specs

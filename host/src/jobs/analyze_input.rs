@@ -63,6 +63,8 @@ pub struct Analyzed {
     pub context: Context,
     /// A title for reports: the magnet and the run.
     pub title: String,
+    /// The run was recorded without a valid calibration and is converted with what it had.
+    pub uncalibrated: bool,
 }
 
 /// The spec table asked for, or the built-in one.
@@ -88,8 +90,13 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         .as_deref()
         .map(Calibration::load)
         .transpose()?;
+    let mut uncalibrated = false;
     let (series, calibration, magnet, title) = if req.input.is_dir() {
+        let recalibrated = calibration.is_some();
         let (s, src) = dataset::load_run(&req.input, calibration)?;
+        uncalibrated = !recalibrated
+            && src.meta.as_ref().and_then(|m| m.calibration_basis)
+                == Some(crate::calibration_policy::Basis::Uncalibrated);
         let run_name = file_name(&req.input);
         let title = src
             .magnet
@@ -125,16 +132,22 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         series,
         context,
         title,
+        uncalibrated,
     })
 }
 
 impl Analyzed {
     /// Run the analysis.
     pub fn analyze(&self, input: &Path) -> Result<Analysis, JobError> {
-        analyze(&self.series, &self.context).map_err(|source| JobError::Analysis {
+        let mut a = analyze(&self.series, &self.context).map_err(|source| JobError::Analysis {
             path: input.display().to_string(),
             source,
-        })
+        })?;
+        if self.uncalibrated {
+            a.uncalibrated = true;
+            a.notes.insert(0, "UNCALIBRATED BENCH: recorded without a valid calibration (--uncalibrated); re-convert it with `analyze --calibration` once the bench is calibrated".into());
+        }
+        Ok(a)
     }
 }
 

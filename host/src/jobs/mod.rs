@@ -1,9 +1,9 @@
 //! The workflows a user runs, as library functions the CLI only calls: analyse an input (a
-//! run directory or a CSV log), write a run's report, analyse a lot, and choose the
-//! calibration a recording converts with.
+//! run directory or a CSV log), write a run's report, analyse a lot, calibrate a rig, and
+//! choose the calibration a recording converts with.
 
 pub mod analyze_input;
-pub mod calibration_policy;
+pub mod calibrate;
 pub mod lot;
 pub mod report;
 

@@ -38,6 +38,9 @@ pub enum LinkError {
     /// No answer to a command.
     #[error("no answer to {0} within the timeout")]
     NoAnswer(&'static str),
+    /// The bench may not measure with this calibration (nothing was started).
+    #[error(transparent)]
+    Calibration(#[from] crate::calibration_policy::PolicyError),
 }
 
 /// What one read produced.

@@ -5,6 +5,7 @@
 mod recorder;
 mod types;
 
+use crate::calibration_policy::Basis;
 pub use types::{
     LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions, RecordSummary,
 };
@@ -44,6 +45,14 @@ pub fn record<P: Read + Write>(
     if let Some(why) = describe_boot(&hello.boot) {
         progress.note(&why);
     }
+    let basis = opts
+        .policy
+        .accept(&hello, &opts.calibration, crate::calibration::Stamp::now())?;
+    match basis {
+        Basis::Uncalibrated => progress.note("UNCALIBRATED: measuring without a valid calibration, as asked; every output of this run says so"),
+        Basis::VirtualRig => progress.note("virtual rig: converting with its own constants"),
+        Basis::Calibrated => {}
+    }
     let meta = RunMeta {
         software: format!("remanent {}", env!("CARGO_PKG_VERSION")),
         started_utc: utc_now(),
@@ -54,6 +63,7 @@ pub fn record<P: Read + Write>(
         device: Some(DeviceInfo::from_hello(&hello)),
         profile: opts.profile.clone(),
         calibration: opts.calibration,
+        calibration_basis: Some(basis),
         counts: Counts::default(),
     };
     let mut w = RunWriter::create(&opts.out, meta)?;
@@ -73,6 +83,11 @@ pub fn record<P: Read + Write>(
         }
         Err(RecordError::Link(e)) => RecordEnd::LinkLost(e.to_string()),
         Err(RecordError::RunDir(e)) => RecordEnd::WriteFailed(e.to_string()),
+        Err(e @ RecordError::Calibration(_)) => {
+            let _ = acq.send(Command::Stop);
+            w.discard();
+            return Err(e);
+        }
     };
     // the heater goes off on every way out, not only when the device says it did
     if end != RecordEnd::Stopped && acq.send(Command::Stop).is_ok() {

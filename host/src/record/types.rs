@@ -25,6 +25,8 @@ pub struct RecordOptions {
     pub profile: ProfileSpec,
     /// Calibration for the converted columns.
     pub calibration: Calibration,
+    /// Whether the bench may measure with it (checked against the device's hello).
+    pub policy: crate::calibration_policy::Policy,
     /// New run directory.
     pub out: PathBuf,
     /// The link counts as lost after this long without a byte.
@@ -133,4 +135,7 @@ pub enum RecordError {
     /// Writing the run failed.
     #[error(transparent)]
     RunDir(#[from] RunDirError),
+    /// The bench may not measure with this calibration (nothing was started).
+    #[error(transparent)]
+    Calibration(#[from] crate::calibration_policy::PolicyError),
 }

@@ -10,6 +10,9 @@ use crate::run_dir::RunMeta;
 pub fn markdown(a: &Analysis, meta: Option<&RunMeta>, title: &str) -> String {
     let mut s = String::new();
     let _ = writeln!(s, "# Remanent report — {title}\n");
+    if a.uncalibrated {
+        let _ = writeln!(s, "**UNCALIBRATED BENCH: recorded without a valid calibration; the numbers are not traceable.**\n");
+    }
     for (k, v) in facts(meta) {
         let _ = writeln!(s, "- **{k}**: {v}");
     }

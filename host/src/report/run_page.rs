@@ -66,6 +66,9 @@ fn results(a: &Analysis) -> Vec<(String, String)> {
 pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure]) -> String {
     let mut page = Page::new("report", title);
     let v = a.verdict;
+    if a.uncalibrated {
+        page.raw("<p class=\"v fail\">UNCALIBRATED BENCH: recorded without a valid calibration; the numbers are not traceable</p>");
+    }
     page.raw(&format!("<p class=\"v {}\">Verdict: {v}</p>", v.word()))
         .facts(&facts(meta))
         .h2("Results")

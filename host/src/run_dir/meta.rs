@@ -122,6 +122,9 @@ pub struct RunMeta {
     pub profile: ProfileSpec,
     /// The calibration used for the converted columns.
     pub calibration: Calibration,
+    /// On what the conversion rests (absent in runs recorded before it was kept).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub calibration_basis: Option<crate::calibration_policy::Basis>,
     /// Counts.
     pub counts: Counts,
 }

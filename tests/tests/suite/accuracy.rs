@@ -61,6 +61,7 @@ fn measure(
         magnet: m.info,
         profile,
         calibration: Calibration::virtual_rig(&params),
+        policy: Default::default(),
         out: out.clone(),
         silence_timeout: Duration::from_secs(5),
         preroll_s: 60.0,

@@ -49,7 +49,7 @@ fn each_step_recovers_the_virtual_rig_s_truth_within_its_uncertainty() {
     opts.seed = 11;
     let mut port = SimulatedPort::new(opts);
     let mut setup = VirtualSetup::exact(port.bench().scene_control());
-    setup.true_pressure_kpa = 97.2;
+    setup.true_pressure_kpa = Some(97.2);
     let mut cal = Calibration::virtual_rig(&RigParams::REFERENCE);
     let run_opts = Options {
         still: Stillness::DEFAULT,
@@ -147,7 +147,7 @@ fn a_thermocouple_off_at_the_boiling_point_is_flagged() {
     let mut port = SimulatedPort::new(opts);
     let mut setup = VirtualSetup::exact(port.bench().scene_control());
     // the user says sea level, but the bench is at 2000 m: the water boils 6.6 K lower
-    setup.true_pressure_kpa = remanent_physics::boiling::standard_pressure_kpa(2000.0);
+    setup.true_pressure_kpa = Some(remanent_physics::boiling::standard_pressure_kpa(2000.0));
     let mut cal = Calibration::virtual_rig(&RigParams::REFERENCE);
     let found = calibrate::run(
         &mut port,

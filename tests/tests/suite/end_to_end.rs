@@ -58,6 +58,7 @@ fn run(
         magnet: m.info,
         profile,
         calibration: Calibration::virtual_rig(&params),
+        policy: Default::default(),
         out: out.to_path_buf(),
         silence_timeout: Duration::from_secs(3),
         preroll_s: 60.0,
@@ -197,6 +198,7 @@ fn a_rig_that_dies_mid_run_leaves_a_valid_partial_record() {
         magnet: m.info,
         profile: short_profile(),
         calibration: Calibration::virtual_rig(&params),
+        policy: Default::default(),
         out: out.clone(),
         silence_timeout: Duration::from_secs(2),
         preroll_s: 60.0,
@@ -356,6 +358,7 @@ fn stopping_a_record_turns_the_heater_off_and_closes_cleanly() {
         magnet: m.info,
         profile: short_profile(),
         calibration: Calibration::virtual_rig(&remanent_rig_model::RigParams::REFERENCE),
+        policy: Default::default(),
         out: out.clone(),
         silence_timeout: Duration::from_secs(3),
         preroll_s: 10.0,
@@ -378,12 +381,15 @@ fn the_self_test_passes_on_a_healthy_simulated_bench_and_fails_a_detached_heater
     let m = magnets::resolve("RM-N42SH-D10x5").unwrap();
     let opts = VirtualRigOptions::new(m.model.unwrap());
     let cal = Calibration::virtual_rig(&opts.params);
-    let (_, steps) = remanent::selftest::run(SimulatedPort::new(opts.clone()), cal).unwrap();
+    let (_, steps) =
+        remanent::selftest::run(SimulatedPort::new(opts.clone()), cal, &Default::default())
+            .unwrap();
     assert_eq!(steps.len(), remanent::selftest::STEPS);
     assert!(steps.iter().all(|s| s.passed), "{steps:#?}");
     let mut broken = opts;
     broken.faults.heater_detached_at_s = Some(0.0);
-    let (_, steps) = remanent::selftest::run(SimulatedPort::new(broken), cal).unwrap();
+    let (_, steps) =
+        remanent::selftest::run(SimulatedPort::new(broken), cal, &Default::default()).unwrap();
     let heats = steps.iter().find(|s| s.name == "heater heats").unwrap();
     assert!(!heats.passed, "a detached heater must fail the self-test");
 }
@@ -442,6 +448,7 @@ fn a_noisy_link_never_leaves_a_record_hanging() {
                 magnet: m.info.clone(),
                 profile: short_profile(),
                 calibration: Calibration::virtual_rig(&opts.params),
+                policy: Default::default(),
                 out: dir.path().join(format!("run{seed}")),
                 silence_timeout: Duration::from_secs(3),
                 preroll_s: 10.0,

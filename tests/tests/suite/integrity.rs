@@ -46,6 +46,7 @@ fn through_an_outage_longer_than_the_sequence_byte_every_row_is_what_the_device_
         magnet: m.info.clone(),
         profile: profile(200.0),
         calibration: Calibration::virtual_rig(&opts.params),
+        policy: Default::default(),
         out: out.clone(),
         silence_timeout: Duration::from_secs(30),
         preroll_s: 30.0,
@@ -87,7 +88,7 @@ fn a_record_after_a_self_test_on_the_same_port_holds_only_its_own_samples() {
     let rig = VirtualRig::start(opts).unwrap();
     // an earlier session heats the fixture, trips and clears a fault, then leaves
     let port = remanent::link::port::open(rig.path()).unwrap();
-    let (_, steps) = remanent::selftest::run(port, cal).unwrap();
+    let (_, steps) = remanent::selftest::run(port, cal, &Default::default()).unwrap();
     assert!(steps.iter().all(|s| s.passed), "{steps:#?}");
     std::thread::sleep(Duration::from_millis(1500));
     let dir = tempfile::tempdir().unwrap();
@@ -97,6 +98,7 @@ fn a_record_after_a_self_test_on_the_same_port_holds_only_its_own_samples() {
         magnet: m.info.clone(),
         profile: profile(60.0),
         calibration: cal,
+        policy: Default::default(),
         out: out.clone(),
         silence_timeout: Duration::from_secs(5),
         preroll_s: 20.0,
@@ -156,6 +158,7 @@ fn simulated_record(
         magnet: m.info.clone(),
         profile,
         calibration: Calibration::virtual_rig(&opts.params),
+        policy: Default::default(),
         out: out.to_path_buf(),
         silence_timeout: Duration::from_secs(5),
         preroll_s: 20.0,

@@ -65,6 +65,7 @@ fn recorded(dir: &std::path::Path, name: &str, magnet: &str) -> std::path::PathB
             ],
         },
         calibration: Calibration::virtual_rig(&opts.params),
+        policy: Default::default(),
         out: out.clone(),
         silence_timeout: std::time::Duration::from_secs(5),
         preroll_s: 30.0,
@@ -123,7 +124,7 @@ fn the_self_test_names_a_latched_fault_and_measures_from_its_own_start() {
         s.read().unwrap();
     }
     drop(s);
-    let (_, steps) = remanent::selftest::run(&mut port, cal).unwrap();
+    let (_, steps) = remanent::selftest::run(&mut port, cal, &Default::default()).unwrap();
     let start = &steps[0];
     assert!(start.passed, "{start:?}");
     assert!(
@@ -146,7 +147,7 @@ fn the_self_test_names_a_latched_fault_and_measures_from_its_own_start() {
     assert!(secs < 120.0, "{heats:?}");
     // a thermocouple fault is named where it is, not reported as a weak heater
     let (port, cal) = rig(true);
-    let (_, steps) = remanent::selftest::run(port, cal).unwrap();
+    let (_, steps) = remanent::selftest::run(port, cal, &Default::default()).unwrap();
     let tc = steps.iter().find(|s| s.name == "thermocouple").unwrap();
     assert!(!tc.passed && tc.detail.contains("open"), "{tc:?}");
     assert!(steps.iter().all(|s| s.name != "heater heats"), "{steps:#?}");

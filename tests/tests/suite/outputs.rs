@@ -36,6 +36,7 @@ fn simulated_run(
         magnet: info,
         profile: ProfileSpec::resolve("quick-alpha").unwrap(),
         calibration: Calibration::virtual_rig(&opts.params),
+        policy: Default::default(),
         out: out.clone(),
         silence_timeout: Duration::from_secs(5),
         preroll_s: 60.0,

@@ -1,0 +1,206 @@
+//! `remanent calibrate`: the guided calibration steps on a bench or the virtual rig.
+
+use std::io::BufRead;
+use std::path::PathBuf;
+use std::process::ExitCode;
+use std::time::Instant;
+
+use remanent::calibrate::reading::Raw;
+use remanent::calibrate::setup::Person;
+use remanent::calibrate::steps::{Coil, Pressure, Reference};
+use remanent::calibrate::{Options, Progress, Setup, Step, VirtualSetup};
+use remanent::jobs::calibrate::{self, Files};
+use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
+
+use super::options::{parse_finite, ForceOpts};
+
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq)]
+enum Which {
+    /// The probe's zero in a zero-field can.
+    Zero,
+    /// The zero's drift: the probe warmed alone in the can.
+    OffsetDrift,
+    /// The sensitivity at the centre of a Helmholtz pair.
+    Sensitivity,
+    /// The sensitivity's own coefficient: the probe warmed alone in the coil.
+    ProbeTc,
+    /// The thermocouple at the ice point.
+    IcePoint,
+    /// The thermocouple in boiling water.
+    BoilingPoint,
+    /// The gap, from a reference magnet in the fixture.
+    Gap,
+    /// Every step above, in that order.
+    All,
+}
+
+#[derive(clap::Args)]
+pub struct Args {
+    /// Which step.
+    #[arg(value_enum)]
+    step: Which,
+    /// Serial port of the bench.
+    #[arg(long, required_unless_present = "virtual_rig")]
+    port: Option<String>,
+    /// Play the steps on the built-in virtual rig instead of a bench.
+    #[arg(long = "virtual")]
+    virtual_rig: bool,
+    /// Start from this calibration (default: the reference design's nominal constants).
+    #[arg(long)]
+    from: Option<PathBuf>,
+    /// Write the calibration here (updated after every step).
+    #[arg(long)]
+    out: PathBuf,
+    #[command(flatten)]
+    force: ForceOpts,
+    /// Coil pair: turns in each coil.
+    #[arg(long, default_value_t = 130.0)]
+    turns: f64,
+    /// Coil pair: radius (and spacing), mm, and its standard uncertainty.
+    #[arg(long, default_value_t = 50.0)]
+    radius_mm: f64,
+    #[arg(long, default_value_t = 0.05)]
+    radius_u_mm: f64,
+    /// Coil current as measured, A, and its standard uncertainty.
+    #[arg(long, default_value_t = 8.0)]
+    current_a: f64,
+    #[arg(long, default_value_t = 0.008)]
+    current_u_a: f64,
+    /// Barometric pressure for the boiling point, kPa (else from --altitude-m).
+    #[arg(long, value_parser = parse_finite)]
+    pressure_kpa: Option<f64>,
+    #[arg(long, default_value_t = 0.1)]
+    pressure_u_kpa: f64,
+    /// Altitude of the bench, m, when no barometer reading is given.
+    #[arg(long, default_value_t = 0.0, allow_negative_numbers = true)]
+    altitude_m: f64,
+    /// The reference magnet (demo part id or a magnet file with a [reference] Br).
+    #[arg(long)]
+    reference: Option<String>,
+}
+
+struct Live {
+    last: Instant,
+}
+
+impl Progress for Live {
+    fn reading(&mut self, r: &Raw) {
+        if self.last.elapsed().as_secs_f64() >= 1.0 {
+            self.last = Instant::now();
+            let tc = r.tc_c.map_or("fault".into(), |t| format!("{t:.2} °C"));
+            eprintln!(
+                "  live: Hall {:.3} mV, probe {:.2} °C, thermocouple {tc}",
+                r.hall_mv, r.probe_c
+            );
+        }
+    }
+    fn note(&mut self, m: &str) {
+        eprintln!("{m}");
+    }
+}
+
+fn reference(a: &Args) -> anyhow::Result<Reference> {
+    let id = a.reference.as_deref().ok_or_else(|| {
+        anyhow::anyhow!("the gap step needs --reference: a magnet file with a [reference] Br")
+    })?;
+    let m = remanent::magnets::resolve(id)?;
+    let (br, u) = match (&m.info.reference, m.model) {
+        (Some(r), _) => (r.br_t, r.br_u_t),
+        // a demo part on the virtual rig: its model's Br, known to 0.3 %
+        (None, Some(model)) => (model.br_20_t, model.br_20_t * 0.003),
+        (None, None) => anyhow::bail!("{id} has no [reference] section with its certified Br"),
+    };
+    let alpha = m.model.map_or(-0.11, |x| x.alpha_pct_per_c);
+    Ok(Reference {
+        br_t: (br, u),
+        shape: m.info.shape,
+        alpha_pct_per_c: alpha,
+    })
+}
+
+fn steps(a: &Args) -> anyhow::Result<Vec<Step>> {
+    let coil = Coil {
+        turns: a.turns,
+        radius_m: (a.radius_mm / 1000.0, a.radius_u_mm / 1000.0),
+        current_a: (a.current_a, a.current_u_a),
+    };
+    let pressure = match a.pressure_kpa {
+        Some(p) => Pressure::Measured(p, a.pressure_u_kpa),
+        None => Pressure::Altitude(a.altitude_m),
+    };
+    let one = |w: Which| -> anyhow::Result<Step> {
+        Ok(match w {
+            Which::Zero => Step::Zero,
+            Which::OffsetDrift => Step::OffsetDrift,
+            Which::Sensitivity => Step::Sensitivity(coil),
+            Which::ProbeTc => Step::ProbeTc(coil),
+            Which::IcePoint => Step::IcePoint,
+            Which::BoilingPoint => Step::BoilingPoint(pressure),
+            Which::Gap => Step::Gap(reference(a)?),
+            Which::All => unreachable!("expanded below"),
+        })
+    };
+    match a.step {
+        Which::All => [
+            Which::Zero,
+            Which::OffsetDrift,
+            Which::Sensitivity,
+            Which::ProbeTc,
+            Which::IcePoint,
+            Which::BoilingPoint,
+            Which::Gap,
+        ]
+        .into_iter()
+        .map(one)
+        .collect(),
+        w => Ok(vec![one(w)?]),
+    }
+}
+
+pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+    let steps = steps(&a)?;
+    let files = Files {
+        from: a.from.clone(),
+        out: a.out.clone(),
+        force: a.force.force,
+    };
+    let mut live = Live {
+        last: Instant::now(),
+    };
+    let opts = Options::default();
+    let (cal, found) = if a.virtual_rig {
+        let part = remanent_rig_model::catalogue::PARTS[0].magnet;
+        let port = SimulatedPort::new(VirtualRigOptions::new(part));
+        let mut setup: Box<dyn Setup> = Box::new(VirtualSetup::exact(port.bench().scene_control()));
+        calibrate::run(port, &steps, &files, setup.as_mut(), &opts, &mut live)?
+    } else {
+        let (tx, rx) = std::sync::mpsc::channel();
+        std::thread::spawn(move || {
+            for _ in std::io::stdin().lock().lines() {
+                if tx.send(()).is_err() {
+                    break;
+                }
+            }
+        });
+        let port = remanent::link::port::open(a.port.as_deref().unwrap_or_default())?;
+        let mut setup = Person { confirm: rx };
+        calibrate::run(port, &steps, &files, &mut setup, &opts, &mut live)?
+    };
+    let warned = found.iter().any(|f| f.warning.is_some());
+    println!(
+        "wrote {} ({} step{})",
+        a.out.display(),
+        found.len(),
+        if found.len() == 1 { "" } else { "s" }
+    );
+    for (what, when) in cal.dates.required() {
+        if when.is_none() {
+            println!("  still to do before recording: {what}");
+        }
+    }
+    Ok(if warned {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    })
+}
