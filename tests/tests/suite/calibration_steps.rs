@@ -161,3 +161,77 @@ fn a_thermocouple_off_at_the_boiling_point_is_flagged() {
     let w = found.warning.expect("a 6.6 K miss is flagged");
     assert!(w.contains("off at the boiling point"), "{w}");
 }
+
+/// A record on the virtual rig with the given policy.
+fn record_with(
+    dir: &std::path::Path,
+    policy: remanent::calibration_policy::Policy,
+) -> Result<std::path::PathBuf, remanent::record::RecordError> {
+    use remanent::profiles::{ProfileSpec, SegmentSpec};
+    use remanent::record::{record, Quiet, RecordOptions};
+    use std::sync::{atomic::AtomicBool, Arc};
+    let m = remanent::magnets::resolve("RM-N42-D10x5").unwrap();
+    let opts = VirtualRigOptions::new(m.model.unwrap());
+    let seg = |target_c, ramp_c_per_min, hold_s| SegmentSpec {
+        target_c,
+        ramp_c_per_min,
+        hold_s,
+    };
+    let out = dir.join("run");
+    let rec = RecordOptions {
+        port_label: "simulated".into(),
+        magnet: m.info.clone(),
+        profile: ProfileSpec {
+            name: "short".into(),
+            description: "a short cycle".into(),
+            limit_c: 80.0,
+            segments: vec![
+                seg(25.0, 0.0, 120.0),
+                seg(60.0, 8.0, 60.0),
+                seg(25.0, 8.0, 240.0),
+            ],
+        },
+        calibration: policy.provisional().unwrap(),
+        policy,
+        out: out.clone(),
+        silence_timeout: std::time::Duration::from_secs(5),
+        preroll_s: 30.0,
+        stop: Arc::new(AtomicBool::new(false)),
+    };
+    record(&mut SimulatedPort::new(opts), rec, &mut Quiet).map(|_| out)
+}
+
+#[test]
+fn a_stale_calibration_is_refused_before_anything_starts_and_uncalibrated_runs_say_so() {
+    use remanent::calibration_policy::Policy;
+    let dir = tempfile::tempdir().unwrap();
+    // a calibration file whose steps were done long ago
+    let mut cal = Calibration::virtual_rig(&RigParams::REFERENCE);
+    let old = Some(remanent::calibration::Stamp(1_600_000_000));
+    cal.dates.hall_zero = old;
+    cal.dates.sensitivity = old;
+    cal.dates.ice_point = old;
+    cal.dates.gap = old;
+    let file = dir.path().join("cal.toml");
+    std::fs::write(&file, toml::to_string(&cal).unwrap()).unwrap();
+    let stale = Policy {
+        file: Some(file.clone()),
+        ..Policy::default()
+    };
+    let e = record_with(dir.path(), stale).unwrap_err().to_string();
+    assert!(e.contains("days old"), "{e}");
+    assert!(!dir.path().join("run").exists(), "nothing recorded");
+    let anyway = Policy {
+        file: Some(file),
+        uncalibrated: true,
+        ..Policy::default()
+    };
+    let run = record_with(dir.path(), anyway).unwrap();
+    let req = remanent::jobs::InputRequest {
+        input: run.clone(),
+        ..Default::default()
+    };
+    let (_, a) = remanent::jobs::load_and_analyze(&req).unwrap();
+    assert!(a.uncalibrated);
+    assert!(remanent::analysis::summary::text(&a, "t").contains("UNCALIBRATED"));
+}
