@@ -175,6 +175,7 @@ fn main() {
         magnet: None,
         specs: SpecTable::builtin(),
         default_tc_gain_pct: 0.75,
+        reference: None,
     };
     println!("| measure | value | target |");
     println!("|---|---|---|");

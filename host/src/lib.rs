@@ -11,6 +11,7 @@ pub mod calibration_policy;
 pub mod clear_fault;
 pub mod conversion;
 pub mod drill;
+pub mod fixture_ref;
 pub mod formats;
 pub mod frame_log;
 pub mod jobs;

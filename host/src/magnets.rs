@@ -68,6 +68,15 @@ pub enum MagnetError {
     },
 }
 
+/// The demo reference part's certificate (invented, like the part): its Br to 0.2 %.
+fn demo_certificate(id: &str, br_t: f64) -> Option<ReferenceBr> {
+    id.starts_with("RM-REF-").then(|| ReferenceBr {
+        br_t,
+        br_u_t: 0.002 * br_t,
+        source: "demo certificate RC-2026-0117 (invented)".into(),
+    })
+}
+
 /// Resolve a catalogue id or a TOML file.
 pub fn resolve(id_or_path: &str) -> Result<MagnetFile, MagnetError> {
     if let Some(p) = catalogue::find(id_or_path) {
@@ -78,7 +87,7 @@ pub fn resolve(id_or_path: &str) -> Result<MagnetFile, MagnetError> {
                 description: p.description.into(),
                 max_working_c: p.magnet.max_working_c,
                 shape: p.magnet.shape,
-                reference: None,
+                reference: demo_certificate(p.id, p.magnet.br_20_t),
             },
             model: Some(p.magnet),
         });

@@ -22,7 +22,7 @@ const DISC_10X5: Shape = Shape::Cylinder {
 };
 
 /// The built-in demo parts.
-pub const PARTS: [DemoPart; 6] = [
+pub const PARTS: [DemoPart; 7] = [
     DemoPart {
         id: "RM-N42-D10x5",
         description: "sintered NdFeB disc, grade N42, Ø10 × 5 mm",
@@ -121,6 +121,22 @@ pub const PARTS: [DemoPart; 6] = [
             irreversible_pct_per_c: 0.01,
             curie_c: 850.0,
             max_working_c: 520.0,
+        },
+    },
+    DemoPart {
+        id: "RM-REF-N42SH-D10x5",
+        description:
+            "reference disc for the fixture, sintered NdFeB N42SH, Ø10 × 5 mm, Br certified",
+        grade: "N42SH",
+        magnet: Magnet {
+            shape: DISC_10X5,
+            br_20_t: 1.3148,
+            alpha_pct_per_c: -0.108,
+            gamma_pct_per_c2: -0.00008,
+            irreversible_onset_c: 160.0,
+            irreversible_pct_per_c: 0.05,
+            curie_c: 330.0,
+            max_working_c: 150.0,
         },
     },
 ];

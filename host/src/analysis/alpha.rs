@@ -30,6 +30,8 @@ pub struct AlphaResult {
     pub u_fit: f64,
     /// The budget, %/°C.
     pub budget: Vec<BudgetLine>,
+    /// How much the fit's standard errors are inflated for correlated residuals.
+    pub inflation: f64,
 }
 
 impl AlphaResult {
@@ -53,7 +55,8 @@ pub fn estimate(
     let alpha = model.mean_alpha_pct_per_c(t_hi);
     let var_a = propagate(&model.mean_alpha_gradient(t_hi), &fit.covariance);
     let residuals = model.residuals(&data.t_c, &data.b_mt);
-    let u_fit = var_a.sqrt() * autocorrelation_inflation(&residuals);
+    let inflation = autocorrelation_inflation(&residuals);
+    let u_fit = var_a.sqrt() * inflation;
     let mut budget = vec![BudgetLine::a("fit (type A)", u_fit)];
     let cal = ctx.calibration.as_ref();
     let gain_pct = cal
@@ -118,6 +121,7 @@ pub fn estimate(
         alpha,
         u_fit,
         budget,
+        inflation,
     })
 }
 

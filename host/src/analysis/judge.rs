@@ -4,10 +4,13 @@
 use super::context::Context;
 use super::families;
 use super::geometry::{self, BrEstimate};
+use super::result::BudgetLine;
 use super::verdict::{self, Check, Outcome};
 
 /// A loss above this (and above its own U95) flags heat damage, %.
 pub const HEAT_DAMAGE_PCT: f64 = 0.3;
+/// A test whose magnet went more than this above its rating was run above the rating, K.
+pub const RATING_MARGIN_K: f64 = 2.0;
 /// The families' table gives α between 20 °C and this, °C.
 pub const TABLE_TOP_C: f64 = 100.0;
 /// α is usually quoted for 20…100 °C or 20…150 °C: a fit that stops short of 20 + this is
@@ -26,6 +29,8 @@ pub struct Judged {
     pub checks: Vec<Check>,
     /// The magnet lost flux in this test.
     pub heat_damaged: bool,
+    /// How Br was found, and its budget (relative standard uncertainties, %).
+    pub br_budget: Vec<BudgetLine>,
 }
 
 /// The measured quantities the judge step needs.
@@ -35,8 +40,12 @@ pub struct Measured {
     /// Mean α over the families' table range (20…100 °C), %/°C, from the fitted curve when it
     /// reaches 100 °C (else the fitted α), and its U95.
     pub alpha_table: (f64, f64),
-    /// B at 20 °C, mT.
+    /// B at 20 °C, mT, and its standard uncertainty from the fit.
     pub b20_mt: f64,
+    /// Standard uncertainty of `b20_mt`, mT.
+    pub b20_u_mt: f64,
+    /// Highest magnet temperature in the test, °C.
+    pub peak_c: f64,
     /// Top of the fitted range, °C.
     pub fit_top_c: f64,
     /// Curie collapse, °C.
@@ -48,13 +57,36 @@ pub struct Measured {
 /// Judge the measurement.
 pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
     let (alpha, alpha_u95) = m.alpha;
-    let br = match (ctx.calibration.as_ref(), ctx.magnet.as_ref()) {
-        (Some(c), Some(mag)) => Some(geometry::estimate_br(
-            &mag.shape,
-            c.gap.standoff.gap_mm,
-            c.gap.gap_u_mm,
-            m.b20_mt,
-        )),
+    let mut br_budget = Vec::new();
+    let br = match (
+        &ctx.reference,
+        ctx.calibration.as_ref(),
+        ctx.magnet.as_ref(),
+    ) {
+        (Some(r), _, Some(mag)) => {
+            let (est, budget) = r.br_of(&mag.shape, m.b20_mt, m.b20_u_mt);
+            notes.push(format!(
+                "Br referred to the fixture's reference magnet {} (certified {:.4} ± {:.4} T, {}): the gap cancels",
+                r.magnet, r.br_t, r.br_u_t, r.source
+            ));
+            br_budget = budget
+                .into_iter()
+                .map(|(s, u)| BudgetLine::b(s, u))
+                .collect();
+            Some(est)
+        }
+        (None, Some(c), Some(mag)) => {
+            let est =
+                geometry::estimate_br(&mag.shape, c.gap.standoff.gap_mm, c.gap.gap_u_mm, m.b20_mt);
+            br_budget.push(BudgetLine::b(
+                format!(
+                    "gap ±{} mm (geometry at the calibrated gap)",
+                    c.gap.gap_u_mm
+                ),
+                est.br_u95_t / 2.0 / est.br_t * 100.0,
+            ));
+            Some(est)
+        }
         _ => None,
     };
     let family = families::matching(
@@ -92,7 +124,24 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
             },
         }],
     };
-    let heat_damaged = matches!(m.loss, Some((l, u)) if l > u.max(HEAT_DAMAGE_PCT));
+    let lost = matches!(m.loss, Some((l, u)) if l > u.max(HEAT_DAMAGE_PCT));
+    let rating = ctx.magnet.as_ref().map(|mag| mag.max_working_c);
+    let above_rating = rating.is_some_and(|r| m.peak_c > r + RATING_MARGIN_K);
+    if let (true, true, Some((l, u)), Some(r)) = (lost, above_rating, m.loss, rating) {
+        notes.push(format!(
+            "exposure loss: {l:.2} ± {u:.2} % after {:.0} °C, above the part's {r:.0} °C rating — the test was run above the rating on purpose, so this is the grade's loss at that temperature, not damage found in the part",
+            m.peak_c
+        ));
+    }
+    let heat_damaged = lost && !above_rating;
+    if ctx.reference.is_none() {
+        for c in checks
+            .iter_mut()
+            .filter(|c| c.what == "Br" && c.outcome == Outcome::Indeterminate)
+        {
+            c.reason += " — from geometry the gap's uncertainty dominates: refer the run to a reference magnet (`remanent reference`, then --reference)";
+        }
+    }
     if let (true, Some((l, u))) = (heat_damaged, m.loss) {
         checks.push(Check {
             what: "irreversible loss".into(),
@@ -106,5 +155,6 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
         grade,
         checks,
         heat_damaged,
+        br_budget,
     }
 }

@@ -158,6 +158,9 @@ fn analyze_cycle(
         alpha_table,
         alpha: (a.alpha, 2.0 * u_c),
         b20_mt: a.model.b0_mt,
+        // the fit's own error of B20, inflated as α's is for neighbouring residuals
+        b20_u_mt: a.fit.covariance[0].max(0.0).sqrt() * a.inflation,
+        peak_c: lagged.tm[lagged.seg.peak],
         fit_top_c: a.range_c[1],
         curie_c: lagged.curie_c,
         loss: loss.as_ref().map(|l| (l.loss_pct, l.u95_pct)),
@@ -198,6 +201,8 @@ fn analyze_cycle(
         grade: judged.grade,
         checks: judged.checks,
         heat_damaged: judged.heat_damaged,
+        br_budget: judged.br_budget,
+        br_referred: ctx.reference.is_some() && judged.br.is_some(),
         alpha_budget: a.budget,
         loss_budget: loss.map(|l| l.budget).unwrap_or_default(),
         notes,

@@ -136,6 +136,10 @@ pub struct Analysis {
     pub rows_left_out: usize,
     /// Thermocouple spikes rejected.
     pub spikes_rejected: usize,
+    /// How Br was found: its budget, relative standard uncertainties, %.
+    pub br_budget: Vec<BudgetLine>,
+    /// Br was referred to the fixture's reference magnet (else: geometry at the calibrated gap).
+    pub br_referred: bool,
     /// The fitted reversible model.
     #[serde(skip)]
     pub model: Quadratic,

@@ -47,11 +47,19 @@ pub fn text(a: &Analysis, title: &str) -> String {
         }
     }
     if let Some(b) = a.br {
-        let _ = writeln!(
-            s,
-            "  Br from geometry:     {:.3} T ± {:.3} T (k = 2); {:+.2} % per +0.1 mm of gap",
-            b.br_t, b.br_u95_t, b.pct_per_0_1_mm
-        );
+        if a.br_referred {
+            let _ = writeln!(
+                s,
+                "  Br (reference):       {:.4} T ± {:.4} T (k = 2), referred to the fixture's reference magnet",
+                b.br_t, b.br_u95_t
+            );
+        } else {
+            let _ = writeln!(
+                s,
+                "  Br from geometry:     {:.3} T ± {:.3} T (k = 2); {:+.2} % per +0.1 mm of gap",
+                b.br_t, b.br_u95_t, b.pct_per_0_1_mm
+            );
+        }
     }
     if let Some(tc) = a.curie_estimate_c {
         let _ = writeln!(s, "  Curie collapse:       at about {tc:.0} °C");

@@ -31,6 +31,25 @@ pub fn judge(value: f64, u95: f64, min: f64, max: f64) -> Outcome {
     }
 }
 
+/// For an undecided check: the U95 that would decide it (the distance from the value to the
+/// nearer limit, inside or out), and the words that say how far the uncertainty must shrink.
+pub fn what_would_decide(value: f64, u95: f64, min: f64, max: f64, unit: &str) -> String {
+    let need = if value < min {
+        min - value
+    } else if value > max {
+        value - max
+    } else {
+        (value - min).min(max - value)
+    };
+    if need <= 0.0 || !need.is_finite() {
+        return format!("; the value sits on a limit, so no uncertainty can decide it");
+    }
+    format!(
+        "; to decide, its U95 of ±{u95:.4} {unit} would have to shrink below ±{need:.4} {unit} ({:.0} % smaller)",
+        (1.0 - need / u95) * 100.0
+    )
+}
+
 /// One check of the grade test.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Check {
@@ -52,23 +71,34 @@ pub fn grade_checks(
 ) -> Vec<Check> {
     let mut out = Vec::new();
     let o = judge(alpha, alpha_u95, spec.alpha_min, spec.alpha_max);
+    let mut reason = format!(
+        "measured {alpha:.4} ± {alpha_u95:.4} %/°C against {:.3} … {:.3} %/°C for {} ({})",
+        spec.alpha_min, spec.alpha_max, spec.grade, spec.source
+    );
+    if o == Outcome::Indeterminate {
+        reason += &what_would_decide(alpha, alpha_u95, spec.alpha_min, spec.alpha_max, "%/°C");
+    }
     out.push(Check {
         what: "α(Br)".into(),
         outcome: o,
-        reason: format!(
-            "measured {alpha:.4} ± {alpha_u95:.4} %/°C against {:.3} … {:.3} %/°C for {} ({})",
-            spec.alpha_min, spec.alpha_max, spec.grade, spec.source
-        ),
+        reason,
     });
     match br {
-        Some((b, u)) => out.push(Check {
-            what: "Br".into(),
-            outcome: judge(b, u, spec.br_min_t, spec.br_max_t),
-            reason: format!(
-                "estimated {b:.3} ± {u:.3} T from the field and geometry against {:.2} … {:.2} T",
+        Some((b, u)) => {
+            let outcome = judge(b, u, spec.br_min_t, spec.br_max_t);
+            let mut reason = format!(
+                "estimated {b:.4} ± {u:.4} T against {:.2} … {:.2} T",
                 spec.br_min_t, spec.br_max_t
-            ),
-        }),
+            );
+            if outcome == Outcome::Indeterminate {
+                reason += &what_would_decide(b, u, spec.br_min_t, spec.br_max_t, "T");
+            }
+            out.push(Check {
+                what: "Br".into(),
+                outcome,
+                reason,
+            })
+        }
         None => out.push(Check {
             what: "Br".into(),
             outcome: Outcome::Indeterminate,

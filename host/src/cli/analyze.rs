@@ -48,6 +48,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         magnet: a.magnet,
         columns: a.columns,
         probe_tc_pct_per_c: a.probe_tc_pct_per_c,
+        reference: a.specs.reference,
     };
     let (loaded, analysis) = load_and_analyze(&req)?;
     if a.json {

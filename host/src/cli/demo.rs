@@ -6,7 +6,9 @@ use std::process::ExitCode;
 use std::time::Duration;
 
 use remanent::calibration::Calibration;
+use remanent::fixture_ref::FixtureReference;
 use remanent::record::{RecordEnd, RecordOptions};
+use remanent::survey::{Reading, SurveyProgress};
 use remanent::virtual_rig::{VirtualRig, VirtualRigOptions};
 use remanent::{magnets, profiles::ProfileSpec, run_dir};
 
@@ -29,6 +31,54 @@ pub struct Args {
     seed: u64,
 }
 
+/// The demo's fixture reference, in the run directory.
+pub const REFERENCE_FILE: &str = "fixture-reference.toml";
+
+/// The demo reference part read on its own virtual rig: the fixture's reference.
+fn measure_reference(speed: f64, seed: u64) -> anyhow::Result<FixtureReference> {
+    let part = magnets::resolve(REFERENCE_PART)?;
+    let mut opts = VirtualRigOptions::new(part.model.expect("a demo part has a model"));
+    opts.speed = speed;
+    opts.seed = seed ^ 0x5eed;
+    let rig = VirtualRig::start(opts)?;
+    println!(
+        "first the fixture's reference: {} ({})",
+        part.info.id, part.info.description
+    );
+    let port = remanent::link::port::open(rig.path())?;
+    let cal = Calibration::virtual_rig(&rig_params());
+    let r = remanent::jobs::reference::measure(
+        port,
+        &part,
+        cal,
+        Default::default(),
+        1,
+        None,
+        &mut Quiet,
+    )?;
+    rig.stop()?;
+    println!(
+        "  it reads {:.2} mT at 20 °C for a certified {:.4} T: fixture factor {:.4}",
+        r.b20_mt,
+        r.br_t,
+        r.factor()
+    );
+    Ok(r)
+}
+
+fn rig_params() -> remanent_rig_model::RigParams {
+    remanent_rig_model::RigParams::REFERENCE
+}
+
+/// The demo's reference magnet.
+const REFERENCE_PART: &str = "RM-REF-N42SH-D10x5";
+
+struct Quiet;
+impl SurveyProgress for Quiet {
+    fn reading(&mut self, _: &Reading) {}
+    fn note(&mut self, _: &str) {}
+}
+
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let m = magnets::resolve(&a.magnet)?;
     let model = m
@@ -44,6 +94,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         "Remanent demo: {} ({}) on the virtual rig, profile `{}`, {}× real time",
         m.info.id, m.info.description, profile.name, a.speed
     );
+    let reference = measure_reference(a.speed, a.seed)?;
     let mut opts = VirtualRigOptions::new(model);
     opts.speed = a.speed;
     opts.seed = a.seed;
@@ -67,8 +118,11 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     if summary.end != RecordEnd::Finished {
         return Ok(code);
     }
+    let ref_file = out.join(REFERENCE_FILE);
+    remanent::output::write(&ref_file, toml::to_string(&reference)?.as_bytes(), false)?;
     let req = remanent::jobs::InputRequest {
         input: out.clone(),
+        reference: Some(ref_file.clone()),
         ..Default::default()
     };
     let (loaded, analysis) = remanent::jobs::load_and_analyze(&req)?;
@@ -80,7 +134,8 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         model.alpha_pct_per_c + model.gamma_pct_per_c2 * (analysis.fit_range_c[1] - 20.0),
         truth.irreversible * 100.0
     );
-    let written = remanent::report::write_all(&out, series, &analysis, title, false)?;
+    let mut written = remanent::report::write_all(&out, series, &analysis, title, false)?;
+    written.insert(0, ref_file);
     println!();
     for f in written {
         println!("wrote {}", f.display());

@@ -28,7 +28,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let outcome = remanent::jobs::lot::run(
         &a.runs,
         &a.out,
-        a.specs.specs.as_deref(),
+        &a.specs.judging(),
         a.mixed_grades,
         a.force.force,
     )?;

@@ -13,6 +13,7 @@ mod ports;
 mod profiles;
 mod progress;
 mod record;
+mod reference;
 mod replay;
 mod report;
 mod sampling_plan;
@@ -63,6 +64,8 @@ enum Cmd {
     SelfTest(self_test::Args),
     /// Calibrate a rig step by step (probe zero, sensitivity, coefficients, thermocouple, gap).
     Calibrate(calibrate::Args),
+    /// Read a reference magnet of known Br to refer later runs' Br to (--reference).
+    Reference(reference::Args),
 }
 
 pub fn main() -> std::process::ExitCode {
@@ -82,6 +85,7 @@ pub fn main() -> std::process::ExitCode {
         Cmd::Lot(a) => lot::run(a),
         Cmd::SamplingPlan(a) => sampling_plan::run(a),
         Cmd::Calibrate(a) => calibrate::run(a),
+        Cmd::Reference(a) => reference::run(a),
         Cmd::Survey(a) => survey::run(a),
         Cmd::SelfTest(a) => self_test::run(a),
     };

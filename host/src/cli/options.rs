@@ -2,12 +2,26 @@
 
 use std::path::PathBuf;
 
-/// Where the spec table comes from.
+/// What a verdict is judged against: the spec table, and the fixture reference Br is referred to.
 #[derive(clap::Args, Clone, Debug)]
 pub struct SpecOpts {
     /// Grade spec table (TOML); default: the built-in table of typical values.
     #[arg(long)]
     pub specs: Option<PathBuf>,
+    /// Refer Br to this fixture reference (written by `remanent reference`) instead of the
+    /// geometry at the calibrated gap.
+    #[arg(long)]
+    pub reference: Option<PathBuf>,
+}
+
+impl SpecOpts {
+    /// As the library takes it.
+    pub fn judging(&self) -> remanent::jobs::Judging {
+        remanent::jobs::Judging {
+            specs: self.specs.clone(),
+            reference: self.reference.clone(),
+        }
+    }
 }
 
 /// Replacing files that are already there.

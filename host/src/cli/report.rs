@@ -17,7 +17,7 @@ pub struct Args {
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
-    let r = remanent::jobs::report::run(&a.run, a.specs.specs.as_deref(), a.force.force)?;
+    let r = remanent::jobs::report::run(&a.run, &a.specs.judging(), a.force.force)?;
     if let Some(why) = &r.not_analysed {
         eprintln!("note: {why}; wrote the time series and what could not be computed");
     }

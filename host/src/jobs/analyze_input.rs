@@ -28,6 +28,9 @@ pub enum JobError {
     /// A magnet could not be found or read.
     #[error(transparent)]
     Magnet(#[from] MagnetError),
+    /// A fixture reference could not be read.
+    #[error(transparent)]
+    Reference(#[from] crate::fixture_ref::ReferenceError),
     /// The analysis could not produce α.
     #[error("analysing {path}: {source}")]
     Analysis {
@@ -53,6 +56,18 @@ pub struct InputRequest {
     pub columns: Vec<(String, String)>,
     /// For CSV input: the probe's sensitivity coefficient, %/°C.
     pub probe_tc_pct_per_c: Option<f64>,
+    /// Refer Br to this fixture reference (`remanent reference`).
+    pub reference: Option<PathBuf>,
+}
+
+/// What a verdict is judged against: the spec table and, when given, the fixture reference
+/// Br is referred to.
+#[derive(Debug, Clone, Default)]
+pub struct Judging {
+    /// Grade spec table; default: the built-in one.
+    pub specs: Option<PathBuf>,
+    /// Fixture reference (`remanent reference`).
+    pub reference: Option<PathBuf>,
 }
 
 /// An analysed input.
@@ -122,11 +137,17 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
             .unwrap_or_else(|| file_name(&req.input));
         (s, calibration, m, title)
     };
+    let reference = req
+        .reference
+        .as_deref()
+        .map(crate::fixture_ref::FixtureReference::load)
+        .transpose()?;
     let context = Context {
         calibration,
         magnet,
         specs,
         default_tc_gain_pct: DEFAULT_TC_GAIN_PCT,
+        reference,
     };
     Ok(Analyzed {
         series,

@@ -3,7 +3,7 @@
 
 use std::path::{Path, PathBuf};
 
-use super::analyze_input::{load_and_analyze, spec_table, InputRequest, JobError};
+use super::analyze_input::{load_and_analyze, spec_table, InputRequest, JobError, Judging};
 use crate::lot::{self, LotRow, LotSummary};
 use crate::output::{self, OutputError};
 use crate::plots::{self, PlotError};
@@ -77,7 +77,7 @@ fn duplicates(runs: &[PathBuf], ids: &[(PathBuf, String)]) -> Vec<String> {
 pub fn run(
     runs: &[PathBuf],
     out: &Path,
-    specs: Option<&Path>,
+    judging: &Judging,
     mixed_grades: bool,
     force: bool,
 ) -> Result<LotOutcome, LotError> {
@@ -89,7 +89,8 @@ pub fn run(
     for run in runs {
         let req = InputRequest {
             input: run.clone(),
-            specs: specs.map(Path::to_path_buf),
+            specs: judging.specs.clone(),
+            reference: judging.reference.clone(),
             ..InputRequest::default()
         };
         let analysis = match load_and_analyze(&req) {
@@ -115,7 +116,7 @@ pub fn run(
     }
     let warnings = duplicates(runs, &ids);
     let summary = lot::summarise(rows);
-    let table = spec_table(specs).map_err(JobError::from)?;
+    let table = spec_table(judging.specs.as_deref()).map_err(JobError::from)?;
     let spec = grades.first().and_then(|g| table.find(g));
     let title = format!(
         "{} magnets{}",

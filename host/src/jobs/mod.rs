@@ -5,6 +5,7 @@
 pub mod analyze_input;
 pub mod calibrate;
 pub mod lot;
+pub mod reference;
 pub mod report;
 
-pub use analyze_input::{load_and_analyze, Analyzed, InputRequest, JobError};
+pub use analyze_input::{load_and_analyze, Analyzed, InputRequest, JobError, Judging};

@@ -3,7 +3,7 @@
 
 use std::path::{Path, PathBuf};
 
-use super::analyze_input::{load, InputRequest, JobError};
+use super::analyze_input::{load, InputRequest, JobError, Judging};
 use crate::report::{self, ReportError};
 
 /// The report job failed.
@@ -26,10 +26,11 @@ pub struct RunReport {
 }
 
 /// Report the run in `dir`.
-pub fn run(dir: &Path, specs: Option<&Path>, force: bool) -> Result<RunReport, RunReportError> {
+pub fn run(dir: &Path, judging: &Judging, force: bool) -> Result<RunReport, RunReportError> {
     let req = InputRequest {
         input: dir.to_path_buf(),
-        specs: specs.map(Path::to_path_buf),
+        specs: judging.specs.clone(),
+        reference: judging.reference.clone(),
         ..InputRequest::default()
     };
     let loaded = load(&req)?;

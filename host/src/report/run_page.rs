@@ -50,13 +50,20 @@ fn results(a: &Analysis) -> Vec<(String, String)> {
         ),
     ];
     if let Some(b) = a.br {
-        rows.push((
-            "Br from geometry".into(),
-            format!(
-                "{:.3} ± {:.3} T (k = 2); {:+.2} % per +0.1 mm gap",
-                b.br_t, b.br_u95_t, b.pct_per_0_1_mm
-            ),
-        ));
+        rows.push(if a.br_referred {
+            (
+                "Br (referred to the fixture's reference magnet)".into(),
+                format!("{:.4} ± {:.4} T (k = 2)", b.br_t, b.br_u95_t),
+            )
+        } else {
+            (
+                "Br from geometry".into(),
+                format!(
+                    "{:.3} ± {:.3} T (k = 2); {:+.2} % per +0.1 mm gap",
+                    b.br_t, b.br_u95_t, b.pct_per_0_1_mm
+                ),
+            )
+        });
     }
     rows.push(("material family".into(), a.material_family.clone()));
     rows

@@ -78,6 +78,7 @@ fn measure(
         magnet: src.magnet,
         specs: SpecTable::builtin(),
         default_tc_gain_pct: 0.75,
+        reference: None,
     };
     (analyze(&series, &ctx).unwrap(), truth, model)
 }

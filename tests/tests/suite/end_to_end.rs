@@ -98,6 +98,7 @@ fn a_full_cycle_records_without_gaps_and_recovers_alpha() {
         magnet: src.magnet,
         specs: SpecTable::builtin(),
         default_tc_gain_pct: 0.75,
+        reference: None,
     };
     let a = analyze(&series, &ctx).unwrap();
     // truth: the demo part's model, α = −0.108 %/°C and γ = −0.00008 %/°C² (catalogue.rs)

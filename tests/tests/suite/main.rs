@@ -13,6 +13,7 @@ mod operator;
 mod outputs;
 mod reference_field;
 mod reference_lsq;
+mod reference_path;
 mod reference_type_k;
 mod rig_safety;
 mod util;

@@ -14,6 +14,7 @@ fn ctx() -> Context {
         magnet: None,
         specs: SpecTable::builtin(),
         default_tc_gain_pct: 0.75,
+        reference: None,
     }
 }
 

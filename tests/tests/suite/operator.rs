@@ -82,9 +82,15 @@ fn a_lot_is_one_grade_unless_told_and_duplicates_and_unreadable_runs_are_reporte
     let a = recorded(dir.path(), "a", "RM-N42SH-D10x5");
     let b = recorded(dir.path(), "b", "RM-N42-D10x5");
     let out = dir.path().join("lot");
-    let e = lot::run(&[a.clone(), b.clone()], &out, None, false, false)
-        .err()
-        .unwrap();
+    let e = lot::run(
+        &[a.clone(), b.clone()],
+        &out,
+        &Default::default(),
+        false,
+        false,
+    )
+    .err()
+    .unwrap();
     assert!(matches!(e, LotError::MixedGrades(_)), "{e}");
     assert!(e.to_string().contains("N42, N42SH"), "{e}");
     // the same run twice is warned about; an unreadable one is listed, not hidden
@@ -93,7 +99,7 @@ fn a_lot_is_one_grade_unless_told_and_duplicates_and_unreadable_runs_are_reporte
     let done = lot::run(
         &[a.clone(), a.clone(), empty.clone()],
         &out,
-        None,
+        &Default::default(),
         false,
         false,
     )
@@ -106,7 +112,14 @@ fn a_lot_is_one_grade_unless_told_and_duplicates_and_unreadable_runs_are_reporte
     assert_eq!(done.skipped.len(), 1);
     assert_eq!(done.skipped[0].0, empty);
     // with --mixed-grades the two grades go side by side
-    let mixed = lot::run(&[a, b], &dir.path().join("mixed"), None, true, false).unwrap();
+    let mixed = lot::run(
+        &[a, b],
+        &dir.path().join("mixed"),
+        &Default::default(),
+        true,
+        false,
+    )
+    .unwrap();
     assert_eq!(mixed.summary.rows.len(), 2);
 }
 

@@ -54,6 +54,7 @@ fn analysed(run: &std::path::Path) -> (dataset::Series, remanent::analysis::Anal
         magnet: src.magnet,
         specs: SpecTable::builtin(),
         default_tc_gain_pct: 0.75,
+        reference: None,
     };
     let a = analyze(&s, &ctx).unwrap();
     (s, a)

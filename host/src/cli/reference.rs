@@ -1,0 +1,98 @@
+//! `remanent reference`: read a reference magnet of known Br in the fixture and keep the
+//! fixture's reference, so later runs get Br free of the gap's uncertainty (`--reference`).
+
+use std::io::BufRead;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use remanent::fixture_ref::FixtureReference;
+use remanent::survey::{Reading, SurveyProgress};
+
+use super::options::{CalibrationOpts, ForceOpts};
+
+#[derive(clap::Args)]
+pub struct Args {
+    /// Serial port of the bench (or a virtual rig holding the reference magnet).
+    #[arg(long)]
+    pub port: String,
+    /// The reference magnet: a magnet file with a [reference] section (its certified Br), or
+    /// the demo reference part RM-REF-N42SH-D10x5.
+    #[arg(long)]
+    pub magnet: String,
+    /// Write the fixture reference here (TOML).
+    #[arg(long)]
+    pub out: PathBuf,
+    /// Placements to read (take the magnet out and put it back between them, pressing Enter
+    /// with --confirm): more than one measures the fixture's repeatability.
+    #[arg(long, default_value_t = 1)]
+    pub placements: usize,
+    /// Read each placement when Enter is pressed instead of when its reading is stable.
+    #[arg(long)]
+    pub confirm: bool,
+    #[command(flatten)]
+    pub calibration: CalibrationOpts,
+    #[command(flatten)]
+    pub force: ForceOpts,
+}
+
+struct Print;
+impl SurveyProgress for Print {
+    fn reading(&mut self, r: &Reading) {
+        println!(
+            "placement {}: {:.3} mT at {:.2} °C (scatter {:.3} %)",
+            r.index,
+            r.flux_mt,
+            r.temp_c,
+            r.rel_sd * 100.0
+        );
+    }
+    fn note(&mut self, m: &str) {
+        eprintln!("{m}");
+    }
+}
+
+/// Measure and write the reference; shared with the demo.
+pub fn measure(a: &Args) -> anyhow::Result<FixtureReference> {
+    remanent::output::refuse_existing([a.out.clone()], a.force.force)?;
+    let magnet = remanent::magnets::resolve(&a.magnet)?;
+    let policy = a.calibration.policy();
+    let cal = policy.provisional()?;
+    let confirm = a.confirm.then(|| {
+        let (tx, rx) = std::sync::mpsc::channel();
+        std::thread::spawn(move || {
+            for _ in std::io::stdin().lock().lines() {
+                if tx.send(()).is_err() {
+                    break;
+                }
+            }
+        });
+        rx
+    });
+    let port = remanent::link::port::open(&a.port)?;
+    let r = remanent::jobs::reference::measure(
+        port,
+        &magnet,
+        cal,
+        policy,
+        a.placements,
+        confirm,
+        &mut Print,
+    )?;
+    let text = toml::to_string(&r)?;
+    remanent::output::write(&a.out, text.as_bytes(), a.force.force)?;
+    println!(
+        "wrote {}: {} reads {:.3} mT at 20 °C (u = {:.3} mT), fixture factor {:.4}, repeatability {:.2} %",
+        a.out.display(),
+        r.magnet,
+        r.b20_mt,
+        r.b20_u_mt,
+        r.factor(),
+        r.repeatability_pct
+    );
+    Ok(r)
+}
+
+pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+    measure(&a)?;
+    Ok(ExitCode::SUCCESS)
+}

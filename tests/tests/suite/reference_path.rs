@@ -1,0 +1,139 @@
+//! The reference path on the virtual rig: a reference magnet of known Br read in a fixture
+//! whose true gap and probe sensitivity are not the calibration's, then a part recorded in the
+//! same fixture — its Br, referred to the reference, must come out within its stated
+//! uncertainty of the rig's truth, and the verdicts must follow (conforming parts PASS,
+//! non-conforming FAIL). Field ratios: the closed-form cylinder field checked against
+//! Magpylib in `reference_field.rs`.
+
+use std::sync::{atomic::AtomicBool, Arc};
+
+use remanent::analysis::verdict::Outcome;
+use remanent::analysis::Analysis;
+use remanent::calibration::Calibration;
+use remanent::fixture_ref::FixtureReference;
+use remanent::jobs::{load_and_analyze, InputRequest};
+use remanent::magnets;
+use remanent::profiles::{ProfileSpec, SegmentSpec};
+use remanent::record::{record, Quiet, RecordOptions};
+use remanent::survey::{Reading, SurveyProgress};
+use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
+use remanent_rig_model::{Magnet, RigParams};
+
+struct Silent;
+impl SurveyProgress for Silent {
+    fn reading(&mut self, _: &Reading) {}
+    fn note(&mut self, _: &str) {}
+}
+
+/// A fixture whose gap and probe are off the nominal calibration.
+fn fixture(gap_mm: f64, sensitivity: f64) -> RigParams {
+    let mut p = RigParams::REFERENCE;
+    p.hall.standoff.gap_mm = gap_mm;
+    p.hall.sensor.sensitivity_mv_per_mt = sensitivity;
+    p
+}
+
+fn reference_in(params: RigParams) -> FixtureReference {
+    let part = magnets::resolve("RM-REF-N42SH-D10x5").unwrap();
+    let mut opts = VirtualRigOptions::new(part.model.unwrap());
+    opts.params = params;
+    let cal = Calibration::virtual_rig(&RigParams::REFERENCE);
+    remanent::jobs::reference::measure(
+        SimulatedPort::new(opts),
+        &part,
+        cal,
+        Default::default(),
+        1,
+        None,
+        &mut Silent,
+    )
+    .unwrap()
+}
+
+/// Record `magnet` (as the N42SH demo part states itself) in the fixture and analyse it
+/// referred to `reference`.
+fn part_in(params: RigParams, magnet: Magnet, reference: &FixtureReference) -> Analysis {
+    let dir = tempfile::tempdir().unwrap();
+    let info = magnets::resolve("RM-N42SH-D10x5").unwrap().info;
+    let mut opts = VirtualRigOptions::new(magnet);
+    opts.params = params;
+    let seg = |target_c, ramp_c_per_min, hold_s| SegmentSpec {
+        target_c,
+        ramp_c_per_min,
+        hold_s,
+    };
+    let out = dir.path().join("run");
+    let rec = RecordOptions {
+        port_label: "simulated".into(),
+        magnet: info,
+        profile: ProfileSpec {
+            name: "short".into(),
+            description: "a short cycle".into(),
+            limit_c: 110.0,
+            segments: vec![
+                seg(25.0, 0.0, 300.0),
+                seg(95.0, 5.0, 240.0),
+                seg(25.0, 5.0, 300.0),
+            ],
+        },
+        calibration: Calibration::virtual_rig(&RigParams::REFERENCE),
+        policy: Default::default(),
+        out: out.clone(),
+        silence_timeout: std::time::Duration::from_secs(5),
+        preroll_s: 60.0,
+        stop: Arc::new(AtomicBool::new(false)),
+    };
+    record(&mut SimulatedPort::new(opts), rec, &mut Quiet).unwrap();
+    let ref_file = dir.path().join("fixture.toml");
+    std::fs::write(&ref_file, toml::to_string(reference).unwrap()).unwrap();
+    let req = InputRequest {
+        input: out,
+        reference: Some(ref_file),
+        ..Default::default()
+    };
+    load_and_analyze(&req).unwrap().1
+}
+
+#[test]
+fn br_referred_to_a_reference_is_right_across_gaps_and_probe_sensitivities() {
+    let demo = magnets::resolve("RM-N42SH-D10x5").unwrap().model.unwrap();
+    for (gap, sens) in [(2.8, 5.15), (3.0, 5.0), (3.3, 4.9)] {
+        let params = fixture(gap, sens);
+        let reference = reference_in(params);
+        for true_br in [1.29, 1.22] {
+            let magnet = Magnet {
+                br_20_t: true_br,
+                ..demo
+            };
+            let a = part_in(params, magnet, &reference);
+            let br = a.br.expect("Br");
+            assert!(a.br_referred);
+            let label = format!("gap {gap} mm, sensitivity {sens} mV/mT, Br {true_br} T");
+            assert!(
+                (br.br_t - true_br).abs() <= br.br_u95_t,
+                "{label}: {:.4} ± {:.4} T",
+                br.br_t,
+                br.br_u95_t
+            );
+            assert!(br.br_u95_t < 0.012, "{label}: U95 {:.4} T", br.br_u95_t);
+            // N42SH wants 1.27 … 1.33 T: the conforming part passes, the weak one fails
+            let want = if true_br > 1.27 {
+                Outcome::Pass
+            } else {
+                Outcome::Fail
+            };
+            assert_eq!(a.verdict, want, "{label}: {:#?}", a.checks);
+        }
+    }
+}
+
+#[test]
+fn an_undecided_check_says_what_would_decide_it() {
+    use remanent::analysis::verdict::what_would_decide;
+    // Br 1.3101 ± 0.038 T against 1.27 … 1.33: the upper limit is 0.0199 T away
+    let s = what_would_decide(1.3101, 0.038, 1.27, 1.33, "T");
+    assert!(
+        s.contains("below ±0.0199 T") && s.contains("48 % smaller"),
+        "{s}"
+    );
+}
