@@ -42,7 +42,7 @@ pub fn what_would_decide(value: f64, u95: f64, min: f64, max: f64, unit: &str) -
         (value - min).min(max - value)
     };
     if need <= 0.0 || !need.is_finite() {
-        return format!("; the value sits on a limit, so no uncertainty can decide it");
+        return "; the value sits on a limit, so no uncertainty can decide it".to_string();
     }
     format!(
         "; to decide, its U95 of ±{u95:.4} {unit} would have to shrink below ±{need:.4} {unit} ({:.0} % smaller)",
