@@ -18,6 +18,7 @@ pub mod jobs;
 pub mod link;
 pub mod lot;
 pub mod magnets;
+pub mod master;
 pub mod output;
 pub mod plots;
 pub mod profiles;

@@ -184,6 +184,7 @@ fn analyze_cycle(
         alpha_at_20c_pct_per_c: a.model.alpha_at_reference_pct_per_c(),
         gamma_pct_per_c2: a.model.gamma_pct_per_c2(),
         b20_mt: a.model.b0_mt,
+        b20_u_mt: measured.b20_u_mt,
         fit_range_c: a.range_c,
         residual_sd_mt: a.fit.residual_sd,
         fit_points: a.fit.n,

@@ -80,6 +80,9 @@ pub struct Analysis {
     /// Fitted B at 20 °C, mT.
     #[serde(rename = "b20_mT")]
     pub b20_mt: f64,
+    /// Its standard uncertainty from the fit, mT.
+    #[serde(rename = "b20_u_mT")]
+    pub b20_u_mt: f64,
     /// Lowest and highest magnet temperature in the fit, °C.
     #[serde(rename = "fit_range_C")]
     pub fit_range_c: [f64; 2],

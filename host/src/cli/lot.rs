@@ -20,6 +20,10 @@ pub struct Args {
     /// Compare runs of different grades (a lot is normally one grade).
     #[arg(long)]
     mixed_grades: bool,
+    /// Judge each part against this run of a master sample of the grade (same shape, same
+    /// fixture): writes master.csv.
+    #[arg(long)]
+    master: Option<PathBuf>,
     #[command(flatten)]
     force: ForceOpts,
 }
@@ -28,12 +32,23 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let outcome = remanent::jobs::lot::run(
         &a.runs,
         &a.out,
-        &a.specs.judging(),
+        &remanent::jobs::Judging {
+            master: a.master.clone(),
+            ..a.specs.judging()
+        },
         a.mixed_grades,
         a.force.force,
     )?;
     for w in &outcome.warnings {
         eprintln!("warning: {w}");
+    }
+    for m in &outcome.against_master {
+        println!(
+            "{:<22} against the master: {:<13} {}",
+            m.id,
+            m.outcome.to_string(),
+            m.reason
+        );
     }
     for (run, why) in &outcome.skipped {
         eprintln!("left out of the lot: {}: {why}", run.display());

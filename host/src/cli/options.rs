@@ -20,6 +20,7 @@ impl SpecOpts {
         remanent::jobs::Judging {
             specs: self.specs.clone(),
             reference: self.reference.clone(),
+            master: None,
         }
     }
 }

@@ -68,6 +68,8 @@ pub struct Judging {
     pub specs: Option<PathBuf>,
     /// Fixture reference (`remanent reference`).
     pub reference: Option<PathBuf>,
+    /// For a lot: the run of a master sample of the grade to judge each part against.
+    pub master: Option<PathBuf>,
 }
 
 /// An analysed input.

@@ -42,6 +42,8 @@ pub struct LotOutcome {
     pub written: Vec<PathBuf>,
     /// Things the user should know (duplicate runs or magnets).
     pub warnings: Vec<String>,
+    /// Each part against the master sample, when one was given.
+    pub against_master: Vec<crate::master::AgainstMaster>,
 }
 
 /// Warnings for the same run given twice, or the same magnet id in two runs.
@@ -86,6 +88,7 @@ pub fn run(
     let mut grades: Vec<String> = Vec::new();
     let mut ids = Vec::new();
     let mut skipped = Vec::new();
+    let mut analysed = Vec::new();
     for run in runs {
         let req = InputRequest {
             input: run.clone(),
@@ -104,6 +107,7 @@ pub fn run(
         grades.push(meta.magnet.grade.clone());
         ids.push((run.clone(), meta.magnet.id.clone()));
         rows.push(LotRow::new(&meta.magnet.id, &meta.magnet.grade, &analysis));
+        analysed.push((meta.magnet, analysis));
     }
     if rows.is_empty() {
         return Err(LotError::Empty(runs.len()));
@@ -136,10 +140,62 @@ pub fn run(
     output::write(&html_path, html.as_bytes(), force)?;
     let mut written = vec![csv_path, html_path];
     written.extend(figure.files());
+    let mut warnings = warnings;
+    let against_master = match (&judging.master, spec) {
+        (Some(m), Some(spec)) => {
+            let (rows, mut w) = against_master(m, judging, &analysed, spec)?;
+            warnings.append(&mut w);
+            let path = out.join("master.csv");
+            output::write(&path, crate::master::to_csv(&rows).as_bytes(), force)?;
+            written.push(path);
+            rows
+        }
+        (Some(_), None) => {
+            warnings.push(
+                "the lot's grade is not in the spec table: it cannot be judged against the master"
+                    .into(),
+            );
+            Vec::new()
+        }
+        _ => Vec::new(),
+    };
     Ok(LotOutcome {
         summary,
         skipped,
         written,
         warnings,
+        against_master,
     })
+}
+
+/// Each analysed part against the master run `m`.
+fn against_master(
+    m: &Path,
+    judging: &Judging,
+    parts: &[(crate::magnets::MagnetInfo, crate::analysis::Analysis)],
+    spec: &crate::specs::GradeSpec,
+) -> Result<(Vec<crate::master::AgainstMaster>, Vec<String>), LotError> {
+    let req = InputRequest {
+        input: m.to_path_buf(),
+        specs: judging.specs.clone(),
+        ..InputRequest::default()
+    };
+    let (loaded, analysis) = load_and_analyze(&req)?;
+    let info = loaded.context.magnet.clone().ok_or(LotError::Empty(0))?;
+    let master = crate::master::Master {
+        info: &info,
+        analysis: &analysis,
+    };
+    let mut rows = Vec::new();
+    let mut warnings = Vec::new();
+    for (pi, pa) in parts {
+        match crate::master::compare(&master, pi, pa, spec) {
+            Some(r) => rows.push(r),
+            None => warnings.push(format!(
+                "{} is not the master's shape: its field cannot be compared with the master's",
+                pi.id
+            )),
+        }
+    }
+    Ok((rows, warnings))
 }

@@ -50,11 +50,16 @@ fn reference_in(params: RigParams) -> FixtureReference {
     .unwrap()
 }
 
-/// Record `magnet` (as the N42SH demo part states itself) in the fixture and analyse it
-/// referred to `reference`.
-fn part_in(params: RigParams, magnet: Magnet, reference: &FixtureReference) -> Analysis {
-    let dir = tempfile::tempdir().unwrap();
-    let info = magnets::resolve("RM-N42SH-D10x5").unwrap().info;
+/// Record `magnet` (as the N42SH demo part states itself, under `id`) in the fixture into
+/// `dir/run`.
+fn record_part(
+    dir: &std::path::Path,
+    params: RigParams,
+    magnet: Magnet,
+    id: &str,
+) -> std::path::PathBuf {
+    let mut info = magnets::resolve("RM-N42SH-D10x5").unwrap().info;
+    info.id = id.into();
     let mut opts = VirtualRigOptions::new(magnet);
     opts.params = params;
     let seg = |target_c, ramp_c_per_min, hold_s| SegmentSpec {
@@ -62,7 +67,7 @@ fn part_in(params: RigParams, magnet: Magnet, reference: &FixtureReference) -> A
         ramp_c_per_min,
         hold_s,
     };
-    let out = dir.path().join("run");
+    let out = dir.join(id);
     let rec = RecordOptions {
         port_label: "simulated".into(),
         magnet: info,
@@ -84,6 +89,13 @@ fn part_in(params: RigParams, magnet: Magnet, reference: &FixtureReference) -> A
         stop: Arc::new(AtomicBool::new(false)),
     };
     record(&mut SimulatedPort::new(opts), rec, &mut Quiet).unwrap();
+    out
+}
+
+/// Record `magnet` in the fixture and analyse it referred to `reference`.
+fn part_in(params: RigParams, magnet: Magnet, reference: &FixtureReference) -> Analysis {
+    let dir = tempfile::tempdir().unwrap();
+    let out = record_part(dir.path(), params, magnet, "part");
     let ref_file = dir.path().join("fixture.toml");
     std::fs::write(&ref_file, toml::to_string(reference).unwrap()).unwrap();
     let req = InputRequest {
@@ -136,4 +148,44 @@ fn an_undecided_check_says_what_would_decide_it() {
         s.contains("below ±0.0199 T") && s.contains("48 % smaller"),
         "{s}"
     );
+}
+
+#[test]
+fn a_lot_is_judged_against_a_master_sample_of_its_grade() {
+    let demo = magnets::resolve("RM-N42SH-D10x5").unwrap().model.unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    // a fixture off its calibration: the master comparison does not care
+    let params = fixture(3.2, 5.1);
+    let with = |br| Magnet {
+        br_20_t: br,
+        ..demo
+    };
+    let master = record_part(dir.path(), params, with(1.31), "master");
+    let good = record_part(dir.path(), params, with(1.30), "good");
+    let weak = record_part(dir.path(), params, with(1.22), "weak");
+    let judging = remanent::jobs::Judging {
+        master: Some(master),
+        ..Default::default()
+    };
+    let out = remanent::jobs::lot::run(
+        &[good, weak],
+        &dir.path().join("lot"),
+        &judging,
+        false,
+        false,
+    )
+    .unwrap();
+    let by = |id: &str| {
+        out.against_master
+            .iter()
+            .find(|r| r.id == id)
+            .unwrap()
+            .clone()
+    };
+    // N42SH's Br window 1.27 … 1.33 T is ±2.3 % about its middle: −0.8 % passes, −6.9 % fails
+    let g = by("good");
+    assert!((g.b20_vs_master_pct + 0.76).abs() < 0.4, "{}", g.reason);
+    assert_eq!(g.outcome, Outcome::Pass, "{}", g.reason);
+    assert_eq!(by("weak").outcome, Outcome::Fail);
+    assert!(dir.path().join("lot").join("master.csv").is_file());
 }

@@ -1,0 +1,117 @@
+//! Judging a lot against a master sample of its grade: each part's room-temperature field and
+//! α beside the master's, measured in the same fixture, so the gap and the probe cancel. A
+//! part conforms when both differences, with their uncertainty, stay within the grade's own
+//! windows (its Br window as a relative half-width, its α window's half-width).
+
+use serde::Serialize;
+
+use crate::analysis::verdict::{judge, overall, Check, Outcome};
+use crate::analysis::Analysis;
+use crate::fixture_ref::DEFAULT_REPEATABILITY_PCT;
+use crate::magnets::MagnetInfo;
+use crate::specs::GradeSpec;
+
+/// One part against the master.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct AgainstMaster {
+    /// The part.
+    pub id: String,
+    /// Its field at 20 °C against the master's, %.
+    pub b20_vs_master_pct: f64,
+    /// That difference's U95, %.
+    pub b20_u95_pct: f64,
+    /// Its α minus the master's, %/°C.
+    #[serde(rename = "alpha_vs_master_pct_per_C")]
+    pub alpha_diff: f64,
+    /// That difference's U95, %/°C.
+    #[serde(rename = "alpha_u95_pct_per_C")]
+    pub alpha_u95: f64,
+    /// Within the grade's windows around the master, uncertainty included.
+    pub outcome: Outcome,
+    /// Why, in words with the numbers.
+    pub reason: String,
+}
+
+/// The master sample as measured.
+pub struct Master<'a> {
+    /// Its facts.
+    pub info: &'a MagnetInfo,
+    /// Its analysis.
+    pub analysis: &'a Analysis,
+}
+
+/// Compare a part with the master under the grade `spec`; `None` when their shapes differ
+/// (their fields then do not compare).
+pub fn compare(
+    master: &Master,
+    info: &MagnetInfo,
+    a: &Analysis,
+    spec: &GradeSpec,
+) -> Option<AgainstMaster> {
+    if info.shape != master.info.shape {
+        return None;
+    }
+    let m = master.analysis;
+    let ratio = (a.b20_mt / m.b20_mt - 1.0) * 100.0;
+    let rel = |x: &Analysis| x.b20_u_mt / x.b20_mt * 100.0;
+    // each placement adds the fixture's repeatability
+    let u_ratio =
+        (rel(a).powi(2) + rel(m).powi(2) + 2.0 * DEFAULT_REPEATABILITY_PCT.powi(2)).sqrt();
+    let d_alpha = a.alpha_pct_per_c - m.alpha_pct_per_c;
+    let u_alpha = (a.alpha_u95_pct_per_c.powi(2) + m.alpha_u95_pct_per_c.powi(2)).sqrt() / 2.0;
+    let br_tol = (spec.br_max_t - spec.br_min_t) / (spec.br_max_t + spec.br_min_t) * 100.0;
+    let alpha_tol = (spec.alpha_max - spec.alpha_min).abs() / 2.0;
+    let checks = [
+        Check {
+            what: "field against the master".into(),
+            outcome: judge(ratio, 2.0 * u_ratio, -br_tol, br_tol),
+            reason: String::new(),
+        },
+        Check {
+            what: "α against the master".into(),
+            outcome: judge(d_alpha, 2.0 * u_alpha, -alpha_tol, alpha_tol),
+            reason: String::new(),
+        },
+    ];
+    Some(AgainstMaster {
+        id: info.id.clone(),
+        b20_vs_master_pct: ratio,
+        b20_u95_pct: 2.0 * u_ratio,
+        alpha_diff: d_alpha,
+        alpha_u95: 2.0 * u_alpha,
+        outcome: overall(&checks),
+        reason: format!(
+            "field {ratio:+.2} ± {:.2} % of the master's (window ±{br_tol:.2} %), α {d_alpha:+.4} ± {:.4} %/°C from it (window ±{alpha_tol:.4})",
+            2.0 * u_ratio,
+            2.0 * u_alpha
+        ),
+    })
+}
+
+/// The comparison as CSV.
+pub fn to_csv(rows: &[AgainstMaster]) -> String {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    for r in rows {
+        let _ = w.serialize(CsvRow {
+            id: &r.id,
+            b20_vs_master_pct: format!("{:.3}", r.b20_vs_master_pct),
+            b20_u95_pct: format!("{:.3}", r.b20_u95_pct),
+            alpha_vs_master: format!("{:.5}", r.alpha_diff),
+            alpha_u95: format!("{:.5}", r.alpha_u95),
+            outcome: r.outcome.word(),
+        });
+    }
+    String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
+}
+
+#[derive(Serialize)]
+struct CsvRow<'a> {
+    id: &'a str,
+    b20_vs_master_pct: String,
+    b20_u95_pct: String,
+    #[serde(rename = "alpha_vs_master_pct_per_C")]
+    alpha_vs_master: String,
+    #[serde(rename = "alpha_u95_pct_per_C")]
+    alpha_u95: String,
+    outcome: &'static str,
+}
