@@ -65,6 +65,8 @@ pub struct Reading {
     pub temp_c: f64,
     /// Device time, s.
     pub time_s: f64,
+    /// Read on a bench without a valid calibration (`--uncalibrated`).
+    pub uncalibrated: bool,
 }
 
 /// The link may be silent this much longer than the idle timeout before it counts as lost.
@@ -94,11 +96,11 @@ pub fn run<P: Read + Write>(
 ) -> Result<Vec<Reading>, LinkError> {
     let (mut acq, hello, _) =
         Acquisition::connect(port, opts.calibration, opts.idle_timeout + SILENCE_MARGIN)?;
-    if opts
-        .policy
-        .accept(&hello, &opts.calibration, crate::calibration::Stamp::now())?
-        == crate::calibration_policy::Basis::Uncalibrated
-    {
+    let uncalibrated =
+        opts.policy
+            .accept(&hello, &opts.calibration, crate::calibration::Stamp::now())?
+            == crate::calibration_policy::Basis::Uncalibrated;
+    if uncalibrated {
         progress.note("UNCALIBRATED: readings from a bench without a valid calibration, as asked");
     }
     let mut window: Vec<(f64, f64, f64)> = Vec::new();
@@ -169,6 +171,7 @@ pub fn run<P: Read + Write>(
                     rel_sd,
                     temp_c,
                     time_s: now,
+                    uncalibrated,
                 };
                 progress.reading(&r);
                 readings.push(r);
@@ -237,6 +240,7 @@ pub fn to_csv(ranked: &[Ranked]) -> String {
             temp: format!("{:.2}", r.reading.temp_c),
             rel_sd: format!("{:.6}", r.reading.rel_sd),
             low: u8::from(r.low),
+            uncalibrated: u8::from(r.reading.uncalibrated),
         });
     }
     String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
@@ -255,4 +259,5 @@ struct CsvRow {
     temp: String,
     rel_sd: String,
     low: u8,
+    uncalibrated: u8,
 }

@@ -58,7 +58,18 @@ fn record_part(
     magnet: Magnet,
     id: &str,
 ) -> std::path::PathBuf {
-    let mut info = magnets::resolve("RM-N42SH-D10x5").unwrap().info;
+    record_as(dir, params, magnet, id, "RM-N42SH-D10x5")
+}
+
+/// Record `magnet` stating itself as the demo part `as_part`, under `id`.
+fn record_as(
+    dir: &std::path::Path,
+    params: RigParams,
+    magnet: Magnet,
+    id: &str,
+    as_part: &str,
+) -> std::path::PathBuf {
+    let mut info = magnets::resolve(as_part).unwrap().info;
     info.id = id.into();
     let mut opts = VirtualRigOptions::new(magnet);
     opts.params = params;
@@ -188,4 +199,30 @@ fn a_lot_is_judged_against_a_master_sample_of_its_grade() {
     assert_eq!(g.outcome, Outcome::Pass, "{}", g.reason);
     assert_eq!(by("weak").outcome, Outcome::Fail);
     assert!(dir.path().join("lot").join("master.csv").is_file());
+}
+
+#[test]
+fn loss_from_a_test_run_above_the_rating_is_exposure_loss_not_damage() {
+    // an N42 rated to 80 °C taken to 95 °C on purpose
+    let n42 = magnets::resolve("RM-N42-D10x5").unwrap().model.unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let run = record_as(dir.path(), RigParams::REFERENCE, n42, "n42", "RM-N42-D10x5");
+    let (_, a) = load_and_analyze(&InputRequest {
+        input: run,
+        ..Default::default()
+    })
+    .unwrap();
+    let loss = a.irreversible_loss_pct.unwrap();
+    assert!(loss > 0.3, "it lost {loss} %");
+    assert!(!a.heat_damaged);
+    assert!(
+        a.checks.iter().all(|c| c.what != "irreversible loss"),
+        "{:#?}",
+        a.checks
+    );
+    assert!(
+        a.notes.iter().any(|n| n.starts_with("exposure loss")),
+        "{:#?}",
+        a.notes
+    );
 }
