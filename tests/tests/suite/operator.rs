@@ -198,7 +198,12 @@ fn every_file_format_example_in_the_notes_is_accepted() {
     let s = remanent::specs::SpecTable::load(&write("s.toml", &blocks[2])).unwrap();
     assert_eq!(s.find("n42sh").unwrap().alpha_min, -0.125);
     let cal = write("c.toml", &toml_blocks("calibration.md")[0]);
-    remanent::calibration::Calibration::load(&cal).unwrap();
+    let cal = remanent::calibration::Calibration::load(&cal).unwrap();
+    assert!(cal.dates.required().iter().all(|d| d.1.is_some()));
+    // the reference magnet's file, with its certified Br
+    let r = write("r.toml", &toml_blocks("calibration.md")[1]);
+    let r = remanent::magnets::resolve(r.to_str().unwrap()).unwrap();
+    assert_eq!(r.info.reference.map(|x| x.br_t), Some(1.3148));
     // a misspelt key is named with its line, and every missing key at once
     let bad = blocks[1].replace("hold_s = 240", "hold_sec = 240");
     let e = remanent::profiles::ProfileSpec::resolve(write("bad.toml", &bad).to_str().unwrap())
