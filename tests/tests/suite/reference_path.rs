@@ -226,3 +226,28 @@ fn loss_from_a_test_run_above_the_rating_is_exposure_loss_not_damage() {
         a.notes
     );
 }
+
+#[test]
+fn a_part_that_loses_flux_within_its_rating_fails_as_heat_damaged() {
+    // sold as N42SH (rated 150 °C) but behaving like N42 (loses flux above about 85 °C)
+    let n42 = magnets::resolve("RM-N42-D10x5").unwrap().model.unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let run = record_as(
+        dir.path(),
+        RigParams::REFERENCE,
+        n42,
+        "fake",
+        "RM-N42SH-D10x5",
+    );
+    let (_, a) = load_and_analyze(&InputRequest {
+        input: run,
+        ..Default::default()
+    })
+    .unwrap();
+    assert!(a.heat_damaged, "{:#?}", a.notes);
+    assert_eq!(a.verdict, Outcome::Fail);
+    assert!(a
+        .checks
+        .iter()
+        .any(|c| c.what == "irreversible loss" && c.outcome == Outcome::Fail));
+}
