@@ -204,11 +204,18 @@ pub struct Reference {
     pub shape: Shape,
     /// Its α, %/°C, to refer the reading to 20 °C.
     pub alpha_pct_per_c: f64,
+    /// The standoff's length, mm, and expansion coefficient, 1/K, as measured (None: keep the
+    /// calibration's).
+    pub standoff: Option<(f64, f64)>,
 }
 
 /// The gap: the field of a reference magnet of known Br in the fixture, read with the
 /// calibrated probe, and the distance at which its shape gives that field.
 pub fn gap(cal: &mut Calibration, w: &[Raw], r: &Reference) -> Option<Found> {
+    if let Some((len, cte)) = r.standoff {
+        cal.gap.standoff.standoff_mm = len;
+        cal.gap.standoff.standoff_cte_per_k = cte;
+    }
     let h = cal.hall;
     let b: Vec<f64> = w
         .iter()

@@ -77,6 +77,12 @@ pub struct Args {
     /// The reference magnet (demo part id or a magnet file with a [reference] Br).
     #[arg(long)]
     reference: Option<String>,
+    /// Gap step: the standoff's length as measured, mm (default: keep the calibration's).
+    #[arg(long)]
+    standoff_mm: Option<f64>,
+    /// Gap step: the standoff material's expansion coefficient, 1/K.
+    #[arg(long, requires = "standoff_mm")]
+    standoff_cte_per_k: Option<f64>,
 }
 
 struct Live {
@@ -111,10 +117,17 @@ fn reference(a: &Args) -> anyhow::Result<Reference> {
         (None, None) => anyhow::bail!("{id} has no [reference] section with its certified Br"),
     };
     let alpha = m.model.map_or(-0.11, |x| x.alpha_pct_per_c);
+    let nominal = remanent_rig_model::RigParams::REFERENCE.hall.standoff;
     Ok(Reference {
         br_t: (br, u),
         shape: m.info.shape,
         alpha_pct_per_c: alpha,
+        standoff: a.standoff_mm.map(|l| {
+            (
+                l,
+                a.standoff_cte_per_k.unwrap_or(nominal.standoff_cte_per_k),
+            )
+        }),
     })
 }
 

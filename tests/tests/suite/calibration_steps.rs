@@ -71,6 +71,7 @@ fn each_step_recovers_the_virtual_rig_s_truth_within_its_uncertainty() {
         br_t: (part.br_20_t, 0.004),
         shape: part.shape,
         alpha_pct_per_c: part.alpha_pct_per_c,
+        standoff: Some((20.0, 9.3e-6)),
     };
     for step in [
         Step::Zero,
