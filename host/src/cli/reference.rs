@@ -55,6 +55,11 @@ impl SurveyProgress for Print {
 pub fn measure(a: &Args) -> anyhow::Result<FixtureReference> {
     remanent::output::refuse_existing([a.out.clone()], a.force.force)?;
     let magnet = remanent::magnets::resolve(&a.magnet)?;
+    if magnet.info.reference.is_none() {
+        return Err(
+            remanent::jobs::reference::ReferenceJobError::NotAReference(magnet.info.id).into(),
+        );
+    }
     let policy = a.calibration.policy();
     let cal = policy.provisional()?;
     let confirm = a.confirm.then(|| {

@@ -31,6 +31,12 @@ pub fn markdown(a: &Analysis, meta: Option<&RunMeta>, title: &str) -> String {
             let _ = writeln!(s, "| {src} | {k} | {u} |");
         }
     }
+    if !a.br_budget.is_empty() {
+        let _ = writeln!(s, "\n## Uncertainty budget of Br (relative %, standard uncertainties)\n\n| source | type | u |\n|---|---|---|");
+        for (src, k, u) in budget_rows(&a.br_budget) {
+            let _ = writeln!(s, "| {src} | {k} | {u} |");
+        }
+    }
     let _ = writeln!(s, "\n## Plots\n\n![flux against temperature](flux_vs_temp.png)\n\n![residuals](residuals.png)\n\n![time series](timeline.png)\n");
     let _ = writeln!(s, "## Method\n");
     for n in METHOD_NOTES {

@@ -97,6 +97,7 @@ pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure
     for (name, lines) in [
         ("α (%/°C)", &a.alpha_budget),
         ("irreversible loss (%)", &a.loss_budget),
+        ("Br (relative, %)", &a.br_budget),
     ] {
         if lines.is_empty() {
             continue;
