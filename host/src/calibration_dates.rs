@@ -4,7 +4,7 @@
 
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
-use crate::analysis::clock;
+use crate::clock;
 
 /// A moment, seconds since 1970 UTC.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
@@ -29,7 +29,7 @@ impl Stamp {
 
 impl std::fmt::Display for Stamp {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(&crate::run_dir::format_utc(self.0))
+        f.write_str(&clock::format_utc(self.0))
     }
 }
 

@@ -3,10 +3,8 @@
 //! once, and messages stay short however long the offending line (the formats and a tested
 //! example of each are in `hardware-notes/file-formats.md`).
 
-use std::collections::BTreeMap;
-
-/// Longest message a format error gives, characters.
-pub const MAX_MESSAGE_CHARS: usize = 400;
+pub use crate::values::{bounded, MAX_MESSAGE_CHARS};
+use crate::values::{key_lines, Rule};
 
 /// Which file.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -147,15 +145,6 @@ const CALIBRATION_OPTIONAL_KEYS: &[&str] = &[
     "dates.*",
 ];
 
-/// Cut a message to [`MAX_MESSAGE_CHARS`].
-pub fn bounded(msg: &str) -> String {
-    if msg.chars().count() <= MAX_MESSAGE_CHARS {
-        return msg.to_string();
-    }
-    let cut: String = msg.chars().take(MAX_MESSAGE_CHARS).collect();
-    format!("{cut}… (message cut)")
-}
-
 /// Every key of a parsed table, as dotted paths (`segment[].hold_s` for arrays of tables).
 fn walk(t: &toml::Table, prefix: &str, out: &mut Vec<String>) {
     for (k, v) in t {
@@ -179,36 +168,58 @@ fn walk(t: &toml::Table, prefix: &str, out: &mut Vec<String>) {
     }
 }
 
-/// The line of each key (1-based), from the headers and `key =` lines.
-pub(crate) fn key_lines(text: &str) -> BTreeMap<String, usize> {
-    let mut out = BTreeMap::new();
-    let mut section = String::new();
-    for (n, line) in text.lines().enumerate() {
-        let l = line.trim();
-        if let Some(h) = l.strip_prefix("[[").and_then(|h| h.split("]]").next()) {
-            section = format!("{}[]", h.trim());
-            out.entry(h.trim().to_string()).or_insert(n + 1);
-        } else if let Some(h) = l.strip_prefix('[').and_then(|h| h.split(']').next()) {
-            section = h.trim().to_string();
-            out.entry(section.clone()).or_insert(n + 1);
-        } else if let Some((k, _)) = l.split_once('=') {
-            let k = k.trim().trim_matches('"');
-            let path = if section.is_empty() {
-                k.to_string()
-            } else {
-                format!("{section}.{k}")
-            };
-            out.entry(path).or_insert(n + 1);
-        }
-    }
-    out
-}
-
 fn allowed(keys: &Keys, path: &str) -> bool {
     keys.allowed.iter().any(|a| match a.strip_suffix(".*") {
         Some(prefix) => path.starts_with(&format!("{prefix}.")),
         None => *a == path,
     })
+}
+
+use Rule::{NonNegative as NonNeg, Positive as Pos};
+
+/// Keys with more than "finite" to satisfy; every other number must be finite.
+fn rules(kind: Kind) -> &'static [(&'static str, Rule)] {
+    match kind {
+        Kind::Calibration => &[
+            ("hall.sensitivity_mv_per_mt", Pos),
+            ("hall.sensitivity_tc_u_pct_per_c", NonNeg),
+            ("hall.offset_tc_u_mv_per_c", NonNeg),
+            ("hall.full_scale_mv", Pos),
+            ("gap.gap_mm", Pos),
+            ("gap.gap_u_mm", NonNeg),
+            ("gap.standoff_mm", NonNeg),
+            ("gap.standoff_cte_u_per_k", NonNeg),
+            ("ntc.r25_ohm", Pos),
+            ("ntc.beta_k", Pos),
+            ("ntc.series_ohm", Pos),
+            ("ntc.supply_mv", Pos),
+            ("ntc.full_scale_mv", Pos),
+            ("thermocouple.gain_tolerance_pct", NonNeg),
+            ("thermocouple.offset_u_c", NonNeg),
+            ("hall.offset_u_mv", NonNeg),
+            ("hall.sensitivity_u_pct", NonNeg),
+        ],
+        Kind::Magnet => &[
+            ("shape.cylinder.diameter_mm", Pos),
+            ("shape.cylinder.length_mm", Pos),
+            ("shape.block.a_mm", Pos),
+            ("shape.block.b_mm", Pos),
+            ("shape.block.length_mm", Pos),
+            ("reference.br_T", Pos),
+            ("reference.br_u_T", Pos),
+        ],
+        Kind::Profile => &[
+            ("segment[].ramp_C_per_min", NonNeg),
+            ("segment[].hold_s", NonNeg),
+        ],
+        Kind::Specs => &[("grade[].br_min_T", NonNeg), ("grade[].br_max_T", Pos)],
+    }
+}
+
+/// The numbers of `text` (a file of `kind`, its keys under `prefix`) checked: NaN, infinity,
+/// and values a key cannot take, each with its line.
+pub fn check_numbers(kind: Kind, text: &str, prefix: &str) -> Result<(), String> {
+    crate::values::check(rules(kind), text, prefix)
 }
 
 /// Check `text` as a file of `kind`: parses, no unknown keys, no missing required ones.
@@ -248,7 +259,7 @@ pub fn check(kind: Kind, text: &str) -> Result<(), String> {
         problems.push(format!("missing: {}", missing.join(", ")));
     }
     if problems.is_empty() {
-        crate::values::check(kind, text, "")
+        check_numbers(kind, text, "")
     } else {
         Err(bounded(&problems.join("; ")))
     }

@@ -9,6 +9,7 @@ pub mod calibration;
 pub mod calibration_dates;
 pub mod calibration_policy;
 pub mod clear_fault;
+pub mod clock;
 pub mod conversion;
 pub mod drill;
 pub mod fixture_ref;

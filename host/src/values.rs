@@ -1,12 +1,50 @@
 //! Numbers in the user's TOML files that cannot be true — NaN or infinity anywhere, a zero or
 //! negative sensitivity, a negative gap, a zero Beta — refused with the line and the key, before
-//! anything is converted or judged with them.
+//! anything is converted or judged with them; and the text helpers every TOML problem uses
+//! (the line of each key, messages kept short). Which key takes which rule is `formats`'.
 
-use crate::formats::{bounded, key_lines, Kind};
+use std::collections::BTreeMap;
+
+/// Longest message a format error gives, characters.
+pub const MAX_MESSAGE_CHARS: usize = 400;
+
+/// Cut a message to [`MAX_MESSAGE_CHARS`].
+pub fn bounded(msg: &str) -> String {
+    if msg.chars().count() <= MAX_MESSAGE_CHARS {
+        return msg.to_string();
+    }
+    let cut: String = msg.chars().take(MAX_MESSAGE_CHARS).collect();
+    format!("{cut}… (message cut)")
+}
+
+/// The line of each key (1-based), from the headers and `key =` lines.
+pub fn key_lines(text: &str) -> BTreeMap<String, usize> {
+    let mut out = BTreeMap::new();
+    let mut section = String::new();
+    for (n, line) in text.lines().enumerate() {
+        let l = line.trim();
+        if let Some(h) = l.strip_prefix("[[").and_then(|h| h.split("]]").next()) {
+            section = format!("{}[]", h.trim());
+            out.entry(h.trim().to_string()).or_insert(n + 1);
+        } else if let Some(h) = l.strip_prefix('[').and_then(|h| h.split(']').next()) {
+            section = h.trim().to_string();
+            out.entry(section.clone()).or_insert(n + 1);
+        } else if let Some((k, _)) = l.split_once('=') {
+            let k = k.trim().trim_matches('"');
+            let path = if section.is_empty() {
+                k.to_string()
+            } else {
+                format!("{section}.{k}")
+            };
+            out.entry(path).or_insert(n + 1);
+        }
+    }
+    out
+}
 
 /// What a number must be.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
-enum Rule {
+pub enum Rule {
     /// Any finite value.
     Finite,
     /// Above zero.
@@ -31,47 +69,6 @@ impl Rule {
             Rule::Positive => "a finite number above zero",
             Rule::NonNegative => "a finite number, zero or above",
         }
-    }
-}
-
-use Rule::{NonNegative as NonNeg, Positive as Pos};
-
-/// Keys with more than "finite" to satisfy; every other number must be finite.
-fn rules(kind: Kind) -> &'static [(&'static str, Rule)] {
-    match kind {
-        Kind::Calibration => &[
-            ("hall.sensitivity_mv_per_mt", Pos),
-            ("hall.sensitivity_tc_u_pct_per_c", NonNeg),
-            ("hall.offset_tc_u_mv_per_c", NonNeg),
-            ("hall.full_scale_mv", Pos),
-            ("gap.gap_mm", Pos),
-            ("gap.gap_u_mm", NonNeg),
-            ("gap.standoff_mm", NonNeg),
-            ("gap.standoff_cte_u_per_k", NonNeg),
-            ("ntc.r25_ohm", Pos),
-            ("ntc.beta_k", Pos),
-            ("ntc.series_ohm", Pos),
-            ("ntc.supply_mv", Pos),
-            ("ntc.full_scale_mv", Pos),
-            ("thermocouple.gain_tolerance_pct", NonNeg),
-            ("thermocouple.offset_u_c", NonNeg),
-            ("hall.offset_u_mv", NonNeg),
-            ("hall.sensitivity_u_pct", NonNeg),
-        ],
-        Kind::Magnet => &[
-            ("shape.cylinder.diameter_mm", Pos),
-            ("shape.cylinder.length_mm", Pos),
-            ("shape.block.a_mm", Pos),
-            ("shape.block.b_mm", Pos),
-            ("shape.block.length_mm", Pos),
-            ("reference.br_T", Pos),
-            ("reference.br_u_T", Pos),
-        ],
-        Kind::Profile => &[
-            ("segment[].ramp_C_per_min", NonNeg),
-            ("segment[].hold_s", NonNeg),
-        ],
-        Kind::Specs => &[("grade[].br_min_T", NonNeg), ("grade[].br_max_T", Pos)],
     }
 }
 
@@ -101,10 +98,11 @@ fn numbers(t: &toml::Table, prefix: &str, out: &mut Vec<(String, f64)>) {
     }
 }
 
-/// Check the numbers of `text`, a file of `kind` whose keys sit under `prefix` (empty for the
-/// file itself; `calibration` for the calibration inside a run's metadata). Every problem is
-/// named with its line.
-pub fn check(kind: Kind, text: &str, prefix: &str) -> Result<(), String> {
+/// Check the numbers of `text` against `rules` (keys with more than "finite" to satisfy; every
+/// other number must be finite); the keys sit under `prefix` (empty for the file itself;
+/// `calibration` for the calibration inside a run's metadata). Every problem is named with its
+/// line.
+pub fn check(rules: &[(&str, Rule)], text: &str, prefix: &str) -> Result<(), String> {
     let table: toml::Table = text
         .parse()
         .map_err(|e: toml::de::Error| bounded(&e.to_string()))?;
@@ -120,7 +118,7 @@ pub fn check(kind: Kind, text: &str, prefix: &str) -> Result<(), String> {
     let lines = key_lines(text);
     let mut problems = Vec::new();
     for (path, v) in found {
-        let rule = rules(kind)
+        let rule = rules
             .iter()
             .find(|(k, _)| *k == path)
             .map_or(Rule::Finite, |r| r.1);
@@ -146,12 +144,11 @@ pub fn check(kind: Kind, text: &str, prefix: &str) -> Result<(), String> {
 
 #[cfg(test)]
 mod tests {
-    use super::*;
-
     #[test]
     fn nan_zero_and_negative_values_are_named_with_their_lines() {
         let text = "[hall]\nsensitivity_mv_per_mt = 0.0\noffset_mv = nan\n[gap]\ngap_mm = -1.0\n[ntc]\nbeta_k = 0\n";
-        let e = check(Kind::Calibration, text, "").unwrap_err();
+        let e =
+            crate::formats::check_numbers(crate::formats::Kind::Calibration, text, "").unwrap_err();
         assert!(
             e.contains(
                 "`hall.sensitivity_mv_per_mt` = 0 (line 2) must be a finite number above zero"
@@ -166,15 +163,21 @@ mod tests {
     #[test]
     fn a_prefix_checks_the_table_inside_a_run_record() {
         let text = "software = \"x\"\n[magnet]\nmax_working_C = inf\n";
-        let e = check(Kind::Magnet, text, "magnet").unwrap_err();
+        let e = crate::formats::check_numbers(crate::formats::Kind::Magnet, text, "magnet")
+            .unwrap_err();
         assert!(e.contains("`magnet.max_working_C` = inf (line 3)"), "{e}");
-        assert!(check(Kind::Magnet, "[magnet]\nmax_working_C = 80.0\n", "magnet").is_ok());
+        assert!(crate::formats::check_numbers(
+            crate::formats::Kind::Magnet,
+            "[magnet]\nmax_working_C = 80.0\n",
+            "magnet"
+        )
+        .is_ok());
     }
 
     #[test]
     fn array_entries_are_checked() {
         let text = "name = \"p\"\n[[segment]]\ntarget_C = 50.0\nhold_s = -5\n";
-        let e = check(Kind::Profile, text, "").unwrap_err();
+        let e = crate::formats::check_numbers(crate::formats::Kind::Profile, text, "").unwrap_err();
         assert!(e.contains("`segment[].hold_s` = -5"), "{e}");
     }
 }

@@ -2,7 +2,7 @@
 //! robust rule (a Hampel filter: the median and median absolute deviation of the neighbours),
 //! and what the loader left out put into words for the report.
 
-use super::dataset::Series;
+use super::series::Series;
 
 /// Neighbours each side that judge a reading.
 pub const SPIKE_HALF_WINDOW: usize = 3;

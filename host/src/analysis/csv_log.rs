@@ -8,9 +8,9 @@ use std::fs::File;
 use std::io::{BufRead, BufReader};
 use std::path::Path;
 
-use super::clock;
 use super::csv_cells::{parse_cell, spans, Cell};
-use super::dataset::{InputError, Series, MIN_ROWS};
+use super::series::{InputError, Series, MIN_ROWS};
+use crate::clock;
 
 /// Options for plain CSV logs.
 #[derive(Debug, Clone, Default)]

@@ -5,7 +5,7 @@
 use std::ops::Range;
 
 use super::dataset::Series;
-use super::pipeline::MIN_SPAN_K;
+use super::segments::MIN_SPAN_K;
 
 /// A cycle has ended once the temperature is back below the start plus this fraction of its
 /// excursion (and half the smallest span worth fitting).

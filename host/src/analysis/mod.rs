@@ -12,8 +12,8 @@
 pub mod alpha;
 pub mod blocks;
 pub mod branch_loss;
+pub mod branch_ratio;
 pub mod clean;
-pub mod clock;
 pub mod csv_cells;
 pub mod csv_log;
 pub mod curie;
@@ -31,6 +31,7 @@ pub mod model;
 pub mod prepare;
 pub mod result;
 pub mod segments;
+pub mod series;
 pub mod summary;
 pub mod verdict;
 
@@ -38,5 +39,6 @@ pub mod context;
 pub mod pipeline;
 
 pub use context::{AnalysisError, Context};
-pub use pipeline::{analyze, MIN_SPAN_K};
+pub use pipeline::analyze;
 pub use result::{Analysis, BudgetLine, CycleResult, Traces};
+pub use segments::MIN_SPAN_K;

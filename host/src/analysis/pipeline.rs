@@ -4,13 +4,12 @@ use super::context::{AnalysisError, Context};
 use super::dataset::Series;
 use super::prepare::{Prepared, LOSSY};
 use super::result::{Analysis, CycleResult, Traces};
+use super::segments::MIN_SPAN_K;
 use super::{
-    alpha, branch_loss, clean, curie, cycles, fit_data, judge, lag_estimate, loss, model, prepare,
-    segments, verdict,
+    alpha, branch_loss, branch_ratio, clean, curie, cycles, fit_data, judge, lag_estimate, loss,
+    model, segments, verdict,
 };
 
-/// The temperature span below which α is not worth reporting, K.
-pub const MIN_SPAN_K: f64 = 15.0;
 /// A probe that came back more than this far from where it started is noted, K.
 pub const PROBE_RETURN_K: f64 = 2.0;
 
@@ -235,7 +234,7 @@ fn with_branch_loss(
             if let Some(l) = &l {
                 notes.push(format!(
                     "the record does not return to a settled temperature, but the heating and cooling branches disagree at the same magnet temperature: the loss is seen between the branches ({:.2} % at the same temperature below {:.0} °C)",
-                    l.loss_pct, l.ref_c[0] + prepare::LOSSY_COMPARE_FRACTION * (lagged.tm[lagged.seg.peak] - l.ref_c[0])
+                    l.loss_pct, l.ref_c[0] + branch_ratio::LOSSY_COMPARE_FRACTION * (lagged.tm[lagged.seg.peak] - l.ref_c[0])
                 ));
             }
             l.ok_or(loss::NoLoss::NoReturn)

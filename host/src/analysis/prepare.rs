@@ -3,6 +3,7 @@
 
 use remanent_physics::standoff;
 
+use super::branch_ratio::LOSSY_COMPARE_FRACTION;
 use super::context::Context;
 use super::dataset::Series;
 use super::lag;
@@ -15,10 +16,6 @@ pub const LAG_SEARCH_POINTS: usize = 20_000;
 /// Above this irreversible loss (fraction) α is fitted on the cooling branch alone: the
 /// heating branch then mixes reversible and irreversible change.
 pub const LOSSY: f64 = 0.001;
-
-/// After a loss above [`LOSSY`] the branches are compared only in the lower part of the
-/// excursion, below this fraction of it, where the heating branch had not begun to lose …
-pub const LOSSY_COMPARE_FRACTION: f64 = 0.5;
 
 /// A magnet losing more than this (fraction) was losing flux during the top soak …
 pub const TOP_SOAK_LOSS: f64 = 0.0005;
@@ -140,14 +137,14 @@ impl<'a> Prepared<'a> {
     pub fn lag_cost_profiled(&self, tau: f64, seg: &Segments) -> (f64, f64) {
         let tm = lag::lagged(&self.time_dec, &self.temp_dec, tau);
         let (h0, pk) = (seg.heating.start / self.stride, seg.peak / self.stride);
-        let loss = super::branch_loss::ratios_on(
+        let loss = super::branch_ratio::ratios_on(
             &tm,
             |k| self.flux[k * self.stride],
             h0..pk,
             pk..tm.len(),
             1,
         )
-        .map(|r| super::branch_loss::from_ratios(&r).max(0.0))
+        .map(|r| super::branch_ratio::from_ratios(&r).max(0.0))
         .unwrap_or(0.0);
         (self.cost_with(&tm, seg, loss), loss)
     }

@@ -6,8 +6,7 @@ use std::sync::mpsc::Receiver;
 use remanent_physics::boiling;
 use remanent_rig_model::{Magnet, Scene};
 
-use super::steps::Pressure;
-use super::Step;
+use super::steps::{Pressure, Step};
 use crate::virtual_rig::SceneControl;
 
 /// Puts the sensors where a step needs them.

@@ -258,3 +258,42 @@ pub fn gap(cal: &mut Calibration, w: &[Raw], r: &Reference) -> Option<Found> {
         warning: None,
     })
 }
+
+/// One calibration step.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Step {
+    /// The probe's zero in a zero-field can.
+    Zero,
+    /// The zero's drift: the probe warmed alone in the can.
+    OffsetDrift,
+    /// The sensitivity at the centre of a coil.
+    Sensitivity(Coil),
+    /// The sensitivity's coefficient: the probe warmed alone in the coil.
+    ProbeTc(Coil),
+    /// The thermocouple at the ice point.
+    IcePoint,
+    /// The thermocouple in boiling water at a pressure.
+    BoilingPoint(Pressure),
+    /// The gap, from a reference magnet in the fixture.
+    Gap(Reference),
+}
+
+impl Step {
+    /// What the person at the bench does before the step reads.
+    pub fn instructions(&self) -> &'static str {
+        match self {
+            Step::Zero => "put the Hall probe in the closed zero-field (mu-metal) can, away from steel and magnets",
+            Step::OffsetDrift => "keep the probe in the zero-field can and warm the probe alone (the resistor on its standoff) by 20–30 K; the step reads for the whole warming",
+            Step::Sensitivity(_) => "put the probe at the centre of the coil pair, its axis along the coils', and drive the measured current",
+            Step::ProbeTc(_) => "keep the probe at the coil's centre with the same current and warm the probe alone by 20–30 K; the step reads for the whole warming",
+            Step::IcePoint => "put the thermocouple at least 10 cm deep in a stirred slush of crushed ice and clean water",
+            Step::BoilingPoint(_) => "put the thermocouple in rolling-boiling water, not touching the pot (boiling water and steam scald: use a stable pot and keep hands clear)",
+            Step::Gap(_) => "clamp the reference magnet in the fixture at room temperature with the heater off",
+        }
+    }
+
+    /// Whether the step reads over a warming rather than a still window.
+    pub fn warming(&self) -> bool {
+        matches!(self, Step::OffsetDrift | Step::ProbeTc(_))
+    }
+}

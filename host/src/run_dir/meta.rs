@@ -169,7 +169,7 @@ pub fn read_meta(dir: &Path) -> Result<RunMeta, RunDirError> {
         reason,
     };
     for (kind, table) in [(Kind::Calibration, "calibration"), (Kind::Magnet, "magnet")] {
-        crate::values::check(kind, &text, table).map_err(meta_err)?;
+        crate::formats::check_numbers(kind, &text, table).map_err(meta_err)?;
     }
     toml::from_str(&text).map_err(|e| meta_err(e.to_string()))
 }
@@ -183,26 +183,7 @@ pub fn utc_now() -> String {
     format_utc(secs)
 }
 
-/// Seconds since 1970 as RFC 3339 UTC (civil-from-days, Howard Hinnant's algorithm).
-pub fn format_utc(secs: u64) -> String {
-    let days = (secs / 86_400) as i64;
-    let rem = secs % 86_400;
-    let z = days + 719_468;
-    let era = z.div_euclid(146_097);
-    let doe = z - era * 146_097;
-    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
-    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
-    let mp = (5 * doy + 2) / 153;
-    let d = doy - (153 * mp + 2) / 5 + 1;
-    let m = if mp < 10 { mp + 3 } else { mp - 9 };
-    let y = yoe + era * 400 + i64::from(m <= 2);
-    format!(
-        "{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z",
-        rem / 3600,
-        rem % 3600 / 60,
-        rem % 60
-    )
-}
+pub use crate::clock::format_utc;
 
 #[cfg(test)]
 mod tests {

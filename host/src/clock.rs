@@ -1,6 +1,6 @@
-//! Clock timestamps in loggers' files — `14:22:05.250`, `2026-11-03 14:22:05`,
-//! `2026-11-03T14:22:05.5Z` — made seconds since the first row, across midnight for a clock
-//! that shows the time of day only.
+//! Time as text: clock timestamps in loggers' files — `14:22:05.250`, `2026-11-03 14:22:05`,
+//! `2026-11-03T14:22:05.5Z` — made seconds since the first row (across midnight for a clock
+//! that shows the time of day only), and seconds since 1970 written as RFC 3339 UTC.
 
 /// Seconds since the first timestamp seen.
 #[derive(Debug, Default)]
@@ -78,6 +78,27 @@ fn days_from_civil(d: &str) -> Option<i64> {
     let doy = (153 * mp + 2) / 5 + day - 1;
     let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
     Some(era * 146_097 + doe - 719_468)
+}
+
+/// Seconds since 1970 as RFC 3339 UTC (civil-from-days, Howard Hinnant's algorithm).
+pub fn format_utc(secs: u64) -> String {
+    let days = (secs / 86_400) as i64;
+    let rem = secs % 86_400;
+    let z = days + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = doy - (153 * mp + 2) / 5 + 1;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 };
+    let y = yoe + era * 400 + i64::from(m <= 2);
+    format!(
+        "{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z",
+        rem / 3600,
+        rem % 3600 / 60,
+        rem % 60
+    )
 }
 
 #[cfg(test)]
