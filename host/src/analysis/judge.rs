@@ -69,9 +69,16 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
                 "Br referred to the fixture's reference magnet {} (certified {:.4} ± {:.4} T, {}): the gap cancels",
                 r.magnet, r.br_t, r.br_u_t, r.source
             ));
+            // the part's own fit is statistics (type A); the rest is other knowledge
             br_budget = budget
                 .into_iter()
-                .map(|(s, u)| BudgetLine::b(s, u))
+                .map(|(s, u)| {
+                    if s.contains("(fit)") {
+                        BudgetLine::a(s, u)
+                    } else {
+                        BudgetLine::b(s, u)
+                    }
+                })
                 .collect();
             Some(est)
         }
