@@ -23,6 +23,10 @@ const IDLE_BEACONS_BEFORE_RESEND: u32 = 3;
 const RAMP_WINDOW_S: f64 = 30.0;
 /// Progress is shown this often.
 const PROGRESS_EVERY: Duration = Duration::from_millis(100);
+/// … or after this much device time, whichever comes first: a fast virtual rig runs minutes of
+/// device time in a tenth of a second, and its live status (and a stop decided on it) must
+/// not skip them, s.
+const PROGRESS_EVERY_DEVICE_S: f64 = 1.0;
 /// A stop is given this long to be acknowledged.
 const STOP_TIMEOUT: Duration = Duration::from_secs(3);
 /// After the end, a beacon to settle the last samples is waited for this long (one comes every
@@ -101,6 +105,7 @@ impl Recorder {
             ));
         }
         let mut last_update = Instant::now();
+        let mut last_update_device_s = acq.device_now_s();
         loop {
             if self.stop.load(Ordering::Relaxed) {
                 progress.note("stopping: heater off…");
@@ -128,9 +133,12 @@ impl Recorder {
                 self.send_start(acq, opts)?;
             }
             w.maybe_flush()?;
-            if last_update.elapsed() >= PROGRESS_EVERY {
+            if last_update.elapsed() >= PROGRESS_EVERY
+                || acq.device_now_s() - last_update_device_s >= PROGRESS_EVERY_DEVICE_S
+            {
                 progress.update(&self.status);
                 last_update = Instant::now();
+                last_update_device_s = acq.device_now_s();
             }
         }
     }
