@@ -236,3 +236,35 @@ fn a_sm2co17_part_fitted_to_200c_is_called_sm2co17() {
     );
     assert_eq!(a.material_family, "Sm2Co17");
 }
+
+#[test]
+fn a_loss_whose_reference_correction_would_swamp_it_is_refused_saying_by_how_much() {
+    // a noisy probe and a fixture left 25 K above where it started: bridging the two
+    // references with the fitted curve would carry more than the 0.1 % the loss is quoted to
+    let b = Bench {
+        flux_noise_mt: 2.0,
+        temp_noise_k: 0.3,
+        dt_s: 15.0,
+        ..Bench::default()
+    };
+    let (rows, _) = bm::run(
+        &b,
+        &NDFEB,
+        &bm::cycle(b.ambient_c, 110.0, b.ambient_c + 28.0, 4.0),
+    );
+    let a = analyse_rows(&rows);
+    assert!(
+        a.irreversible_loss_pct.is_none(),
+        "{:?}",
+        a.irreversible_loss_pct
+    );
+    let why = a
+        .notes
+        .iter()
+        .find(|n| n.contains("referring the two readings to one temperature"))
+        .unwrap_or_else(|| panic!("{:#?}", a.notes));
+    assert!(
+        why.contains("× too much") && why.contains("let the fixture cool further"),
+        "{why}"
+    );
+}
