@@ -112,4 +112,13 @@ mod tests {
     fn every_built_in_grade_names_a_known_family() {
         assert_eq!(SpecTable::builtin().check_families(), Ok(()));
     }
+
+    #[test]
+    fn built_in_sources_speak_to_the_user_not_of_project_notes() {
+        for g in SpecTable::builtin().grades {
+            for word in ["domain notes", "memory"] {
+                assert!(!g.source.contains(word), "{}: {}", g.grade, g.source);
+            }
+        }
+    }
 }

@@ -22,9 +22,20 @@ pub fn temp_c(t: f64) -> String {
     format!("{t:.1} °C")
 }
 
-/// A standard uncertainty in a budget table (in the budget's own unit).
+/// A standard uncertainty in a budget table (in the budget's own unit), to two significant
+/// digits: a small term reads `0.00016`, not `0.00000`; a negligible one `< 1e-6`.
 pub fn uncertainty(u: f64) -> String {
-    format!("{u:.5}")
+    if !u.is_finite() {
+        return format!("{u}");
+    }
+    if u == 0.0 {
+        return "0".into();
+    }
+    if u.abs() < 1e-6 {
+        return "< 1e-6".into();
+    }
+    let decimals = (1.0 - u.abs().log10().floor()).clamp(0.0, 7.0) as usize;
+    format!("{u:.decimals$}")
 }
 
 /// A count with its noun, singular or plural: `1 gap`, `3 gaps`.
@@ -45,5 +56,11 @@ mod tests {
         assert_eq!(range_c([21.26, 99.84]), "21.3 … 99.8 °C");
         assert_eq!(count(1, "gap", "gaps"), "1 gap");
         assert_eq!(count(0, "gap", "gaps"), "0 gaps");
+        // budget terms keep two significant digits however small
+        assert_eq!(uncertainty(0.000163), "0.00016");
+        assert_eq!(uncertainty(0.2), "0.20");
+        assert_eq!(uncertainty(0.0244), "0.024");
+        assert_eq!(uncertainty(1.5), "1.5");
+        assert_eq!(uncertainty(3e-9), "< 1e-6");
     }
 }

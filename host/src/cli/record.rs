@@ -81,13 +81,18 @@ pub fn record_with_bar(
 /// Print how the record ended; the exit code says whether it is complete.
 pub fn report_end(s: &RecordSummary) -> ExitCode {
     let c = &s.counts;
+    use remanent::units::count;
     println!(
-        "record {}: {} samples, {} gaps ({} samples missing), {} rejected frames, {} dropped on the device",
+        "record {}: {}, {} ({} missing), {}, {} dropped on the device",
         s.dir.display(),
-        c.samples,
-        c.gaps,
-        c.gap_samples,
-        c.frames_bad_crc + c.frames_bad_cobs + c.frames_other,
+        count(c.samples, "sample", "samples"),
+        count(c.gaps, "gap", "gaps"),
+        count(c.gap_samples, "sample", "samples"),
+        count(
+            c.frames_bad_crc + c.frames_bad_cobs + c.frames_other,
+            "rejected frame",
+            "rejected frames"
+        ),
         c.device_dropped
     );
     match &s.end {

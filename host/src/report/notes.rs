@@ -3,6 +3,7 @@
 
 use crate::analysis::BudgetLine;
 use crate::run_dir::RunMeta;
+use crate::units;
 
 /// Method notes shared by both formats.
 pub const METHOD_NOTES: [&str; 6] = [
@@ -50,13 +51,17 @@ pub fn facts(meta: Option<&RunMeta>) -> Vec<(String, String)> {
         ("end".into(), m.end_reason.clone().unwrap_or_default()),
         (
             "counts".into(),
-            format!(
-                "{} samples, {} gaps ({} missing), {} rejected frames",
-                m.counts.samples,
-                m.counts.gaps,
-                m.counts.gap_samples,
-                m.counts.frames_bad_crc + m.counts.frames_bad_cobs + m.counts.frames_other
-            ),
+            {
+                let c = &m.counts;
+                let rejected = c.frames_bad_crc + c.frames_bad_cobs + c.frames_other;
+                format!(
+                    "{}, {} ({} missing), {}",
+                    units::count(c.samples, "sample", "samples"),
+                    units::count(c.gaps, "gap", "gaps"),
+                    c.gap_samples,
+                    units::count(rejected, "rejected frame", "rejected frames")
+                )
+            },
         ),
         (
             "calibration".into(),
