@@ -18,6 +18,9 @@ pub struct FitData {
     pub b_mt: Vec<f64>,
     /// How they were chosen, in words for the report.
     pub method: &'static str,
+    /// The same as a stable code for machines: `heating_below_collapse`, `cooling_branch`,
+    /// `ramps` or `soak_points`.
+    pub code: &'static str,
 }
 
 /// Choose the points.
@@ -37,16 +40,22 @@ pub fn select(
             t_c: idx.iter().map(|&i| tm[i]).collect(),
             b_mt: idx.iter().map(|&i| p.flux[i]).collect(),
             method: "the heating branch below the collapse",
+            code: "heating_below_collapse",
         });
     }
     if lagged.tau_s.is_some() {
         let (t_c, b_mt) = p.fit_points(&lagged.seg, tm, lagged.loss);
-        let method = if lagged.loss > LOSSY {
-            "the lag-corrected cooling branch"
+        let (method, code) = if lagged.loss > LOSSY {
+            ("the lag-corrected cooling branch", "cooling_branch")
         } else {
-            "lag-corrected ramps"
+            ("lag-corrected ramps", "ramps")
         };
-        return Ok(FitData { t_c, b_mt, method });
+        return Ok(FitData {
+            t_c,
+            b_mt,
+            method,
+            code,
+        });
     }
     let mut t = Vec::new();
     let mut b = Vec::new();
@@ -65,5 +74,6 @@ pub fn select(
         t_c: t,
         b_mt: b,
         method: "soak points",
+        code: "soak_points",
     })
 }

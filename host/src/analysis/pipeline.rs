@@ -177,6 +177,8 @@ fn analyze_cycle(
         ));
     }
     Ok(Analysis {
+        schema_version: super::result::SCHEMA_VERSION,
+        provenance: Default::default(),
         alpha_pct_per_c: a.alpha,
         alpha_u95_pct_per_c: 2.0 * u_c,
         alpha_fit_se_pct_per_c: a.u_fit,
@@ -188,6 +190,7 @@ fn analyze_cycle(
         residual_sd_mt: a.fit.residual_sd,
         fit_points: a.fit.n,
         fit_method: data.method.into(),
+        fit_method_code: data.code.into(),
         lag_time_constant_s: lagged.tau_s,
         irreversible_loss_pct: loss.as_ref().map(|l| l.loss_pct),
         irreversible_loss_u95_pct: loss.as_ref().map(|l| l.u95_pct),

@@ -59,9 +59,34 @@ pub struct CycleResult {
     pub irreversible_loss_u95_pct: Option<f64>,
 }
 
+/// The version of `analysis.json`'s layout (hardware-notes/file-formats.md); raised whenever a
+/// field changes meaning or goes away.
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// What was analysed: the magnet, the run and when.
+#[derive(Debug, Clone, Default, PartialEq, Serialize)]
+pub struct Provenance {
+    /// The magnet's id, when known.
+    pub magnet_id: Option<String>,
+    /// Its stated grade, when known.
+    pub grade: Option<String>,
+    /// The run directory's or the log file's name.
+    pub run: String,
+    /// When the record started and finished (UTC), for a run directory.
+    pub started_utc: Option<String>,
+    /// When it finished.
+    pub finished_utc: Option<String>,
+    /// When this analysis was made (UTC).
+    pub analysed_utc: String,
+}
+
 /// The analysis result.
 #[derive(Debug, Clone, Serialize)]
 pub struct Analysis {
+    /// The layout's version ([`SCHEMA_VERSION`]).
+    pub schema_version: u32,
+    /// What was analysed.
+    pub provenance: Provenance,
     /// Mean α(Br) between 20 °C and the top of the fitted range, %/°C (the standards' two-point form).
     #[serde(rename = "alpha_pct_per_C")]
     pub alpha_pct_per_c: f64,
@@ -91,8 +116,11 @@ pub struct Analysis {
     pub residual_sd_mt: f64,
     /// Points fitted.
     pub fit_points: usize,
-    /// How the fit was made: `lag-corrected ramps` or `soak points`.
+    /// How the fit was made, in words.
     pub fit_method: String,
+    /// The same as a stable code: `ramps`, `cooling_branch`, `soak_points`,
+    /// `heating_below_collapse`.
+    pub fit_method_code: String,
     /// Thermal lag time constant of the magnet behind the thermocouple, s (None: not estimated).
     pub lag_time_constant_s: Option<f64>,
     /// Irreversible loss at room temperature, % (None: the record does not return).

@@ -82,6 +82,8 @@ pub struct Analyzed {
     pub title: String,
     /// The run was recorded without a valid calibration and is converted with what it had.
     pub uncalibrated: bool,
+    /// What is being analysed, for the machine-readable result.
+    pub provenance: crate::analysis::result::Provenance,
 }
 
 /// The spec table asked for, or the built-in one.
@@ -108,9 +110,17 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         .map(Calibration::load)
         .transpose()?;
     let mut uncalibrated = false;
+    let mut provenance = crate::analysis::result::Provenance {
+        run: file_name(&req.input),
+        ..Default::default()
+    };
     let (series, calibration, magnet, title) = if req.input.is_dir() {
         let recalibrated = calibration.is_some();
         let (s, src) = dataset::load_run(&req.input, calibration)?;
+        if let Some(m) = &src.meta {
+            provenance.started_utc = Some(m.started_utc.clone());
+            provenance.finished_utc = m.finished_utc.clone();
+        }
         uncalibrated = !recalibrated
             && src.meta.as_ref().and_then(|m| m.calibration_basis)
                 == Some(crate::calibration_policy::Basis::Uncalibrated);
@@ -151,11 +161,14 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         default_tc_gain_pct: DEFAULT_TC_GAIN_PCT,
         reference,
     };
+    provenance.magnet_id = context.magnet.as_ref().map(|m| m.id.clone());
+    provenance.grade = context.magnet.as_ref().map(|m| m.grade.clone());
     Ok(Analyzed {
         series,
         context,
         title,
         uncalibrated,
+        provenance,
     })
 }
 
@@ -166,6 +179,8 @@ impl Analyzed {
             path: input.display().to_string(),
             source,
         })?;
+        a.provenance = self.provenance.clone();
+        a.provenance.analysed_utc = crate::clock::format_utc(crate::calibration::Stamp::now().0);
         if self.uncalibrated {
             a.uncalibrated = true;
             a.notes.insert(0, "UNCALIBRATED BENCH: recorded without a valid calibration (--uncalibrated); re-convert it with `analyze --calibration` once the bench is calibrated".into());

@@ -234,5 +234,9 @@ fn a_stale_calibration_is_refused_before_anything_starts_and_uncalibrated_runs_s
     };
     let (_, a) = remanent::jobs::load_and_analyze(&req).unwrap();
     assert!(a.uncalibrated);
+    // the machine-readable result says what it is about
+    assert_eq!(a.provenance.magnet_id.as_deref(), Some("RM-N42-D10x5"));
+    assert_eq!(a.provenance.run, "run");
+    assert!(a.provenance.started_utc.is_some() && !a.provenance.analysed_utc.is_empty());
     assert!(remanent::analysis::summary::text(&a, "t").contains("UNCALIBRATED"));
 }

@@ -268,3 +268,25 @@ fn a_loss_whose_reference_correction_would_swamp_it_is_refused_saying_by_how_muc
         "{why}"
     );
 }
+
+#[test]
+fn the_machine_readable_result_is_documented_key_by_key() {
+    let b = Bench::default();
+    let (rows, _) = bm::run(&b, &NDFEB, &bm::cycle(b.ambient_c, 110.0, b.ambient_c, 5.0));
+    let a = analyse_rows(&rows);
+    let json = serde_json::to_value(&a).unwrap();
+    let doc = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/../hardware-notes/file-formats.md"
+    ))
+    .unwrap();
+    let table = &doc[doc.find("## The analysis result").unwrap()..];
+    for key in json.as_object().unwrap().keys() {
+        assert!(
+            table.contains(&format!("`{key}`")),
+            "`{key}` is not documented"
+        );
+    }
+    assert_eq!(json["schema_version"], 1);
+    assert_eq!(json["fit_method_code"], "ramps");
+}
