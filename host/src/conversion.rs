@@ -58,8 +58,19 @@ pub struct Converted {
 /// Convert a sample's codes with `cal`: the one place raw readings become °C and mT.
 pub fn convert(hall_code: i16, probe_code: i16, word: ThermoWord, cal: &Calibration) -> Converted {
     let probe_c = probe_c(probe_code, &cal.ntc);
+    assemble(hall_code, word, thermocouple_c(word, cal), probe_c, cal)
+}
+
+/// A sample's values from its thermocouple and probe temperatures.
+fn assemble(
+    hall_code: i16,
+    word: ThermoWord,
+    temp_c: Option<f64>,
+    probe_c: Option<f64>,
+    cal: &Calibration,
+) -> Converted {
     Converted {
-        temp_c: thermocouple_c(word, cal),
+        temp_c,
         cold_junction_c: cold_junction_c(word),
         probe_c,
         flux_mt: probe_c.map(|tp| flux_mt(hall_code, tp, &cal.hall)),
@@ -101,13 +112,7 @@ pub fn convert_memo(
             t
         }
     });
-    Converted {
-        temp_c,
-        cold_junction_c: cold_junction_c(word),
-        probe_c,
-        flux_mt: probe_c.map(|tp| flux_mt(hall_code, tp, &cal.hall)),
-        hall_saturated: hall_saturated(hall_code),
-    }
+    assemble(hall_code, word, temp_c, probe_c, cal)
 }
 
 /// The converter's fault as the record names it: `open`, `short_gnd`, `short_vcc`.

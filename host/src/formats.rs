@@ -5,6 +5,7 @@
 
 pub use crate::values::{bounded, MAX_MESSAGE_CHARS};
 use crate::values::{key_lines, Rule};
+use Rule::{NonNegative as NonNeg, Positive as Pos};
 
 /// Which file.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -20,7 +21,9 @@ pub enum Kind {
 }
 
 struct Keys {
+    /// Keys that may appear besides the required ones (`.*`: anything under it).
     allowed: &'static [&'static str],
+    /// Keys that must appear.
     required: &'static [&'static str],
 }
 
@@ -112,34 +115,11 @@ const CALIBRATION_KEYS: &[&str] = &[
     "thermocouple.gain_tolerance_pct",
 ];
 
-/// The calibration's keys that older files do not have: uncertainties of the zero, the
-/// sensitivity and the thermocouple offset, and the dates of the calibration steps.
+/// The calibration's keys that older files do not have (allowed, not required): uncertainties
+/// of the zero, the sensitivity and the thermocouple offset, and the dates of the steps.
 const CALIBRATION_OPTIONAL_KEYS: &[&str] = &[
-    "hall",
-    "hall.sensitivity_mv_per_mt",
-    "hall.sensitivity_tc_pct_per_c",
-    "hall.sensitivity_tc_u_pct_per_c",
-    "hall.offset_mv",
-    "hall.offset_tc_mv_per_c",
-    "hall.offset_tc_u_mv_per_c",
-    "hall.full_scale_mv",
     "hall.offset_u_mv",
     "hall.sensitivity_u_pct",
-    "gap",
-    "gap.gap_mm",
-    "gap.gap_u_mm",
-    "gap.standoff_mm",
-    "gap.standoff_cte_per_k",
-    "gap.standoff_cte_u_per_k",
-    "ntc",
-    "ntc.r25_ohm",
-    "ntc.beta_k",
-    "ntc.series_ohm",
-    "ntc.supply_mv",
-    "ntc.full_scale_mv",
-    "thermocouple",
-    "thermocouple.offset_c",
-    "thermocouple.gain_tolerance_pct",
     "thermocouple.offset_u_c",
     "dates",
     "dates.*",
@@ -168,14 +148,16 @@ fn walk(t: &toml::Table, prefix: &str, out: &mut Vec<String>) {
     }
 }
 
+/// Whether `path` may appear: a required key, or one only allowed.
 fn allowed(keys: &Keys, path: &str) -> bool {
-    keys.allowed.iter().any(|a| match a.strip_suffix(".*") {
-        Some(prefix) => path.starts_with(&format!("{prefix}.")),
-        None => *a == path,
-    })
+    keys.allowed
+        .iter()
+        .chain(keys.required)
+        .any(|a| match a.strip_suffix(".*") {
+            Some(prefix) => path.starts_with(&format!("{prefix}.")),
+            None => *a == path,
+        })
 }
-
-use Rule::{NonNegative as NonNeg, Positive as Pos};
 
 /// Keys with more than "finite" to satisfy; every other number must be finite.
 fn rules(kind: Kind) -> &'static [(&'static str, Rule)] {

@@ -26,16 +26,15 @@ pub struct Source {
 pub use super::csv_log::{load_csv, CsvOptions};
 pub use super::series::{InputError, Series, MIN_ROWS};
 
-fn check_time(path: &str, line: usize, t: f64, times: &[f64]) -> Result<(), InputError> {
-    if let Some(&prev) = times.last() {
-        if t <= prev {
-            return Err(InputError::TimeOrder {
-                path: path.into(),
-                line,
-                value: t,
-                previous: prev,
-            });
-        }
+/// Time must increase from row to row.
+fn check_time(path: &str, line: usize, t: f64, previous: f64) -> Result<(), InputError> {
+    if t <= previous {
+        return Err(InputError::TimeOrder {
+            path: path.into(),
+            line,
+            value: t,
+            previous,
+        });
     }
     Ok(())
 }
@@ -150,7 +149,7 @@ pub fn load_run(
             Converted::Values(v) => v[0],
             Converted::Skip(t, _) => t,
         };
-        check_time(&p, line, t, &[last_t])?;
+        check_time(&p, line, t, last_t)?;
         last_t = t;
         match row {
             Converted::Values(v) => {

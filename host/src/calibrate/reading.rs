@@ -36,14 +36,12 @@ pub struct Stats {
 
 impl Stats {
     /// Of `v` (at least one value).
-    pub fn of(v: impl Iterator<Item = f64> + Clone) -> Stats {
-        let n = v.clone().count().max(1);
-        let mean = v.clone().sum::<f64>() / n as f64;
-        let var = v.map(|x| (x - mean) * (x - mean)).sum::<f64>() / (n.max(2) - 1) as f64;
+    pub fn of(v: impl Iterator<Item = f64>) -> Stats {
+        let (mean, sd, n) = crate::analysis::prepare::mean(v);
         Stats {
             mean,
-            sd: var.sqrt(),
-            n,
+            sd,
+            n: n.max(1),
         }
     }
 

@@ -1,6 +1,5 @@
 //! `remanent calibrate`: the guided calibration steps on a bench or the virtual rig.
 
-use std::io::BufRead;
 use std::path::PathBuf;
 use std::process::ExitCode;
 use std::time::Instant;
@@ -8,7 +7,7 @@ use std::time::Instant;
 use remanent::calibrate::reading::Raw;
 use remanent::calibrate::setup::Person;
 use remanent::calibrate::steps::{Coil, Pressure, Reference};
-use remanent::calibrate::{Options, Progress, Setup, Step, VirtualSetup};
+use remanent::calibrate::{Options, Progress, Step, VirtualSetup};
 use remanent::jobs::calibrate::{self, Files};
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 
@@ -184,19 +183,13 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let (cal, found) = if a.virtual_rig {
         let part = remanent_rig_model::catalogue::PARTS[0].magnet;
         let port = SimulatedPort::new(VirtualRigOptions::new(part));
-        let mut setup: Box<dyn Setup> = Box::new(VirtualSetup::exact(port.bench().scene_control()));
-        calibrate::run(port, &steps, &files, setup.as_mut(), &opts, &mut live)?
+        let mut setup = VirtualSetup::exact(port.bench().scene_control());
+        calibrate::run(port, &steps, &files, &mut setup, &opts, &mut live)?
     } else {
-        let (tx, rx) = std::sync::mpsc::channel();
-        std::thread::spawn(move || {
-            for _ in std::io::stdin().lock().lines() {
-                if tx.send(()).is_err() {
-                    break;
-                }
-            }
-        });
         let port = remanent::link::port::open(a.port.as_deref().unwrap_or_default())?;
-        let mut setup = Person { confirm: rx };
+        let mut setup = Person {
+            confirm: super::options::enter_presses(),
+        };
         calibrate::run(port, &steps, &files, &mut setup, &opts, &mut live)?
     };
     let warned = found.iter().any(|f| f.warning.is_some());

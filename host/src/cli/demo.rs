@@ -46,7 +46,8 @@ fn measure_reference(speed: f64, seed: u64) -> anyhow::Result<FixtureReference> 
         part.info.id, part.info.description
     );
     let port = remanent::link::port::open(rig.path())?;
-    let cal = Calibration::virtual_rig(&rig_params());
+    // the reference is read on a rig of the same design as the part's: the same constants
+    let cal = Calibration::virtual_rig(&remanent_rig_model::RigParams::REFERENCE);
     let r = remanent::jobs::reference::measure(
         port,
         &part,
@@ -64,10 +65,6 @@ fn measure_reference(speed: f64, seed: u64) -> anyhow::Result<FixtureReference> 
         r.factor()
     );
     Ok(r)
-}
-
-fn rig_params() -> remanent_rig_model::RigParams {
-    remanent_rig_model::RigParams::REFERENCE
 }
 
 /// The demo's reference magnet.

@@ -79,3 +79,18 @@ pub fn parse_finite(s: &str) -> Result<f64, String> {
         Err(_) => Err(format!("`{s}` is not a number")),
     }
 }
+
+/// A tick for every line typed on the terminal (Enter pressed), read on a thread of its own;
+/// the channel closes when the terminal does.
+pub fn enter_presses() -> std::sync::mpsc::Receiver<()> {
+    use std::io::BufRead;
+    let (tx, rx) = std::sync::mpsc::channel();
+    std::thread::spawn(move || {
+        for _ in std::io::stdin().lock().lines() {
+            if tx.send(()).is_err() {
+                break;
+            }
+        }
+    });
+    rx
+}

@@ -1,7 +1,6 @@
 //! `remanent reference`: read a reference magnet of known Br in the fixture and keep the
 //! fixture's reference, so later runs get Br free of the gap's uncertainty (`--reference`).
 
-use std::io::BufRead;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -62,17 +61,7 @@ pub fn measure(a: &Args) -> anyhow::Result<FixtureReference> {
     }
     let policy = a.calibration.policy();
     let cal = policy.provisional()?;
-    let confirm = a.confirm.then(|| {
-        let (tx, rx) = std::sync::mpsc::channel();
-        std::thread::spawn(move || {
-            for _ in std::io::stdin().lock().lines() {
-                if tx.send(()).is_err() {
-                    break;
-                }
-            }
-        });
-        rx
-    });
+    let confirm = a.confirm.then(super::options::enter_presses);
     let port = remanent::link::port::open(&a.port)?;
     let r = remanent::jobs::reference::measure(
         port,

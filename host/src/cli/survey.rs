@@ -1,6 +1,5 @@
 //! `remanent survey`: room-temperature readings of many magnets in a row, ranked.
 
-use std::io::BufRead;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -67,17 +66,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
             .ok_or_else(|| anyhow::anyhow!("grade {g} is not in the spec table"))?;
         opts.alpha_pct_per_c = Some(0.5 * (spec.alpha_min + spec.alpha_max));
     }
-    let confirm = a.confirm.then(|| {
-        let (tx, rx) = std::sync::mpsc::channel();
-        std::thread::spawn(move || {
-            for _ in std::io::stdin().lock().lines() {
-                if tx.send(()).is_err() {
-                    break;
-                }
-            }
-        });
-        rx
-    });
+    let confirm = a.confirm.then(super::options::enter_presses);
     let port = remanent::link::port::open(&a.port)?;
     let readings = survey::run(
         port,

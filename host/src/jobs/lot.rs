@@ -180,8 +180,8 @@ fn against_master(
         specs: judging.specs.clone(),
         ..InputRequest::default()
     };
-    let (loaded, analysis) = load_and_analyze(&req)?;
-    let info = loaded.context.magnet.clone().ok_or(LotError::Empty(0))?;
+    let (_, analysis) = load_and_analyze(&req)?;
+    let info = crate::run_dir::read_meta(m)?.magnet;
     let master = crate::master::Master {
         info: &info,
         analysis: &analysis,

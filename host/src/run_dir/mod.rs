@@ -11,6 +11,6 @@ mod writer;
 
 pub use codes::{decimal, CodesRow};
 pub use meta::*;
-pub use reader::{for_each_row, read_samples, Parsed, RowError};
+pub use reader::{for_each_row, Parsed, RowError};
 pub use row::SampleRow;
 pub use writer::{RunWriter, FLUSH_INTERVAL};

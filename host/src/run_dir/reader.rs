@@ -2,11 +2,10 @@
 //! that cannot be read.
 
 use std::fs::File;
-use std::io::{self, BufRead, BufReader, Read};
-use std::path::{Path, PathBuf};
+use std::io::{self, Read};
+use std::path::Path;
 
 use super::meta::{io_err, RunDirError, SAMPLES_FILE, SAMPLES_HEADER};
-use super::row::SampleRow;
 
 /// A row that could not be read.
 #[derive(Debug, Clone, PartialEq)]
@@ -15,66 +14,6 @@ pub struct RowError {
     pub line: u64,
     /// Why.
     pub reason: String,
-}
-
-/// A row with its line number, or why it could not be read.
-pub type Row = Result<(u64, SampleRow), RowError>;
-
-/// The rows of `dir/samples.csv`, each with its line number; and the file's path. Rows are
-/// read line by line into one reused buffer (no allocation per row).
-pub fn read_samples(dir: &Path) -> Result<(PathBuf, impl Iterator<Item = Row>), RunDirError> {
-    let path = dir.join(SAMPLES_FILE);
-    let file = File::open(&path).map_err(io_err(&path))?;
-    let mut rdr = BufReader::with_capacity(1 << 20, file);
-    let mut buf = String::new();
-    let mut line = 0u64;
-    let mut failed = false;
-    let rows = std::iter::from_fn(move || {
-        if failed {
-            return None;
-        }
-        loop {
-            buf.clear();
-            line += 1;
-            match rdr.read_line(&mut buf) {
-                Ok(0) => return None,
-                Ok(_) if line == 1 => {
-                    // the header: the writer's, or the rows cannot be trusted
-                    if buf.trim_end() != SAMPLES_HEADER {
-                        failed = true;
-                        return Some(Err(RowError {
-                            line,
-                            reason: format!("header is not the samples header `{SAMPLES_HEADER}`"),
-                        }));
-                    }
-                }
-                Ok(_) if buf.trim().is_empty() => {}
-                Ok(_) if !buf.ends_with('\n') => {
-                    // the writer ends every row: a row without its end was cut off mid-write
-                    // and may have lost digits that still parse
-                    return Some(Err(RowError {
-                        line,
-                        reason: "no line end: the record was cut off here".into(),
-                    }));
-                }
-                Ok(_) => {
-                    return Some(
-                        SampleRow::parse_line(&buf)
-                            .map(|r| (line, r))
-                            .map_err(|reason| RowError { line, reason }),
-                    )
-                }
-                Err(e) => {
-                    failed = true;
-                    return Some(Err(RowError {
-                        line,
-                        reason: e.to_string(),
-                    }));
-                }
-            }
-        }
-    });
-    Ok((path, rows))
 }
 
 /// Bytes of rows parsed per chunk; two chunks are parsed at once, one on each core.

@@ -1,19 +1,9 @@
 //! The analysis on plain CSV logs: units, column mapping, the soak-only fallback and plain
 //! answers when something cannot be computed; magnet files and profile checks.
 
+use crate::util::ctx;
+use remanent::analysis::analyze;
 use remanent::analysis::dataset::{self, CsvOptions};
-use remanent::analysis::{analyze, Context};
-use remanent::specs::SpecTable;
-
-fn ctx() -> Context {
-    Context {
-        calibration: None,
-        magnet: None,
-        specs: SpecTable::builtin(),
-        default_tc_gain_pct: 0.75,
-        reference: None,
-    }
-}
 
 /// A staircase of soaks only (a logger that records each soak's steady state for a few
 /// minutes), in gauss, with a column named by the logger: α = −0.04 %/°C (a SmCo-like magnet).

@@ -206,23 +206,23 @@ pub fn csv(rows: &[Row]) -> String {
     out
 }
 
+/// A program from (target °C, rate K/min, hold s) triples (rate 0: the block relaxes freely).
+pub fn program(steps: &[(f64, f64, f64)]) -> Vec<Step> {
+    steps
+        .iter()
+        .map(|&(target_c, rate_k_per_min, hold_s)| Step {
+            target_c,
+            rate_k_per_min,
+            hold_s,
+        })
+        .collect()
+}
+
 /// A program: settle at ambient, ramp to `top_c`, hold, ramp back to `end_c`, hold.
 pub fn cycle(ambient_c: f64, top_c: f64, end_c: f64, rate: f64) -> Vec<Step> {
-    vec![
-        Step {
-            target_c: ambient_c,
-            rate_k_per_min: 0.0,
-            hold_s: 400.0,
-        },
-        Step {
-            target_c: top_c,
-            rate_k_per_min: rate,
-            hold_s: 300.0,
-        },
-        Step {
-            target_c: end_c,
-            rate_k_per_min: rate,
-            hold_s: 900.0,
-        },
-    ]
+    program(&[
+        (ambient_c, 0.0, 400.0),
+        (top_c, rate, 300.0),
+        (end_c, rate, 900.0),
+    ])
 }

@@ -168,38 +168,19 @@ fn record_with(
     dir: &std::path::Path,
     policy: remanent::calibration_policy::Policy,
 ) -> Result<std::path::PathBuf, remanent::record::RecordError> {
-    use remanent::profiles::{ProfileSpec, SegmentSpec};
-    use remanent::record::{record, Quiet, RecordOptions};
-    use std::sync::{atomic::AtomicBool, Arc};
     let m = remanent::magnets::resolve("RM-N42-D10x5").unwrap();
-    let opts = VirtualRigOptions::new(m.model.unwrap());
-    let seg = |target_c, ramp_c_per_min, hold_s| SegmentSpec {
-        target_c,
-        ramp_c_per_min,
-        hold_s,
-    };
     let out = dir.join("run");
-    let rec = RecordOptions {
-        port_label: "simulated".into(),
-        magnet: m.info.clone(),
-        profile: ProfileSpec {
-            name: "short".into(),
-            description: "a short cycle".into(),
-            limit_c: 80.0,
-            segments: vec![
-                seg(25.0, 0.0, 120.0),
-                seg(60.0, 8.0, 60.0),
-                seg(25.0, 8.0, 240.0),
-            ],
-        },
+    crate::util::VirtualRecord {
+        info: m.info,
+        rig: VirtualRigOptions::new(m.model.unwrap()),
         calibration: policy.provisional().unwrap(),
         policy,
-        out: out.clone(),
-        silence_timeout: std::time::Duration::from_secs(5),
+        limit_c: 80.0,
+        segments: crate::util::SHORT_CYCLE.to_vec(),
         preroll_s: 30.0,
-        stop: Arc::new(AtomicBool::new(false)),
-    };
-    record(&mut SimulatedPort::new(opts), rec, &mut Quiet).map(|_| out)
+    }
+    .run(&out)
+    .map(|_| out)
 }
 
 #[test]

@@ -8,24 +8,13 @@
 //! practice). Tolerances from the project's accuracy goal: α within ±0.003 %/°C and inside its
 //! U95; loss within ±0.1 % absolute and inside its U95.
 
-use remanent::analysis::dataset::{self, CsvOptions};
-use remanent::analysis::{analyze, Analysis, Context};
-use remanent::specs::SpecTable;
+use remanent::analysis::dataset::CsvOptions;
+use remanent::analysis::Analysis;
 
-use crate::bench_model::{self as bm, Bench, Step, TrueMagnet, NDFEB};
+use crate::bench_model::{self as bm, Bench, TrueMagnet, NDFEB};
 
 const ALPHA_TOL: f64 = 0.003;
 const LOSS_TOL: f64 = 0.1;
-
-fn ctx() -> Context {
-    Context {
-        calibration: None,
-        magnet: None,
-        specs: SpecTable::builtin(),
-        default_tc_gain_pct: 0.75,
-        reference: None,
-    }
-}
 
 /// A part that loses flux above 95 °C: 0.02 % per K of excess at equilibrium, τ 150 s.
 const LOSSY: TrueMagnet = TrueMagnet {
@@ -36,11 +25,7 @@ const LOSSY: TrueMagnet = TrueMagnet {
 };
 
 pub fn analyse_rows(rows: &[bm::Row]) -> Analysis {
-    let dir = tempfile::tempdir().unwrap();
-    let p = dir.path().join("log.csv");
-    std::fs::write(&p, bm::csv(rows)).unwrap();
-    let s = dataset::load_csv(&p, &CsvOptions::default()).unwrap();
-    analyze(&s, &ctx()).unwrap()
+    crate::messy_files::analyse_text(&bm::csv(rows), &CsvOptions::default())
 }
 
 fn check_alpha(a: &Analysis, m: &TrueMagnet, label: &str) {
@@ -111,23 +96,11 @@ fn a_fixture_that_has_not_cooled_back_still_gives_the_loss() {
 #[test]
 fn loss_during_heating_with_no_return_is_seen_between_the_branches() {
     let b = Bench::default();
-    let program = [
-        Step {
-            target_c: b.ambient_c,
-            rate_k_per_min: 0.0,
-            hold_s: 400.0,
-        },
-        Step {
-            target_c: 135.0,
-            rate_k_per_min: 4.0,
-            hold_s: 300.0,
-        },
-        Step {
-            target_c: 45.0,
-            rate_k_per_min: 4.0,
-            hold_s: 0.0,
-        },
-    ];
+    let program = bm::program(&[
+        (b.ambient_c, 0.0, 400.0),
+        (135.0, 4.0, 300.0),
+        (45.0, 4.0, 0.0),
+    ]);
     let (rows, truth) = bm::run(&b, &LOSSY, &program);
     let a = analyse_rows(&rows);
     check_alpha(&a, &LOSSY, "no return");
@@ -138,39 +111,19 @@ fn loss_during_heating_with_no_return_is_seen_between_the_branches() {
         "no return",
         &a,
     );
-    assert!(
-        a.notes.iter().any(|n| n.contains("between the branches")),
-        "{:#?}",
-        a.notes
-    );
+    crate::util::assert_noted(&a, "between the branches");
 }
 
 #[test]
 fn a_fixture_creeping_to_its_final_setpoint_is_not_read_as_lag() {
     let b = Bench::default();
-    let program = [
-        Step {
-            target_c: b.ambient_c,
-            rate_k_per_min: 0.0,
-            hold_s: 400.0,
-        },
-        Step {
-            target_c: 120.0,
-            rate_k_per_min: 4.0,
-            hold_s: 300.0,
-        },
-        Step {
-            target_c: b.ambient_c + 6.0,
-            rate_k_per_min: 4.0,
-            hold_s: 0.0,
-        },
-        // the last few kelvin are left to the fixture, which creeps toward 3 K above ambient
-        Step {
-            target_c: b.ambient_c + 3.0,
-            rate_k_per_min: 0.0,
-            hold_s: 2400.0,
-        },
-    ];
+    let program = bm::program(&[
+        (b.ambient_c, 0.0, 400.0),
+        (120.0, 4.0, 300.0),
+        (b.ambient_c + 6.0, 4.0, 0.0),
+        (b.ambient_c + 3.0, 0.0, 2400.0),
+    ]);
+    // at the end the fixture creeps the last few kelvin toward 3 K above ambient on its own
     let (rows, _) = bm::run(&b, &NDFEB, &program);
     let a = analyse_rows(&rows);
     check_alpha(&a, &NDFEB, "creeping fixture");
@@ -207,11 +160,7 @@ fn two_cycles_are_found_and_reported_each() {
     }
     // α comes from the stabilised (last) cycle
     check_alpha(&a, &LOSSY, "two cycles");
-    assert!(
-        a.notes.iter().any(|n| n.contains("2 heat cycles")),
-        "{:#?}",
-        a.notes
-    );
+    crate::util::assert_noted(&a, "2 heat cycles");
 }
 
 #[test]

@@ -2,24 +2,14 @@
 //! negative gap, a zero Beta, a NaN rated temperature — are refused with the file, line and
 //! field; nothing hangs on them and no verdict is computed from them.
 
+use crate::util::ctx;
 use std::sync::mpsc;
 use std::time::Duration;
 
 use remanent::analysis::dataset::Series;
 use remanent::analysis::verdict::{judge, Outcome};
-use remanent::analysis::{analyze, AnalysisError, Context};
+use remanent::analysis::{analyze, AnalysisError};
 use remanent::calibration::Calibration;
-use remanent::specs::SpecTable;
-
-fn ctx() -> Context {
-    Context {
-        calibration: None,
-        magnet: None,
-        specs: SpecTable::builtin(),
-        default_tc_gain_pct: 0.75,
-        reference: None,
-    }
-}
 
 fn cycle(n: usize) -> Series {
     let mut s = Series::default();

@@ -10,7 +10,7 @@ use remanent::calibration::Calibration;
 use remanent::magnets;
 use remanent::profiles::{ProfileSpec, SegmentSpec};
 use remanent::record::{record, Quiet, RecordEnd, RecordOptions};
-use remanent::run_dir::{read_samples, SampleRow};
+use remanent::run_dir::{for_each_row, SampleRow};
 use remanent::virtual_rig::{SimulatedPort, VirtualRig, VirtualRigOptions};
 
 fn profile(hold_s: f64) -> ProfileSpec {
@@ -28,8 +28,19 @@ fn profile(hold_s: f64) -> ProfileSpec {
 }
 
 fn rows(dir: &std::path::Path) -> Vec<SampleRow> {
-    let (_, rows) = read_samples(dir).unwrap();
-    rows.map(|r| r.unwrap().1).collect()
+    let parse = |b: &[u8]| {
+        std::str::from_utf8(b)
+            .map_err(|e| e.to_string())
+            .and_then(SampleRow::parse_line)
+    };
+    let mut out = Vec::new();
+    for_each_row(dir, &parse, |r, _| -> Result<(), ()> {
+        out.push(r.unwrap().1);
+        Ok(())
+    })
+    .unwrap()
+    .unwrap();
+    out
 }
 
 #[test]

@@ -2,21 +2,11 @@
 //! other loggers write it, each read back to the same α as the clean file. Unit conversions
 //! are the SI definitions (1 G = 0.1 mT, 1 kG = 100 mT; °F = °C·9/5 + 32; K = °C + 273.15).
 
+use crate::util::ctx;
+use remanent::analysis::analyze;
 use remanent::analysis::dataset::{self, CsvOptions, InputError};
-use remanent::analysis::{analyze, Context};
-use remanent::specs::SpecTable;
 
 use crate::bench_model::{self as bm, Bench, Row, NDFEB};
-
-fn ctx() -> Context {
-    Context {
-        calibration: None,
-        magnet: None,
-        specs: SpecTable::builtin(),
-        default_tc_gain_pct: 0.75,
-        reference: None,
-    }
-}
 
 fn rows() -> Vec<Row> {
     let b = Bench::default();
@@ -30,10 +20,15 @@ fn write(text: &str) -> (tempfile::TempDir, std::path::PathBuf) {
     (dir, p)
 }
 
-fn alpha_of(text: &str, opts: &CsvOptions) -> (f64, remanent::analysis::Analysis) {
+/// A log's text written to a file, read with `opts` and analysed.
+pub fn analyse_text(text: &str, opts: &CsvOptions) -> remanent::analysis::Analysis {
     let (_d, p) = write(text);
     let s = dataset::load_csv(&p, opts).unwrap();
-    let a = analyze(&s, &ctx()).unwrap();
+    analyze(&s, &ctx()).unwrap()
+}
+
+fn alpha_of(text: &str, opts: &CsvOptions) -> (f64, remanent::analysis::Analysis) {
+    let a = analyse_text(text, opts);
     (a.alpha_pct_per_c, a)
 }
 
@@ -134,11 +129,7 @@ fn a_torn_last_line_is_left_out_and_said() {
     let s = dataset::load_csv(&p, &CsvOptions::default()).unwrap();
     assert_eq!(s.time_s.len(), rows().len() - 1);
     let a = analyze(&s, &ctx()).unwrap();
-    assert!(
-        a.notes.iter().any(|n| n.contains("last line incomplete")),
-        "{:#?}",
-        a.notes
-    );
+    crate::util::assert_noted(&a, "last line incomplete");
 }
 
 #[test]

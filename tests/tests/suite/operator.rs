@@ -40,38 +40,20 @@ fn clear_fault_names_the_latched_fault_and_refuses_while_its_cause_persists() {
 }
 
 fn recorded(dir: &std::path::Path, name: &str, magnet: &str) -> std::path::PathBuf {
-    use remanent::profiles::{ProfileSpec, SegmentSpec};
-    use remanent::record::{record, Quiet, RecordOptions};
-    use std::sync::{atomic::AtomicBool, Arc};
     let m = magnets::resolve(magnet).unwrap();
-    let opts = VirtualRigOptions::new(m.model.unwrap());
-    let seg = |target_c, ramp_c_per_min, hold_s| SegmentSpec {
-        target_c,
-        ramp_c_per_min,
-        hold_s,
-    };
+    let rig = VirtualRigOptions::new(m.model.unwrap());
     let out = dir.join(name);
-    let rec = RecordOptions {
-        port_label: "simulated".into(),
-        magnet: m.info.clone(),
-        profile: ProfileSpec {
-            name: "lot".into(),
-            description: "a short cycle".into(),
-            limit_c: 80.0,
-            segments: vec![
-                seg(25.0, 0.0, 120.0),
-                seg(60.0, 8.0, 60.0),
-                seg(25.0, 8.0, 240.0),
-            ],
-        },
-        calibration: Calibration::virtual_rig(&opts.params),
+    crate::util::VirtualRecord {
+        info: m.info,
+        calibration: Calibration::virtual_rig(&rig.params),
+        rig,
         policy: Default::default(),
-        out: out.clone(),
-        silence_timeout: std::time::Duration::from_secs(5),
+        limit_c: 80.0,
+        segments: crate::util::SHORT_CYCLE.to_vec(),
         preroll_s: 30.0,
-        stop: Arc::new(AtomicBool::new(false)),
-    };
-    record(&mut SimulatedPort::new(opts), rec, &mut Quiet).unwrap();
+    }
+    .run(&out)
+    .unwrap();
     out
 }
 

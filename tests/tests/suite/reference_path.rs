@@ -5,16 +5,12 @@
 //! non-conforming FAIL). Field ratios: the closed-form cylinder field checked against
 //! Magpylib in `reference_field.rs`.
 
-use std::sync::{atomic::AtomicBool, Arc};
-
 use remanent::analysis::verdict::Outcome;
 use remanent::analysis::Analysis;
 use remanent::calibration::Calibration;
 use remanent::fixture_ref::FixtureReference;
 use remanent::jobs::{load_and_analyze, InputRequest};
 use remanent::magnets;
-use remanent::profiles::{ProfileSpec, SegmentSpec};
-use remanent::record::{record, Quiet, RecordOptions};
 use remanent::survey::{Reading, SurveyProgress};
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 use remanent_rig_model::{Magnet, RigParams};
@@ -71,35 +67,20 @@ fn record_as(
 ) -> std::path::PathBuf {
     let mut info = magnets::resolve(as_part).unwrap().info;
     info.id = id.into();
-    let mut opts = VirtualRigOptions::new(magnet);
-    opts.params = params;
-    let seg = |target_c, ramp_c_per_min, hold_s| SegmentSpec {
-        target_c,
-        ramp_c_per_min,
-        hold_s,
-    };
+    let mut rig = VirtualRigOptions::new(magnet);
+    rig.params = params;
     let out = dir.join(id);
-    let rec = RecordOptions {
-        port_label: "simulated".into(),
-        magnet: info,
-        profile: ProfileSpec {
-            name: "short".into(),
-            description: "a short cycle".into(),
-            limit_c: 110.0,
-            segments: vec![
-                seg(25.0, 0.0, 300.0),
-                seg(95.0, 5.0, 240.0),
-                seg(25.0, 5.0, 300.0),
-            ],
-        },
+    crate::util::VirtualRecord {
+        info,
+        rig,
         calibration: Calibration::virtual_rig(&RigParams::REFERENCE),
         policy: Default::default(),
-        out: out.clone(),
-        silence_timeout: std::time::Duration::from_secs(5),
+        limit_c: 110.0,
+        segments: vec![(25.0, 0.0, 300.0), (95.0, 5.0, 240.0), (25.0, 5.0, 300.0)],
         preroll_s: 60.0,
-        stop: Arc::new(AtomicBool::new(false)),
-    };
-    record(&mut SimulatedPort::new(opts), rec, &mut Quiet).unwrap();
+    }
+    .run(&out)
+    .unwrap();
     out
 }
 

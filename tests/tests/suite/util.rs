@@ -1,4 +1,5 @@
-//! Small helpers: locating test data, log relative error.
+//! Small helpers: locating test data, log relative error, the analysis context of a plain
+//! log.
 
 use std::path::PathBuf;
 
@@ -31,4 +32,86 @@ pub fn read_yx(name: &str) -> (Vec<f64>, Vec<f64>) {
         x.push(b.trim().parse().unwrap());
     }
     (y, x)
+}
+
+/// What the analysis knows of a plain log: no calibration, no magnet, the built-in spec table,
+/// the standard-limits thermocouple tolerance.
+pub fn ctx() -> remanent::analysis::Context {
+    remanent::analysis::Context {
+        calibration: None,
+        magnet: None,
+        specs: remanent::specs::SpecTable::builtin(),
+        default_tc_gain_pct: 0.75,
+        reference: None,
+    }
+}
+
+/// A short recording on the in-process virtual rig: the magnet as stated, the rig it runs on,
+/// the calibration and policy, and the cycle (each segment target °C, ramp °C/min, hold s).
+pub struct VirtualRecord {
+    /// What the record says about the magnet.
+    pub info: remanent::magnets::MagnetInfo,
+    /// The rig and its magnet's behaviour.
+    pub rig: remanent::virtual_rig::VirtualRigOptions,
+    /// Converts the record.
+    pub calibration: remanent::calibration::Calibration,
+    /// Whether the bench may measure.
+    pub policy: remanent::calibration_policy::Policy,
+    /// The profile's limit, °C.
+    pub limit_c: f64,
+    /// The cycle.
+    pub segments: Vec<(f64, f64, f64)>,
+    /// Rest before heating, s.
+    pub preroll_s: f64,
+}
+
+impl VirtualRecord {
+    /// Record into `out` (a new directory).
+    pub fn run(
+        self,
+        out: &std::path::Path,
+    ) -> Result<remanent::record::RecordSummary, remanent::record::RecordError> {
+        use remanent::profiles::{ProfileSpec, SegmentSpec};
+        use remanent::record::{record, Quiet, RecordOptions};
+        use std::sync::{atomic::AtomicBool, Arc};
+        let rec = RecordOptions {
+            port_label: "simulated".into(),
+            magnet: self.info,
+            profile: ProfileSpec {
+                name: "short".into(),
+                description: "a short cycle".into(),
+                limit_c: self.limit_c,
+                segments: self
+                    .segments
+                    .iter()
+                    .map(|&(target_c, ramp_c_per_min, hold_s)| SegmentSpec {
+                        target_c,
+                        ramp_c_per_min,
+                        hold_s,
+                    })
+                    .collect(),
+            },
+            calibration: self.calibration,
+            policy: self.policy,
+            out: out.to_path_buf(),
+            silence_timeout: std::time::Duration::from_secs(5),
+            preroll_s: self.preroll_s,
+            stop: Arc::new(AtomicBool::new(false)),
+        };
+        let mut port = remanent::virtual_rig::SimulatedPort::new(self.rig);
+        record(&mut port, rec, &mut Quiet)
+    }
+}
+
+/// A 25 → 60 → 25 °C cycle at 8 °C/min: a couple of minutes of virtual time.
+pub const SHORT_CYCLE: [(f64, f64, f64); 3] =
+    [(25.0, 0.0, 120.0), (60.0, 8.0, 60.0), (25.0, 8.0, 240.0)];
+
+/// Fail unless one of the analysis's notes contains `text` (showing them all).
+pub fn assert_noted(a: &remanent::analysis::Analysis, text: &str) {
+    assert!(
+        a.notes.iter().any(|n| n.contains(text)),
+        "no note says `{text}`: {:#?}",
+        a.notes
+    );
 }
