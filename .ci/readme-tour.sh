@@ -9,6 +9,8 @@ R="$ROOT/target/release/remanent"
 [ -x "$R" ] || cargo build -q --release -p remanent
 WORK=$(mktemp -d)
 cd "$WORK"
+# the tour's history goes to a store of its own, not the CI user's
+export REMANENT_HISTORY="$WORK/history.sqlite"
 RIG_PID=""
 trap 'for p in $RIG_PID; do kill -INT $p 2>/dev/null; done; true' EXIT
 PORT=""
@@ -32,6 +34,7 @@ for line in "${lines[@]}"; do
   tail -3 out.txt
 done
 test -s runs/demo/report.html && test -s runs/n42/report.md && test -s runs/n42/flux_vs_temp.png
-test -s runs/lot/lot.csv && test -s runs/oc.png
+test -s runs/lot/lot.csv && test -s runs/oc.png && test -s runs/trend.png
+test "$(wc -l < runs/history.csv)" -ge 3 || { cat runs/history.csv; echo "the history lacks the tour's runs"; exit 1; }
 grep -q "magnet   3 .*LOW" out.txt || { cat out.txt; echo "the survey did not flag magnet 3"; exit 1; }
 echo "README tour ran as written"

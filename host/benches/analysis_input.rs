@@ -62,6 +62,7 @@ fn write_run(dir: &Path, n: usize) {
         calibration: cal,
         calibration_basis: None,
         counts: Counts::default(),
+        inspection: Default::default(),
     };
     std::fs::write(dir.join(META_FILE), toml::to_string(&meta).unwrap()).unwrap();
     let file = std::fs::File::create(dir.join(SAMPLES_FILE)).unwrap();

@@ -194,6 +194,7 @@ fn main() {
         started: false,
     };
     let opts = RecordOptions {
+        inspection: Default::default(),
         port_label: "bench".into(),
         magnet: m.info,
         profile: ProfileSpec::resolve("quick-alpha").unwrap(),

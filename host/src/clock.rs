@@ -40,6 +40,17 @@ impl Clock {
     }
 }
 
+/// Seconds since 1970 of an RFC 3339 UTC instant or a plain date (`2026-11-03`, midnight).
+pub fn parse_utc(text: &str) -> Option<f64> {
+    let v = text.trim();
+    let (date, time) = match v.split_once(['T', ' ']) {
+        Some((d, t)) => (d, Some(t)),
+        None => (v, None),
+    };
+    let days = days_from_civil(date)? as f64;
+    Some(days * 86_400.0 + time.map_or(Some(0.0), time_of_day)?)
+}
+
 /// `HH:MM:SS(.fff)` with an optional zone (`Z` or `+01:00`, ignored: one logger, one zone).
 fn time_of_day(t: &str) -> Option<f64> {
     let t = t.trim_end_matches('Z');
@@ -122,5 +133,14 @@ mod tests {
         d.seconds("2026-11-30T23:59:59Z").unwrap();
         assert_eq!(d.seconds("2026-12-01 00:00:01"), Some(2.0));
         assert_eq!(d.seconds("12.5"), None);
+    }
+
+    #[test]
+    fn instants_read_back_what_format_writes() {
+        // 2000-03-01T00:00:00Z is 951868800 s after the Unix epoch (POSIX time, date(1)).
+        assert_eq!(parse_utc("2000-03-01T00:00:00Z"), Some(951_868_800.0));
+        assert_eq!(parse_utc("2000-03-01"), Some(951_868_800.0));
+        assert_eq!(parse_utc(&format_utc(1_798_761_599)), Some(1_798_761_599.0));
+        assert_eq!(parse_utc("yesterday"), None);
     }
 }

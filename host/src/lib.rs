@@ -15,6 +15,8 @@ pub mod drill;
 pub mod fixture_ref;
 pub mod formats;
 pub mod frame_log;
+pub mod history;
+pub mod inspection;
 pub mod jobs;
 pub mod link;
 pub mod lot;

@@ -5,7 +5,12 @@ use std::process::Command;
 const BIN: &str = env!("CARGO_BIN_EXE_remanent");
 
 fn run(args: &[&str]) -> (i32, String) {
-    let out = Command::new(BIN).args(args).output().unwrap();
+    // no test writes to the user's own history store
+    let out = Command::new(BIN)
+        .args(args)
+        .env("REMANENT_HISTORY", "off")
+        .output()
+        .unwrap();
     let text =
         String::from_utf8_lossy(&out.stderr).into_owned() + &String::from_utf8_lossy(&out.stdout);
     (out.status.code().unwrap_or(-1), text)
@@ -68,6 +73,7 @@ fn a_survey_started_late_still_reads_every_magnet_and_flags_the_damaged_one() {
             "--speed",
             "20",
         ])
+        .env("REMANENT_HISTORY", "off")
         .stdout(Stdio::piped())
         .stderr(Stdio::null())
         .spawn()

@@ -46,7 +46,15 @@ fn signal_during_a_record(signal: &str) {
     let mut rec = Reap(
         Command::new(BIN)
             .args(["record", "--port", &port, "--magnet", "RM-N42SH-D10x5"])
-            .args(["--profile", "quick-alpha", "--allow-over-rating", "--out"])
+            .args([
+                "--profile",
+                "quick-alpha",
+                "--allow-over-rating",
+                "--lot",
+                "L-SIG",
+            ])
+            .env("REMANENT_HISTORY", dir.path().join("history.sqlite"))
+            .arg("--out")
             .arg(&out)
             .stdout(Stdio::null())
             .stderr(Stdio::null())
@@ -81,6 +89,16 @@ fn signal_during_a_record(signal: &str) {
     assert!(meta.contains("stopped"), "{meta}");
     let events = std::fs::read_to_string(out.join("events.csv")).unwrap();
     assert!(events.contains("stop acknowledged; heater off"), "{events}");
+    // the record, stopped as it is, went into the history as it ended (read back with the
+    // SQLite library itself, not through the program)
+    let db = rusqlite::Connection::open(dir.path().join("history.sqlite")).unwrap();
+    let (lot, end): (String, String) = db
+        .query_row("SELECT lot, end_reason FROM runs", [], |r| {
+            Ok((r.get(0)?, r.get(1)?))
+        })
+        .unwrap();
+    assert_eq!(lot, "L-SIG");
+    assert!(end.contains("stopped"), "{end}");
     drop(rig);
 }
 

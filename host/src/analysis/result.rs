@@ -78,6 +78,8 @@ pub struct Provenance {
     pub finished_utc: Option<String>,
     /// When this analysis was made (UTC).
     pub analysed_utc: String,
+    /// Lot, purchase order, supplier and operator (each absent when not stated).
+    pub inspection: crate::inspection::Inspection,
 }
 
 /// The analysis result.

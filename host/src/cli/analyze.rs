@@ -32,6 +32,11 @@ pub struct Args {
     /// probe_temp_C column).
     #[arg(long, allow_negative_numbers = true, value_parser = super::options::parse_finite)]
     pub probe_tc_pct_per_c: Option<f64>,
+    /// Lot, order, supplier, operator: for a CSV log, or where a run's run.toml has none.
+    #[command(flatten)]
+    pub inspection: super::options::InspectionOpts,
+    #[command(flatten)]
+    pub store: super::options::StoreOpts,
 }
 
 fn parse_mapping(s: &str) -> Result<(String, String), String> {
@@ -49,6 +54,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         columns: a.columns,
         probe_tc_pct_per_c: a.probe_tc_pct_per_c,
         reference: a.specs.reference,
+        inspection: a.inspection.inspection(),
     };
     let (loaded, analysis) = load_and_analyze(&req)?;
     if a.json {
@@ -57,5 +63,8 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         let title = format!("{} — {}", loaded.title, a.input.display());
         print!("{}", summary::text(&analysis, &title));
     }
+    a.store.keep("the analysis", |at| {
+        remanent::jobs::history::store_analysis(at, &a.input, &analysis)
+    });
     Ok(ExitCode::SUCCESS)
 }

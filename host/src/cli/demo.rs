@@ -29,6 +29,21 @@ pub struct Args {
     /// Noise seed of the virtual rig.
     #[arg(long, default_value_t = 7)]
     seed: u64,
+    /// Lot, order, supplier, operator (default: the demo's invented shipment).
+    #[command(flatten)]
+    inspection: super::options::InspectionOpts,
+    #[command(flatten)]
+    store: super::options::StoreOpts,
+}
+
+/// The demo's shipment: invented, like its magnets.
+fn demo_inspection(given: remanent::inspection::Inspection) -> remanent::inspection::Inspection {
+    given.or(&remanent::inspection::Inspection {
+        lot: Some("DEMO-LOT-26-11".into()),
+        purchase_order: Some("PO-DEMO-0042".into()),
+        supplier: Some("Kestrel Magnet Works (invented)".into()),
+        operator: Some("demo".into()),
+    })
 }
 
 /// The demo's fixture reference, in the run directory.
@@ -99,6 +114,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let rig = VirtualRig::start(opts)?;
     let port = remanent::link::port::open(rig.path())?;
     let rec = RecordOptions {
+        inspection: demo_inspection(a.inspection.inspection()),
         port_label: format!("virtual rig ({})", rig.path()),
         magnet: m.info.clone(),
         profile,
@@ -112,6 +128,9 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let summary = super::record::record_with_bar(port, rec)?;
     let truth = rig.stop()?;
     let code = super::record::report_end(&summary);
+    a.store.keep("the record", |at| {
+        remanent::jobs::history::store_record(at, &summary.dir)
+    });
     if summary.end != RecordEnd::Finished {
         return Ok(code);
     }
@@ -131,6 +150,9 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         model.alpha_pct_per_c + model.gamma_pct_per_c2 * (analysis.fit_range_c[1] - 20.0),
         truth.irreversible * 100.0
     );
+    a.store.keep("the analysis", |at| {
+        remanent::jobs::history::store_analysis(at, &out, &analysis)
+    });
     let mut written = remanent::report::write_all(&out, series, &analysis, title, false)?;
     written.insert(0, ref_file);
     println!();

@@ -26,6 +26,8 @@ pub struct Args {
     master: Option<PathBuf>,
     #[command(flatten)]
     force: ForceOpts,
+    #[command(flatten)]
+    store: super::options::StoreOpts,
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
@@ -39,6 +41,12 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         a.mixed_grades,
         a.force.force,
     )?;
+    for (run, analysis) in &outcome.analyses {
+        a.store
+            .keep(&format!("the analysis of {}", run.display()), |at| {
+                remanent::jobs::history::store_analysis(at, run, analysis)
+            });
+    }
     for w in &outcome.warnings {
         eprintln!("warning: {w}");
     }

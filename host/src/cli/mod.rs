@@ -6,6 +6,7 @@ mod analyze;
 mod calibrate;
 mod clear_fault;
 mod demo;
+mod history;
 mod lot;
 mod magnets;
 mod options;
@@ -66,6 +67,8 @@ enum Cmd {
     Calibrate(calibrate::Args),
     /// Read a reference magnet of known Br to refer later runs' Br to (--reference).
     Reference(reference::Args),
+    /// The test history: import runs, find them, a lot's summary, a supplier's trend, export.
+    History(history::Args),
 }
 
 pub fn main() -> std::process::ExitCode {
@@ -88,6 +91,7 @@ pub fn main() -> std::process::ExitCode {
         Cmd::Reference(a) => reference::run(a),
         Cmd::Survey(a) => survey::run(a),
         Cmd::SelfTest(a) => self_test::run(a),
+        Cmd::History(a) => history::run(a),
     };
     match result {
         Ok(code) => code,

@@ -94,3 +94,72 @@ pub fn enter_presses() -> std::sync::mpsc::Receiver<()> {
     });
     rx
 }
+
+/// Which history store results are written to and read from.
+#[derive(clap::Args, Clone, Debug, Default)]
+pub struct StoreOpts {
+    /// History store: an SQLite file, a postgres:// URL, or `off` (default: history.sqlite in
+    /// the user's data folder).
+    #[arg(long = "store", env = remanent::history::STORE_ENV, value_name = "PATH|URL|off")]
+    pub store: Option<String>,
+}
+
+impl StoreOpts {
+    /// Where the store is.
+    pub fn location(&self) -> remanent::history::Location {
+        remanent::history::Location::choose(self.store.as_deref())
+    }
+
+    /// Write something to the store as it happens; a failure is a warning (the run directory
+    /// keeps everything and can be imported later), never a lost record.
+    pub fn keep(
+        &self,
+        what: &str,
+        write: impl FnOnce(
+            &remanent::history::Location,
+        ) -> Result<bool, remanent::jobs::history::HistoryError>,
+    ) {
+        let at = self.location();
+        if at == remanent::history::Location::Off {
+            return;
+        }
+        match write(&at) {
+            Ok(true) => eprintln!("history: {what} stored in {}", at.describe()),
+            Ok(false) => eprintln!("history: {what} already in {}", at.describe()),
+            Err(e) => eprintln!(
+                "warning: {what} not stored in the history ({e}); nothing is lost: \
+                 `remanent history import` adds it later"
+            ),
+        }
+    }
+}
+
+/// Lot, purchase order, supplier and operator of an inspection.
+#[derive(clap::Args, Clone, Debug, Default)]
+pub struct InspectionOpts {
+    /// The lot (or batch) the magnet belongs to.
+    #[arg(long)]
+    pub lot: Option<String>,
+    /// The purchase order it came on.
+    #[arg(long = "order")]
+    pub purchase_order: Option<String>,
+    /// Who supplied it.
+    #[arg(long)]
+    pub supplier: Option<String>,
+    /// Who runs the test.
+    #[arg(long)]
+    pub operator: Option<String>,
+}
+
+impl InspectionOpts {
+    /// As the library takes it (blanks dropped).
+    pub fn inspection(&self) -> remanent::inspection::Inspection {
+        remanent::inspection::Inspection {
+            lot: self.lot.clone(),
+            purchase_order: self.purchase_order.clone(),
+            supplier: self.supplier.clone(),
+            operator: self.operator.clone(),
+        }
+        .tidied()
+    }
+}

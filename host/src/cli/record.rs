@@ -31,6 +31,10 @@ pub struct Args {
     /// Run a profile that exceeds the magnet's rated maximum temperature.
     #[arg(long)]
     allow_over_rating: bool,
+    #[command(flatten)]
+    inspection: super::options::InspectionOpts,
+    #[command(flatten)]
+    store: super::options::StoreOpts,
 }
 
 /// Ctrl-C sets the flag; the recorder then stops the heater and closes the record.
@@ -54,6 +58,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let calibration = policy.provisional()?;
     let port = remanent::link::port::open(&a.port)?;
     let opts = RecordOptions {
+        inspection: a.inspection.inspection(),
         port_label: a.port.clone(),
         magnet: magnet.info,
         profile,
@@ -65,7 +70,11 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         stop: stop_flag()?,
     };
     let summary = record_with_bar(port, opts)?;
-    Ok(report_end(&summary))
+    let code = report_end(&summary);
+    a.store.keep("the record", |at| {
+        remanent::jobs::history::store_record(at, &summary.dir)
+    });
+    Ok(code)
 }
 
 pub fn record_with_bar(

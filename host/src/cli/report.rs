@@ -14,6 +14,8 @@ pub struct Args {
     pub specs: SpecOpts,
     #[command(flatten)]
     pub force: ForceOpts,
+    #[command(flatten)]
+    pub store: super::options::StoreOpts,
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
@@ -21,8 +23,13 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     if let Some(why) = &r.not_analysed {
         eprintln!("note: {why}; wrote the time series and what could not be computed");
     }
-    for f in r.written {
+    for f in &r.written {
         println!("wrote {}", f.display());
+    }
+    if let Some(analysis) = &r.analysis {
+        a.store.keep("the analysis", |at| {
+            remanent::jobs::history::store_analysis(at, &a.run, analysis)
+        });
     }
     Ok(ExitCode::SUCCESS)
 }

@@ -58,6 +58,8 @@ pub struct InputRequest {
     pub probe_tc_pct_per_c: Option<f64>,
     /// Refer Br to this fixture reference (`remanent reference`).
     pub reference: Option<PathBuf>,
+    /// Lot, order, supplier, operator: for a CSV log, or where a run's `run.toml` has none.
+    pub inspection: crate::inspection::Inspection,
 }
 
 /// What a verdict is judged against: the spec table and, when given, the fixture reference
@@ -120,6 +122,7 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         if let Some(m) = &src.meta {
             provenance.started_utc = Some(m.started_utc.clone());
             provenance.finished_utc = m.finished_utc.clone();
+            provenance.inspection = m.inspection.clone();
         }
         uncalibrated = !recalibrated
             && src.meta.as_ref().and_then(|m| m.calibration_basis)
@@ -161,6 +164,7 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         default_tc_gain_pct: DEFAULT_TC_GAIN_PCT,
         reference,
     };
+    provenance.inspection = provenance.inspection.or(&req.inspection);
     provenance.magnet_id = context.magnet.as_ref().map(|m| m.id.clone());
     provenance.grade = context.magnet.as_ref().map(|m| m.grade.clone());
     Ok(Analyzed {

@@ -44,6 +44,8 @@ pub struct LotOutcome {
     pub warnings: Vec<String>,
     /// Each part against the master sample, when one was given.
     pub against_master: Vec<crate::master::AgainstMaster>,
+    /// Each analysed run with its analysis (for the history).
+    pub analyses: Vec<(PathBuf, crate::analysis::Analysis)>,
 }
 
 /// Warnings for the same run given twice, or the same magnet id in two runs.
@@ -89,6 +91,7 @@ pub fn run(
     let mut ids = Vec::new();
     let mut skipped = Vec::new();
     let mut analysed = Vec::new();
+    let mut analysed_runs = Vec::new();
     for run in runs {
         let req = InputRequest {
             input: run.clone(),
@@ -108,6 +111,7 @@ pub fn run(
         ids.push((run.clone(), meta.magnet.id.clone()));
         rows.push(LotRow::new(&meta.magnet.id, &meta.magnet.grade, &analysis));
         analysed.push((meta.magnet, analysis));
+        analysed_runs.push(run.clone());
     }
     if rows.is_empty() {
         return Err(LotError::Empty(runs.len()));
@@ -165,6 +169,10 @@ pub fn run(
         written,
         warnings,
         against_master,
+        analyses: analysed_runs
+            .into_iter()
+            .zip(analysed.into_iter().map(|(_, a)| a))
+            .collect(),
     })
 }
 

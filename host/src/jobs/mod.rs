@@ -1,9 +1,10 @@
 //! The workflows a user runs, as library functions the CLI only calls: analyse an input (a
 //! run directory or a CSV log), write a run's report, analyse a lot, calibrate a rig, and
-//! choose the calibration a recording converts with.
+//! choose the calibration a recording converts with, and keep the test history.
 
 pub mod analyze_input;
 pub mod calibrate;
+pub mod history;
 pub mod lot;
 pub mod reference;
 pub mod report;

@@ -23,6 +23,8 @@ pub struct RunReport {
     pub written: Vec<PathBuf>,
     /// Why the record could not be analysed.
     pub not_analysed: Option<String>,
+    /// The analysis, when there is one (for the history).
+    pub analysis: Option<crate::analysis::Analysis>,
 }
 
 /// Report the run in `dir`.
@@ -38,12 +40,14 @@ pub fn run(dir: &Path, judging: &Judging, force: bool) -> Result<RunReport, RunR
         Ok(a) => RunReport {
             written: report::write_all(dir, &loaded.series, &a, &loaded.title, force)?,
             not_analysed: None,
+            analysis: Some(a),
         },
         Err(JobError::Analysis { source, .. }) => {
             let why = source.to_string();
             RunReport {
                 written: report::write_unanalysed(dir, &loaded.series, &loaded.title, &why, force)?,
                 not_analysed: Some(why),
+                analysis: None,
             }
         }
         Err(e) => return Err(e.into()),

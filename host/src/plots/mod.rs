@@ -1,6 +1,6 @@
 //! Plots, PNG and SVG, one module per subject: the run's flux against temperature and
 //! residuals ([`flux`]), its time series ([`timeline`]), a lot ([`lot`]) and a sampling
-//! plan's operating characteristic ([`oc`]). Rendering and files are in [`figure`], the
+//! plan's operating characteristic ([`oc`]) and a supplier's control chart ([`trend`]). Rendering and files are in [`figure`], the
 //! house style in [`style`], decimation for long records in [`decimate`].
 
 pub mod decimate;
@@ -10,6 +10,7 @@ pub mod lot;
 pub mod oc;
 pub mod style;
 pub mod timeline;
+pub mod trend;
 
 use std::path::{Path, PathBuf};
 
@@ -110,5 +111,15 @@ pub fn write_oc_plot(
     let f = render_figure!(stem, force, |area| oc::oc_curve(
         &area, model, plan, aql, rql
     ))?;
+    Ok(f.files().to_vec())
+}
+
+/// A supplier's control chart as `stem`.png/.svg (refuses to replace them unless `force`).
+pub fn write_trend_plot(
+    stem: &Path,
+    chart: &crate::history::trend::TrendChart,
+    force: bool,
+) -> Result<Vec<PathBuf>, PlotError> {
+    let f = render_figure!(stem, force, |area| trend::control_chart(&area, chart))?;
     Ok(f.files().to_vec())
 }

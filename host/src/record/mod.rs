@@ -65,6 +65,7 @@ pub fn record<P: Read + Write>(
         calibration: opts.calibration,
         calibration_basis: Some(basis),
         counts: Counts::default(),
+        inspection: opts.inspection.clone(),
     };
     let mut w = RunWriter::create(&opts.out, meta)?;
     w.raw(&early.bytes)?;

@@ -34,6 +34,8 @@ pub struct RecordOptions {
     /// Device time recorded with the heater off before the profile starts, s: a settled
     /// room-temperature reference with the magnet at rest.
     pub preroll_s: f64,
+    /// Lot, purchase order, supplier and operator, kept in `run.toml`.
+    pub inspection: crate::inspection::Inspection,
     /// Set to stop (Ctrl-C, or a termination or hang-up signal).
     pub stop: Arc<AtomicBool>,
 }

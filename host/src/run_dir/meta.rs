@@ -127,6 +127,12 @@ pub struct RunMeta {
     pub calibration_basis: Option<crate::calibration_policy::Basis>,
     /// Counts.
     pub counts: Counts,
+    /// Lot, purchase order, supplier and operator, as given when recording.
+    #[serde(
+        default,
+        skip_serializing_if = "crate::inspection::Inspection::is_empty"
+    )]
+    pub inspection: crate::inspection::Inspection,
 }
 
 /// Run directory errors.

@@ -57,6 +57,7 @@ fn measure(
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("run");
     let rec = RecordOptions {
+        inspection: Default::default(),
         port_label: "simulated".into(),
         magnet: m.info,
         profile,

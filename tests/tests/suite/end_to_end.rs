@@ -54,6 +54,7 @@ fn run(
     let rig = VirtualRig::start(opts).unwrap();
     let port = remanent::link::port::open(rig.path()).unwrap();
     let rec = RecordOptions {
+        inspection: Default::default(),
         port_label: rig.path().into(),
         magnet: m.info,
         profile,
@@ -195,6 +196,7 @@ fn a_rig_that_dies_mid_run_leaves_a_valid_partial_record() {
         rig.stop().unwrap()
     });
     let rec = RecordOptions {
+        inspection: Default::default(),
         port_label: "virtual".into(),
         magnet: m.info,
         profile: short_profile(),
@@ -355,6 +357,7 @@ fn stopping_a_record_turns_the_heater_off_and_closes_cleanly() {
         fn note(&mut self, _: &str) {}
     }
     let rec = RecordOptions {
+        inspection: Default::default(),
         port_label: "simulated".into(),
         magnet: m.info,
         profile: short_profile(),
@@ -445,6 +448,7 @@ fn a_noisy_link_never_leaves_a_record_hanging() {
             opts.seed = seed;
             opts.link_flip_probability = 0.01;
             let rec = RecordOptions {
+                inspection: Default::default(),
                 port_label: "noisy".into(),
                 magnet: m.info.clone(),
                 profile: short_profile(),

@@ -53,6 +53,7 @@ fn through_an_outage_longer_than_the_sequence_byte_every_row_is_what_the_device_
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("run");
     let rec = RecordOptions {
+        inspection: Default::default(),
         port_label: "outage".into(),
         magnet: m.info.clone(),
         profile: profile(200.0),
@@ -105,6 +106,7 @@ fn a_record_after_a_self_test_on_the_same_port_holds_only_its_own_samples() {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("run");
     let rec = RecordOptions {
+        inspection: Default::default(),
         port_label: rig.path().into(),
         magnet: m.info.clone(),
         profile: profile(60.0),
@@ -165,6 +167,7 @@ fn simulated_record(
     let m = magnets::resolve("RM-N42SH-D10x5").unwrap();
     let opts = VirtualRigOptions::new(m.model.unwrap());
     let rec = RecordOptions {
+        inspection: Default::default(),
         port_label: "simulated".into(),
         magnet: m.info.clone(),
         profile,

@@ -32,6 +32,7 @@ fn simulated_run(
     opts.seed = seed;
     let out = dir.join(id);
     let rec = RecordOptions {
+        inspection: Default::default(),
         port_label: "simulated".into(),
         magnet: info,
         profile: ProfileSpec::resolve("quick-alpha").unwrap(),

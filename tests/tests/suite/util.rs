@@ -75,6 +75,7 @@ impl VirtualRecord {
         use remanent::record::{record, Quiet, RecordOptions};
         use std::sync::{atomic::AtomicBool, Arc};
         let rec = RecordOptions {
+            inspection: Default::default(),
             port_label: "simulated".into(),
             magnet: self.info,
             profile: ProfileSpec {

@@ -1,0 +1,67 @@
+//! `remanent history find`: runs with their latest analysis, as a table.
+
+use std::process::ExitCode;
+
+use super::common::FilterOpts;
+use crate::cli::options::StoreOpts;
+
+#[derive(clap::Args)]
+pub struct Args {
+    #[command(flatten)]
+    filter: FilterOpts,
+    /// Show at most this many (the newest).
+    #[arg(long, default_value_t = 50)]
+    limit: u64,
+    /// Show every match.
+    #[arg(long, conflicts_with = "limit")]
+    all: bool,
+    #[command(flatten)]
+    store: StoreOpts,
+}
+
+fn num(v: Option<f64>, digits: usize) -> String {
+    v.map(|x| format!("{x:.digits$}"))
+        .unwrap_or_else(|| "—".into())
+}
+
+pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+    let mut store = super::common::open(&a.store)?;
+    let rows = store.find(&a.filter.filter((!a.all).then_some(a.limit)))?;
+    if rows.is_empty() {
+        println!("no runs match in {}", store.describe());
+        return Ok(ExitCode::SUCCESS);
+    }
+    println!(
+        "{:<20} {:<22} {:<10} {:<14} {:<16} {:<13} {:>10} {:>8} {:>8}",
+        "started (UTC)",
+        "magnet",
+        "grade",
+        "lot",
+        "supplier",
+        "verdict",
+        "α %/°C",
+        "Br T",
+        "loss %"
+    );
+    for r in &rows {
+        let t = |v: &Option<String>| v.clone().unwrap_or_else(|| "—".into());
+        println!(
+            "{:<20} {:<22} {:<10} {:<14} {:<16} {:<13} {:>10} {:>8} {:>8}",
+            r.when_utc,
+            t(&r.magnet_id),
+            t(&r.grade),
+            t(&r.lot),
+            t(&r.supplier),
+            r.verdict.as_deref().unwrap_or("not analysed"),
+            num(r.alpha_pct_per_c, 4),
+            num(r.br_t, 4),
+            num(r.loss_pct, 3),
+        );
+    }
+    println!(
+        "{} shown (store: {})",
+        remanent::units::count(rows.len() as u64, "run", "runs"),
+        store.describe()
+    );
+    Ok(ExitCode::SUCCESS)
+}

@@ -1,0 +1,73 @@
+//! `remanent history trend`: a supplier's control chart of α, Br and loss.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use crate::cli::options::{ForceOpts, StoreOpts};
+
+#[derive(clap::Args)]
+pub struct Args {
+    /// The supplier.
+    #[arg(long)]
+    supplier: String,
+    /// Only this grade (a supplier's grades differ in α and Br).
+    #[arg(long)]
+    grade: Option<String>,
+    /// Control limits from this many first runs (common practice: 20 to 25).
+    #[arg(long, default_value_t = 25, value_parser = clap::value_parser!(u64).range(2..))]
+    baseline: u64,
+    /// The chart, as FILE.png and FILE.svg (the extension is replaced).
+    #[arg(long)]
+    out: PathBuf,
+    #[command(flatten)]
+    force: ForceOpts,
+    #[command(flatten)]
+    store: StoreOpts,
+}
+
+pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+    let mut store = super::common::open(&a.store)?;
+    let points = store.trend(&a.supplier, a.grade.as_deref())?;
+    if points.is_empty() {
+        anyhow::bail!(
+            "no analysed runs of supplier `{}`{} in {}",
+            a.supplier,
+            a.grade
+                .as_deref()
+                .map(|g| format!(", grade {g}"))
+                .unwrap_or_default(),
+            store.describe()
+        );
+    }
+    let chart = remanent::history::trend::chart(
+        &a.supplier,
+        a.grade.as_deref(),
+        &points,
+        a.baseline as usize,
+    );
+    for p in &chart.panels {
+        match p.limits {
+            Some(l) => println!(
+                "{:<22} centre {:>9.4}  limits {:>9.4} … {:<9.4} (first {} runs); {} beyond",
+                p.quantity,
+                l.centre,
+                l.lower,
+                l.upper,
+                l.baseline,
+                p.outside().len()
+            ),
+            None => println!("{:<22} fewer than two values: no limits", p.quantity),
+        }
+        for (t, v, id) in p.outside() {
+            println!(
+                "    beyond: {} {id} {v:.4}",
+                &remanent::clock::format_utc(*t as u64)[..10]
+            );
+        }
+    }
+    let stem = a.out.with_extension("");
+    for f in remanent::plots::write_trend_plot(&stem, &chart, a.force.force)? {
+        println!("wrote {}", f.display());
+    }
+    Ok(ExitCode::SUCCESS)
+}

@@ -1,0 +1,315 @@
+//! Reading the store: runs found by magnet, lot, supplier, grade, date or verdict (each with
+//! its latest analysis), a lot's summary, a supplier's trend, and CSV export. The same SQL
+//! runs on both engines.
+
+use super::backend::Value;
+use super::error::StoreError;
+use super::store::Store;
+
+/// What to look for; every field given must match (dates compare with the record's start).
+#[derive(Debug, Clone, Default)]
+pub struct Filter {
+    /// The magnet's id.
+    pub magnet: Option<String>,
+    /// The lot.
+    pub lot: Option<String>,
+    /// The supplier.
+    pub supplier: Option<String>,
+    /// The stated grade.
+    pub grade: Option<String>,
+    /// Started on or after this date or instant (`2026-01-31` or RFC 3339).
+    pub since: Option<String>,
+    /// Started on or before this date (the whole day) or instant.
+    pub until: Option<String>,
+    /// The latest analysis's verdict: `pass`, `fail` or `indeterminate`.
+    pub verdict: Option<String>,
+    /// At most this many (the newest), none: all.
+    pub limit: Option<u64>,
+}
+
+/// A run and its latest analysis.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Found {
+    /// Stable key.
+    pub run_uid: String,
+    /// Folder or file name.
+    pub run_name: String,
+    /// Where it is, on which host.
+    pub location: String,
+    /// Host.
+    pub host: String,
+    /// Magnet, grade, lot, order, supplier, operator.
+    pub magnet_id: Option<String>,
+    /// Stated grade.
+    pub grade: Option<String>,
+    /// Lot.
+    pub lot: Option<String>,
+    /// Purchase order.
+    pub purchase_order: Option<String>,
+    /// Supplier.
+    pub supplier: Option<String>,
+    /// Operator.
+    pub operator: Option<String>,
+    /// Start (or, for a log, when it was stored), UTC.
+    pub when_utc: String,
+    /// Latest analysis: verdict and figures (absent when never analysed).
+    pub verdict: Option<String>,
+    /// α, %/°C, and its U95.
+    pub alpha_pct_per_c: Option<f64>,
+    /// U95 of α.
+    pub alpha_u95_pct_per_c: Option<f64>,
+    /// Br, T, and its U95.
+    pub br_t: Option<f64>,
+    /// U95 of Br.
+    pub br_u95_t: Option<f64>,
+    /// Irreversible loss, %, and its U95.
+    pub loss_pct: Option<f64>,
+    /// U95 of the loss.
+    pub loss_u95_pct: Option<f64>,
+    /// B at 20 °C, mT.
+    pub b20_mt: Option<f64>,
+    /// When the latest analysis was made.
+    pub analysed_utc: Option<String>,
+}
+
+const FOUND_SELECT: &str = "SELECT r.run_uid, r.run_name, r.location, r.host, r.magnet_id,
+    r.grade, r.lot, r.purchase_order, r.supplier, r.operator,
+    r.started_utc, a.verdict, a.alpha_pct_per_C, a.alpha_u95_pct_per_C,
+    a.br_T, a.br_u95_T, a.loss_pct, a.loss_u95_pct, a.b20_mT, a.analysed_utc
+    FROM runs r LEFT JOIN analyses a ON a.analysis_uid = r.latest_analysis_uid";
+
+fn found(row: &[Value]) -> Found {
+    let t = |i: usize| row[i].text();
+    let f = |i: usize| row[i].real();
+    Found {
+        run_uid: t(0).unwrap_or_default(),
+        run_name: t(1).unwrap_or_default(),
+        location: t(2).unwrap_or_default(),
+        host: t(3).unwrap_or_default(),
+        magnet_id: t(4),
+        grade: t(5),
+        lot: t(6),
+        purchase_order: t(7),
+        supplier: t(8),
+        operator: t(9),
+        when_utc: t(10).unwrap_or_default(),
+        verdict: t(11),
+        alpha_pct_per_c: f(12),
+        alpha_u95_pct_per_c: f(13),
+        br_t: f(14),
+        br_u95_t: f(15),
+        loss_pct: f(16),
+        loss_u95_pct: f(17),
+        b20_mt: f(18),
+        analysed_utc: t(19),
+    }
+}
+
+/// `until` as an upper bound: a plain date covers its whole day.
+fn until_bound(u: &str) -> String {
+    if u.len() == 10 {
+        format!("{u}T23:59:59Z")
+    } else {
+        u.into()
+    }
+}
+
+impl Filter {
+    /// The WHERE clause and its values, placeholders numbered from `$1`.
+    fn clause(&self) -> (String, Vec<Value>) {
+        let mut conds = Vec::new();
+        let mut vals: Vec<Value> = Vec::new();
+        let mut add = |sql: &str, v: String| {
+            vals.push(Value::Text(v));
+            conds.push(sql.replace('?', &format!("${}", vals.len())));
+        };
+        let when = "r.started_utc";
+        if let Some(m) = &self.magnet {
+            add("r.magnet_id = ?", m.clone());
+        }
+        if let Some(l) = &self.lot {
+            add("r.lot = ?", l.clone());
+        }
+        if let Some(s) = &self.supplier {
+            add("r.supplier = ?", s.clone());
+        }
+        if let Some(g) = &self.grade {
+            add("r.grade = ?", g.clone());
+        }
+        if let Some(s) = &self.since {
+            add(&format!("{when} >= ?"), s.clone());
+        }
+        if let Some(u) = &self.until {
+            add(&format!("{when} <= ?"), until_bound(u));
+        }
+        if let Some(v) = &self.verdict {
+            add("a.verdict = ?", v.to_lowercase());
+        }
+        let sql = if conds.is_empty() {
+            String::new()
+        } else {
+            format!(" WHERE {}", conds.join(" AND "))
+        };
+        (sql, vals)
+    }
+}
+
+impl Store {
+    /// Runs matching `filter`, oldest first (the newest `limit` when one is given).
+    pub fn find(&mut self, filter: &Filter) -> Result<Vec<Found>, StoreError> {
+        let (clause, vals) = filter.clause();
+        let when = "r.started_utc";
+        let sql = match filter.limit {
+            Some(n) => format!("{FOUND_SELECT}{clause} ORDER BY {when} DESC, r.run_uid LIMIT {n}"),
+            None => format!("{FOUND_SELECT}{clause} ORDER BY {when}, r.run_uid"),
+        };
+        let mut rows: Vec<Found> = self
+            .db()
+            .query(&sql, &vals)?
+            .iter()
+            .map(|r| found(r))
+            .collect();
+        if filter.limit.is_some() {
+            rows.reverse();
+        }
+        Ok(rows)
+    }
+
+    /// How many runs and analyses the store holds.
+    pub fn counts(&mut self) -> Result<(i64, i64), StoreError> {
+        let r = self.db().query(
+            "SELECT (SELECT COUNT(*) FROM runs), (SELECT COUNT(*) FROM analyses)",
+            &[],
+        )?;
+        let row = r.first().cloned().unwrap_or_default();
+        let n = |i: usize| row.get(i).and_then(Value::int).unwrap_or(0);
+        Ok((n(0), n(1)))
+    }
+
+    /// A supplier's runs over time (optionally one grade): the latest analysis of each.
+    pub fn trend(
+        &mut self,
+        supplier: &str,
+        grade: Option<&str>,
+    ) -> Result<Vec<TrendPoint>, StoreError> {
+        let mut sql = "SELECT r.started_utc, r.magnet_id, r.lot,
+            r.latest_alpha_pct_per_C, r.latest_br_T, r.latest_loss_pct
+            FROM runs r WHERE r.supplier = $1 AND r.latest_analysis_uid IS NOT NULL"
+            .to_string();
+        let mut vals = vec![Value::Text(supplier.into())];
+        if let Some(g) = grade {
+            sql.push_str(" AND r.grade = $2");
+            vals.push(Value::Text(g.into()));
+        }
+        sql.push_str(" ORDER BY r.supplier, r.started_utc, r.run_uid");
+        Ok(self
+            .db()
+            .query(&sql, &vals)?
+            .into_iter()
+            .map(|r| TrendPoint {
+                when_utc: r[0].text().unwrap_or_default(),
+                magnet_id: r[1].text(),
+                lot: r[2].text(),
+                alpha_pct_per_c: r[3].real(),
+                br_t: r[4].real(),
+                loss_pct: r[5].real(),
+            })
+            .collect())
+    }
+}
+
+/// One run in a supplier's trend.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TrendPoint {
+    /// When it was recorded, UTC.
+    pub when_utc: String,
+    /// Magnet and lot.
+    pub magnet_id: Option<String>,
+    /// Lot.
+    pub lot: Option<String>,
+    /// α, %/°C.
+    pub alpha_pct_per_c: Option<f64>,
+    /// Br, T.
+    pub br_t: Option<f64>,
+    /// Irreversible loss, %.
+    pub loss_pct: Option<f64>,
+}
+
+/// A lot at a glance.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct LotSummary {
+    /// The lot.
+    pub lot: String,
+    /// Runs in it, and how many were analysed.
+    pub runs: usize,
+    /// Runs with an analysis.
+    pub analysed: usize,
+    /// Latest verdicts: pass, fail, indeterminate.
+    pub pass: usize,
+    /// Fails.
+    pub fail: usize,
+    /// Indeterminate.
+    pub indeterminate: usize,
+    /// Grades and suppliers named in it.
+    pub grades: Vec<String>,
+    /// Suppliers.
+    pub suppliers: Vec<String>,
+    /// Mean and sample standard deviation of α, Br and loss over the analysed runs.
+    pub alpha_pct_per_c: Option<(f64, f64)>,
+    /// Br, T.
+    pub br_t: Option<(f64, f64)>,
+    /// Loss, %.
+    pub loss_pct: Option<(f64, f64)>,
+    /// First and last start, UTC.
+    pub span_utc: Option<(String, String)>,
+}
+
+/// Mean and sample standard deviation (Welford's running form), None for no values.
+pub fn mean_sd(values: impl IntoIterator<Item = f64>) -> Option<(f64, f64)> {
+    let (mut n, mut mean, mut m2) = (0u64, 0.0, 0.0);
+    for x in values.into_iter().filter(|x| x.is_finite()) {
+        n += 1;
+        let d = x - mean;
+        mean += d / n as f64;
+        m2 += d * (x - mean);
+    }
+    match n {
+        0 => None,
+        1 => Some((mean, 0.0)),
+        n => Some((mean, (m2 / (n - 1) as f64).sqrt())),
+    }
+}
+
+/// Summarise the runs of a lot (as [`Store::find`] returns them).
+pub fn lot_summary(lot: &str, runs: &[Found]) -> LotSummary {
+    let mut s = LotSummary {
+        lot: lot.into(),
+        runs: runs.len(),
+        ..Default::default()
+    };
+    for r in runs {
+        match r.verdict.as_deref() {
+            Some("pass") => s.pass += 1,
+            Some("fail") => s.fail += 1,
+            Some(_) => s.indeterminate += 1,
+            None => continue,
+        }
+        s.analysed += 1;
+    }
+    let names = |f: fn(&Found) -> Option<&String>| {
+        let mut v: Vec<String> = runs.iter().filter_map(f).cloned().collect();
+        v.sort();
+        v.dedup();
+        v
+    };
+    s.grades = names(|r| r.grade.as_ref());
+    s.suppliers = names(|r| r.supplier.as_ref());
+    s.alpha_pct_per_c = mean_sd(runs.iter().filter_map(|r| r.alpha_pct_per_c));
+    s.br_t = mean_sd(runs.iter().filter_map(|r| r.br_t));
+    s.loss_pct = mean_sd(runs.iter().filter_map(|r| r.loss_pct));
+    s.span_utc = match (runs.first(), runs.last()) {
+        (Some(a), Some(b)) => Some((a.when_utc.clone(), b.when_utc.clone())),
+        _ => None,
+    };
+    s
+}
