@@ -47,6 +47,8 @@ pub struct RunEntry {
     pub calibration_basis: Option<String>,
     /// The oldest dated calibration step used, UTC.
     pub calibration_oldest_utc: Option<String>,
+    /// The calibration the record was converted with (JSON of its TOML tables).
+    pub calibration_json: Option<String>,
     /// Samples recorded, and missing.
     pub samples: Option<i64>,
     /// Samples missing in gaps.
@@ -128,6 +130,7 @@ impl RunEntry {
             port: Some(meta.port.clone()),
             calibration_basis: basis_word(meta),
             calibration_oldest_utc: oldest.map(crate::clock::format_utc),
+            calibration_json: serde_json::to_string(&meta.calibration).ok(),
             samples: i64::try_from(meta.counts.samples).ok(),
             gap_samples: i64::try_from(meta.counts.gap_samples).ok(),
         }
@@ -175,6 +178,7 @@ impl RunEntry {
             self.port.clone().into(),
             self.calibration_basis.clone().into(),
             self.calibration_oldest_utc.clone().into(),
+            self.calibration_json.clone().into(),
             self.samples.map_or(Value::Null, Value::Int),
             self.gap_samples.map_or(Value::Null, Value::Int),
             stored_utc.into(),
@@ -186,7 +190,8 @@ impl RunEntry {
 /// The run columns a [`RunEntry`] fills, in order.
 pub const RUN_COLUMNS: &str = "run_uid, run_name, source, location, host, magnet_id, grade, \
     lot, purchase_order, supplier, operator, started_utc, finished_utc, end_reason, profile, \
-    board, firmware, port, calibration_basis, calibration_oldest_utc, samples, gap_samples, \
+    board, firmware, port, calibration_basis, calibration_oldest_utc, calibration_json, samples, \
+    gap_samples, \
     stored_utc, software";
 
 fn name_of(p: &Path) -> String {

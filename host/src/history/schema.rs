@@ -45,6 +45,7 @@ pub const MIGRATIONS: &[Migration] = &[
                 port TEXT,
                 calibration_basis TEXT,
                 calibration_oldest_utc TEXT,
+                calibration_json TEXT,
                 samples BIGINT,
                 gap_samples BIGINT,
                 stored_utc TEXT NOT NULL,
