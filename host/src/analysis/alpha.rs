@@ -14,7 +14,7 @@ use super::prepare::Prepared;
 use super::result::BudgetLine;
 
 /// The lag model's τ is taken as good to this fraction (rectangular).
-pub const LAG_TOLERANCE: f64 = 0.2;
+pub const LAG_TOLERANCE: f64 = 0.1;
 
 /// α and its budget.
 pub struct AlphaResult {

@@ -90,8 +90,8 @@ pub fn quick(p: &Prepared, seg: &Segments, tm: &[f64]) -> Option<f64> {
     Some((b_before - b_after * ratio) / b_before)
 }
 
-/// The loss with its full budget; `None` when the record does not return to a settled room
-/// temperature.
+/// The loss with its full budget, or why there is none; `lag_rel_u` is how well the lag
+/// correction is known relative to itself (1: not at all).
 pub fn full(
     p: &Prepared,
     seg: &Segments,
@@ -99,15 +99,25 @@ pub fn full(
     ctx: &Context,
     model: &Quadratic,
     alpha: (f64, f64),
+    lag_rel_u: f64,
 ) -> Result<LossResult, NoLoss> {
     let after = seg.after.as_ref().ok_or(NoLoss::NoReturn)?;
     let (before_r, after_r) = (settled(&seg.before), settled(after));
-    let (b0, sd0, n0) = mean(before_r.clone().map(|i| p.flux[i]));
-    let (b1, sd1, n1) = mean(after_r.clone().map(|i| p.flux[i]));
-    // the magnet's temperature in the windows: lag-corrected; how much the lag model moved it
-    // away from the thermocouple goes into the budget
+    // the magnet's temperature in the windows: lag-corrected; the part of that correction the
+    // lag's own uncertainty leaves open goes into the budget
     let (t0, _, _) = mean(before_r.clone().map(|i| tm[i]));
     let (t1, _, _) = mean(after_r.clone().map(|i| tm[i]));
+    // each reading referred by the fitted curve to its window's mean temperature, so a
+    // window that still creeps (a short return hold) counts only what the temperature does
+    // not explain
+    let referred = |r: &std::ops::Range<usize>, t: f64| -> Vec<f64> {
+        r.clone()
+            .map(|i| p.flux[i] * model.eval_mt(t) / model.eval_mt(tm[i]))
+            .collect()
+    };
+    let (flux0, flux1) = (referred(&before_r, t0), referred(&after_r, t1));
+    let (b0, sd0, n0) = mean(flux0.iter().copied());
+    let (b1, sd1, n1) = mean(flux1.iter().copied());
     let (tc0, _, _) = mean(before_r.clone().map(|i| p.s.temp_c[i]));
     let (tc1, _, _) = mean(after_r.clone().map(|i| p.s.temp_c[i]));
     let lag_shift_k = ((t0 - tc0).powi(2) + (t1 - tc1).powi(2)).sqrt();
@@ -133,11 +143,13 @@ pub fn full(
         BudgetLine::a("scatter of the reference readings (type A)", u_mean),
         BudgetLine::b(
             "drift within the reference windows (not fully settled)",
-            (drift_pct(&p.flux, &before_r).powi(2) + drift_pct(&p.flux, &after_r).powi(2)).sqrt(),
+            (drift_pct(&flux0, &(0..flux0.len())).powi(2)
+                + drift_pct(&flux1, &(0..flux1.len())).powi(2))
+            .sqrt(),
         ),
         BudgetLine::b(
             "lag correction of the reference temperatures",
-            alpha_rel * lag_shift_k * 100.0,
+            alpha_rel * lag_shift_k * lag_rel_u * 100.0,
         ),
         BudgetLine::b(
             "reversible correction between the reference temperatures",

@@ -123,19 +123,7 @@ fn analyze_cycle(
     let data = fit_data::select(&prep, &lagged, collapse)?;
     let a = alpha::estimate(&prep, &lagged, &data, ctx, &mut notes)?;
     let u_c = a.u_c();
-    let loss = loss::full(
-        &prep,
-        &lagged.seg,
-        &lagged.tm,
-        ctx,
-        &a.model,
-        (a.alpha, u_c),
-    );
-    let loss = with_branch_loss(loss, &prep, &lagged, &mut notes);
-    note_loss(&loss, &mut notes);
-    let loss = loss
-        .ok()
-        .filter(|l| l.loss_pct.is_finite() && l.u95_pct.is_finite());
+    let (loss, by_references) = cycle_loss(&prep, &lagged, ctx, &a, &mut notes);
     if !(a.alpha.is_finite() && u_c.is_finite() && a.model.b0_mt.is_finite()) {
         return Err(AnalysisError::NotFinite(format!(
             "the fit gave α = {} ± {} %/°C; nothing is judged from it",
@@ -194,6 +182,14 @@ fn analyze_cycle(
         lag_time_constant_s: lagged.tau_s,
         irreversible_loss_pct: loss.as_ref().map(|l| l.loss_pct),
         irreversible_loss_u95_pct: loss.as_ref().map(|l| l.u95_pct),
+        loss_method_code: loss.as_ref().map(|_| {
+            if by_references {
+                "references"
+            } else {
+                "branches"
+            }
+            .into()
+        }),
         reference_c: loss.as_ref().map(|l| l.ref_c),
         reference_probe_c: loss.as_ref().and_then(|l| l.ref_probe_c),
         max_magnet_temp_c: lagged.tm[lagged.seg.peak],
@@ -221,6 +217,45 @@ fn analyze_cycle(
             flux_corrected_mt: prep.flux,
         },
     })
+}
+
+/// The cycle's loss (from the references, else from the branches) and whether it came from
+/// the references.
+fn cycle_loss(
+    prep: &Prepared,
+    lagged: &lag_estimate::Lagged,
+    ctx: &Context,
+    a: &alpha::AlphaResult,
+    notes: &mut Vec<String>,
+) -> (Option<loss::LossResult>, bool) {
+    let loss = loss::full(
+        prep,
+        &lagged.seg,
+        &lagged.tm,
+        ctx,
+        &a.model,
+        (a.alpha, a.u_c()),
+        lag_relative_u(lagged),
+    );
+    let by_references = loss.is_ok();
+    let loss = with_branch_loss(loss, prep, lagged, notes);
+    note_loss(&loss, notes);
+    let loss = loss
+        .ok()
+        .filter(|l| l.loss_pct.is_finite() && l.u95_pct.is_finite());
+    (loss, by_references)
+}
+
+/// How well the lag is known, relative to itself: the α budget's band (±20 %, or every τ the
+/// branches leave possible); 1 (the whole correction) when no lag was estimated.
+fn lag_relative_u(lagged: &lag_estimate::Lagged) -> f64 {
+    match (lagged.tau_s, lagged.tau_range_s) {
+        (Some(tau), range) if tau > 0.0 => {
+            let (lo, hi) = range.unwrap_or((tau, tau));
+            ((tau - lo).max(hi - tau) / tau).max(alpha::LAG_TOLERANCE)
+        }
+        _ => 1.0,
+    }
 }
 
 /// A record with no return whose branches show a loss: the loss between the branches.

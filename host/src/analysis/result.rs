@@ -129,6 +129,10 @@ pub struct Analysis {
     pub irreversible_loss_pct: Option<f64>,
     /// Its expanded uncertainty, k = 2, %.
     pub irreversible_loss_u95_pct: Option<f64>,
+    /// How the loss was found: `references` (the flux at rest before and after, referred to
+    /// one temperature) or `branches` (heating against cooling at the same temperature, for a
+    /// record with no return); absent with no loss.
+    pub loss_method_code: Option<String>,
     /// Reference temperatures before and after, °C.
     #[serde(rename = "reference_C")]
     pub reference_c: Option<[f64; 2]>,

@@ -43,10 +43,15 @@ pub const END_SAMPLES: usize = 21;
 
 /// How far the temperature may stray and still count as the reference, K.
 pub const REFERENCE_BAND_K: f64 = 0.6;
+/// A return that still creeps (a fast profile's short return hold, a magnet with a long lag):
+/// the magnet estimate within this band around its final value, K, …
+pub const CREEPING_BAND_K: f64 = 3.0;
+/// … for at least this long, s: the loss step refers it by its lag-corrected temperature.
+pub const CREEPING_MIN_S: f64 = 60.0;
 /// A final plateau counts as the return when it is below the start plus this fraction of the
 /// excursion (a fixture that has not cooled all the way back: the loss step refers both
 /// references to one temperature with the fitted curve and budgets that correction).
-pub const RETURN_FRACTION: f64 = 0.35;
+pub const RETURN_FRACTION: f64 = 0.45;
 /// Soaks: the temperature stays within this band of where the stretch began, K …
 pub const SOAK_BAND_K: f64 = 0.15;
 /// … for at least this long, s.
@@ -85,7 +90,18 @@ pub fn find(time_s: &[f64], temp_c: &[f64], thermocouple_c: &[f64]) -> Segments 
         tail -= 1;
     }
     let near_start = |t: f64| (t - start).abs() < RETURN_FRACTION * (temp_c[peak] - start).max(0.0);
-    let returned = near_start(end_t) && peak < tail && time_s[n - 1] - time_s[tail] >= 30.0;
+    let mut returned = near_start(end_t) && peak < tail && time_s[n - 1] - time_s[tail] >= 30.0;
+    if !returned && near_start(end_t) {
+        // not settled to the narrow band: a slow creep at the end still serves
+        let mut creep = n - 1;
+        while creep > peak && (temp_c[creep - 1] - end_t).abs() < CREEPING_BAND_K * 0.5 {
+            creep -= 1;
+        }
+        if peak < creep && time_s[n - 1] - time_s[creep] >= CREEPING_MIN_S {
+            tail = creep;
+            returned = true;
+        }
+    }
     let mut after = returned.then_some(tail..n);
     let soaks = soaks(time_s, temp_c, thermocouple_c);
     // prefer settled soaks near room temperature as the references: the last soak before
