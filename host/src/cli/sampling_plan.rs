@@ -22,6 +22,16 @@ pub struct Args {
     /// Lot size: use the hypergeometric distribution for this finite lot.
     #[arg(long)]
     lot_size: Option<u64>,
+    /// The profile the lot will be tested with, for the fixture time it needs.
+    #[arg(long, default_value = "rapid")]
+    profile: String,
+    /// Rigs testing side by side.
+    #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u64).range(1..))]
+    rigs: u64,
+    /// Minutes between magnets: unclamp, clamp the next, let the fixture come back toward room
+    /// temperature.
+    #[arg(long, default_value_t = 3.0, value_parser = super::options::parse_finite)]
+    handling_min: f64,
     /// Write the OC curve to this file stem (.png and .svg).
     #[arg(long)]
     plot: Option<PathBuf>,
@@ -51,6 +61,25 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
             Model::Binomial => "binomial".to_string(),
             Model::Hypergeometric(n) => format!("hypergeometric, lot of {n}"),
         }
+    );
+    let profile = remanent::profiles::ProfileSpec::resolve(&a.profile)?;
+    if a.handling_min < 0.0 {
+        anyhow::bail!("--handling-min {} is negative", a.handling_min);
+    }
+    let per = remanent::rig_time::PerMagnet::new(&profile, 60.0, a.handling_min * 60.0);
+    let t = remanent::rig_time::lot_time(plan.n, &per, a.rigs);
+    println!(
+        "fixture time with `{}`: {:.1} min a magnet ({:.0} s rest, {:.1} min profile{}, {:.1} min handling) → {:.1} rig-hours; on {} about {:.1} hours ({} rounds)",
+        profile.name,
+        per.total_s() / 60.0,
+        per.rest_s,
+        per.profile_s / 60.0,
+        if profile.name == "rapid" { " at most: the record ends once α and the loss are known" } else { "" },
+        per.handling_s / 60.0,
+        t.rig_hours,
+        remanent::units::count(a.rigs, "rig", "rigs"),
+        t.hours,
+        t.rounds
     );
     if let Some(stem) = a.plot {
         for f in remanent::plots::write_oc_plot(&stem, model, &plan, a.aql, a.rql, a.force.force)? {
