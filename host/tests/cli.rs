@@ -130,3 +130,88 @@ fn a_negative_probe_coefficient_is_accepted_and_a_missing_probe_column_named() {
         "the option needs a probe column the file does not have: {text}"
     );
 }
+
+#[test]
+fn two_rigs_record_side_by_side_on_one_host_and_a_busy_port_is_refused() {
+    use std::io::{BufRead, BufReader};
+    use std::process::Stdio;
+    let dir = tempfile::tempdir().unwrap();
+    let store = dir.path().join("history.sqlite");
+    let rig = |magnet: &str| {
+        let mut c = Command::new(BIN)
+            .args(["virtual-rig", "--magnet", magnet, "--speed", "50"])
+            .stdout(Stdio::piped())
+            .stderr(Stdio::null())
+            .spawn()
+            .unwrap();
+        let mut port = String::new();
+        BufReader::new(c.stdout.take().unwrap())
+            .read_line(&mut port)
+            .unwrap();
+        (c, port.trim().to_string())
+    };
+    let (mut rig_a, port_a) = rig("RM-N42SH-D10x5");
+    let (mut rig_b, port_b) = rig("RM-S2C17-D10x5");
+    let record = |port: &str, magnet: &str, out: &str| {
+        Command::new(BIN)
+            .args([
+                "record",
+                "--port",
+                port,
+                "--magnet",
+                magnet,
+                "--profile",
+                "rapid",
+            ])
+            .args(["--lot", "L-TWO", "--allow-over-rating", "--out"])
+            .arg(dir.path().join(out))
+            .env("REMANENT_HISTORY", &store)
+            .stdout(Stdio::piped())
+            .stderr(Stdio::piped())
+            .spawn()
+            .unwrap()
+    };
+    let a = record(&port_a, "RM-N42SH-D10x5", "a");
+    let b = record(&port_b, "RM-S2C17-D10x5", "b");
+    // rig A's port is taken by its recorder: a second recorder is refused, saying why
+    std::thread::sleep(std::time::Duration::from_millis(500));
+    let (code, text) = run(&[
+        "record",
+        "--port",
+        &port_a,
+        "--magnet",
+        "RM-N42SH-D10x5",
+        "--out",
+    ]
+    .iter()
+    .copied()
+    .chain([dir.path().join("c").to_str().unwrap()])
+    .collect::<Vec<_>>());
+    assert_eq!(code, 2, "{text}");
+    assert!(
+        text.contains("another program has this port open"),
+        "{text}"
+    );
+    for (child, name) in [(a, "a"), (b, "b")] {
+        let out = child.wait_with_output().unwrap();
+        let text = String::from_utf8_lossy(&out.stdout).into_owned()
+            + &String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(0), "{name}: {text}");
+        assert!(text.contains("0 gaps"), "{name}: {text}");
+    }
+    let _ = rig_a.kill();
+    let _ = rig_b.kill();
+    let _ = (rig_a.wait(), rig_b.wait());
+    // both records went into the one store, written by two processes
+    let db = rusqlite::Connection::open(&store).unwrap();
+    let n: i64 = db
+        .query_row("SELECT COUNT(*) FROM runs WHERE lot = 'L-TWO'", [], |r| {
+            r.get(0)
+        })
+        .unwrap();
+    assert_eq!(n, 2);
+    assert!(
+        !dir.path().join("c").exists(),
+        "the refused record left nothing behind"
+    );
+}

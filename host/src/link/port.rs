@@ -27,6 +27,10 @@ pub enum PortError {
 pub fn open(path: &str) -> Result<Box<dyn serialport::SerialPort>, PortError> {
     serialport::new(path, BAUD).timeout(Duration::from_millis(20)).open().map_err(|source| {
         let hint = match source.kind() {
+            // several rigs on one host: each port belongs to one recorder at a time
+            serialport::ErrorKind::NoDevice if source.description.contains("exclusive lock") => {
+                " (another program has this port open — another `remanent record`? one rig, one recorder)"
+            }
             serialport::ErrorKind::NoDevice => " (is the board plugged in? `remanent ports` lists what is there)",
             serialport::ErrorKind::Io(std::io::ErrorKind::PermissionDenied) => {
                 " (permission denied: add yourself to the group that owns the port, e.g. `dialout`, and log in again)"
