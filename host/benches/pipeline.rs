@@ -195,6 +195,7 @@ fn main() {
     };
     let opts = RecordOptions {
         inspection: Default::default(),
+        auto_end: None,
         port_label: "bench".into(),
         magnet: m.info,
         profile: ProfileSpec::resolve("quick-alpha").unwrap(),

@@ -28,6 +28,7 @@ pub mod profiles;
 pub mod record;
 pub mod replay;
 pub mod report;
+pub mod rig_time;
 pub mod run_dir;
 pub mod sampling;
 pub mod selftest;

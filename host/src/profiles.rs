@@ -100,6 +100,12 @@ pub fn builtin(name: &str) -> Option<ProfileSpec> {
             limit_c: 115.0,
             segments: vec![seg(25.0, 0.0, 300.0), seg(100.0, 5.0, 240.0), seg(25.0, 5.0, 300.0)],
         },
+        "rapid" => ProfileSpec {
+            name: "rapid".into(),
+            description: "α and loss in about 12–15 minutes: 20 s reference at 25 °C, ramp to 100 °C at 20 °C/min, 90 s hold, heater off until 38 °C, up to 200 s of return reference there (the record ends as soon as the analysis has what it needs)".into(),
+            limit_c: 115.0,
+            segments: vec![seg(25.0, 0.0, 20.0), seg(100.0, 20.0, 90.0), seg(38.0, 0.0, 200.0)],
+        },
         "exposure" => ProfileSpec {
             name: "exposure".into(),
             description: "irreversible loss: reference at 25 °C, 30 min at 150 °C, back to 25 °C, reference again".into(),
@@ -116,8 +122,12 @@ pub fn builtin(name: &str) -> Option<ProfileSpec> {
     })
 }
 
+/// The reference fixture's natural cooling time constant toward room temperature, s (from the
+/// virtual rig's `rapid` runs in the throughput benchmark): what a step down costs.
+pub const FREE_COOLING_TAU_S: f64 = 133.0;
+
 /// Names of the built-in profiles.
-pub const BUILTIN_NAMES: [&str; 3] = ["quick-alpha", "exposure", "curie-sweep"];
+pub const BUILTIN_NAMES: [&str; 4] = ["rapid", "quick-alpha", "exposure", "curie-sweep"];
 
 impl ProfileSpec {
     /// A built-in name, or a TOML file.
@@ -215,6 +225,9 @@ impl ProfileSpec {
         for s in &self.segments {
             if s.ramp_c_per_min > 0.0 {
                 t += (s.target_c - from).abs() / s.ramp_c_per_min * 60.0;
+            } else if s.target_c < from - 1.0 && s.target_c + 1.0 > start_c {
+                // a step down: the fixture cools on its own to within a degree of the target
+                t += FREE_COOLING_TAU_S * ((from - start_c) / (s.target_c + 1.0 - start_c)).ln();
             }
             t += s.hold_s;
             from = s.target_c;

@@ -7,7 +7,7 @@ use std::time::Duration;
 
 use remanent::calibration::Calibration;
 use remanent::fixture_ref::FixtureReference;
-use remanent::record::{RecordEnd, RecordOptions};
+use remanent::record::RecordOptions;
 use remanent::survey::{Reading, SurveyProgress};
 use remanent::virtual_rig::{VirtualRig, VirtualRigOptions};
 use remanent::{magnets, profiles::ProfileSpec, run_dir};
@@ -17,8 +17,8 @@ pub struct Args {
     /// Demo magnet (`remanent magnets` lists them).
     #[arg(long, default_value = "RM-N42SH-D10x5")]
     magnet: String,
-    /// Profile.
-    #[arg(long, default_value = "quick-alpha")]
+    /// Profile (`rapid`: about 12 minutes of fixture time, ended by the analysis).
+    #[arg(long, default_value = "rapid")]
     profile: String,
     /// Simulated seconds per wall-clock second.
     #[arg(long, default_value_t = 100.0, value_parser = super::options::parse_speed)]
@@ -115,6 +115,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let port = remanent::link::port::open(rig.path())?;
     let rec = RecordOptions {
         inspection: demo_inspection(a.inspection.inspection()),
+        auto_end: Some(Default::default()),
         port_label: format!("virtual rig ({})", rig.path()),
         magnet: m.info.clone(),
         profile,
@@ -131,7 +132,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     a.store.keep("the record", |at| {
         remanent::jobs::history::store_record(at, &summary.dir)
     });
-    if summary.end != RecordEnd::Finished {
+    if !summary.end.is_complete() {
         return Ok(code);
     }
     let ref_file = out.join(REFERENCE_FILE);

@@ -17,8 +17,9 @@ pub struct Args {
     /// Serial port of the bench (or the path `remanent virtual-rig` printed).
     #[arg(long)]
     port: String,
-    /// Profile: a built-in name (quick-alpha, exposure, curie-sweep) or a TOML file.
-    #[arg(long, default_value = "quick-alpha")]
+    /// Profile: a built-in name (rapid, quick-alpha, exposure, curie-sweep; `remanent
+    /// profiles` shows them) or a TOML file.
+    #[arg(long, default_value = "rapid")]
     profile: String,
     /// Magnet: a demo part id (`remanent magnets`) or a magnet TOML file.
     #[arg(long)]
@@ -31,6 +32,10 @@ pub struct Args {
     /// Run a profile that exceeds the magnet's rated maximum temperature.
     #[arg(long)]
     allow_over_rating: bool,
+    /// Run the profile to its end even once the analysis can already state α and the loss
+    /// to ±0.003 %/°C and ±0.1 % (by default the record ends there and frees the fixture).
+    #[arg(long)]
+    full_profile: bool,
     #[command(flatten)]
     inspection: super::options::InspectionOpts,
     #[command(flatten)]
@@ -59,6 +64,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let port = remanent::link::port::open(&a.port)?;
     let opts = RecordOptions {
         inspection: a.inspection.inspection(),
+        auto_end: (!a.full_profile).then(Default::default),
         port_label: a.port.clone(),
         magnet: magnet.info,
         profile,
@@ -105,7 +111,7 @@ pub fn report_end(s: &RecordSummary) -> ExitCode {
         c.device_dropped
     );
     match &s.end {
-        RecordEnd::Finished => {
+        RecordEnd::Finished | RecordEnd::Complete(_) => {
             println!("ended: {}", s.end.describe());
             ExitCode::SUCCESS
         }

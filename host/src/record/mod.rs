@@ -1,7 +1,9 @@
 //! Recording one heat cycle: handshake, send the profile, keep the heartbeat, write every byte
 //! and every sample as it arrives, report progress, and end cleanly on completion, a fault,
-//! a user's stop or a lost link, keeping everything received.
+//! a user's stop or a lost link, keeping everything received — or as soon as the analysis
+//! can state what the record is for (`auto_end`).
 
+pub mod auto_end;
 mod recorder;
 mod types;
 
@@ -91,7 +93,9 @@ pub fn record<P: Read + Write>(
         }
     };
     // the heater goes off on every way out, not only when the device says it did
-    if end != RecordEnd::Stopped && acq.send(Command::Stop).is_ok() {
+    if !matches!(end, RecordEnd::Stopped | RecordEnd::Complete(_))
+        && acq.send(Command::Stop).is_ok()
+    {
         let t = acq.device_now_s();
         let _ = w.event(Some(t), "stop", "heater off requested as the record ends");
     }

@@ -58,6 +58,7 @@ pub(super) struct Recorder {
     stop: Arc<AtomicBool>,
     start: Start,
     resend: bool,
+    auto: Option<super::auto_end::AutoEnd>,
 }
 
 impl Recorder {
@@ -71,6 +72,9 @@ impl Recorder {
             stop: opts.stop.clone(),
             start: Start::Resting,
             resend: false,
+            auto: opts
+                .auto_end
+                .map(|t| super::auto_end::AutoEnd::new(t, &opts.calibration, &opts.magnet)),
         }
     }
 
@@ -124,6 +128,12 @@ impl Recorder {
             if let Some(end) = ended {
                 return Ok(end);
             }
+            if let Some(words) = self.complete() {
+                progress.note(&words);
+                self.stop_device(acq, w)?;
+                w.event(None, "complete", &words)?;
+                return Ok(RecordEnd::Complete(words));
+            }
             if self.resend {
                 self.resend = false;
                 w.event(None, "resent", "no answer to the profile: sent again")?;
@@ -162,6 +172,14 @@ impl Recorder {
                 self.status.samples = w.meta.counts.samples;
                 self.status.gap_samples += missing_before;
                 let duty = f64::from(placed.sample.duty) / 2.55;
+                if let (Some(a), true) = (self.auto.as_mut(), self.start == Start::Running) {
+                    a.push(
+                        placed.device_time_s,
+                        values.temp_c,
+                        values.flux_mt,
+                        values.probe_c,
+                    );
+                }
                 self.track(placed.device_time_s, values.temp_c, values.flux_mt, duty);
             }
             Event::Beacon(b) => {
@@ -292,6 +310,14 @@ impl Recorder {
             }
         }
         Ok(())
+    }
+
+    /// Whether the analysis can already state what the record is for.
+    fn complete(&mut self) -> Option<String> {
+        if self.start != Start::Running {
+            return None;
+        }
+        self.auto.as_mut()?.check()
     }
 
     /// Device time covered by samples so far, s.

@@ -36,6 +36,9 @@ pub struct RecordOptions {
     pub preroll_s: f64,
     /// Lot, purchase order, supplier and operator, kept in `run.toml`.
     pub inspection: crate::inspection::Inspection,
+    /// End the record once the analysis can state α and the loss to this tolerance (None:
+    /// run the profile to its end).
+    pub auto_end: Option<super::auto_end::Tolerance>,
     /// Set to stop (Ctrl-C, or a termination or hang-up signal).
     pub stop: Arc<AtomicBool>,
 }
@@ -87,6 +90,9 @@ impl Progress for Quiet {
 pub enum RecordEnd {
     /// The profile ran to its end.
     Finished,
+    /// The analysis, asked during the run, could state α and the loss to the tolerance: the
+    /// record ended there (heater off, acknowledged).
+    Complete(String),
     /// The user stopped it; the device acknowledged the stop.
     Stopped,
     /// The device tripped an interlock; its heater is off.
@@ -104,6 +110,7 @@ impl RecordEnd {
     pub fn describe(&self) -> String {
         match self {
             RecordEnd::Finished => "profile finished".into(),
+            RecordEnd::Complete(why) => why.clone(),
             RecordEnd::Stopped => "stopped by the user; heater off (acknowledged)".into(),
             RecordEnd::Fault(f) => format!("device fault: {}; heater off", describe_fault(*f)),
             RecordEnd::DeviceFaulted => {
@@ -114,6 +121,13 @@ impl RecordEnd {
                 format!("could not write the record ({why}); every complete row is kept")
             }
         }
+    }
+}
+
+impl RecordEnd {
+    /// The record has what it was for: the profile ran out, or the analysis ended it.
+    pub fn is_complete(&self) -> bool {
+        matches!(self, RecordEnd::Finished | RecordEnd::Complete(_))
     }
 }
 

@@ -58,6 +58,7 @@ fn measure(
     let out = dir.path().join("run");
     let rec = RecordOptions {
         inspection: Default::default(),
+        auto_end: None,
         port_label: "simulated".into(),
         magnet: m.info,
         profile,

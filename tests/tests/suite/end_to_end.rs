@@ -55,6 +55,7 @@ fn run(
     let port = remanent::link::port::open(rig.path()).unwrap();
     let rec = RecordOptions {
         inspection: Default::default(),
+        auto_end: None,
         port_label: rig.path().into(),
         magnet: m.info,
         profile,
@@ -197,6 +198,7 @@ fn a_rig_that_dies_mid_run_leaves_a_valid_partial_record() {
     });
     let rec = RecordOptions {
         inspection: Default::default(),
+        auto_end: None,
         port_label: "virtual".into(),
         magnet: m.info,
         profile: short_profile(),
@@ -358,6 +360,7 @@ fn stopping_a_record_turns_the_heater_off_and_closes_cleanly() {
     }
     let rec = RecordOptions {
         inspection: Default::default(),
+        auto_end: None,
         port_label: "simulated".into(),
         magnet: m.info,
         profile: short_profile(),
@@ -449,6 +452,7 @@ fn a_noisy_link_never_leaves_a_record_hanging() {
             opts.link_flip_probability = 0.01;
             let rec = RecordOptions {
                 inspection: Default::default(),
+                auto_end: None,
                 port_label: "noisy".into(),
                 magnet: m.info.clone(),
                 profile: short_profile(),

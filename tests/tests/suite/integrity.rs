@@ -54,6 +54,7 @@ fn through_an_outage_longer_than_the_sequence_byte_every_row_is_what_the_device_
     let out = dir.path().join("run");
     let rec = RecordOptions {
         inspection: Default::default(),
+        auto_end: None,
         port_label: "outage".into(),
         magnet: m.info.clone(),
         profile: profile(200.0),
@@ -107,6 +108,7 @@ fn a_record_after_a_self_test_on_the_same_port_holds_only_its_own_samples() {
     let out = dir.path().join("run");
     let rec = RecordOptions {
         inspection: Default::default(),
+        auto_end: None,
         port_label: rig.path().into(),
         magnet: m.info.clone(),
         profile: profile(60.0),
@@ -168,6 +170,7 @@ fn simulated_record(
     let opts = VirtualRigOptions::new(m.model.unwrap());
     let rec = RecordOptions {
         inspection: Default::default(),
+        auto_end: None,
         port_label: "simulated".into(),
         magnet: m.info.clone(),
         profile,

@@ -17,4 +17,5 @@ mod reference_lsq;
 mod reference_path;
 mod reference_type_k;
 mod rig_safety;
+mod throughput;
 mod util;

@@ -33,6 +33,7 @@ fn simulated_run(
     let out = dir.join(id);
     let rec = RecordOptions {
         inspection: Default::default(),
+        auto_end: None,
         port_label: "simulated".into(),
         magnet: info,
         profile: ProfileSpec::resolve("quick-alpha").unwrap(),

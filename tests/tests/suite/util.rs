@@ -76,6 +76,7 @@ impl VirtualRecord {
         use std::sync::{atomic::AtomicBool, Arc};
         let rec = RecordOptions {
             inspection: Default::default(),
+            auto_end: None,
             port_label: "simulated".into(),
             magnet: self.info,
             profile: ProfileSpec {

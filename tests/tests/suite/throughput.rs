@@ -1,0 +1,85 @@
+//! A magnet in 15 minutes: the `rapid` profile on the in-process virtual rig, with the record
+//! ending itself once the analysis can state α and the loss, held to the accuracy goal (α to
+//! ±0.003 %/°C, loss to ±0.1 %, each inside its U95) against the rig model's truth, as the
+//! accuracy sweep is.
+
+use remanent::jobs::trial::{self, Trial, TrialSpec, SWEEP};
+use remanent::profiles::ProfileSpec;
+use remanent::record::auto_end::Tolerance;
+use remanent::record::RecordEnd;
+
+const FIFTEEN_MINUTES_S: f64 = 900.0;
+
+fn rapid(magnet: &str, tau_s: f64, auto_end: Option<Tolerance>, out: &std::path::Path) -> Trial {
+    let spec = TrialSpec {
+        magnet: magnet.into(),
+        magnet_tau_s: tau_s,
+        profile: ProfileSpec::resolve("rapid").unwrap(),
+        auto_end,
+        preroll_s: 60.0,
+        seed: 29,
+    };
+    trial::run(&spec, out).unwrap()
+}
+
+#[test]
+fn rapid_meets_the_accuracy_goal_in_under_15_minutes_and_says_why_it_ended() {
+    let goal = Tolerance::default();
+    let dir = tempfile::tempdir().unwrap();
+    for (magnet, tau) in SWEEP {
+        let out = dir.path().join(magnet);
+        let t = rapid(magnet, tau, Some(goal), &out);
+        let a = &t.analysis;
+        let label = format!("{magnet} (lag {tau} s): {:.1} min", t.fixture_s / 60.0);
+        assert!(t.fixture_s <= FIFTEEN_MINUTES_S, "{label}");
+        assert_eq!(t.gap_samples, 0, "{label}");
+        let err = t.alpha_error_pct_per_c.abs();
+        assert!(
+            err <= goal.alpha_u95_pct_per_c && err <= a.alpha_u95_pct_per_c,
+            "{label}: α off by {err:.5}"
+        );
+        if magnet == "RM-F8-B20x15x5" {
+            // a ferrite block lagging 90 s behind the thermocouple is still a few kelvin from
+            // the fixture when 15 minutes are up: its loss is not known to ±0.1 % (the method
+            // notes' table says so), but what it states is honest: the truth inside its U95
+            if let (Some(e), Some(u)) = (t.loss_error_pct, a.irreversible_loss_u95_pct) {
+                assert!(e.abs() <= u, "{label}: loss off by {e:.3} %, U95 {u:.3} %");
+            }
+            continue;
+        }
+        assert!(
+            t.meets(&goal),
+            "{label}: {:?} ± {:?}",
+            t.loss_error_pct,
+            a.irreversible_loss_u95_pct
+        );
+        // it ended itself, and the run says so
+        let RecordEnd::Complete(why) = &t.end else {
+            panic!("{label}: ended by {:?}", t.end)
+        };
+        let meta = remanent::run_dir::read_meta(&out).unwrap();
+        assert_eq!(meta.end_reason.as_deref(), Some(why.as_str()));
+        assert!(why.contains("ended by the analysis"), "{why}");
+    }
+}
+
+#[test]
+fn without_the_analysis_ending_it_a_record_runs_its_profile_out() {
+    let dir = tempfile::tempdir().unwrap();
+    let (magnet, tau) = SWEEP[0];
+    let ended = rapid(
+        magnet,
+        tau,
+        Some(Tolerance::default()),
+        &dir.path().join("a"),
+    );
+    let full = rapid(magnet, tau, None, &dir.path().join("b"));
+    assert_eq!(full.end, RecordEnd::Finished);
+    assert!(matches!(ended.end, RecordEnd::Complete(_)));
+    assert!(
+        ended.fixture_s < full.fixture_s - 30.0,
+        "the analysis freed the fixture: {:.0} s against {:.0} s",
+        ended.fixture_s,
+        full.fixture_s
+    );
+}
