@@ -102,9 +102,9 @@ pub fn builtin(name: &str) -> Option<ProfileSpec> {
         },
         "rapid" => ProfileSpec {
             name: "rapid".into(),
-            description: "α and loss in about 12–15 minutes: 20 s reference at 25 °C, ramp to 100 °C at 20 °C/min, 90 s hold, heater off until 38 °C, up to 200 s of return reference there (the record ends as soon as the analysis has what it needs)".into(),
+            description: "α and loss in 12–15 minutes: 20 s reference at 25 °C, ramp to 100 °C at 25 °C/min, 90 s hold, heater off until 38 °C, up to 5 min of return reference there (the record ends as soon as the analysis has what it needs)".into(),
             limit_c: 115.0,
-            segments: vec![seg(25.0, 0.0, 20.0), seg(100.0, 20.0, 90.0), seg(38.0, 0.0, 200.0)],
+            segments: vec![seg(25.0, 0.0, 20.0), seg(100.0, 25.0, 90.0), seg(38.0, 0.0, 300.0)],
         },
         "exposure" => ProfileSpec {
             name: "exposure".into(),

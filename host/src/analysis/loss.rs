@@ -86,8 +86,52 @@ pub fn quick(p: &Prepared, seg: &Segments, tm: &[f64]) -> Option<f64> {
     let (b_after, _, _) = mean(settled(after).map(|i| p.flux[i]));
     let (t_before, _, _) = mean(settled(&seg.before).map(|i| tm[i]));
     let (t_after, _, _) = mean(settled(after).map(|i| tm[i]));
-    let ratio = 1.0 - FIRST_GUESS_PER_K * (t_before - t_after);
+    let ratio = match local_line(p, seg, tm, t_before, t_after) {
+        Some((c0, c1)) => (c0 + c1 * t_before) / (c0 + c1 * t_after),
+        None => 1.0 - FIRST_GUESS_PER_K * (t_before - t_after),
+    };
     Some((b_before - b_after * ratio) / b_before)
+}
+
+/// The cooling branch's straight line B = c0 + c1·T over the references' temperatures (and a
+/// little above): the reversible change between references that are apart in temperature,
+/// from the magnet's own data rather than a guess (a ferrite changes twice as fast as NdFeB).
+fn local_line(
+    p: &Prepared,
+    seg: &Segments,
+    tm: &[f64],
+    t_before: f64,
+    t_after: f64,
+) -> Option<(f64, f64)> {
+    let (lo, hi) = (t_before.min(t_after), t_before.max(t_after));
+    if hi - lo < 2.0 {
+        return None; // references at one temperature: nothing to bridge
+    }
+    let (mut n, mut st, mut sb) = (0.0, 0.0, 0.0);
+    let pts: Vec<(f64, f64)> = seg
+        .cooling
+        .clone()
+        .filter(|&i| tm[i] >= lo - 2.0 && tm[i] <= hi + 10.0)
+        .map(|i| (tm[i], p.flux[i]))
+        .collect();
+    for &(t, b) in &pts {
+        n += 1.0;
+        st += t;
+        sb += b;
+    }
+    if n < 20.0 {
+        return None;
+    }
+    let (mt, mb) = (st / n, sb / n);
+    let (mut stt, mut stb) = (0.0, 0.0);
+    for &(t, b) in &pts {
+        stt += (t - mt) * (t - mt);
+        stb += (t - mt) * (b - mb);
+    }
+    (stt > 0.0).then(|| {
+        let c1 = stb / stt;
+        (mb - c1 * mt, c1)
+    })
 }
 
 /// The loss with its full budget, or why there is none; `lag_rel_u` is how well the lag

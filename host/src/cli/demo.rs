@@ -17,7 +17,7 @@ pub struct Args {
     /// Demo magnet (`remanent magnets` lists them).
     #[arg(long, default_value = "RM-N42SH-D10x5")]
     magnet: String,
-    /// Profile (`rapid`: about 12 minutes of fixture time, ended by the analysis).
+    /// Profile (`rapid`: 11–14 minutes of fixture time, ended by the analysis).
     #[arg(long, default_value = "rapid")]
     profile: String,
     /// Simulated seconds per wall-clock second.

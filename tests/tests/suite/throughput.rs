@@ -26,6 +26,7 @@ fn rapid(magnet: &str, tau_s: f64, auto_end: Option<Tolerance>, out: &std::path:
 fn rapid_meets_the_accuracy_goal_in_under_15_minutes_and_says_why_it_ended() {
     let goal = Tolerance::default();
     let dir = tempfile::tempdir().unwrap();
+    let mut ended_by_analysis = 0;
     for (magnet, tau) in SWEEP {
         let out = dir.path().join(magnet);
         let t = rapid(magnet, tau, Some(goal), &out);
@@ -38,29 +39,26 @@ fn rapid_meets_the_accuracy_goal_in_under_15_minutes_and_says_why_it_ended() {
             err <= goal.alpha_u95_pct_per_c && err <= a.alpha_u95_pct_per_c,
             "{label}: α off by {err:.5}"
         );
-        if magnet == "RM-F8-B20x15x5" {
-            // a ferrite block lagging 90 s behind the thermocouple is still a few kelvin from
-            // the fixture when 15 minutes are up: its loss is not known to ±0.1 % (the method
-            // notes' table says so), but what it states is honest: the truth inside its U95
-            if let (Some(e), Some(u)) = (t.loss_error_pct, a.irreversible_loss_u95_pct) {
-                assert!(e.abs() <= u, "{label}: loss off by {e:.3} %, U95 {u:.3} %");
-            }
-            continue;
-        }
         assert!(
             t.meets(&goal),
-            "{label}: {:?} ± {:?}",
+            "{label}: loss off by {:?} %, U95 {:?} %",
             t.loss_error_pct,
             a.irreversible_loss_u95_pct
         );
-        // it ended itself, and the run says so
-        let RecordEnd::Complete(why) = &t.end else {
-            panic!("{label}: ended by {:?}", t.end)
-        };
+        // it ended itself (or its profile ended), and the run says which
         let meta = remanent::run_dir::read_meta(&out).unwrap();
-        assert_eq!(meta.end_reason.as_deref(), Some(why.as_str()));
-        assert!(why.contains("ended by the analysis"), "{why}");
+        assert_eq!(meta.end_reason, Some(t.end.describe()), "{label}");
+        assert!(t.end.is_complete(), "{label}: {:?}", t.end);
+        if let RecordEnd::Complete(why) = &t.end {
+            assert!(why.contains("ended by the analysis"), "{why}");
+            ended_by_analysis += 1;
+        }
     }
+    // the fast-settling parts free the fixture before their profile ends
+    assert!(
+        ended_by_analysis >= 3,
+        "{ended_by_analysis} of 4 ended by the analysis"
+    );
 }
 
 #[test]
