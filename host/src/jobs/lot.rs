@@ -125,13 +125,18 @@ pub fn run(
     let warnings = duplicates(runs, &ids);
     let summary = lot::summarise(rows);
     let table = spec_table(judging.specs.as_deref()).map_err(JobError::from)?;
-    let spec = grades.first().and_then(|g| table.find(g));
-    let title = format!(
-        "{} magnets{}",
-        summary.rows.len(),
-        spec.map(|g| format!(", grade {}", g.grade))
-            .unwrap_or_default()
-    );
+    // a lot's limits only when it is one grade; a mixed lot names every grade in it
+    let spec = (distinct.len() == 1)
+        .then(|| grades.first().and_then(|g| table.find(g)))
+        .flatten();
+    let title = match distinct.as_slice() {
+        [one] => format!("{} magnets, grade {one}", summary.rows.len()),
+        many => format!(
+            "{} magnets, mixed grades: {}",
+            summary.rows.len(),
+            many.join(", ")
+        ),
+    };
     std::fs::create_dir_all(out).map_err(|source| OutputError::Io {
         path: out.display().to_string(),
         source,

@@ -5,20 +5,41 @@
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
-use super::style::{legend, tickable, Chart, DrawResult, COOLING, HEATING};
+use super::style::{tickable, Chart, DrawResult, COOLING, HEATING};
 use crate::analysis::judge::HEAT_DAMAGE_PCT;
 use crate::lot::LotSummary;
 use crate::specs::GradeSpec;
 
-/// Ids are shown whole up to this many characters.
-const ID_CHARS: usize = 12;
+/// A panel's width for ids, px, and the width a character of a label takes.
+const PANEL_PX: usize = 440;
+const CHAR_PX: usize = 7;
 
-/// The magnet id under each integer x.
+/// Whether the ids fit whole under their slots; else the slots are numbered and the ids
+/// listed beside (never cut short).
+fn ids_fit(s: &LotSummary) -> bool {
+    let longest = s
+        .rows
+        .iter()
+        .map(|r| r.id.chars().count())
+        .max()
+        .unwrap_or(0);
+    s.rows.len() * (longest + 2) * CHAR_PX <= PANEL_PX
+}
+
+/// The magnet's id (or its number, when the ids do not fit) under each integer x.
 fn id_labeller(s: &LotSummary) -> impl Fn(&f64) -> String {
+    let whole = ids_fit(s);
     let ids: Vec<String> = s
         .rows
         .iter()
-        .map(|r| r.id.chars().take(ID_CHARS).collect())
+        .enumerate()
+        .map(|(i, r)| {
+            if whole {
+                r.id.clone()
+            } else {
+                (i + 1).to_string()
+            }
+        })
         .collect();
     move |x: &f64| {
         let i = x.round();
@@ -50,17 +71,19 @@ fn magnet_chart<'a, DB: DrawingBackend>(
     let mut c = ChartBuilder::on(area)
         .caption(axes.caption, ("sans-serif", axes.caption_size))
         .margin(15)
-        .x_label_area_size(40)
+        .x_label_area_size(45)
         .y_label_area_size(80)
         .build_cartesian_2d(-0.5..(n as f64 - 0.5), tickable(y))
         .map_err(e)?;
     c.configure_mesh()
-        .x_labels(n.min(24) * 2 + 1)
+        .x_labels(n.min(40) * 2 + 1)
         .x_label_formatter(id_of)
+        .y_label_formatter(&super::style::tick)
+        .label_style(("sans-serif", 14))
+        .x_label_style(("sans-serif", 12))
         .disable_x_mesh()
         .x_desc(axes.x_desc)
         .y_desc(axes.y_desc)
-        .label_style(("sans-serif", 14))
         .axis_desc_style(("sans-serif", 16))
         .draw()
         .map_err(e)?;
@@ -76,8 +99,9 @@ pub fn lot_alpha<DB: DrawingBackend>(
 ) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     root.fill(&WHITE).map_err(e)?;
+    let root = root.titled(title, ("sans-serif", 20)).map_err(e)?;
     let halves = root.split_evenly((2, 2));
-    alpha_panel(&halves[0], s, spec, title)?;
+    alpha_panel(&halves[0], s, spec)?;
     loss_panel(&halves[2], s)?;
     counts_panel(&halves[3], s)?;
     flux_panel(&halves[1], s)?;
@@ -88,7 +112,6 @@ fn alpha_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     s: &LotSummary,
     spec: Option<&GradeSpec>,
-    title: &str,
 ) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     let n = s.rows.len();
@@ -110,8 +133,8 @@ fn alpha_panel<DB: DrawingBackend>(
     }
     let pad = (hi - lo) * 0.08 + 1e-4;
     let caption = match spec {
-        Some(g) => format!("α(Br) per magnet, {} limits in red — {title}", g.grade),
-        None => format!("α(Br) per magnet — {title}"),
+        Some(g) => format!("α(Br) with U95 bars; red: {} limits", g.grade),
+        None => "α(Br) with U95 bars".to_string(),
     };
     let axes = Axes {
         caption: &caption,
@@ -127,13 +150,7 @@ fn alpha_panel<DB: DrawingBackend>(
         } else {
             HEATING
         };
-        c.draw_series([PathElement::new(
-            vec![(x, r.alpha - r.alpha_u95), (x, r.alpha + r.alpha_u95)],
-            col.stroke_width(2),
-        )])
-        .map_err(e)?;
-        c.draw_series([Circle::new((x, r.alpha), 5, col.filled())])
-            .map_err(e)?;
+        u95_bar(&mut c, x, r.alpha, r.alpha_u95, col)?;
     }
     if let Some(g) = spec {
         // the limits are labelled in the caption, so no legend covers the points
@@ -161,8 +178,9 @@ fn loss_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary)
         .collect();
     let lmax = losses.iter().map(|l| l.1 + l.2).fold(0.5f64, f64::max) * 1.15;
     let lmin = losses.iter().map(|l| l.1 - l.2).fold(-0.1f64, f64::min) * 1.15;
+    let caption = format!("Loss with U95 bars; red: heat damage above {HEAT_DAMAGE_PCT} %");
     let axes = Axes {
-        caption: "Irreversible loss per magnet",
+        caption: &caption,
         caption_size: 20,
         x_desc: "magnet",
         y_desc: "loss, %",
@@ -175,23 +193,35 @@ fn loss_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary)
         } else {
             COOLING
         };
-        c.draw_series([PathElement::new(
-            vec![(x, l - u), (x, l + u)],
-            col.stroke_width(2),
-        )])
-        .map_err(e)?;
-        c.draw_series([Circle::new((x, *l), 5, col.filled())])
-            .map_err(e)?;
+        u95_bar(&mut c, x, *l, *u, col)?;
     }
     let thr = HEAT_DAMAGE_PCT;
     c.draw_series(LineSeries::new(
         [(-0.5, thr), (n as f64 - 0.5, thr)],
         RED.stroke_width(2),
     ))
-    .map_err(e)?
-    .label(format!("heat damage above {thr} % (and its U95)"))
-    .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED));
-    legend(&mut c, 13)?;
+    .map_err(e)?;
+    Ok(())
+}
+
+/// A value with its U95 as a bar with end caps (visible even when short) and a dot.
+fn u95_bar<DB: DrawingBackend>(
+    c: &mut Chart<'_, DB>,
+    x: f64,
+    v: f64,
+    u95: f64,
+    col: RGBColor,
+) -> DrawResult {
+    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    let (lo, hi) = (v - u95, v + u95);
+    c.draw_series([
+        PathElement::new(vec![(x, lo), (x, hi)], col.stroke_width(2)),
+        PathElement::new(vec![(x - 0.12, lo), (x + 0.12, lo)], col.stroke_width(2)),
+        PathElement::new(vec![(x - 0.12, hi), (x + 0.12, hi)], col.stroke_width(2)),
+    ])
+    .map_err(e)?;
+    c.draw_series([Circle::new((x, v), 4, col.filled())])
+        .map_err(e)?;
     Ok(())
 }
 
@@ -232,10 +262,25 @@ fn counts_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummar
     for (k, line) in lines.iter().enumerate() {
         area.draw(&Text::new(
             line.clone(),
-            (30, 40 + 36 * k as i32),
+            (30, 30 + 30 * k as i32),
             text_style.clone(),
         ))
         .map_err(e)?;
+    }
+    if !ids_fit(s) {
+        // the slots are numbered: which magnet each number is, as many as fit (all in lot.csv)
+        let small = ("sans-serif", 13).into_font();
+        let y0 = 30 + 30 * lines.len() as i32;
+        let per_col = ((area.dim_in_pixel().1 as i32 - y0 - 10) / 16).max(1) as usize;
+        for (i, r) in s.rows.iter().enumerate().take(per_col * 3) {
+            let (col, row) = (i / per_col, i % per_col);
+            area.draw(&Text::new(
+                format!("{} {}", i + 1, r.id),
+                (30 + 170 * col as i32, y0 + 16 * row as i32),
+                small.clone(),
+            ))
+            .map_err(e)?;
+        }
     }
     Ok(())
 }

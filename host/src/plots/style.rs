@@ -1,5 +1,5 @@
-//! The plots' house style: colours, the shared chart type, axis ranges, the legend and the
-//! time panel.
+//! The plots' house style: colours, the shared chart type, axis ranges, tick labels, the
+//! legend, the key strip beside a chart (so no key covers data) and the time panel.
 
 use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
@@ -80,6 +80,8 @@ pub fn time_panel<'a, DB: DrawingBackend>(
         .map_err(e)?;
     let mut mesh = c.configure_mesh();
     mesh.y_desc(y_desc)
+        .x_label_formatter(&tick)
+        .y_label_formatter(&tick)
         .label_style(("sans-serif", 14))
         .axis_desc_style(("sans-serif", 16));
     if let Some(d) = x_desc {
@@ -87,4 +89,134 @@ pub fn time_panel<'a, DB: DrawingBackend>(
     }
     mesh.draw().map_err(e)?;
     Ok(c)
+}
+
+/// A tick label as short as the number allows: `20`, not `20.0`; `0.25`, not `0.250`.
+pub fn tick(v: &f64) -> String {
+    let t = format!("{v:.6}");
+    let t = t.trim_end_matches('0').trim_end_matches('.');
+    if t == "-0" {
+        "0".into()
+    } else {
+        t.to_string()
+    }
+}
+
+/// One entry of a key drawn beside a chart: how it is marked and what it says.
+pub enum Key {
+    /// A line of this colour.
+    Line(RGBColor, String),
+    /// A dashed line of this colour.
+    Dashed(RGBColor, String),
+    /// A filled dot of this colour.
+    Dot(RGBColor, String),
+    /// A triangle of this colour.
+    Triangle(RGBColor, String),
+    /// A cross of this colour.
+    Cross(RGBColor, String),
+    /// A shaded box of this colour (a density of points).
+    Shade(RGBColor, String),
+}
+
+/// Width of the key strip beside a chart, px.
+pub const KEY_WIDTH: u32 = 260;
+
+/// The chart's area and, at its right, a strip for its key: the key never covers data.
+pub fn with_key_strip<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+) -> (DrawingArea<DB, Shift>, DrawingArea<DB, Shift>) {
+    let width = area.dim_in_pixel().0;
+    area.split_horizontally(width.saturating_sub(KEY_WIDTH))
+}
+
+/// Draw `keys` top-down in `side` (long labels wrap onto a second line).
+pub fn draw_keys<DB: DrawingBackend>(
+    side: &DrawingArea<DB, Shift>,
+    keys: &[Key],
+    top: i32,
+) -> DrawResult {
+    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    let font = ("sans-serif", 14).into_font().color(&BLACK);
+    let mut y = top;
+    for k in keys {
+        let label = match k {
+            Key::Line(c, l) => {
+                side.draw(&PathElement::new(vec![(6, y), (30, y)], c.stroke_width(2)))
+                    .map_err(e)?;
+                l
+            }
+            Key::Dashed(c, l) => {
+                for x in [6, 16, 26] {
+                    side.draw(&PathElement::new(
+                        vec![(x, y), (x + 5, y)],
+                        c.stroke_width(2),
+                    ))
+                    .map_err(e)?;
+                }
+                l
+            }
+            Key::Dot(c, l) => {
+                side.draw(&Circle::new((18, y), 4, c.filled())).map_err(e)?;
+                l
+            }
+            Key::Triangle(c, l) => {
+                side.draw(&TriangleMarker::new((18, y), 5, c.filled()))
+                    .map_err(e)?;
+                l
+            }
+            Key::Cross(c, l) => {
+                side.draw(&Cross::new((18, y), 6, c.stroke_width(2)))
+                    .map_err(e)?;
+                l
+            }
+            Key::Shade(c, l) => {
+                side.draw(&Rectangle::new(
+                    [(8, y - 6), (28, y + 6)],
+                    c.mix(0.6).filled(),
+                ))
+                .map_err(e)?;
+                l
+            }
+        };
+        for line in wrap(label, 30) {
+            side.draw(&Text::new(line, (38, y - 8), font.clone()))
+                .map_err(e)?;
+            y += 18;
+        }
+        y += 6;
+    }
+    Ok(())
+}
+
+/// Words of `text` in lines of at most about `width` characters.
+fn wrap(text: &str, width: usize) -> Vec<String> {
+    let mut lines = vec![String::new()];
+    for word in text.split_whitespace() {
+        let last = lines.last_mut().expect("one line at least");
+        if !last.is_empty() && last.chars().count() + 1 + word.chars().count() > width {
+            lines.push(word.to_string());
+        } else {
+            if !last.is_empty() {
+                last.push(' ');
+            }
+            last.push_str(word);
+        }
+    }
+    lines
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn ticks_carry_no_needless_zeros_and_keys_wrap() {
+        assert_eq!(super::tick(&20.0), "20");
+        assert_eq!(super::tick(&0.25), "0.25");
+        assert_eq!(super::tick(&-0.0), "0");
+        assert_eq!(super::tick(&-1.5e-3), "-0.0015");
+        let w = super::wrap("fit: α = -0.1142 ± 0.0016 %/°C (k = 2), 22…98 °C", 30);
+        assert!(
+            w.len() == 2 && w.iter().all(|l| l.chars().count() <= 30),
+            "{w:?}"
+        );
+    }
 }

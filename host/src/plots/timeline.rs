@@ -1,13 +1,14 @@
 //! The time series of a run: temperatures with the setpoint, the flux, and the heater duty,
-//! with faults (red) and gaps (orange) marked.
+//! with faults (red) and gaps (orange) marked and explained. Lines break at a gap: nothing is
+//! drawn where nothing was measured.
 
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
-use super::decimate::decimate_minmax;
+use super::decimate::minmax_indices;
 use super::style::{
-    every, legend, range, time_panel, Chart, DrawResult, COOLING, DUTY, FIT, GAP, HEATING,
-    REFERENCE,
+    draw_keys, range, time_panel, with_key_strip, Chart, DrawResult, Key, COOLING, DUTY, FIT, GAP,
+    HEATING, REFERENCE,
 };
 use crate::analysis::dataset::Series;
 
@@ -16,12 +17,45 @@ const BINS: usize = 1500;
 /// A step longer than this many sample periods is a gap.
 const GAP_PERIODS: f64 = 3.0;
 
-/// What the three panels share: the time axis and the marks.
+/// Indices of the first sample after each gap (a step longer than `GAP_PERIODS` periods).
+fn gap_starts(time_s: &[f64], period: f64) -> Vec<usize> {
+    (1..time_s.len())
+        .filter(|&i| time_s[i] - time_s[i - 1] > GAP_PERIODS * period)
+        .collect()
+}
+
+/// The stretches of `n` samples between the gaps that start at `breaks`.
+fn stretches(n: usize, breaks: &[usize]) -> Vec<std::ops::Range<usize>> {
+    let mut pieces = Vec::new();
+    let mut start = 0;
+    for &b in breaks {
+        pieces.push(start..b);
+        start = b;
+    }
+    pieces.push(start..n);
+    pieces
+}
+
+/// The stretches a record's lines are drawn in: one per run of samples between gaps.
+pub fn drawn_stretches(time_s: &[f64]) -> Vec<std::ops::Range<usize>> {
+    let n = time_s.len();
+    let period = if n > 1 {
+        (time_s[n - 1] - time_s[0]) / (n - 1) as f64
+    } else {
+        1.0
+    };
+    stretches(n, &gap_starts(time_s, period))
+}
+
+/// What the three panels share: the time axis, where the record is whole, and the marks.
 struct Axis<'s> {
     t_min: Vec<f64>,
     x: std::ops::Range<f64>,
     faults: Vec<(f64, &'s str)>,
-    gaps: Vec<f64>,
+    /// Where each gap starts and ends, min.
+    gaps: Vec<(f64, f64)>,
+    /// The stretches between gaps, as index ranges.
+    pieces: Vec<std::ops::Range<usize>>,
 }
 
 impl<'s> Axis<'s> {
@@ -29,38 +63,61 @@ impl<'s> Axis<'s> {
         let t0 = s.time_s[0];
         let t_min: Vec<f64> = s.time_s.iter().map(|t| (t - t0) / 60.0).collect();
         let x1 = t_min.last().copied().unwrap_or(1.0).max(1e-3);
-        let period = if s.time_s.len() > 1 {
-            (s.time_s[s.time_s.len() - 1] - t0) / (s.time_s.len() - 1) as f64
+        let n = s.time_s.len();
+        let period = if n > 1 {
+            (s.time_s[n - 1] - t0) / (n - 1) as f64
         } else {
             1.0
         };
+        let breaks = gap_starts(&s.time_s, period);
+        let pieces = stretches(n, &breaks);
         Axis {
             faults: s
                 .faults
                 .iter()
                 .map(|(t, w)| ((t - t0) / 60.0, w.as_str()))
                 .collect(),
-            gaps: s
-                .time_s
-                .windows(2)
-                .filter(|w| w[1] - w[0] > GAP_PERIODS * period)
-                .map(|w| (w[0] - t0) / 60.0)
-                .collect(),
+            gaps: breaks.iter().map(|&i| (t_min[i - 1], t_min[i])).collect(),
+            pieces,
             t_min,
             x: 0.0..x1,
         }
     }
 
-    /// Vertical marks at `xs` across `lo..hi`.
-    fn marks<DB: DrawingBackend>(
-        c: &mut Chart<'_, DB>,
-        xs: impl Iterator<Item = f64>,
-        (lo, hi): (f64, f64),
-        style: ShapeStyle,
-    ) -> DrawResult {
-        c.draw_series(xs.map(|x| PathElement::new(vec![(x, lo), (x, hi)], style)))
-            .map_err(|e| e.to_string())?;
+    /// Shade each gap across `lo..hi`, and mark each fault.
+    fn marks<DB: DrawingBackend>(&self, c: &mut Chart<'_, DB>, (lo, hi): (f64, f64)) -> DrawResult {
+        let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+        c.draw_series(self.gaps.iter().map(|&(a, b)| {
+            // at least a visible sliver for a short gap
+            let b = b.max(a + (self.x.end - self.x.start) / 400.0);
+            Rectangle::new([(a, lo), (b, hi)], GAP.mix(0.35).filled())
+        }))
+        .map_err(e)?;
+        c.draw_series(
+            self.faults
+                .iter()
+                .map(|f| PathElement::new(vec![(f.0, lo), (f.0, hi)], RED.stroke_width(2))),
+        )
+        .map_err(e)?;
         Ok(())
+    }
+
+    /// Keys for the marks, when there are any.
+    fn keys(&self) -> Vec<Key> {
+        let mut keys = Vec::new();
+        if !self.gaps.is_empty() {
+            keys.push(Key::Shade(
+                GAP,
+                format!(
+                    "{}: no samples arrived (lines are not drawn across)",
+                    crate::units::count(self.gaps.len() as u64, "gap", "gaps")
+                ),
+            ));
+        }
+        for (_, what) in &self.faults {
+            keys.push(Key::Line(RED, format!("fault: {what}")));
+        }
+        keys
     }
 }
 
@@ -74,7 +131,7 @@ pub fn draw_timeline<DB: DrawingBackend>(
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     root.fill(&WHITE).map_err(e)?;
     let root = root
-        .titled(&format!("Time series — {title}"), ("sans-serif", 24))
+        .titled(&format!("Time series — {title}"), ("sans-serif", 20))
         .map_err(e)?;
     let panels = root.split_evenly((3, 1));
     let axis = Axis::new(s);
@@ -84,24 +141,47 @@ pub fn draw_timeline<DB: DrawingBackend>(
     root.present().map_err(e)
 }
 
+/// `y` as lines, one per stretch between gaps.
 fn line<DB: DrawingBackend>(
     c: &mut Chart<'_, DB>,
     axis: &Axis,
     y: &[f64],
-    color: RGBColor,
-    width: u32,
-    label: Option<&str>,
+    style: ShapeStyle,
 ) -> DrawResult {
-    let series = c
-        .draw_series(LineSeries::new(
-            decimate_minmax(&axis.t_min, y, BINS),
-            color.stroke_width(width),
-        ))
-        .map_err(|e| e.to_string())?;
-    if let Some(l) = label {
-        series
-            .label(l)
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color));
+    let per_piece = (BINS * 2 / axis.pieces.len().max(1)).max(50) / 2;
+    for piece in &axis.pieces {
+        let pts: Vec<(f64, f64)> = minmax_indices(piece.clone(), y, per_piece)
+            .into_iter()
+            .filter(|&i| y[i].is_finite())
+            .map(|i| (axis.t_min[i], y[i]))
+            .collect();
+        c.draw_series(LineSeries::new(pts, style))
+            .map_err(|e| e.to_string())?;
+    }
+    Ok(())
+}
+
+/// The setpoint: a dashed step line on top, one per stretch where the heater followed one.
+fn setpoint<DB: DrawingBackend>(c: &mut Chart<'_, DB>, axis: &Axis, sp: &[f64]) -> DrawResult {
+    let mut runs: Vec<Vec<(f64, f64)>> = vec![Vec::new()];
+    for (i, v) in sp
+        .iter()
+        .enumerate()
+        .step_by(super::style::every(sp.len(), 3000))
+    {
+        let broken = axis.pieces.iter().any(|p| p.start == i && i > 0);
+        if (v.is_nan() || broken) && runs.last().is_some_and(|r| !r.is_empty()) {
+            runs.push(Vec::new());
+        }
+        if !v.is_nan() {
+            if let Some(r) = runs.last_mut() {
+                r.push((axis.t_min[i], *v));
+            }
+        }
+    }
+    for r in runs.into_iter().filter(|r| r.len() > 1) {
+        c.draw_series(DashedLineSeries::new(r, 6, 4, BLACK.stroke_width(2)))
+            .map_err(|e| e.to_string())?;
     }
     Ok(())
 }
@@ -112,51 +192,29 @@ fn temperature_panel<DB: DrawingBackend>(
     s: &Series,
     magnet_c: Option<&[f64]>,
 ) -> DrawResult {
-    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    let (plot, side) = with_key_strip(area);
     let (lo, hi) = range(s.temp_c.iter().copied());
-    let mut c = time_panel(area, axis.x.clone(), lo..hi, "temperature, °C", None)?;
-    line(&mut c, axis, &s.temp_c, HEATING, 2, Some("thermocouple"))?;
+    let mut c = time_panel(&plot, axis.x.clone(), lo..hi, "temperature, °C", None)?;
+    axis.marks(&mut c, (lo, hi))?;
+    let mut keys = vec![Key::Line(HEATING, "thermocouple".into())];
+    line(&mut c, axis, &s.temp_c, HEATING.stroke_width(2))?;
     if let Some(m) = magnet_c {
-        line(&mut c, axis, m, COOLING, 2, Some("magnet (lag-corrected)"))?;
+        line(&mut c, axis, m, COOLING.stroke_width(2))?;
+        keys.push(Key::Line(COOLING, "magnet (lag-corrected)".into()));
     }
     if let Some(p) = &s.probe_c {
-        line(&mut c, axis, p, FIT, 2, Some("Hall probe"))?;
+        line(&mut c, axis, p, FIT.stroke_width(2))?;
+        keys.push(Key::Line(FIT, "Hall probe".into()));
     }
     if let Some(sp) = &s.setpoint_c {
-        // a step function with gaps while the heater is off: one line per stretch
-        let mut runs: Vec<Vec<(f64, f64)>> = vec![Vec::new()];
-        for (i, v) in sp.iter().enumerate().step_by(every(sp.len(), 3000)) {
-            if v.is_nan() {
-                if runs.last().is_some_and(|r| !r.is_empty()) {
-                    runs.push(Vec::new());
-                }
-            } else if let Some(r) = runs.last_mut() {
-                r.push((axis.t_min[i], *v));
-            }
-        }
-        let mut first = true;
-        for r in runs.into_iter().filter(|r| r.len() > 1) {
-            let series = c
-                .draw_series(LineSeries::new(r, BLACK.stroke_width(1)))
-                .map_err(e)?;
-            if first {
-                series
-                    .label("setpoint")
-                    .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK));
-                first = false;
-            }
-        }
+        setpoint(&mut c, axis, sp)?;
+        keys.push(Key::Dashed(
+            BLACK,
+            "setpoint (while the heater follows one)".into(),
+        ));
     }
-    for (x, what) in &axis.faults {
-        c.draw_series([PathElement::new(
-            vec![(*x, lo), (*x, hi)],
-            RED.stroke_width(2),
-        )])
-        .map_err(e)?
-        .label(format!("fault: {what}"))
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED));
-    }
-    legend(&mut c, 14)
+    keys.extend(axis.keys());
+    draw_keys(&side, &keys, 16)
 }
 
 fn flux_panel<DB: DrawingBackend>(
@@ -164,20 +222,15 @@ fn flux_panel<DB: DrawingBackend>(
     axis: &Axis,
     s: &Series,
 ) -> DrawResult {
+    let (plot, side) = with_key_strip(area);
     let (lo, hi) = range(s.flux_mt.iter().copied());
-    let mut c = time_panel(area, axis.x.clone(), lo..hi, "flux density, mT", None)?;
-    line(&mut c, axis, &s.flux_mt, REFERENCE, 1, None)?;
-    Axis::marks(
-        &mut c,
-        axis.gaps.iter().copied(),
-        (lo, hi),
-        GAP.stroke_width(1),
-    )?;
-    Axis::marks(
-        &mut c,
-        axis.faults.iter().map(|f| f.0),
-        (lo, hi),
-        RED.stroke_width(2),
+    let mut c = time_panel(&plot, axis.x.clone(), lo..hi, "flux density, mT", None)?;
+    axis.marks(&mut c, (lo, hi))?;
+    line(&mut c, axis, &s.flux_mt, REFERENCE.stroke_width(1))?;
+    draw_keys(
+        &side,
+        &[Key::Line(REFERENCE, "flux density at the probe".into())],
+        16,
     )
 }
 
@@ -186,15 +239,12 @@ fn duty_panel<DB: DrawingBackend>(
     axis: &Axis,
     s: &Series,
 ) -> DrawResult {
+    let (plot, side) = with_key_strip(area);
     let x_desc = Some("time since start, min");
-    let mut c = time_panel(area, axis.x.clone(), 0.0..100.0, "heater duty, %", x_desc)?;
+    let mut c = time_panel(&plot, axis.x.clone(), 0.0..100.0, "heater duty, %", x_desc)?;
+    axis.marks(&mut c, (0.0, 100.0))?;
     if let Some(d) = &s.duty_pct {
-        line(&mut c, axis, d, DUTY, 1, None)?;
+        line(&mut c, axis, d, DUTY.stroke_width(1))?;
     }
-    Axis::marks(
-        &mut c,
-        axis.faults.iter().map(|f| f.0),
-        (0.0, 100.0),
-        RED.stroke_width(2),
-    )
+    draw_keys(&side, &[Key::Line(DUTY, "heater duty".into())], 16)
 }

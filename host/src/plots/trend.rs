@@ -4,7 +4,9 @@
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
-use super::style::{tickable, DrawResult, COOLING, FIT, HEATING, REFERENCE};
+use super::style::{
+    draw_keys, tick, tickable, with_key_strip, DrawResult, Key, COOLING, FIT, HEATING, REFERENCE,
+};
 use crate::history::trend::{Panel, TrendChart};
 
 const DAY_S: f64 = 86_400.0;
@@ -56,13 +58,6 @@ fn y_range(p: &Panel) -> std::ops::Range<f64> {
     lo..hi
 }
 
-/// One entry of a panel's key: how it is drawn and what it says.
-enum Key {
-    Line(RGBColor, String),
-    Dot(String),
-    Cross(String),
-}
-
 fn draw_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     p: &Panel,
@@ -71,8 +66,7 @@ fn draw_panel<DB: DrawingBackend>(
 ) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     // the key has a strip of its own at the right: it never covers a run
-    let width = area.dim_in_pixel().0;
-    let (plot, side) = area.split_horizontally(width.saturating_sub(KEY_WIDTH));
+    let (plot, side) = with_key_strip(area);
     let mut c = ChartBuilder::on(&plot)
         .margin(8)
         .x_label_area_size(if last { 45 } else { 25 })
@@ -81,6 +75,7 @@ fn draw_panel<DB: DrawingBackend>(
         .map_err(e)?;
     let mut mesh = c.configure_mesh();
     mesh.y_desc(p.quantity)
+        .y_label_formatter(&tick)
         .x_labels(8)
         .x_label_formatter(&|d| {
             crate::clock::format_utc((d * DAY_S).max(0.0) as u64)[..10].to_string()
@@ -100,10 +95,10 @@ fn draw_panel<DB: DrawingBackend>(
             ))
             .map_err(e)?;
         }
-        keys.push(Key::Line(FIT, format!("centre {}", short(l.centre))));
+        keys.push(Key::Line(FIT, format!("centre {}", tick(&l.centre))));
         keys.push(Key::Line(
             HEATING,
-            format!("limits {} … {}", short(l.lower), short(l.upper)),
+            format!("limits {} … {}", tick(&l.lower), tick(&l.upper)),
         ));
         if let Some(end) = p.points.get(l.baseline.saturating_sub(1)) {
             let (y0, y1) = (c.y_range().start, c.y_range().end);
@@ -123,7 +118,7 @@ fn draw_panel<DB: DrawingBackend>(
         .map_err(e)?;
     c.draw_series(pts.iter().map(|&q| Circle::new(q, 3, COOLING.filled())))
         .map_err(e)?;
-    keys.push(Key::Dot(format!("run ({})", pts.len())));
+    keys.push(Key::Dot(COOLING, format!("run ({})", pts.len())));
     let out: Vec<(f64, f64)> = p.outside().iter().map(|q| (q.0 / DAY_S, q.1)).collect();
     if !out.is_empty() {
         c.draw_series(
@@ -131,48 +126,10 @@ fn draw_panel<DB: DrawingBackend>(
                 .map(|&q| Cross::new(q, 7, REFERENCE.stroke_width(2))),
         )
         .map_err(e)?;
-        keys.push(Key::Cross(format!("beyond the limits ({})", out.len())));
+        keys.push(Key::Cross(
+            REFERENCE,
+            format!("beyond the limits ({})", out.len()),
+        ));
     }
-    draw_keys(&side, &keys)
-}
-
-/// Width of the key strip, px.
-const KEY_WIDTH: u32 = 250;
-
-/// Four significant digits, without needless trailing zeros.
-fn short(v: f64) -> String {
-    let t = format!("{v:.4}");
-    let t = t.trim_end_matches('0');
-    t.trim_end_matches('.').to_string()
-}
-
-fn draw_keys<DB: DrawingBackend>(side: &DrawingArea<DB, Shift>, keys: &[Key]) -> DrawResult {
-    let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
-    let font = ("sans-serif", 13).into_font().color(&BLACK);
-    for (i, k) in keys.iter().enumerate() {
-        let y = 24 + 20 * i as i32;
-        let label = match k {
-            Key::Line(colour, label) => {
-                side.draw(&PathElement::new(
-                    vec![(6, y), (30, y)],
-                    colour.stroke_width(2),
-                ))
-                .map_err(e)?;
-                label
-            }
-            Key::Dot(label) => {
-                side.draw(&Circle::new((18, y), 3, COOLING.filled()))
-                    .map_err(e)?;
-                label
-            }
-            Key::Cross(label) => {
-                side.draw(&Cross::new((18, y), 6, REFERENCE.stroke_width(2)))
-                    .map_err(e)?;
-                label
-            }
-        };
-        side.draw(&Text::new(label.clone(), (38, y - 7), font.clone()))
-            .map_err(e)?;
-    }
-    Ok(())
+    draw_keys(&side, &keys, 20)
 }

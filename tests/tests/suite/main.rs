@@ -12,6 +12,7 @@ mod integrity;
 mod messy_files;
 mod operator;
 mod outputs;
+mod plots_truth;
 mod reference_field;
 mod reference_lsq;
 mod reference_path;
