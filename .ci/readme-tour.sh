@@ -34,6 +34,7 @@ for line in "${lines[@]}"; do
   tail -3 out.txt
 done
 test -s runs/demo/report.html && test -s runs/n42/report.md && test -s runs/n42/flux_vs_temp.png
+test -s runs/n42/certificate.pdf && head -c 5 runs/n42/certificate.pdf | grep -q "%PDF-"
 test -s runs/lot/lot.csv && test -s runs/oc.png && test -s runs/trend.png
 test "$(wc -l < runs/history.csv)" -ge 3 || { cat runs/history.csv; echo "the history lacks the tour's runs"; exit 1; }
 grep -q "magnet   3 .*LOW" out.txt || { cat out.txt; echo "the survey did not flag magnet 3"; exit 1; }

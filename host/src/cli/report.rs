@@ -12,14 +12,30 @@ pub struct Args {
     pub run: PathBuf,
     #[command(flatten)]
     pub specs: SpecOpts,
+    /// Paper of the printable certificate (certificate.pdf).
+    #[arg(long, value_enum, default_value_t = PaperArg::A4)]
+    pub paper: PaperArg,
     #[command(flatten)]
     pub force: ForceOpts,
     #[command(flatten)]
     pub store: super::options::StoreOpts,
 }
 
+/// Paper sizes on the command line.
+#[derive(clap::ValueEnum, Clone, Copy, Debug)]
+pub enum PaperArg {
+    /// ISO A4.
+    A4,
+    /// US Letter.
+    Letter,
+}
+
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
-    let r = remanent::jobs::report::run(&a.run, &a.specs.judging(), a.force.force)?;
+    let paper = match a.paper {
+        PaperArg::A4 => remanent::report::pdf_flow::Paper::A4,
+        PaperArg::Letter => remanent::report::pdf_flow::Paper::Letter,
+    };
+    let r = remanent::jobs::report::run(&a.run, &a.specs.judging(), a.force.force, paper)?;
     if let Some(why) = &r.not_analysed {
         eprintln!("note: {why}; wrote the time series and what could not be computed");
     }

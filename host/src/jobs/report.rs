@@ -28,7 +28,12 @@ pub struct RunReport {
 }
 
 /// Report the run in `dir`.
-pub fn run(dir: &Path, judging: &Judging, force: bool) -> Result<RunReport, RunReportError> {
+pub fn run(
+    dir: &Path,
+    judging: &Judging,
+    force: bool,
+    paper: crate::report::pdf_flow::Paper,
+) -> Result<RunReport, RunReportError> {
     let req = InputRequest {
         input: dir.to_path_buf(),
         specs: judging.specs.clone(),
@@ -38,7 +43,7 @@ pub fn run(dir: &Path, judging: &Judging, force: bool) -> Result<RunReport, RunR
     let loaded = load(&req)?;
     Ok(match loaded.analyze(dir) {
         Ok(a) => RunReport {
-            written: report::write_all(dir, &loaded.series, &a, &loaded.title, force)?,
+            written: report::write_all_on(dir, &loaded.series, &a, &loaded.title, force, paper)?,
             not_analysed: None,
             analysis: Some(a),
         },

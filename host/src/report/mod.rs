@@ -3,10 +3,12 @@
 //! record the analysis could not use. Every file goes through the output policy: nothing is
 //! replaced without `force`, nothing half-written is left behind.
 
+pub mod certificate;
 pub mod lot_page;
 pub mod markdown;
 pub mod notes;
 pub mod page;
+pub mod pdf_flow;
 pub mod run_page;
 
 use std::path::{Path, PathBuf};
@@ -48,7 +50,19 @@ pub fn write_all(
     title: &str,
     force: bool,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    let docs = [JSON_FILE, MD_FILE, HTML_FILE].map(|f| dir.join(f));
+    write_all_on(dir, series, a, title, force, pdf_flow::Paper::A4)
+}
+
+/// [`write_all`] with the certificate on `paper`.
+pub fn write_all_on(
+    dir: &Path,
+    series: &Series,
+    a: &Analysis,
+    title: &str,
+    force: bool,
+    paper: pdf_flow::Paper,
+) -> Result<Vec<PathBuf>, ReportError> {
+    let docs = [JSON_FILE, MD_FILE, HTML_FILE, certificate::CERTIFICATE_FILE].map(|f| dir.join(f));
     output::refuse_existing(docs.clone(), force)?;
     let figures = plots::run_figures(dir, series, a, title, force)?;
     let meta = run_dir::read_meta(dir).ok();
@@ -61,6 +75,17 @@ pub fn write_all(
     )?;
     let html = run_page::html(a, meta.as_ref(), title, &figures);
     output::write(&docs[2], html.as_bytes(), force)?;
+    let plot = std::fs::read(&figures[0].png).map_err(|source| OutputError::Io {
+        path: figures[0].png.display().to_string(),
+        source,
+    })?;
+    let pdf = certificate::certificate(a, meta.as_ref(), &plot, paper).map_err(|reason| {
+        OutputError::Produce {
+            path: docs[3].display().to_string(),
+            reason,
+        }
+    })?;
+    output::write(&docs[3], &pdf, force)?;
     let mut written: Vec<PathBuf> = figures.iter().flat_map(|f| f.files()).collect();
     written.extend(docs);
     Ok(written)

@@ -13,7 +13,12 @@ pub fn esc(t: &str) -> String {
 const STYLE: &str = "body{font-family:sans-serif;max-width:1150px;margin:2em auto;color:#222}\
 table{border-collapse:collapse;margin:1em 0}td,th{border:1px solid #bbb;padding:4px 8px;text-align:left}\
 .v{font-size:1.4em;font-weight:bold} .pass{color:#1b6e2a} .fail{color:#a21d1d} .indeterminate{color:#8a6100}\
-.o{color:#a21d1d;font-weight:bold} figure{margin:1em 0} svg{max-width:100%;height:auto}";
+.o{color:#a21d1d;font-weight:bold} figure{margin:1em 0} svg{max-width:100%;height:auto}\
+.sign{display:flex;gap:2em;margin-top:3em}.sign div{flex:1;border-top:1px solid #222;padding-top:4px;font-size:.85em}\
+@media print{@page{size:A4;margin:15mm}body{max-width:none;margin:0;font-size:10pt}\
+h1{font-size:15pt}h2{font-size:12pt;break-after:avoid;page-break-after:avoid}\
+table,figure,.keep,.sign{break-inside:avoid;page-break-inside:avoid}\
+figure svg{max-height:120mm;width:auto}.screen{display:none}}";
 
 /// An HTML page being written.
 pub struct Page {

@@ -76,7 +76,16 @@ pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure
     if a.uncalibrated {
         page.raw("<p class=\"v fail\">UNCALIBRATED BENCH: recorded without a valid calibration; the numbers are not traceable</p>");
     }
+    let i = &a.provenance.inspection;
+    let dash = |v: &Option<String>| v.clone().unwrap_or_else(|| "—".into());
     page.raw(&format!("<p class=\"v {}\">Verdict: {v}</p>", v.word()))
+        .h2("Inspection")
+        .facts(&[
+            ("lot".into(), dash(&i.lot)),
+            ("purchase order".into(), dash(&i.purchase_order)),
+            ("supplier".into(), dash(&i.supplier)),
+            ("operator".into(), dash(&i.operator)),
+        ])
         .facts(&facts(meta))
         .h2("Results")
         .facts(&results(a))
@@ -90,7 +99,9 @@ pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure
             esc(&c.reason)
         ));
     }
-    page.raw(&checks).raw("</table>");
+    page.raw("<div class=\"keep\">")
+        .raw(&checks)
+        .raw("</table></div>");
     for n in &a.notes {
         page.p(&format!("Note: {n}"));
     }
@@ -113,8 +124,15 @@ pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure
     for f in figures {
         page.figure(&f.name, f.svg_element());
     }
-    page.h2("Method")
+    page.raw(
+        "<div class=\"sign\"><div>Tested by: name and signature</div><div>role</div><div>date</div></div>\
+         <div class=\"sign\"><div>Reviewed and released by: name and signature</div><div>role</div><div>date</div></div>",
+    );
+    // printed, the method stays on screen: the certificate and the notes carry it
+    page.raw("<div class=\"screen\">")
+        .h2("Method")
         .list(METHOD_NOTES)
+        .raw("</div>")
         .h2("Safety")
         .list(SAFETY_NOTES);
     page.finish()

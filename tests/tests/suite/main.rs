@@ -4,6 +4,7 @@ mod accuracy;
 mod analysis_input;
 mod bench_model;
 mod calibration_steps;
+mod certificate;
 mod end_to_end;
 mod history;
 mod imperfect_records;

@@ -68,7 +68,8 @@ fn the_report_carries_the_analysis_numbers_and_every_plot() {
     let run = simulated_run(dir.path(), "RPT-1", "RM-N42SH-D10x5", 1.0, 3);
     let (s, a) = analysed(&run);
     let files = remanent::report::write_all(&run, &s, &a, "RPT-1", false).unwrap();
-    assert_eq!(files.len(), 9);
+    // six plot files (three plots, PNG and SVG), the JSON, Markdown, HTML and the certificate
+    assert_eq!(files.len(), 10);
     for f in &files {
         assert!(
             std::fs::metadata(f).unwrap().len() > 500,
@@ -78,6 +79,9 @@ fn the_report_carries_the_analysis_numbers_and_every_plot() {
     }
     let md = std::fs::read_to_string(run.join("report.md")).unwrap();
     let html = std::fs::read_to_string(run.join("report.html")).unwrap();
+    // a printed report: a place for the shipment and the signatures, blocks kept whole
+    assert!(html.contains("<h2>Inspection</h2>") && html.contains("Tested by"));
+    assert!(html.contains("@media print") && html.contains("break-inside:avoid"));
     let alpha = format!("{:+.4}", a.alpha_pct_per_c);
     let u = format!("{:.4}", a.alpha_u95_pct_per_c);
     for doc in [&md, &html] {

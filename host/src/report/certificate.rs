@@ -1,0 +1,286 @@
+//! The printable inspection certificate (PDF, A4 or Letter): a header naming the magnet, lot,
+//! order, supplier, operator, rig and calibration; the verdict block, never split across
+//! pages; the results; the B–T plot; the uncertainty budgets; notes; signature lines.
+
+use super::notes::budget_rows;
+use super::pdf_flow::{Flow, Paper};
+use crate::analysis::{Analysis, BudgetLine};
+use crate::run_dir::RunMeta;
+use crate::units;
+
+/// The certificate's file name.
+pub const CERTIFICATE_FILE: &str = "certificate.pdf";
+
+fn dash(v: &Option<String>) -> String {
+    v.clone().unwrap_or_else(|| "—".into())
+}
+
+/// The header's name–value pairs.
+fn header(a: &Analysis, meta: Option<&RunMeta>) -> Vec<(&'static str, String)> {
+    let p = &a.provenance;
+    let i = &p.inspection;
+    let magnet = match meta {
+        Some(m) => format!("{} — {}", m.magnet.id, m.magnet.description),
+        None => dash(&p.magnet_id),
+    };
+    let rig = meta
+        .map(|m| match &m.device {
+            Some(d) => format!("{} (firmware {}), port {}", d.board, d.firmware, m.port),
+            None => m.port.clone(),
+        })
+        .unwrap_or_else(|| "a logger's CSV file".into());
+    let calibration = meta
+        .map(|m| {
+            let oldest = [
+                m.calibration.dates.hall_zero,
+                m.calibration.dates.sensitivity,
+                m.calibration.dates.ice_point,
+                m.calibration.dates.gap,
+            ]
+            .into_iter()
+            .flatten()
+            .map(|s| s.0)
+            .min();
+            let basis = match m.calibration_basis {
+                Some(crate::calibration_policy::Basis::VirtualRig) => "the virtual rig's constants",
+                Some(crate::calibration_policy::Basis::Uncalibrated) => "UNCALIBRATED bench",
+                _ => "rig calibration",
+            };
+            match oldest {
+                Some(s) => format!(
+                    "{basis}, oldest step {}",
+                    &crate::clock::format_utc(s)[..10]
+                ),
+                None => basis.to_string(),
+            }
+        })
+        .unwrap_or_else(|| "as given with the log".into());
+    vec![
+        ("Magnet", magnet),
+        ("Stated grade", dash(&p.grade)),
+        ("Lot", dash(&i.lot)),
+        ("Purchase order", dash(&i.purchase_order)),
+        ("Supplier", dash(&i.supplier)),
+        ("Operator", dash(&i.operator)),
+        ("Rig", rig),
+        ("Calibration", calibration),
+        (
+            "Run",
+            format!("{} (started {})", p.run, dash(&p.started_utc)),
+        ),
+    ]
+}
+
+fn results(a: &Analysis) -> Vec<(&'static str, String)> {
+    let mut r = vec![
+        (
+            "α(Br)",
+            format!(
+                "{} over {}",
+                units::alpha_with_u95(a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
+                units::range_c(a.fit_range_c)
+            ),
+        ),
+        (
+            "Irreversible loss",
+            match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
+                (Some(l), Some(u)) => format!(
+                    "{} at room temperature, after a peak of {}",
+                    units::loss_with_u95(l, u),
+                    units::temp_c(a.max_magnet_temp_c)
+                ),
+                _ => "not computed (the notes say why)".into(),
+            },
+        ),
+    ];
+    if let Some(b) = &a.br {
+        let how = if a.br_referred {
+            "referred to the fixture's reference magnet"
+        } else {
+            "from geometry at the calibrated gap"
+        };
+        r.push((
+            "Br",
+            format!("{:.4} ± {:.4} T (k = 2), {how}", b.br_t, b.br_u95_t),
+        ));
+    }
+    r.push(("Material family", a.material_family.clone()));
+    r
+}
+
+/// Two-column rows: a bold name and a wrapped value.
+fn rows(f: &mut Flow, rows: &[(&str, String)], size: f32) {
+    let value_x = 42.0;
+    for (k, v) in rows {
+        let lines = Flow::wrap(v, f.width_mm() - value_x, size);
+        f.keep_together(Flow::lines_mm(lines.len(), size));
+        f.text_at(0.0, size, true, k);
+        for l in lines {
+            f.text_at(value_x, size, false, &l);
+            f.skip(Flow::lines_mm(1, size));
+        }
+    }
+}
+
+fn verdict_block(f: &mut Flow, a: &Analysis) {
+    let size = 9.5;
+    let reason_x = 58.0;
+    let wrapped: Vec<Vec<String>> = a
+        .checks
+        .iter()
+        .map(|c| Flow::wrap(&c.reason, f.width_mm() - reason_x, size))
+        .collect();
+    let height = 16.0
+        + wrapped
+            .iter()
+            .map(|w| Flow::lines_mm(w.len(), size) + 1.0)
+            .sum::<f32>();
+    f.keep_together(height);
+    let grade = a
+        .grade
+        .as_deref()
+        .map(|g| format!(" against grade {g}"))
+        .unwrap_or_default();
+    f.text_at(0.0, 15.0, true, &format!("Verdict: {}{grade}", a.verdict));
+    f.skip(9.0);
+    for (c, lines) in a.checks.iter().zip(wrapped) {
+        f.text_at(0.0, size, true, &c.what);
+        f.text_at(36.0, size, true, &c.outcome.to_string());
+        for l in lines {
+            f.text_at(reason_x, size, false, &l);
+            f.skip(Flow::lines_mm(1, size));
+        }
+        f.skip(1.0);
+    }
+    f.rule(0.0, f.width_mm());
+    f.skip(3.0);
+}
+
+fn budget(f: &mut Flow, heading: &str, lines: &[BudgetLine], unit: &str) {
+    if lines.is_empty() {
+        return;
+    }
+    let size = 8.5;
+    f.keep_together(8.0 + Flow::lines_mm(lines.len() + 2, size));
+    f.text_at(0.0, 10.0, true, heading);
+    f.skip(6.0);
+    for (src, kind, u) in budget_rows(lines) {
+        let wrapped = Flow::wrap(&src, f.width_mm() - 50.0, size);
+        f.text_at(
+            f.width_mm() - 40.0,
+            size,
+            false,
+            &format!("{kind}   {u} {unit}"),
+        );
+        for l in wrapped {
+            f.text_at(0.0, size, false, &l);
+            f.skip(Flow::lines_mm(1, size));
+        }
+    }
+    let combined = 2.0 * BudgetLine::combined(lines);
+    f.text_at(
+        0.0,
+        size,
+        true,
+        &format!("expanded (k = 2): {} {unit}", units::uncertainty(combined)),
+    );
+    f.skip(Flow::lines_mm(1, size) + 3.0);
+}
+
+fn signatures(f: &mut Flow) {
+    f.keep_together(48.0);
+    f.skip(4.0);
+    f.text_at(0.0, 10.0, true, "Signatures");
+    f.skip(10.0);
+    for who in ["Tested by", "Reviewed and released by"] {
+        f.skip(9.0);
+        let w = f.width_mm();
+        f.rule(0.0, w * 0.45);
+        f.rule(w * 0.5, w * 0.25);
+        f.rule(w * 0.8, w * 0.2);
+        f.skip(1.5);
+        f.text_at(0.0, 8.0, false, &format!("{who}: name and signature"));
+        f.text_at(w * 0.5, 8.0, false, "role");
+        f.text_at(w * 0.8, 8.0, false, "date");
+        f.skip(6.0);
+    }
+}
+
+/// The certificate of `a` as PDF bytes; `plot_png` is the B–T plot.
+pub fn certificate(
+    a: &Analysis,
+    meta: Option<&RunMeta>,
+    plot_png: &[u8],
+    paper: Paper,
+) -> Result<Vec<u8>, String> {
+    let mut f = Flow::new("Remanent inspection certificate", paper)?;
+    f.text_at(
+        0.0,
+        14.0,
+        true,
+        "Inspection certificate: permanent magnet temperature test",
+    );
+    f.skip(8.0);
+    f.text_at(
+        0.0,
+        8.5,
+        false,
+        &format!(
+            "{} · analysed {} UTC",
+            crate::history::software(),
+            a.provenance.analysed_utc
+        ),
+    );
+    f.skip(6.0);
+    if a.uncalibrated {
+        f.paragraph(
+            0.0,
+            10.0,
+            true,
+            "UNCALIBRATED BENCH: measured without a valid calibration; not for acceptance.",
+        );
+    }
+    rows(&mut f, &header(a, meta), 9.5);
+    f.skip(2.0);
+    f.rule(0.0, f.width_mm());
+    f.skip(4.0);
+    verdict_block(&mut f, a);
+    rows(&mut f, &results(a), 9.5);
+    f.skip(3.0);
+    f.image_png(plot_png, f.width_mm())?;
+    f.skip(4.0);
+    budget(
+        &mut f,
+        "Uncertainty budget of α (standard uncertainties)",
+        &a.alpha_budget,
+        "%/°C",
+    );
+    budget(
+        &mut f,
+        "Uncertainty budget of the loss",
+        &a.loss_budget,
+        "%",
+    );
+    budget(
+        &mut f,
+        "Uncertainty budget of Br (relative)",
+        &a.br_budget,
+        "%",
+    );
+    if !a.notes.is_empty() {
+        f.keep_together(20.0);
+        f.text_at(0.0, 10.0, true, "Notes");
+        f.skip(6.0);
+        for n in &a.notes {
+            f.paragraph(3.0, 8.5, false, &format!("• {n}"));
+        }
+        f.skip(2.0);
+    }
+    signatures(&mut f);
+    let footer = format!(
+        "{} · {} · Remanent certificate",
+        a.provenance.magnet_id.as_deref().unwrap_or("magnet"),
+        a.provenance.run
+    );
+    Ok(f.finish(&footer))
+}

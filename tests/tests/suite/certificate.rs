@@ -1,0 +1,150 @@
+//! The printable certificate: made by the tool itself (pure Rust), A4 or Letter, and read back
+//! with poppler's tools (`pdfinfo`, `pdftotext`, `pdftoppm`, from Debian's poppler-utils, which
+//! `.ci/run` installs; those checks are `--ignored` elsewhere): its pages, its key text, the
+//! verdict block whole on one page, and every page rendering to an image.
+
+use std::path::Path;
+use std::process::Command;
+
+use remanent::inspection::Inspection;
+use remanent::jobs::trial::{self, TrialSpec};
+use remanent::report::pdf_flow::Paper;
+use remanent::run_dir::read_meta;
+
+/// A short run of the demo part with a shipment's details, reported on `paper`.
+fn certified(dir: &Path, paper: Paper) -> std::path::PathBuf {
+    let out = dir.join("run");
+    let spec = TrialSpec {
+        magnet: "RM-N42SH-D10x5".into(),
+        magnet_tau_s: 45.0,
+        profile: remanent::profiles::ProfileSpec::resolve("rapid").unwrap(),
+        auto_end: Some(Default::default()),
+        preroll_s: 60.0,
+        seed: 3,
+    };
+    trial::run(&spec, &out).unwrap();
+    // the shipment's details, as `record --lot … --order … --supplier … --operator …` keeps them
+    let mut text = std::fs::read_to_string(out.join("run.toml")).unwrap();
+    let mut meta = read_meta(&out).unwrap();
+    meta.inspection = Inspection {
+        lot: Some("L-2611-A".into()),
+        purchase_order: Some("PO-7781".into()),
+        supplier: Some("Ferrum Works".into()),
+        operator: Some("R. Okafor".into()),
+    };
+    text = toml::to_string(&meta).unwrap_or(text);
+    std::fs::write(out.join("run.toml"), text).unwrap();
+    let r = remanent::jobs::report::run(&out, &Default::default(), false, paper).unwrap();
+    assert!(r.written.iter().any(|p| p.ends_with("certificate.pdf")));
+    out.join("certificate.pdf")
+}
+
+/// Pages of a PDF, counted from its page objects.
+fn pages_in(pdf: &[u8]) -> usize {
+    let text = String::from_utf8_lossy(pdf);
+    text.matches("/Type/Page").count() - text.matches("/Type/Pages").count()
+}
+
+#[test]
+fn the_certificate_is_a_pdf_of_a_page_or_two() {
+    let dir = tempfile::tempdir().unwrap();
+    let pdf = std::fs::read(certified(dir.path(), Paper::A4)).unwrap();
+    assert!(pdf.starts_with(b"%PDF-"));
+    let n = pages_in(&pdf);
+    assert!((1..=3).contains(&n), "{n} pages");
+}
+
+fn tool(cmd: &str, args: &[&str]) -> String {
+    let out = Command::new(cmd)
+        .args(args)
+        .output()
+        .unwrap_or_else(|e| panic!("{cmd}: {e} (Debian's poppler-utils; .ci/run installs it)"));
+    assert!(
+        out.status.success(),
+        "{cmd} {args:?}: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}
+
+#[test]
+#[ignore = "needs poppler-utils (pdfinfo, pdftotext, pdftoppm): .ci/run installs it"]
+fn certificate_pages_render_and_carry_the_inspection_read_back_by_poppler() {
+    for (paper, size) in [(Paper::A4, "595 x 842"), (Paper::Letter, "612 x 792")] {
+        let dir = tempfile::tempdir().unwrap();
+        let pdf = certified(dir.path(), paper);
+        let p = pdf.to_str().unwrap();
+        let info = tool("pdfinfo", &[p]);
+        assert!(info.contains(size), "{info}");
+        let pages: usize = info
+            .lines()
+            .find_map(|l| l.strip_prefix("Pages:"))
+            .and_then(|v| v.trim().parse().ok())
+            .unwrap();
+        assert!((1..=3).contains(&pages), "{pages} pages");
+        // every page renders to an image
+        let stem = dir.path().join("page");
+        tool("pdftoppm", &["-r", "50", "-png", p, stem.to_str().unwrap()]);
+        let images = std::fs::read_dir(dir.path())
+            .unwrap()
+            .filter(|e| {
+                e.as_ref()
+                    .unwrap()
+                    .file_name()
+                    .to_string_lossy()
+                    .starts_with("page")
+            })
+            .count();
+        assert_eq!(images, pages);
+        // the key text, and the verdict block whole on one page
+        let all = tool("pdftotext", &["-layout", p, "-"]);
+        let json: serde_json::Value = serde_json::from_str(
+            &std::fs::read_to_string(dir.path().join("run/analysis.json")).unwrap(),
+        )
+        .unwrap();
+        let verdict = format!(
+            "Verdict: {}",
+            json["verdict"].as_str().unwrap().to_uppercase()
+        );
+        assert!(all.contains(&verdict), "{verdict} missing:\n{all}");
+        for want in [
+            "Inspection certificate",
+            "RM-N42SH-D10x5",
+            "L-2611-A",
+            "PO-7781",
+            "Ferrum Works",
+            "R. Okafor",
+            "Uncertainty budget of α",
+            "Signatures",
+            "Tested by",
+        ] {
+            assert!(all.contains(want), "{want} missing:\n{all}");
+        }
+        let verdict_page = (1..=pages)
+            .find(|k| {
+                let t = tool(
+                    "pdftotext",
+                    &["-f", &k.to_string(), "-l", &k.to_string(), p, "-"],
+                );
+                t.contains("Verdict:")
+            })
+            .unwrap();
+        let t = tool(
+            "pdftotext",
+            &[
+                "-f",
+                &verdict_page.to_string(),
+                "-l",
+                &verdict_page.to_string(),
+                p,
+                "-",
+            ],
+        );
+        for check in ["α(Br)", "Br", "material family"] {
+            assert!(
+                t.contains(check),
+                "the verdict block is split: {check} not on its page"
+            );
+        }
+    }
+}
