@@ -22,16 +22,8 @@ pub struct Args {
     pub calibration: Option<PathBuf>,
     #[command(flatten)]
     pub specs: SpecOpts,
-    /// The magnet (demo part id or TOML file), for CSV input.
-    #[arg(long)]
-    pub magnet: Option<String>,
-    /// Map a column for CSV input, e.g. `--column temp_C=Temperature`.
-    #[arg(long = "column", value_parser = parse_mapping)]
-    pub columns: Vec<(String, String)>,
-    /// For CSV input: the probe's sensitivity coefficient, %/°C, usually negative (needs a
-    /// probe_temp_C column).
-    #[arg(long, allow_negative_numbers = true, value_parser = super::options::parse_finite)]
-    pub probe_tc_pct_per_c: Option<f64>,
+    #[command(flatten)]
+    pub csv: super::options::CsvOpts,
     /// Lot, order, supplier, operator: for a CSV log, or where a run's run.toml has none.
     #[command(flatten)]
     pub inspection: super::options::InspectionOpts,
@@ -39,20 +31,14 @@ pub struct Args {
     pub store: super::options::StoreOpts,
 }
 
-fn parse_mapping(s: &str) -> Result<(String, String), String> {
-    s.split_once('=')
-        .map(|(a, b)| (a.trim().to_string(), b.trim().to_string()))
-        .ok_or_else(|| format!("`{s}` is not OURS=THEIRS"))
-}
-
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let req = InputRequest {
         input: a.input.clone(),
         calibration: a.calibration,
         specs: a.specs.specs,
-        magnet: a.magnet,
-        columns: a.columns,
-        probe_tc_pct_per_c: a.probe_tc_pct_per_c,
+        magnet: a.csv.magnet,
+        columns: a.csv.columns,
+        probe_tc_pct_per_c: a.csv.probe_tc_pct_per_c,
         reference: a.specs.reference,
         inspection: a.inspection.inspection(),
     };

@@ -163,3 +163,25 @@ impl InspectionOpts {
         .tidied()
     }
 }
+
+/// How a logger's CSV file is read (a run directory needs none of this).
+#[derive(clap::Args, Clone, Debug, Default)]
+pub struct CsvOpts {
+    /// The magnet (demo part id or TOML file), for CSV input.
+    #[arg(long)]
+    pub magnet: Option<String>,
+    /// Map a column for CSV input, e.g. `--column temp_C=Temperature`.
+    #[arg(long = "column", value_parser = parse_mapping)]
+    pub columns: Vec<(String, String)>,
+    /// For CSV input: the probe's sensitivity coefficient, %/°C, usually negative (needs a
+    /// probe_temp_C column).
+    #[arg(long, allow_negative_numbers = true, value_parser = parse_finite)]
+    pub probe_tc_pct_per_c: Option<f64>,
+}
+
+/// `OURS=THEIRS`.
+pub fn parse_mapping(s: &str) -> Result<(String, String), String> {
+    s.split_once('=')
+        .map(|(a, b)| (a.trim().to_string(), b.trim().to_string()))
+        .ok_or_else(|| format!("`{s}` is not OURS=THEIRS"))
+}

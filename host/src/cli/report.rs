@@ -1,5 +1,6 @@
-//! `remanent report`: plots and an HTML and Markdown report for a run — or, when the record
-//! cannot be analysed, its time series and a plain statement of why.
+//! `remanent report`: plots, HTML and Markdown reports, the JSON and the certificate for a run
+//! directory or a logger's CSV file — or, when the record cannot be analysed, its time series
+//! and a plain statement of why.
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -8,10 +9,19 @@ use super::options::{ForceOpts, SpecOpts};
 
 #[derive(clap::Args)]
 pub struct Args {
-    /// The run directory.
+    /// A run directory, or a logger's CSV file (as `analyze` reads it).
     pub run: PathBuf,
+    /// Folder for the report (default: the run directory itself, or `<name>-report` beside a
+    /// CSV file).
+    #[arg(long)]
+    pub out: Option<PathBuf>,
     #[command(flatten)]
     pub specs: SpecOpts,
+    #[command(flatten)]
+    pub csv: super::options::CsvOpts,
+    /// Lot, order, supplier, operator: for a CSV log, or where a run's run.toml has none.
+    #[command(flatten)]
+    pub inspection: super::options::InspectionOpts,
     /// Paper of the printable certificate (certificate.pdf).
     #[arg(long, value_enum, default_value_t = PaperArg::A4)]
     pub paper: PaperArg,
@@ -35,7 +45,21 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         PaperArg::A4 => remanent::report::pdf_flow::Paper::A4,
         PaperArg::Letter => remanent::report::pdf_flow::Paper::Letter,
     };
-    let r = remanent::jobs::report::run(&a.run, &a.specs.judging(), a.force.force, paper)?;
+    let req = remanent::jobs::InputRequest {
+        input: a.run.clone(),
+        specs: a.specs.specs.clone(),
+        reference: a.specs.reference.clone(),
+        magnet: a.csv.magnet.clone(),
+        columns: a.csv.columns.clone(),
+        probe_tc_pct_per_c: a.csv.probe_tc_pct_per_c,
+        inspection: a.inspection.inspection(),
+        ..Default::default()
+    };
+    let out = a
+        .out
+        .clone()
+        .unwrap_or_else(|| remanent::jobs::report::default_out(&a.run));
+    let r = remanent::jobs::report::run_input(&req, &out, a.force.force, paper)?;
     if let Some(why) = &r.not_analysed {
         eprintln!("note: {why}; wrote the time series and what could not be computed");
     }

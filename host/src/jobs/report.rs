@@ -1,5 +1,6 @@
-//! Report a run: analyse it and write every output, or — when the record cannot be
-//! analysed — its time series and a plain statement of why.
+//! Report a run or a logger's CSV file: analyse it and write every output (plots, HTML,
+//! Markdown, JSON, the certificate), or — when the record cannot be analysed — its time series
+//! and a plain statement of why.
 
 use std::path::{Path, PathBuf};
 
@@ -27,7 +28,7 @@ pub struct RunReport {
     pub analysis: Option<crate::analysis::Analysis>,
 }
 
-/// Report the run in `dir`.
+/// Report the run in `dir` (its outputs beside it).
 pub fn run(
     dir: &Path,
     judging: &Judging,
@@ -40,17 +41,46 @@ pub fn run(
         reference: judging.reference.clone(),
         ..InputRequest::default()
     };
-    let loaded = load(&req)?;
-    Ok(match loaded.analyze(dir) {
+    run_input(&req, dir, force, paper)
+}
+
+/// Where a report of `input` goes unless told: beside a run directory's data, or a new folder
+/// `<name>-report` beside a log file.
+pub fn default_out(input: &Path) -> PathBuf {
+    if input.is_dir() {
+        return input.to_path_buf();
+    }
+    let stem = input
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "log".into());
+    input.with_file_name(format!("{stem}-report"))
+}
+
+/// Report any input — a run directory or a logger's CSV file — into `out`.
+pub fn run_input(
+    req: &InputRequest,
+    out: &Path,
+    force: bool,
+    paper: crate::report::pdf_flow::Paper,
+) -> Result<RunReport, RunReportError> {
+    let loaded = load(req)?;
+    std::fs::create_dir_all(out).map_err(|source| {
+        ReportError::Output(crate::output::OutputError::Io {
+            path: out.display().to_string(),
+            source,
+        })
+    })?;
+    Ok(match loaded.analyze(&req.input) {
         Ok(a) => RunReport {
-            written: report::write_all_on(dir, &loaded.series, &a, &loaded.title, force, paper)?,
+            written: report::write_all_on(out, &loaded.series, &a, &loaded.title, force, paper)?,
             not_analysed: None,
             analysis: Some(a),
         },
         Err(JobError::Analysis { source, .. }) => {
             let why = source.to_string();
             RunReport {
-                written: report::write_unanalysed(dir, &loaded.series, &loaded.title, &why, force)?,
+                written: report::write_unanalysed(out, &loaded.series, &loaded.title, &why, force)?,
                 not_analysed: Some(why),
                 analysis: None,
             }

@@ -148,3 +148,58 @@ fn certificate_pages_render_and_carry_the_inspection_read_back_by_poppler() {
         }
     }
 }
+
+#[test]
+fn a_loggers_csv_file_gets_the_whole_report_beside_it() {
+    let dir = tempfile::tempdir().unwrap();
+    let run = dir.path().join("run");
+    let spec = TrialSpec {
+        magnet: "RM-N42SH-D10x5".into(),
+        magnet_tau_s: 45.0,
+        profile: remanent::profiles::ProfileSpec::resolve("rapid").unwrap(),
+        auto_end: Some(Default::default()),
+        preroll_s: 60.0,
+        seed: 8,
+    };
+    trial::run(&spec, &run).unwrap();
+    // the same record as another logger would write it: time, temperature, flux
+    let (s, _) = remanent::analysis::dataset::load_run(&run, None).unwrap();
+    let mut text = String::from("time_s,temp_C,flux_mT\n");
+    for i in 0..s.time_s.len() {
+        text.push_str(&format!(
+            "{},{},{}\n",
+            s.time_s[i], s.temp_c[i], s.flux_mt[i]
+        ));
+    }
+    let log = dir.path().join("bench-log.csv");
+    std::fs::write(&log, text).unwrap();
+    let req = remanent::jobs::InputRequest {
+        input: log.clone(),
+        magnet: Some("RM-N42SH-D10x5".into()),
+        inspection: Inspection {
+            lot: Some("L-LOG".into()),
+            ..Default::default()
+        },
+        ..Default::default()
+    };
+    let out = remanent::jobs::report::default_out(&log);
+    assert_eq!(out, dir.path().join("bench-log-report"));
+    let r = remanent::jobs::report::run_input(&req, &out, false, Paper::A4).unwrap();
+    assert!(r.not_analysed.is_none());
+    for f in [
+        "report.html",
+        "report.md",
+        "analysis.json",
+        "certificate.pdf",
+        "flux_vs_temp.png",
+    ] {
+        assert!(out.join(f).is_file(), "{f}");
+    }
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(
+        html.contains("plain CSV log") && html.contains("L-LOG"),
+        "the page says what it came from"
+    );
+    // a second report into the same folder is refused without --force
+    assert!(remanent::jobs::report::run_input(&req, &out, false, Paper::A4).is_err());
+}
