@@ -215,3 +215,15 @@ fn two_rigs_record_side_by_side_on_one_host_and_a_busy_port_is_refused() {
         "the refused record left nothing behind"
     );
 }
+
+#[test]
+fn reading_a_history_store_that_is_not_there_says_so_and_creates_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let store = dir.path().join("typo").join("history.sqlite");
+    for sub in ["find", "info"] {
+        let (code, text) = run(&["history", sub, "--store", store.to_str().unwrap()]);
+        assert_eq!(code, 2, "{text}");
+        assert!(text.contains("no history store at"), "{text}");
+    }
+    assert!(!store.exists() && !dir.path().join("typo").exists());
+}

@@ -5,7 +5,18 @@ use crate::cli::options::StoreOpts;
 
 /// Open the store the options name (refusing `off`).
 pub fn open(store: &StoreOpts) -> anyhow::Result<remanent::history::Store> {
-    Ok(remanent::history::Store::open(&store.location())?)
+    let at = store.location();
+    // reading a store that is not there would make an empty one where a path was mistyped
+    if let remanent::history::Location::Sqlite(p) = &at {
+        if !p.exists() {
+            anyhow::bail!(
+                "no history store at {}: nothing was recorded, analysed or imported into it yet \
+                 (`remanent history import RUN…` adds run directories; --store names another)",
+                p.display()
+            );
+        }
+    }
+    Ok(remanent::history::Store::open(&at)?)
 }
 
 /// Search terms shared by `find` and `export`.
