@@ -78,7 +78,8 @@ fn measure(name: &str, at: &Location, a: &Analysis) {
     let mut k = 0;
     while k < RUNS {
         let items: Vec<_> = (k..(k + BATCH).min(RUNS)).map(|i| item(i, a)).collect();
-        store.put_many(&items).unwrap();
+        let refs: Vec<(RunEntry, &Analysis)> = items.iter().map(|(e, a)| (e.clone(), a)).collect();
+        store.put_many(&refs).unwrap();
         k += BATCH;
     }
     let import = t0.elapsed().as_secs_f64();

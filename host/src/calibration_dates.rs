@@ -93,6 +93,22 @@ impl Dates {
         ]
     }
 
+    /// The oldest dated step's stamp (None: no step dated).
+    pub fn oldest(&self) -> Option<Stamp> {
+        [
+            self.hall_zero,
+            self.offset_drift,
+            self.sensitivity,
+            self.probe_tc,
+            self.ice_point,
+            self.boiling_point,
+            self.gap,
+        ]
+        .into_iter()
+        .flatten()
+        .min_by_key(|s| s.0)
+    }
+
     /// Whether no step has a date.
     pub fn is_empty(&self) -> bool {
         *self == Dates::default()

@@ -38,6 +38,24 @@ pub fn uncertainty(u: f64) -> String {
     format!("{u:.decimals$}")
 }
 
+/// Words of `text` in lines of at most about `width` characters (a longer word has a line of
+/// its own).
+pub fn wrap_words(text: &str, width: usize) -> Vec<String> {
+    let mut lines = vec![String::new()];
+    for word in text.split_whitespace() {
+        let last = lines.last_mut().expect("one line at least");
+        if !last.is_empty() && last.chars().count() + 1 + word.chars().count() > width {
+            lines.push(word.to_string());
+        } else {
+            if !last.is_empty() {
+                last.push(' ');
+            }
+            last.push_str(word);
+        }
+    }
+    lines
+}
+
 /// A count with its noun, singular or plural: `1 gap`, `3 gaps`.
 pub fn count(n: u64, singular: &str, plural: &str) -> String {
     format!("{n} {}", if n == 1 { singular } else { plural })

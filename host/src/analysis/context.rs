@@ -6,6 +6,10 @@ use crate::specs::SpecTable;
 
 use super::lsq;
 
+/// Thermocouple gain tolerance assumed without a calibration, % (standard-limits Type K
+/// wire: ±0.75 % of reading above 333 °C; common practice to use it throughout).
+pub const DEFAULT_TC_GAIN_PCT: f64 = 0.75;
+
 /// What the analysis knows besides the series.
 #[derive(Debug, Clone)]
 pub struct Context {

@@ -38,7 +38,7 @@ pub mod verdict;
 pub mod context;
 pub mod pipeline;
 
-pub use context::{AnalysisError, Context};
+pub use context::{AnalysisError, Context, DEFAULT_TC_GAIN_PCT};
 pub use pipeline::analyze;
 pub use result::{Analysis, BudgetLine, CycleResult, Traces};
 pub use segments::MIN_SPAN_K;

@@ -41,12 +41,9 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         a.mixed_grades,
         a.force.force,
     )?;
-    for (run, analysis) in &outcome.analyses {
-        a.store
-            .keep(&format!("the analysis of {}", run.display()), |at| {
-                remanent::jobs::history::store_analysis(at, run, analysis)
-            });
-    }
+    a.store.keep("the lot's analyses", |at| {
+        remanent::jobs::history::store_analyses(at, &outcome.analyses)
+    });
     for w in &outcome.warnings {
         eprintln!("warning: {w}");
     }

@@ -98,20 +98,7 @@ impl RunEntry {
             firmware.as_deref().unwrap_or(""),
             &meta.software,
         ]);
-        let d = &meta.calibration.dates;
-        let oldest = [
-            d.hall_zero,
-            d.offset_drift,
-            d.sensitivity,
-            d.probe_tc,
-            d.ice_point,
-            d.boiling_point,
-            d.gap,
-        ]
-        .into_iter()
-        .flatten()
-        .map(|s| s.0)
-        .min();
+
         RunEntry {
             run_uid,
             run_name: name_of(dir),
@@ -129,7 +116,11 @@ impl RunEntry {
             firmware,
             port: Some(meta.port.clone()),
             calibration_basis: basis_word(meta),
-            calibration_oldest_utc: oldest.map(crate::clock::format_utc),
+            calibration_oldest_utc: meta
+                .calibration
+                .dates
+                .oldest()
+                .map(|s| crate::clock::format_utc(s.0)),
             calibration_json: serde_json::to_string(&meta.calibration).ok(),
             samples: i64::try_from(meta.counts.samples).ok(),
             gap_samples: i64::try_from(meta.counts.gap_samples).ok(),
@@ -207,21 +198,32 @@ fn absolute(p: &Path) -> String {
         .to_string()
 }
 
-/// The analysis columns, in the order of [`analysis_values`].
+/// The analysis columns, in the order of [`analysis_row`].
 pub const ANALYSIS_COLUMNS: &str = "analysis_uid, run_uid, analysed_utc, software, verdict, \
     grade, material_family, alpha_pct_per_C, alpha_u95_pct_per_C, b20_mT, b20_u_mT, br_T, \
     br_u95_T, loss_pct, loss_u95_pct, fit_min_C, fit_max_C, max_magnet_temp_C, \
     fit_method_code, heat_damaged, uncalibrated, analysis_json";
 
+/// An analysis as the store keeps it: its columns, and the figures kept beside its run as the
+/// run's latest (verdict, α, Br, loss).
+pub struct AnalysisRow {
+    /// The columns, in the order of [`ANALYSIS_COLUMNS`]; the first is the key.
+    pub values: Vec<Value>,
+    /// Verdict, α, Br and loss, as in `values`.
+    pub latest: [Value; 4],
+}
+
 /// An analysis's key and columns. The key covers the run and everything the analysis found,
 /// but not its provenance (when it was made, the lot or operator given with it: those describe
 /// the run), so the same analysis stored twice is one row.
-pub fn analysis_values(run_uid: &str, a: &Analysis) -> Vec<Value> {
-    let json = serde_json::to_string(a).unwrap_or_default();
-    let mut timeless = a.clone();
-    timeless.provenance = Default::default();
-    let key_json = serde_json::to_string(&timeless).unwrap_or_default();
-    let uid = fingerprint(&["analysis", run_uid, &key_json]);
+pub fn analysis_row(run_uid: &str, a: &Analysis) -> AnalysisRow {
+    // one serialisation (the per-sample traces are not part of it), the key without provenance
+    let mut doc = serde_json::to_value(a).unwrap_or_default();
+    let json = doc.to_string();
+    if let Some(o) = doc.as_object_mut() {
+        o.remove("provenance");
+    }
+    let uid = fingerprint(&["analysis", run_uid, &doc.to_string()]);
     let verdict = serde_json::to_value(a.verdict)
         .ok()
         .and_then(|v| v.as_str().map(String::from))
@@ -234,7 +236,18 @@ pub fn analysis_values(run_uid: &str, a: &Analysis) -> Vec<Value> {
         }
     };
     let opt = |v: Option<f64>| v.filter(|x| x.is_finite()).map_or(Value::Null, Value::Real);
-    vec![
+    let (alpha, br, loss) = (
+        finite(a.alpha_pct_per_c),
+        opt(a.br.as_ref().map(|b| b.br_t)),
+        opt(a.irreversible_loss_pct),
+    );
+    let latest = [
+        Value::Text(verdict.clone()),
+        alpha.clone(),
+        br.clone(),
+        loss.clone(),
+    ];
+    let values = vec![
         uid.into(),
         run_uid.into(),
         a.provenance.analysed_utc.as_str().into(),
@@ -242,13 +255,13 @@ pub fn analysis_values(run_uid: &str, a: &Analysis) -> Vec<Value> {
         verdict.into(),
         a.grade.clone().into(),
         a.material_family.as_str().into(),
-        finite(a.alpha_pct_per_c),
+        alpha,
         finite(a.alpha_u95_pct_per_c),
         finite(a.b20_mt),
         finite(a.b20_u_mt),
-        opt(a.br.as_ref().map(|b| b.br_t)),
+        br,
         opt(a.br.as_ref().map(|b| b.br_u95_t)),
-        opt(a.irreversible_loss_pct),
+        loss,
         opt(a.irreversible_loss_u95_pct),
         finite(a.fit_range_c[0]),
         finite(a.fit_range_c[1]),
@@ -257,5 +270,6 @@ pub fn analysis_values(run_uid: &str, a: &Analysis) -> Vec<Value> {
         Value::Int(a.heat_damaged.into()),
         Value::Int(a.uncalibrated.into()),
         json.into(),
-    ]
+    ];
+    AnalysisRow { values, latest }
 }

@@ -84,6 +84,26 @@ impl Postgres {
         }
     }
 
+    /// Run `f` with `sql` prepared (once per connection) and `params` as PostgreSQL takes them.
+    fn with_params<T>(
+        &mut self,
+        sql: &str,
+        params: &[Value],
+        f: impl FnOnce(
+            &mut postgres::Client,
+            &postgres::Statement,
+            &[&(dyn postgres::types::ToSql + Sync)],
+        ) -> Result<T, postgres::Error>,
+    ) -> Result<T, StoreError> {
+        let st = self.statement(sql)?;
+        let vals: Vec<PgValue> = params.iter().map(PgValue).collect();
+        let refs: Vec<&(dyn postgres::types::ToSql + Sync)> = vals
+            .iter()
+            .map(|v| v as &(dyn postgres::types::ToSql + Sync))
+            .collect();
+        f(&mut self.client, &st, &refs).map_err(|e| self.err(e))
+    }
+
     fn statement(&mut self, sql: &str) -> Result<postgres::Statement, StoreError> {
         if let Some(s) = self.statements.get(sql) {
             return Ok(s.clone());
@@ -150,23 +170,11 @@ impl Backend for Postgres {
     }
 
     fn execute(&mut self, sql: &str, params: &[Value]) -> Result<u64, StoreError> {
-        let st = self.statement(sql)?;
-        let vals: Vec<PgValue> = params.iter().map(PgValue).collect();
-        let refs: Vec<&(dyn postgres::types::ToSql + Sync)> = vals
-            .iter()
-            .map(|v| v as &(dyn postgres::types::ToSql + Sync))
-            .collect();
-        self.client.execute(&st, &refs).map_err(|e| self.err(e))
+        self.with_params(sql, params, |c, st, p| c.execute(st, p))
     }
 
     fn query(&mut self, sql: &str, params: &[Value]) -> Result<Vec<Row>, StoreError> {
-        let st = self.statement(sql)?;
-        let vals: Vec<PgValue> = params.iter().map(PgValue).collect();
-        let refs: Vec<&(dyn postgres::types::ToSql + Sync)> = vals
-            .iter()
-            .map(|v| v as &(dyn postgres::types::ToSql + Sync))
-            .collect();
-        let rows = self.client.query(&st, &refs).map_err(|e| self.err(e))?;
+        let rows = self.with_params(sql, params, |c, st, p| c.query(st, p))?;
         Ok(rows
             .iter()
             .map(|r| (0..r.len()).map(|i| pg_value(r, i)).collect())

@@ -81,7 +81,7 @@ impl Store {
 
     /// Store many runs with their analyses in one transaction; how many were new (runs,
     /// analyses).
-    pub fn put_many(&mut self, items: &[(RunEntry, Analysis)]) -> Result<(u64, u64), StoreError> {
+    pub fn put_many(&mut self, items: &[(RunEntry, &Analysis)]) -> Result<(u64, u64), StoreError> {
         self.write(|db| {
             let (mut runs, mut analyses) = (0, 0);
             for (run, a) in items {
@@ -103,14 +103,7 @@ fn put_run(db: &mut dyn Backend, run: &RunEntry) -> Result<bool, StoreError> {
         &[run.run_uid.as_str().into()],
     )?;
     if there.is_empty() {
-        let n = entry::RUN_COLUMNS.split(',').count();
-        let marks: Vec<String> = (1..=n).map(|i| format!("${i}")).collect();
-        let sql = format!(
-            "INSERT INTO runs ({}) VALUES ({})",
-            entry::RUN_COLUMNS,
-            marks.join(", ")
-        );
-        db.execute(&sql, &run.values(&crate::run_dir::utc_now()))?;
+        db.execute(run_insert(), &run.values(&crate::run_dir::utc_now()))?;
         return Ok(true);
     }
     let i = &run.inspection;
@@ -136,38 +129,52 @@ fn put_run(db: &mut dyn Backend, run: &RunEntry) -> Result<bool, StoreError> {
 }
 
 fn put_analysis(db: &mut dyn Backend, run_uid: &str, a: &Analysis) -> Result<bool, StoreError> {
-    let values = entry::analysis_values(run_uid, a);
-    let uid = values[0].clone();
-    let n = values.len();
-    let marks: Vec<String> = (1..=n).map(|i| format!("${i}")).collect();
-    let sql = format!(
-        "INSERT INTO analyses ({}) VALUES ({}) ON CONFLICT (analysis_uid) DO NOTHING",
-        entry::ANALYSIS_COLUMNS,
-        marks.join(", ")
-    );
-    let new = db.execute(&sql, &values)? > 0;
+    let row = entry::analysis_row(run_uid, a);
+    let new = db.execute(analysis_insert(), &row.values)? > 0;
     if new {
         // the figures the searches and trends read, kept beside the run in the same transaction
-        let pick = |name: &str| {
-            let i = entry::ANALYSIS_COLUMNS
-                .split(',')
-                .position(|c| c.trim() == name)
-                .expect("a column of the analyses table");
-            values[i].clone()
-        };
+        let [verdict, alpha, br, loss] = row.latest;
         db.execute(
             "UPDATE runs SET latest_analysis_uid = $2, latest_verdict = $3,
                 latest_alpha_pct_per_C = $4, latest_br_T = $5, latest_loss_pct = $6
              WHERE run_uid = $1",
             &[
                 run_uid.into(),
-                uid,
-                pick("verdict"),
-                pick("alpha_pct_per_C"),
-                pick("br_T"),
-                pick("loss_pct"),
+                row.values[0].clone(),
+                verdict,
+                alpha,
+                br,
+                loss,
             ],
         )?;
     }
     Ok(new)
+}
+
+/// `INSERT INTO table (columns) VALUES ($1, … $n)` with `tail`.
+fn insert_sql(table: &str, columns: &str, tail: &str) -> String {
+    let n = columns.split(',').count();
+    let marks: Vec<String> = (1..=n).map(|i| format!("${i}")).collect();
+    format!(
+        "INSERT INTO {table} ({columns}) VALUES ({}){tail}",
+        marks.join(", ")
+    )
+}
+
+/// The insert of a run (built once).
+fn run_insert() -> &'static str {
+    static SQL: std::sync::OnceLock<String> = std::sync::OnceLock::new();
+    SQL.get_or_init(|| insert_sql("runs", entry::RUN_COLUMNS, ""))
+}
+
+/// The insert of an analysis, a second one of the same key changing nothing (built once).
+fn analysis_insert() -> &'static str {
+    static SQL: std::sync::OnceLock<String> = std::sync::OnceLock::new();
+    SQL.get_or_init(|| {
+        insert_sql(
+            "analyses",
+            entry::ANALYSIS_COLUMNS,
+            " ON CONFLICT (analysis_uid) DO NOTHING",
+        )
+    })
 }

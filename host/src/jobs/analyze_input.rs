@@ -9,9 +9,7 @@ use crate::calibration::{Calibration, CalibrationError};
 use crate::magnets::{self, MagnetError};
 use crate::specs::{SpecError, SpecTable};
 
-/// Thermocouple gain tolerance assumed without a calibration, % (standard-limits Type K
-/// wire: ±0.75 % of reading above 333 °C; common practice to use it throughout).
-pub const DEFAULT_TC_GAIN_PCT: f64 = 0.75;
+pub use crate::analysis::DEFAULT_TC_GAIN_PCT;
 
 /// A workflow failed.
 #[derive(Debug, thiserror::Error)]

@@ -79,6 +79,15 @@ pub fn store_analysis(at: &Location, input: &Path, a: &Analysis) -> Result<bool,
     Ok(Store::open(at)?.put_analysis(&entry, a)?)
 }
 
+/// Store several analyses (a lot's) in one transaction; true if any was new.
+pub fn store_analyses(at: &Location, items: &[(PathBuf, Analysis)]) -> Result<bool, HistoryError> {
+    let entries = items
+        .iter()
+        .map(|(input, a)| Ok((entry_for(input, a)?, a)))
+        .collect::<Result<Vec<_>, HistoryError>>()?;
+    Ok(Store::open(at)?.put_many(&entries)?.1 > 0)
+}
+
 /// What an import did.
 #[derive(Debug, Default, PartialEq)]
 pub struct Imported {
@@ -145,7 +154,7 @@ pub fn import(
         };
         match load_and_analyze(&req) {
             Ok((_, a)) => {
-                let (r, n) = store.put_many(&[(entry, a)])?;
+                let (r, n) = store.put_many(&[(entry, &a)])?;
                 done.new_runs += r;
                 done.new_analyses += n;
             }

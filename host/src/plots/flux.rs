@@ -130,8 +130,7 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
         Key::Line(FIT, fit_label),
     ];
     if a.fit_method_code == "cooling_branch" {
-        keys.push(Key::Line(
-            WHITE,
+        keys.push(Key::Text(
             "the heating branch is shown for context: it mixes reversible change and the loss"
                 .into(),
         ));

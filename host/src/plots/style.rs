@@ -116,6 +116,8 @@ pub enum Key {
     Cross(RGBColor, String),
     /// A shaded box of this colour (a density of points).
     Shade(RGBColor, String),
+    /// Words alone, no mark.
+    Text(String),
 }
 
 /// Width of the key strip beside a chart, px.
@@ -169,6 +171,7 @@ pub fn draw_keys<DB: DrawingBackend>(
                     .map_err(e)?;
                 l
             }
+            Key::Text(l) => l,
             Key::Shade(c, l) => {
                 side.draw(&Rectangle::new(
                     [(8, y - 6), (28, y + 6)],
@@ -178,7 +181,7 @@ pub fn draw_keys<DB: DrawingBackend>(
                 l
             }
         };
-        for line in wrap(label, 30) {
+        for line in crate::units::wrap_words(label, 30) {
             side.draw(&Text::new(line, (38, y - 8), font.clone()))
                 .map_err(e)?;
             y += 18;
@@ -186,23 +189,6 @@ pub fn draw_keys<DB: DrawingBackend>(
         y += 6;
     }
     Ok(())
-}
-
-/// Words of `text` in lines of at most about `width` characters.
-fn wrap(text: &str, width: usize) -> Vec<String> {
-    let mut lines = vec![String::new()];
-    for word in text.split_whitespace() {
-        let last = lines.last_mut().expect("one line at least");
-        if !last.is_empty() && last.chars().count() + 1 + word.chars().count() > width {
-            lines.push(word.to_string());
-        } else {
-            if !last.is_empty() {
-                last.push(' ');
-            }
-            last.push_str(word);
-        }
-    }
-    lines
 }
 
 #[cfg(test)]
@@ -213,7 +199,7 @@ mod tests {
         assert_eq!(super::tick(&0.25), "0.25");
         assert_eq!(super::tick(&-0.0), "0");
         assert_eq!(super::tick(&-1.5e-3), "-0.0015");
-        let w = super::wrap("fit: α = -0.1142 ± 0.0016 %/°C (k = 2), 22…98 °C", 30);
+        let w = crate::units::wrap_words("fit: α = -0.1142 ± 0.0016 %/°C (k = 2), 22…98 °C", 30);
         assert!(
             w.len() == 2 && w.iter().all(|l| l.chars().count() <= 30),
             "{w:?}"

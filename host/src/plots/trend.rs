@@ -111,7 +111,7 @@ fn draw_panel<DB: DrawingBackend>(
             ));
         }
     } else {
-        keys.push(Key::Line(WHITE, "no limits: fewer than 2 runs".into()));
+        keys.push(Key::Text("no limits: fewer than 2 runs".into()));
     }
     let pts: Vec<(f64, f64)> = p.points.iter().map(|q| (q.0 / DAY_S, q.1)).collect();
     c.draw_series(LineSeries::new(pts.iter().copied(), COOLING.mix(0.4)))

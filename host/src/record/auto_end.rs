@@ -63,8 +63,7 @@ impl AutoEnd {
                 calibration: Some(*calibration),
                 magnet: Some(magnet.clone()),
                 specs: SpecTable::builtin(),
-                // standard-limits Type K wire (common practice), as the analysis assumes
-                default_tc_gain_pct: 0.75,
+                default_tc_gain_pct: crate::analysis::DEFAULT_TC_GAIN_PCT,
                 reference: None,
             },
             start_c: None,

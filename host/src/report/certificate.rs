@@ -31,16 +31,7 @@ fn header(a: &Analysis, meta: Option<&RunMeta>) -> Vec<(&'static str, String)> {
         .unwrap_or_else(|| "a logger's CSV file".into());
     let calibration = meta
         .map(|m| {
-            let oldest = [
-                m.calibration.dates.hall_zero,
-                m.calibration.dates.sensitivity,
-                m.calibration.dates.ice_point,
-                m.calibration.dates.gap,
-            ]
-            .into_iter()
-            .flatten()
-            .map(|s| s.0)
-            .min();
+            let oldest = m.calibration.dates.oldest().map(|s| s.0);
             let basis = match m.calibration_basis {
                 Some(crate::calibration_policy::Basis::VirtualRig) => "the virtual rig's constants",
                 Some(crate::calibration_policy::Basis::Uncalibrated) => "UNCALIBRATED bench",

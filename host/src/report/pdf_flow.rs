@@ -123,19 +123,7 @@ impl Flow {
     /// Lines of `text` wrapped to `width_mm` at `size` pt.
     pub fn wrap(text: &str, width_mm: f32, size: f32) -> Vec<String> {
         let per_line = ((width_mm * PT_PER_MM) / (size * ADVANCE)).max(8.0) as usize;
-        let mut lines = vec![String::new()];
-        for word in text.split_whitespace() {
-            let last = lines.last_mut().expect("one line");
-            if !last.is_empty() && last.chars().count() + 1 + word.chars().count() > per_line {
-                lines.push(word.to_string());
-            } else {
-                if !last.is_empty() {
-                    last.push(' ');
-                }
-                last.push_str(word);
-            }
-        }
-        lines
+        crate::units::wrap_words(text, per_line)
     }
 
     /// The height `lines` lines of `size` pt take, mm.
