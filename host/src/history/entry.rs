@@ -217,13 +217,12 @@ pub struct AnalysisRow {
 /// but not its provenance (when it was made, the lot or operator given with it: those describe
 /// the run), so the same analysis stored twice is one row.
 pub fn analysis_row(run_uid: &str, a: &Analysis) -> AnalysisRow {
-    // one serialisation (the per-sample traces are not part of it), the key without provenance
-    let mut doc = serde_json::to_value(a).unwrap_or_default();
-    let json = doc.to_string();
-    if let Some(o) = doc.as_object_mut() {
-        o.remove("provenance");
-    }
-    let uid = fingerprint(&["analysis", run_uid, &doc.to_string()]);
+    // one serialisation (the per-sample traces are not part of it); the key is the same text
+    // with the provenance taken out, exactly as it was written into it
+    let json = serde_json::to_string(a).unwrap_or_default();
+    let provenance = serde_json::to_string(&a.provenance).unwrap_or_default();
+    let key_json = json.replacen(&format!("\"provenance\":{provenance}"), "", 1);
+    let uid = fingerprint(&["analysis", run_uid, &key_json]);
     let verdict = serde_json::to_value(a.verdict)
         .ok()
         .and_then(|v| v.as_str().map(String::from))
