@@ -8,6 +8,9 @@ use std::time::Duration;
 use super::backend::{Backend, Row, Value};
 use super::error::StoreError;
 
+/// How long a writer waits for another to finish before giving up.
+const BUSY_WAIT: Duration = Duration::from_secs(30);
+
 /// An SQLite file.
 pub struct Sqlite {
     conn: rusqlite::Connection,
@@ -45,13 +48,32 @@ impl Sqlite {
             conn,
             path: path.to_path_buf(),
         };
-        db.conn
-            .busy_timeout(Duration::from_secs(30))
-            .map_err(|e| db.err(e))?;
-        // The first read of a file that is not a database fails here, with a clear message.
-        db.query("PRAGMA journal_mode=WAL", &[])?;
+        db.conn.busy_timeout(BUSY_WAIT).map_err(|e| db.err(e))?;
+        db.journal_wal()?;
         db.batch("PRAGMA synchronous=NORMAL; PRAGMA foreign_keys=ON;")?;
         Ok(db)
+    }
+
+    /// Switch to the WAL journal. The switch takes the file's exclusive lock and SQLite answers
+    /// "locked" at once, without its busy wait, while another connection opens the same new
+    /// file; so it waits here, as the busy wait would. The first read of a file that is not a
+    /// database fails here too, with a clear message.
+    fn journal_wal(&mut self) -> Result<(), StoreError> {
+        let start = std::time::Instant::now();
+        loop {
+            match self
+                .conn
+                .query_row("PRAGMA journal_mode=WAL", [], |_| Ok(()))
+            {
+                Err(e)
+                    if e.sqlite_error_code() == Some(rusqlite::ErrorCode::DatabaseBusy)
+                        && start.elapsed() < BUSY_WAIT =>
+                {
+                    std::thread::sleep(Duration::from_millis(5));
+                }
+                other => return other.map_err(|e| self.err(e)),
+            }
+        }
     }
 
     fn err(&self, e: rusqlite::Error) -> StoreError {
