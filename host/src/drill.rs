@@ -73,7 +73,7 @@ pub fn run<P: Read + Write>(
         steps.push(Step {
             name: "drill carried out",
             passed: false,
-            detail: describe_refusal(&r),
+            detail: describe_refusal(&r).into(),
         });
         return Ok(steps);
     }
@@ -86,7 +86,8 @@ pub fn run<P: Read + Write>(
         detail: format!(
             "back after {back_s:.1} s: {}",
             describe_boot(&again.boot).unwrap_or_else(|| "a plain power-on (wrong)".into())
-        ),
+        )
+        .into(),
     });
     steps.push(comes_up_latched(&mut s)?);
     let id = s.send(Command::ClearFault)?;
@@ -133,6 +134,7 @@ fn comes_up_latched<P: Read + Write>(s: &mut Acquisition<P>) -> Result<Step, Lin
             } else {
                 "not seen off (wrong)"
             }
-        ),
+        )
+        .into(),
     })
 }

@@ -35,5 +35,6 @@ pub mod selftest;
 pub mod specs;
 pub mod survey;
 pub mod units;
+pub mod user_dirs;
 pub mod values;
 pub mod virtual_rig;

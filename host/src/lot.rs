@@ -236,7 +236,10 @@ pub fn to_csv(s: &LotSummary) -> String {
 }
 
 /// A short text summary.
-pub fn text(s: &LotSummary) -> String {
+pub fn text(s: &LotSummary, u: &crate::units::DisplayUnits) -> String {
+    let (per, flux) = (u.per_degree(1.0), u.flux(1.0));
+    let fd = u.flux_decimals(2);
+    let (au, fu) = (u.alpha_symbol(), u.flux_symbol());
     let mut out = String::new();
     let _ = writeln!(
         out,
@@ -248,8 +251,10 @@ pub fn text(s: &LotSummary) -> String {
     );
     let _ = writeln!(
         out,
-        "α(Br):  mean {:+.4} %/°C, sd {:.4}, median {:+.4}",
-        s.alpha.mean, s.alpha.sd, s.alpha.median
+        "α(Br):  mean {:+.4} {au}, sd {:.4}, median {:+.4}",
+        s.alpha.mean * per,
+        s.alpha.sd * per,
+        s.alpha.median * per
     );
     if let Some(l) = s.loss {
         let _ = writeln!(
@@ -260,22 +265,28 @@ pub fn text(s: &LotSummary) -> String {
     }
     let _ = writeln!(
         out,
-        "B20:    mean {:.2} mT, sd {:.2}, median {:.2}",
-        s.b20.mean, s.b20.sd, s.b20.median
+        "B20:    mean {:.fd$} {fu}, sd {:.fd$}, median {:.fd$}",
+        s.b20.mean * flux,
+        s.b20.sd * flux,
+        s.b20.median * flux
     );
     let _ = writeln!(
         out,
         "\n{:<18} {:>10} {:>9} {:>8} {:>14}  outlier",
-        "id", "α %/°C", "loss %", "B20 mT", "verdict"
+        "id",
+        format!("α {au}"),
+        "loss %",
+        format!("B20 {fu}"),
+        "verdict"
     );
     for r in &s.rows {
         let _ = writeln!(
             out,
-            "{:<18} {:>+10.4} {:>9} {:>8.2} {:>14}  {}",
+            "{:<18} {:>+10.4} {:>9} {:>8.fd$} {:>14}  {}",
             r.id,
-            r.alpha,
+            r.alpha * per,
             opt(r.loss_pct, 3),
-            r.b20_mt,
+            r.b20_mt * flux,
             r.verdict.word(),
             r.outlier.join("; ")
         );

@@ -29,7 +29,7 @@ pub struct AgainstMaster {
     /// Within the grade's windows around the master, uncertainty included.
     pub outcome: Outcome,
     /// Why, in words with the numbers.
-    pub reason: String,
+    pub reason: crate::units::Phrase,
 }
 
 /// The master sample as measured.
@@ -65,12 +65,12 @@ pub fn compare(
         Check {
             what: "field against the master".into(),
             outcome: judge(ratio, 2.0 * u_ratio, -br_tol, br_tol),
-            reason: String::new(),
+            reason: Default::default(),
         },
         Check {
             what: "α against the master".into(),
             outcome: judge(d_alpha, 2.0 * u_alpha, -alpha_tol, alpha_tol),
-            reason: String::new(),
+            reason: Default::default(),
         },
     ];
     Some(AgainstMaster {
@@ -80,11 +80,16 @@ pub fn compare(
         alpha_diff: d_alpha,
         alpha_u95: 2.0 * u_alpha,
         outcome: overall(&checks),
-        reason: format!(
-            "field {ratio:+.2} ± {:.2} % of the master's (window ±{br_tol:.2} %), α {d_alpha:+.4} ± {:.4} %/°C from it (window ±{alpha_tol:.4})",
-            2.0 * u_ratio,
-            2.0 * u_alpha
-        ),
+        reason: crate::phrase![
+            format!(
+                "field {ratio:+.2} ± {:.2} % of the master's (window ±{br_tol:.2} %), α ",
+                2.0 * u_ratio
+            ),
+            crate::units::Qty::pm(crate::units::Kind::Alpha, d_alpha, 2.0 * u_alpha, 4).signed(),
+            " from it (window ±",
+            crate::units::alpha(alpha_tol, 4),
+            ")",
+        ],
     })
 }
 

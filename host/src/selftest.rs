@@ -3,6 +3,7 @@
 //! period and latches until cleared. Run it after building or rewiring a rig (and in CI
 //! against the emulated board). It talks to the device through the acquisition engine.
 
+use crate::units::{self, temp_q};
 use std::io::{Read, Write};
 use std::time::Duration;
 
@@ -35,7 +36,7 @@ pub struct Step {
     /// Whether it passed.
     pub passed: bool,
     /// What was seen.
-    pub detail: String,
+    pub detail: crate::units::Phrase,
 }
 
 /// A sample with its converted values and device time.
@@ -137,7 +138,7 @@ fn start_up<P: Read + Write>(p: &mut Probe<P>, hello: &DeviceHello) -> Result<St
     Ok(Step {
         name: "start-up",
         passed,
-        detail,
+        detail: detail.into(),
     })
 }
 
@@ -149,7 +150,12 @@ fn sensors(first: &Seen, steps: &mut Vec<Step>) -> Option<f64> {
         name: "thermocouple",
         passed: plausible(c.temp_c),
         detail: match c.temp_c {
-            Some(t) => format!("{t:.2} °C (cold junction {:.2} °C)", c.cold_junction_c),
+            Some(t) => crate::phrase![
+                temp_q(t, 2),
+                " (cold junction ",
+                temp_q(c.cold_junction_c, 2),
+                ")"
+            ],
             None => format!(
                 "converter fault: {}",
                 first
@@ -157,7 +163,8 @@ fn sensors(first: &Seen, steps: &mut Vec<Step>) -> Option<f64> {
                     .thermo
                     .fault()
                     .map_or("implausible word", crate::conversion::thermo_fault_name)
-            ),
+            )
+            .into(),
         },
     });
     steps.push(Step {
@@ -165,7 +172,7 @@ fn sensors(first: &Seen, steps: &mut Vec<Step>) -> Option<f64> {
         passed: plausible(c.probe_c),
         detail: c
             .probe_c
-            .map(|t| format!("{t:.2} °C"))
+            .map(|t| crate::phrase![temp_q(t, 2)])
             .unwrap_or_else(|| "open or shorted".into()),
     });
     steps.push(Step {
@@ -173,7 +180,12 @@ fn sensors(first: &Seen, steps: &mut Vec<Step>) -> Option<f64> {
         passed: !c.hall_saturated,
         detail: c
             .flux_mt
-            .map(|b| format!("{b:.2} mT (code {})", first.sample.hall_code))
+            .map(|b| {
+                crate::phrase![
+                    units::flux(b, 2),
+                    format!(" (code {})", first.sample.hall_code)
+                ]
+            })
             .unwrap_or_default(),
     });
     c.temp_c
@@ -193,7 +205,7 @@ fn heats<P: Read + Write>(p: &mut Probe<P>, t0: f64) -> Result<(Step, f64), Link
         let step = Step {
             name: "heater heats",
             passed: false,
-            detail: format!("not started: {}", describe_refusal(&r)),
+            detail: format!("not started: {}", describe_refusal(&r)).into(),
         };
         return Ok((step, target));
     }
@@ -205,12 +217,21 @@ fn heats<P: Read + Write>(p: &mut Probe<P>, t0: f64) -> Result<(Step, f64), Link
         name: "heater heats",
         passed: rose.is_some() && p.acked(id),
         detail: match rose {
-            Some(s) => format!(
-                "+{RISE_CHECK_K:.0} K (toward +{HEAT_BY_K:.0} K) after {:.0} s at {:.0} % duty",
-                s.time_s - started_s,
-                f64::from(s.sample.duty) / 2.55
-            ),
-            None => format!("no {RISE_CHECK_K:.0} K rise within {RISE_WITHIN_S:.0} s"),
+            Some(s) => crate::phrase![
+                units::span(RISE_CHECK_K, 0).signed(),
+                " (toward ",
+                units::span(HEAT_BY_K, 0).signed(),
+                format!(
+                    ") after {:.0} s at {:.0} % duty",
+                    s.time_s - started_s,
+                    f64::from(s.sample.duty) / 2.55
+                ),
+            ],
+            None => crate::phrase![
+                "no ",
+                units::span(RISE_CHECK_K, 0),
+                format!(" rise within {RISE_WITHIN_S:.0} s"),
+            ],
         },
     };
     Ok((step, target))
@@ -240,7 +261,7 @@ fn fault_trips<P: Read + Write>(p: &mut Probe<P>, period_s: f64) -> Result<Step,
         name: "fault drives the heater off",
         passed: tripped.is_some() && p.acked(id) && delay.is_some_and(|d| d <= period_s + 1e-6),
         detail: match delay {
-            Some(d) => format!("fault reported; heater at 0 % and enable low {:.2} s later (one period is {period_s:.2} s)", d.max(0.0)),
+            Some(d) => format!("fault reported; heater at 0 % and enable low {:.2} s later (one period is {period_s:.2} s)", d.max(0.0)).into(),
             None => "the heater did not turn off".into(),
         },
     })
@@ -267,7 +288,8 @@ fn latches<P: Read + Write>(p: &mut Probe<P>, target: f64) -> Result<Step, LinkE
                 "accepted (wrong)"
             },
             if p.acked(id) { "accepted" } else { "refused" }
-        ),
+        )
+        .into(),
     })
 }
 

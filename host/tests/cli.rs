@@ -5,10 +5,16 @@ use std::process::Command;
 const BIN: &str = env!("CARGO_BIN_EXE_remanent");
 
 fn run(args: &[&str]) -> (i32, String) {
-    // no test writes to the user's own history store
+    run_with(args, &[])
+}
+
+fn run_with(args: &[&str], env: &[(&str, &str)]) -> (i32, String) {
+    // no test writes to the user's own history store or reads the user's own config file
     let out = Command::new(BIN)
         .args(args)
         .env("REMANENT_HISTORY", "off")
+        .env("XDG_CONFIG_HOME", "/nonexistent/remanent-test-config")
+        .envs(env.iter().copied())
         .output()
         .unwrap();
     let text =
@@ -226,4 +232,51 @@ fn reading_a_history_store_that_is_not_there_says_so_and_creates_nothing() {
         assert!(text.contains("no history store at"), "{text}");
     }
     assert!(!store.exists() && !dir.path().join("typo").exists());
+}
+
+#[test]
+fn display_units_come_from_the_config_file_unless_given_and_a_bad_file_is_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let cfg = dir.path().join("config.toml");
+    std::fs::write(&cfg, "[display]\nflux = \"G\"\ntemperature = \"F\"\n").unwrap();
+    let env = [("REMANENT_CONFIG", cfg.to_str().unwrap())];
+    let n42sh = |text: &str| {
+        text.lines()
+            .find(|l| l.starts_with("N42SH "))
+            .unwrap_or_else(|| panic!("no N42SH row:\n{text}"))
+            .to_string()
+    };
+    // the built-in table's N42SH α limits, -0.130 … -0.090 %/°C, are -0.072 … -0.050 %/°F
+    // (a kelvin is 1.8 °F, NIST SP 811 §B.9); Br 1.27 … 1.33 T is 12700 … 13300 G
+    let (code, text) = run_with(&["specs"], &env);
+    assert_eq!(code, 0, "{text}");
+    assert!(
+        text.contains("α(Br) %/°F") && text.contains("Br G"),
+        "{text}"
+    );
+    let row = n42sh(&text);
+    assert!(row.contains("-0.072") && row.contains("-0.050"), "{row}");
+    assert!(row.contains("12700") && row.contains("13300"), "{row}");
+    // an option on the command line wins over the file
+    let (code, text) = run_with(&["specs", "--temp-unit", "C", "--flux-unit", "T"], &env);
+    assert_eq!(code, 0, "{text}");
+    let row = n42sh(&text);
+    assert!(row.contains("-0.130") && row.contains("1.27"), "{row}");
+    // no file: SI-based
+    let (_, text) = run(&["specs"]);
+    assert!(
+        text.contains("α(Br) %/°C") && text.contains("Br T"),
+        "{text}"
+    );
+    // a unit that is not one is refused, naming the file, the key and the line
+    std::fs::write(&cfg, "[display]\nflux = \"kG\"\n").unwrap();
+    let (code, text) = run_with(&["specs"], &env);
+    assert_eq!(code, 2, "{text}");
+    assert!(
+        text.contains("config.toml") && text.contains("kG") && text.contains("mT, G or T"),
+        "{text}"
+    );
+    let (code, text) = run(&["specs", "--flux-unit", "kG"]);
+    assert_eq!(code, 2, "{text}");
+    assert!(text.contains("mT, G or T"), "{text}");
 }

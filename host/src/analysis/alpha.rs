@@ -2,6 +2,7 @@
 //! correlated residuals, the thermocouple's gain tolerance, the probe's and the standoff's
 //! coefficients, and how far α moves when the lag is off by ±20 %.
 
+use crate::units::Phrase;
 use remanent_physics::shape::dln_bz_per_mm;
 
 use super::context::{AnalysisError, Context};
@@ -47,7 +48,7 @@ pub fn estimate(
     lagged: &Lagged,
     data: &FitData,
     ctx: &Context,
-    notes: &mut Vec<String>,
+    notes: &mut Vec<Phrase>,
 ) -> Result<AlphaResult, AnalysisError> {
     let (model, fit) = Quadratic::fit(&data.t_c, &data.b_mt)?;
     let t_lo = data.t_c.iter().copied().fold(f64::INFINITY, f64::min);

@@ -3,6 +3,7 @@
 //! and what the loader left out put into words for the report.
 
 use super::series::Series;
+use crate::units::{self, Phrase};
 
 /// Neighbours each side that judge a reading.
 pub const SPIKE_HALF_WINDOW: usize = 3;
@@ -79,7 +80,7 @@ fn median(v: &mut [f64]) -> f64 {
 
 /// What the loader left out, in words: rows by reason (with the first line of each) and the
 /// spikes rejected.
-pub fn notes(s: &Series) -> Vec<String> {
+pub fn notes(s: &Series) -> Vec<Phrase> {
     let mut out = s.notes.clone();
     let mut reasons: Vec<(&str, usize, usize)> = Vec::new();
     for (line, why) in &s.skipped {
@@ -89,18 +90,25 @@ pub fn notes(s: &Series) -> Vec<String> {
         }
     }
     for (why, count, first) in reasons {
-        out.push(if count == 1 {
-            format!("1 row left out: {why} (line {first})")
-        } else {
-            format!("{count} rows left out: {why} (first at line {first})")
-        });
+        out.push(
+            if count == 1 {
+                format!("1 row left out: {why} (line {first})")
+            } else {
+                format!("{count} rows left out: {why} (first at line {first})")
+            }
+            .into(),
+        );
     }
     if let Some(&(t, v)) = s.spikes.first() {
-        out.push(format!(
-            "{} thermocouple spike{} rejected (a reading far from its neighbours' median; first at t = {t:.1} s: {v:.1} °C)",
-            s.spikes.len(),
-            if s.spikes.len() == 1 { "" } else { "s" }
-        ));
+        out.push(crate::phrase![
+            format!(
+                "{} thermocouple spike{} rejected (a reading far from its neighbours' median; first at t = {t:.1} s: ",
+                s.spikes.len(),
+                if s.spikes.len() == 1 { "" } else { "s" }
+            ),
+            units::temp_q(v, 1),
+            ")"
+        ]);
     }
     out
 }
@@ -126,6 +134,8 @@ mod tests {
         assert_eq!(s.spikes.len(), 2, "{:?}", s.spikes);
         assert_eq!(s.time_s.len(), 498);
         assert_eq!(s.flux_mt.len(), 498);
-        assert!(notes(&s)[0].starts_with("2 thermocouple spikes rejected"));
+        assert!(notes(&s)[0]
+            .to_string()
+            .starts_with("2 thermocouple spikes rejected"));
     }
 }

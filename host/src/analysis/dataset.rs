@@ -165,10 +165,13 @@ pub fn load_run(
         push(&mut s, m);
     }
     if blocks.k() > 1 {
-        s.notes.push(format!(
-            "a long record ({lines} rows): analysed as means of {} consecutive samples",
-            blocks.k()
-        ));
+        s.notes.push(
+            format!(
+                "a long record ({lines} rows): analysed as means of {} consecutive samples",
+                blocks.k()
+            )
+            .into(),
+        );
     }
     s.probe_c = Some(probe);
     s.duty_pct = Some(duty);

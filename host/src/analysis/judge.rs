@@ -6,6 +6,7 @@ use super::families;
 use super::geometry::{self, BrEstimate};
 use super::result::BudgetLine;
 use super::verdict::{self, Check, Outcome};
+use crate::units::{self, Kind, Phrase, Qty};
 
 /// A loss above this (and above its own U95) flags heat damage, %.
 pub const HEAT_DAMAGE_PCT: f64 = 0.3;
@@ -55,7 +56,7 @@ pub struct Measured {
 }
 
 /// Judge the measurement.
-pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
+pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<Phrase>) -> Judged {
     let (alpha, alpha_u95) = m.alpha;
     let mut br_budget = Vec::new();
     let br = match (
@@ -65,10 +66,14 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
     ) {
         (Some(r), _, Some(mag)) => {
             let (est, budget) = r.br_of(&mag.shape, m.b20_mt, m.b20_u_mt);
-            notes.push(format!(
-                "Br referred to the fixture's reference magnet {} (certified {:.4} ± {:.4} T, {}): the gap cancels",
-                r.magnet, r.br_t, r.br_u_t, r.source
-            ));
+            notes.push(crate::phrase![
+                format!(
+                    "Br referred to the fixture's reference magnet {} (certified ",
+                    r.magnet
+                ),
+                Qty::pm(Kind::Br, r.br_t, r.br_u_t, 4),
+                format!(", {}): the gap cancels", r.source),
+            ]);
             // the part's own fit is statistics (type A); the rest is other knowledge
             br_budget = budget
                 .into_iter()
@@ -126,7 +131,7 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
             what: "grade".into(),
             outcome: Outcome::Indeterminate,
             reason: match &grade {
-                Some(g) => format!("grade `{g}` is not in the spec table"),
+                Some(g) => format!("grade `{g}` is not in the spec table").into(),
                 None => "no grade stated".into(),
             },
         }],
@@ -135,10 +140,13 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
     let rating = ctx.magnet.as_ref().map(|mag| mag.max_working_c);
     let above_rating = rating.is_some_and(|r| m.peak_c > r + RATING_MARGIN_K);
     if let (true, true, Some((l, u)), Some(r)) = (lost, above_rating, m.loss, rating) {
-        notes.push(format!(
-            "exposure loss: {l:.2} ± {u:.2} % after {:.0} °C, above the part's {r:.0} °C rating — the test was run above the rating on purpose, so this is the grade's loss at that temperature, not damage found in the part",
-            m.peak_c
-        ));
+        notes.push(crate::phrase![
+            format!("exposure loss: {l:.2} ± {u:.2} % after "),
+            units::temp_q(m.peak_c, 0),
+            ", above the part's ",
+            units::temp_q(r, 0),
+            " rating — the test was run above the rating on purpose, so this is the grade's loss at that temperature, not damage found in the part",
+        ]);
     }
     let heat_damaged = lost && !above_rating;
     if ctx.reference.is_none() {
@@ -146,14 +154,14 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<String>) -> Judged {
             .iter_mut()
             .filter(|c| c.what == "Br" && c.outcome == Outcome::Indeterminate)
         {
-            c.reason += " — from geometry the gap's uncertainty dominates: refer the run to a reference magnet (`remanent reference`, then --reference)";
+            c.reason.push(" — from geometry the gap's uncertainty dominates: refer the run to a reference magnet (`remanent reference`, then --reference)");
         }
     }
     if let (true, Some((l, u))) = (heat_damaged, m.loss) {
         checks.push(Check {
             what: "irreversible loss".into(),
             outcome: Outcome::Fail,
-            reason: format!("lost {l:.2} ± {u:.2} % of its flux in this test"),
+            reason: format!("lost {l:.2} ± {u:.2} % of its flux in this test").into(),
         });
     }
     Judged {

@@ -7,6 +7,7 @@ use super::curie::CURIE_FRACTION;
 use super::prepare::Prepared;
 use super::segments::{self, Segments};
 use super::{branch_loss, lag, loss};
+use crate::units::{self, Phrase};
 
 /// Branches need this many samples each to be compared.
 pub const MIN_BRANCH_SAMPLES: usize = 30;
@@ -59,7 +60,7 @@ pub fn estimate(
     seg: Segments,
     span: f64,
     collapse: Option<usize>,
-    notes: &mut Vec<String>,
+    notes: &mut Vec<Phrase>,
 ) -> Lagged {
     let s = p.s;
     let mut out = Lagged {
@@ -75,12 +76,14 @@ pub fn estimate(
         relag(p, &mut out, tau.unwrap_or(0.0));
         out.tau_s = tau;
         out.curie_c = Some(out.tm[ic]);
-        notes.push(format!(
-            "the field fell below {:.0} % of its start at {:.0} °C (magnet temperature{}): the Curie point is at or just below it; the magnet is demagnetized. α comes from the heating branch and includes any irreversible loss below the collapse: take α(Br) from a separate cycle below the magnet's rating",
-            CURIE_FRACTION * 100.0,
-            out.tm[ic],
-            if tau.is_some() { ", lag-corrected" } else { "; lag not estimated" }
-        ));
+        notes.push(crate::phrase![
+            format!("the field fell below {:.0} % of its start at ", CURIE_FRACTION * 100.0),
+            units::temp_q(out.tm[ic], 0),
+            format!(
+                " (magnet temperature{}): the Curie point is at or just below it; the magnet is demagnetized. α comes from the heating branch and includes any irreversible loss below the collapse: take α(Br) from a separate cycle below the magnet's rating",
+                if tau.is_some() { ", lag-corrected" } else { "; lag not estimated" }
+            ),
+        ]);
         return out;
     }
     if !branches_comparable(p, &out.seg, span) {
@@ -115,7 +118,7 @@ pub fn estimate(
 /// is used only when the branches cannot tell it from their own (and is not looked for when
 /// they pin τ within ±25 %); the range of τ the branches
 /// leave possible goes to the budget.
-fn decide(p: &Prepared, out: &mut Lagged, notes: &mut Vec<String>) {
+fn decide(p: &Prepared, out: &mut Lagged, notes: &mut Vec<Phrase>) {
     let Some(tau) = out.tau_s else { return };
     let (seg, l) = (out.seg.clone(), out.loss);
     let cost = |t: f64| {
@@ -163,17 +166,23 @@ fn decide(p: &Prepared, out: &mut Lagged, notes: &mut Vec<String>) {
     if let Some((t_settle, _)) = lag::from_settling(&p.s.time_s, &p.s.temp_c, &p.flux) {
         if (t_settle - tau).abs() > 0.05 * tau {
             if cost(t_settle) <= limit {
-                notes.push(format!(
-                    "the branches allow τ from {:.0} to {:.0} s and the settling near room temperature shows {t_settle:.0} s: the settling value is used",
-                    range.0, range.1
-                ));
+                notes.push(
+                    format!(
+                        "the branches allow τ from {:.0} to {:.0} s and the settling near room temperature shows {t_settle:.0} s: the settling value is used",
+                        range.0, range.1
+                    )
+                    .into(),
+                );
                 out.tau_s = Some(t_settle);
                 relag_with_loss(p, out, t_settle);
             } else {
-                notes.push(format!(
-                    "the settling near room temperature suggests τ = {t_settle:.0} s, but the heating and cooling branches rule it out (they allow {:.0} … {:.0} s): the fixture was still moving there, so the branch value {tau:.0} s is used",
-                    range.0, range.1
-                ));
+                notes.push(
+                    format!(
+                        "the settling near room temperature suggests τ = {t_settle:.0} s, but the heating and cooling branches rule it out (they allow {:.0} … {:.0} s): the fixture was still moving there, so the branch value {tau:.0} s is used",
+                        range.0, range.1
+                    )
+                    .into(),
+                );
             }
         }
     }

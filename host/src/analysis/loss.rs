@@ -35,13 +35,19 @@ pub enum NoLoss {
 
 impl NoLoss {
     /// In words, for the notes.
-    pub fn explain(&self) -> String {
+    pub fn explain(&self) -> crate::units::Phrase {
+        use crate::units::{span, temp_q};
         match self {
             NoLoss::NoReturn => "the record does not return to a settled temperature near where it started: irreversible loss not computed".into(),
-            NoLoss::CorrectionTooUncertain { ref_c, u95_pct } => format!(
-                "the record ended at {:.1} °C, {:.1} K from where it started ({:.1} °C): referring the two readings to one temperature would carry ±{u95_pct:.2} % (k = 2), more than the {LOSS_TOLERANCE_PCT} % the loss is quoted to ({:.1}× too much); irreversible loss not computed — let the fixture cool further",
-                ref_c[1], (ref_c[1] - ref_c[0]).abs(), ref_c[0], u95_pct / LOSS_TOLERANCE_PCT
-            ),
+            NoLoss::CorrectionTooUncertain { ref_c, u95_pct } => crate::phrase![
+                "the record ended at ",
+                temp_q(ref_c[1], 1),
+                ", ",
+                span((ref_c[1] - ref_c[0]).abs(), 1),
+                " from where it started (",
+                temp_q(ref_c[0], 1),
+                format!("): referring the two readings to one temperature would carry ±{u95_pct:.2} % (k = 2), more than the {LOSS_TOLERANCE_PCT} % the loss is quoted to ({:.1}× too much); irreversible loss not computed — let the fixture cool further", u95_pct / LOSS_TOLERANCE_PCT),
+            ],
         }
     }
 }

@@ -9,6 +9,7 @@ use super::{
     alpha, branch_loss, branch_ratio, clean, curie, cycles, fit_data, judge, lag_estimate, loss,
     model, segments, verdict,
 };
+use crate::units::{self, Kind, Phrase, Qty};
 
 /// A probe that came back more than this far from where it started is noted, K.
 pub const PROBE_RETURN_K: f64 = 2.0;
@@ -28,27 +29,31 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         .map(|part| analyze_cycle(part, ctx, Vec::new()))
         .collect();
     let mut notes = clean::notes(s);
-    let summary: Vec<String> = results
-        .iter()
-        .zip(&parts)
-        .enumerate()
-        .map(|(k, (r, part))| match r {
-            Ok(a) => format!(
-                "cycle {} to {:.0} °C: loss {}",
+    let mut note = Phrase::from(format!("{} heat cycles found (", parts.len()));
+    for (k, (r, part)) in results.iter().zip(&parts).enumerate() {
+        if k > 0 {
+            note.push("; ");
+        }
+        match r {
+            Ok(a) => {
+                note.push(format!("cycle {} to ", k + 1));
+                note.push(units::temp_q(a.max_magnet_temp_c, 0));
+                note.push(format!(
+                    ": loss {}",
+                    a.irreversible_loss_pct
+                        .zip(a.irreversible_loss_u95_pct)
+                        .map_or("not computed".into(), |(l, u)| format!("{l:.3} ± {u:.3} %"))
+                ));
+            }
+            Err(e) => note.push(format!(
+                "cycle {} from t = {:.0} s: {e}",
                 k + 1,
-                a.max_magnet_temp_c,
-                a.irreversible_loss_pct
-                    .zip(a.irreversible_loss_u95_pct)
-                    .map_or("not computed".into(), |(l, u)| format!("{l:.3} ± {u:.3} %"))
-            ),
-            Err(e) => format!("cycle {} from t = {:.0} s: {e}", k + 1, part.time_s[0]),
-        })
-        .collect();
-    notes.push(format!(
-        "{} heat cycles found ({}); α and the verdict come from the last, stabilised cycle",
-        parts.len(),
-        summary.join("; ")
-    ));
+                part.time_s[0]
+            )),
+        }
+    }
+    note.push("); α and the verdict come from the last, stabilised cycle");
+    notes.push(note);
     let cycle_list: Vec<CycleResult> = results
         .iter()
         .zip(&parts)
@@ -108,7 +113,7 @@ fn cycle_of(a: &Analysis, s: &Series) -> CycleResult {
 fn analyze_cycle(
     s: &Series,
     ctx: &Context,
-    mut notes: Vec<String>,
+    mut notes: Vec<Phrase>,
 ) -> Result<Analysis, AnalysisError> {
     let prep = Prepared::new(s, ctx, &mut notes);
     let seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
@@ -130,17 +135,7 @@ fn analyze_cycle(
             a.alpha, u_c
         )));
     }
-    // the families' table states α over 20…100 °C: convert a wider fit's curve to that range
-    let alpha_table = if a.range_c[1] > judge::TABLE_TOP_C {
-        let at = a.model.mean_alpha_pct_per_c(judge::TABLE_TOP_C);
-        notes.push(format!(
-            "the material family is judged on α over 20…{:.0} °C from the fitted curve ({at:.4} %/°C), the range the families' table states",
-            judge::TABLE_TOP_C
-        ));
-        (at, 2.0 * u_c)
-    } else {
-        (a.alpha, 2.0 * u_c)
-    };
+    let alpha_table = table_alpha(&a.model, a.range_c[1], (a.alpha, 2.0 * u_c), &mut notes);
     let measured = judge::Measured {
         alpha_table,
         alpha: (a.alpha, 2.0 * u_c),
@@ -153,17 +148,7 @@ fn analyze_cycle(
         loss: loss.as_ref().map(|l| (l.loss_pct, l.u95_pct)),
     };
     let judged = judge::judge(&measured, ctx, &mut notes);
-    if lagged.loss > LOSSY {
-        notes.push(
-            "the magnet lost flux during the excursion: α is fitted on the cooling branch alone (the heating branch mixes reversible and irreversible change); for a datasheet value measure a fresh magnet below its onset".into(),
-        );
-    }
-    let t_hi = a.range_c[1];
-    if t_hi - model::REFERENCE_C < judge::QUOTED_SPAN_K {
-        notes.push(format!(
-            "fitted only up to {t_hi:.0} °C: α is usually quoted for 20…100 °C or 20…150 °C"
-        ));
-    }
+    fit_notes(lagged.loss > LOSSY, a.range_c[1], &mut notes);
     Ok(Analysis {
         schema_version: super::result::SCHEMA_VERSION,
         provenance: Default::default(),
@@ -219,6 +204,48 @@ fn analyze_cycle(
     })
 }
 
+/// α over the families' table range (20…100 °C) with its U95: a wider fit's curve converted
+/// to that range (and said so), else the fitted α.
+fn table_alpha(
+    m: &model::Quadratic,
+    top_c: f64,
+    fitted: (f64, f64),
+    notes: &mut Vec<Phrase>,
+) -> (f64, f64) {
+    if top_c <= judge::TABLE_TOP_C {
+        return fitted;
+    }
+    let at = m.mean_alpha_pct_per_c(judge::TABLE_TOP_C);
+    notes.push(crate::phrase![
+        "the material family is judged on α over ",
+        Qty::range(Kind::Temp, model::REFERENCE_C, judge::TABLE_TOP_C, 0),
+        " from the fitted curve (",
+        units::alpha(at, 4),
+        "), the range the families' table states",
+    ]);
+    (at, fitted.1)
+}
+
+/// What the reader should know about the fit: fitted on the cooling branch after a loss, or
+/// over a range shorter than α is usually quoted for.
+fn fit_notes(lossy: bool, top_c: f64, notes: &mut Vec<Phrase>) {
+    if lossy {
+        notes.push(
+            "the magnet lost flux during the excursion: α is fitted on the cooling branch alone (the heating branch mixes reversible and irreversible change); for a datasheet value measure a fresh magnet below its onset".into(),
+        );
+    }
+    if top_c - model::REFERENCE_C < judge::QUOTED_SPAN_K {
+        notes.push(crate::phrase![
+            "fitted only up to ",
+            units::temp_q(top_c, 0),
+            ": α is usually quoted for ",
+            Qty::range(Kind::Temp, 20.0, 100.0, 0),
+            " or ",
+            Qty::range(Kind::Temp, 20.0, 150.0, 0),
+        ]);
+    }
+}
+
 /// The cycle's loss (from the references, else from the branches) and whether it came from
 /// the references.
 fn cycle_loss(
@@ -226,7 +253,7 @@ fn cycle_loss(
     lagged: &lag_estimate::Lagged,
     ctx: &Context,
     a: &alpha::AlphaResult,
-    notes: &mut Vec<String>,
+    notes: &mut Vec<Phrase>,
 ) -> (Option<loss::LossResult>, bool) {
     let loss = loss::full(
         prep,
@@ -263,17 +290,21 @@ fn with_branch_loss(
     loss: Result<loss::LossResult, loss::NoLoss>,
     prep: &Prepared,
     lagged: &lag_estimate::Lagged,
-    notes: &mut Vec<String>,
+    notes: &mut Vec<Phrase>,
 ) -> Result<loss::LossResult, loss::NoLoss> {
     match (loss, lagged.tau_s) {
         // no return, but the branches show the magnet lost flux: the loss between them
         (Err(loss::NoLoss::NoReturn), Some(tau)) if lagged.loss > LOSSY => {
             let l = branch_loss::full(prep, &lagged.seg, &lagged.tm, tau, alpha::LAG_TOLERANCE);
             if let Some(l) = &l {
-                notes.push(format!(
-                    "the record does not return to a settled temperature, but the heating and cooling branches disagree at the same magnet temperature: the loss is seen between the branches ({:.2} % at the same temperature below {:.0} °C)",
-                    l.loss_pct, l.ref_c[0] + branch_ratio::LOSSY_COMPARE_FRACTION * (lagged.tm[lagged.seg.peak] - l.ref_c[0])
-                ));
+                let below_c = l.ref_c[0]
+                    + branch_ratio::LOSSY_COMPARE_FRACTION
+                        * (lagged.tm[lagged.seg.peak] - l.ref_c[0]);
+                notes.push(crate::phrase![
+                    format!("the record does not return to a settled temperature, but the heating and cooling branches disagree at the same magnet temperature: the loss is seen between the branches ({:.2} % at the same temperature below ", l.loss_pct),
+                    units::temp_q(below_c, 0),
+                    ")",
+                ]);
             }
             l.ok_or(loss::NoLoss::NoReturn)
         }
@@ -305,7 +336,7 @@ fn check_finite(s: &Series) -> Result<(), AnalysisError> {
 }
 
 /// Notes about the loss: not computed, or a probe that had not cooled back.
-fn note_loss(loss: &Result<loss::LossResult, loss::NoLoss>, notes: &mut Vec<String>) {
+fn note_loss(loss: &Result<loss::LossResult, loss::NoLoss>, notes: &mut Vec<Phrase>) {
     match loss {
         Err(why) => notes.push(why.explain()),
         Ok(l) => {
@@ -313,10 +344,13 @@ fn note_loss(loss: &Result<loss::LossResult, loss::NoLoss>, notes: &mut Vec<Stri
                 .ref_probe_c
                 .filter(|p| (p[1] - p[0]).abs() > PROBE_RETURN_K)
             {
-                notes.push(format!(
-                    "the probe had not cooled back ({:.1} °C before, {:.1} °C after): its own drift is corrected by calibration and counted in the loss budget ({:.3} %)",
-                    p[0], p[1], l.probe_term_pct
-                ));
+                notes.push(crate::phrase![
+                    "the probe had not cooled back (",
+                    units::temp_q(p[0], 1),
+                    " before, ",
+                    units::temp_q(p[1], 1),
+                    format!(" after): its own drift is corrected by calibration and counted in the loss budget ({:.3} %)", l.probe_term_pct),
+                ]);
             }
         }
     }

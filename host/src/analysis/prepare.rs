@@ -1,6 +1,7 @@
 //! Step 1: the series made ready for the other steps — every reading referred to the gap at
 //! 20 °C (the standoff expands as it warms), and a decimated copy for the lag search.
 
+use crate::units::Phrase;
 use remanent_physics::standoff;
 
 use super::branch_ratio::LOSSY_COMPARE_FRACTION;
@@ -37,7 +38,7 @@ pub struct Prepared<'a> {
 impl<'a> Prepared<'a> {
     /// Refer the flux to the gap at 20 °C when the geometry and the gap calibration are
     /// known; say so in `notes` when they are not.
-    pub fn new(s: &'a Series, ctx: &Context, notes: &mut Vec<String>) -> Prepared<'a> {
+    pub fn new(s: &'a Series, ctx: &Context, notes: &mut Vec<Phrase>) -> Prepared<'a> {
         let n = s.time_s.len();
         let shape = ctx.magnet.as_ref().map(|m| m.shape);
         let flux = match (ctx.calibration.as_ref(), shape, s.probe_c.as_ref()) {

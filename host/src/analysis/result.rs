@@ -162,7 +162,7 @@ pub struct Analysis {
     /// Uncertainty budget of the loss, %.
     pub loss_budget: Vec<BudgetLine>,
     /// Plain words about what was done, assumed or could not be computed.
-    pub notes: Vec<String>,
+    pub notes: Vec<crate::units::Phrase>,
     /// Samples analysed.
     /// Measured on a bench without a valid calibration (the user said `--uncalibrated`).
     pub uncalibrated: bool,

@@ -27,7 +27,7 @@ pub struct Series {
     /// Thermocouple spikes rejected: time, s, and the reading, °C.
     pub spikes: Vec<(f64, f64)>,
     /// What the loader did that the report should say.
-    pub notes: Vec<String>,
+    pub notes: Vec<crate::units::Phrase>,
 }
 
 /// Input problems, naming the file, line and column.

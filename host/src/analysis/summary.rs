@@ -1,27 +1,33 @@
-//! A readable summary of an analysis, for the terminal and the Markdown report.
+//! A readable summary of an analysis, for the terminal and the Markdown report, in the
+//! reader's display units.
 
 use std::fmt::Write;
 
 use super::result::Analysis;
+use crate::units::{self, temp_q, DisplayUnits, Kind, Qty};
 
-/// Lines of text describing the result.
-pub fn text(a: &Analysis, title: &str) -> String {
+/// Lines of text describing the result, in the display units `u`.
+pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
     let mut s = String::new();
     let _ = writeln!(s, "{title}");
+    let alpha = |v: f64, d: usize| Qty::one(Kind::Alpha, v, d).signed().render(u);
+    let t20 = temp_q(20.0, 0).render(u);
     let _ = writeln!(
         s,
-        "  α(Br), 20…{:.0} °C:   {:+.4} %/°C  ± {:.4} %/°C (k = 2), fitted {:.1}…{:.1} °C by {}",
-        a.fit_range_c[1],
-        a.alpha_pct_per_c,
-        a.alpha_u95_pct_per_c,
-        a.fit_range_c[0],
-        a.fit_range_c[1],
+        "  α(Br), {}:   {}, fitted {} by {}",
+        Qty::range(Kind::Temp, 20.0, a.fit_range_c[1], 0).render(u),
+        units::alpha_with_u95(u, a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
+        units::temp_range(u, a.fit_range_c),
         a.fit_method
     );
     let _ = writeln!(
         s,
-        "  tangent at 20 °C:     {:+.4} %/°C, quadratic term {:+.6} %/°C², B20 = {:.2} mT",
-        a.alpha_at_20c_pct_per_c, a.gamma_pct_per_c2, a.b20_mt
+        "  tangent at {t20}:     {}, quadratic term {}, B20 = {}",
+        alpha(a.alpha_at_20c_pct_per_c, 4),
+        Qty::one(Kind::Alpha2, a.gamma_pct_per_c2, 6)
+            .signed()
+            .render(u),
+        Qty::one(Kind::Flux, a.b20_mt, 2).render(u)
     );
     match a.lag_time_constant_s {
         Some(t) => {
@@ -35,11 +41,11 @@ pub fn text(a: &Analysis, title: &str) -> String {
         }
     }
     match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
-        (Some(l), Some(u)) => {
+        (Some(l), Some(lu)) => {
             let _ = writeln!(
                 s,
-                "  irreversible loss:    {l:.3} % ± {u:.3} % (k = 2), peak {:.1} °C",
-                a.max_magnet_temp_c
+                "  irreversible loss:    {l:.3} % ± {lu:.3} % (k = 2), peak {}",
+                units::temp(u, a.max_magnet_temp_c)
             );
         }
         _ => {
@@ -50,19 +56,24 @@ pub fn text(a: &Analysis, title: &str) -> String {
         if a.br_referred {
             let _ = writeln!(
                 s,
-                "  Br (reference):       {:.4} T ± {:.4} T (k = 2), referred to the fixture's reference magnet",
-                b.br_t, b.br_u95_t
+                "  Br (reference):       {} (k = 2), referred to the fixture's reference magnet",
+                Qty::pm(Kind::Br, b.br_t, b.br_u95_t, 4).render(u)
             );
         } else {
             let _ = writeln!(
                 s,
-                "  Br from geometry:     {:.3} T ± {:.3} T (k = 2); {:+.2} % per +0.1 mm of gap",
-                b.br_t, b.br_u95_t, b.pct_per_0_1_mm
+                "  Br from geometry:     {} (k = 2); {:+.2} % per +0.1 mm of gap",
+                Qty::pm(Kind::Br, b.br_t, b.br_u95_t, 3).render(u),
+                b.pct_per_0_1_mm
             );
         }
     }
     if let Some(tc) = a.curie_estimate_c {
-        let _ = writeln!(s, "  Curie collapse:       at about {tc:.0} °C");
+        let _ = writeln!(
+            s,
+            "  Curie collapse:       at about {}",
+            temp_q(tc, 0).render(u)
+        );
     }
     let _ = writeln!(s, "  material family:      {}", a.material_family);
     if a.uncalibrated {
@@ -88,11 +99,11 @@ pub fn text(a: &Analysis, title: &str) -> String {
             "    {:<18} {:<13} {}",
             c.what,
             c.outcome.word(),
-            c.reason
+            c.reason.render(u)
         );
     }
     for n in &a.notes {
-        let _ = writeln!(s, "  note: {n}");
+        let _ = writeln!(s, "  note: {}", n.render(u));
     }
     s
 }

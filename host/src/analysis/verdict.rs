@@ -1,6 +1,7 @@
 //! The verdict: the grade check against a spec table, and how checks combine. The families
 //! themselves are in [`super::families`].
 
+use crate::units::{Kind, Phrase, Qty};
 use serde::Serialize;
 
 use crate::specs::GradeSpec;
@@ -33,7 +34,7 @@ pub fn judge(value: f64, u95: f64, min: f64, max: f64) -> Outcome {
 
 /// For an undecided check: the U95 that would decide it (the distance from the value to the
 /// nearer limit, inside or out), and the words that say how far the uncertainty must shrink.
-pub fn what_would_decide(value: f64, u95: f64, min: f64, max: f64, unit: &str) -> String {
+pub fn what_would_decide(value: f64, u95: f64, min: f64, max: f64, kind: Kind) -> Phrase {
     let need = if value < min {
         min - value
     } else if value > max {
@@ -42,12 +43,17 @@ pub fn what_would_decide(value: f64, u95: f64, min: f64, max: f64, unit: &str) -
         (value - min).min(max - value)
     };
     if need <= 0.0 || !need.is_finite() {
-        return "; the value sits on a limit, so no uncertainty can decide it".to_string();
+        return "; the value sits on a limit, so no uncertainty can decide it".into();
     }
-    format!(
-        "; to decide, its U95 of ±{u95:.4} {unit} would have to shrink below ±{need:.4} {unit} ({:.0} % smaller)",
-        (1.0 - need / u95) * 100.0
-    )
+    // differences: shown as spans of their kind (a Br or α difference converts as the value)
+    let diff = |v: f64| Qty::one(kind, v, 4);
+    crate::phrase![
+        "; to decide, its U95 of ±",
+        diff(u95),
+        " would have to shrink below ±",
+        diff(need),
+        format!(" ({:.0} % smaller)", (1.0 - need / u95) * 100.0),
+    ]
 }
 
 /// One check of the grade test.
@@ -58,7 +64,7 @@ pub struct Check {
     /// The result.
     pub outcome: Outcome,
     /// Why, in words with the numbers.
-    pub reason: String,
+    pub reason: Phrase,
 }
 
 /// The grade check against `spec`.
@@ -71,12 +77,21 @@ pub fn grade_checks(
 ) -> Vec<Check> {
     let mut out = Vec::new();
     let o = judge(alpha, alpha_u95, spec.alpha_min, spec.alpha_max);
-    let mut reason = format!(
-        "measured {alpha:.4} ± {alpha_u95:.4} %/°C against {:.3} … {:.3} %/°C for {} ({})",
-        spec.alpha_min, spec.alpha_max, spec.grade, spec.source
-    );
+    let mut reason = crate::phrase![
+        "measured ",
+        Qty::pm(Kind::Alpha, alpha, alpha_u95, 4),
+        " against ",
+        Qty::range(Kind::Alpha, spec.alpha_min, spec.alpha_max, 3),
+        format!(" for {} ({})", spec.grade, spec.source),
+    ];
     if o == Outcome::Indeterminate {
-        reason += &what_would_decide(alpha, alpha_u95, spec.alpha_min, spec.alpha_max, "%/°C");
+        reason.extend(what_would_decide(
+            alpha,
+            alpha_u95,
+            spec.alpha_min,
+            spec.alpha_max,
+            Kind::Alpha,
+        ));
     }
     out.push(Check {
         what: "α(Br)".into(),
@@ -86,12 +101,20 @@ pub fn grade_checks(
     match br {
         Some((b, u)) => {
             let outcome = judge(b, u, spec.br_min_t, spec.br_max_t);
-            let mut reason = format!(
-                "estimated {b:.4} ± {u:.4} T against {:.2} … {:.2} T",
-                spec.br_min_t, spec.br_max_t
-            );
+            let mut reason = crate::phrase![
+                "estimated ",
+                Qty::pm(Kind::Br, b, u, 4),
+                " against ",
+                Qty::range(Kind::Br, spec.br_min_t, spec.br_max_t, 2),
+            ];
             if outcome == Outcome::Indeterminate {
-                reason += &what_would_decide(b, u, spec.br_min_t, spec.br_max_t, "T");
+                reason.extend(what_would_decide(
+                    b,
+                    u,
+                    spec.br_min_t,
+                    spec.br_max_t,
+                    Kind::Br,
+                ));
             }
             out.push(Check {
                 what: "Br".into(),
@@ -123,7 +146,8 @@ pub fn grade_checks(
                 family.join(" or ")
             },
             spec.family
-        ),
+        )
+        .into(),
     });
     out
 }

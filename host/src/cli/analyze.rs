@@ -31,7 +31,7 @@ pub struct Args {
     pub store: super::options::StoreOpts,
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCode> {
     let req = InputRequest {
         input: a.input.clone(),
         calibration: a.calibration,
@@ -47,7 +47,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         println!("{}", serde_json::to_string_pretty(&analysis)?);
     } else {
         let title = format!("{} — {}", loaded.title, a.input.display());
-        print!("{}", summary::text(&analysis, &title));
+        print!("{}", summary::text(&analysis, &title, u));
     }
     a.store.keep("the analysis", |at| {
         remanent::jobs::history::store_analysis(at, &a.input, &analysis)

@@ -1,5 +1,6 @@
 //! `remanent calibrate`: the guided calibration steps on a bench or the virtual rig.
 
+use remanent::units::{temp_q, DisplayUnits};
 use std::path::PathBuf;
 use std::process::ExitCode;
 use std::time::Instant;
@@ -86,16 +87,19 @@ pub struct Args {
 
 struct Live {
     last: Instant,
+    units: DisplayUnits,
 }
 
 impl Progress for Live {
     fn reading(&mut self, r: &Raw) {
         if self.last.elapsed().as_secs_f64() >= 1.0 {
             self.last = Instant::now();
-            let tc = r.tc_c.map_or("fault".into(), |t| format!("{t:.2} °C"));
+            let u = &self.units;
+            let tc = r.tc_c.map_or("fault".into(), |t| temp_q(t, 2).render(u));
             eprintln!(
-                "  live: Hall {:.3} mV, probe {:.2} °C, thermocouple {tc}",
-                r.hall_mv, r.probe_c
+                "  live: Hall {:.3} mV, probe {}, thermocouple {tc}",
+                r.hall_mv,
+                temp_q(r.probe_c, 2).render(u)
             );
         }
     }
@@ -169,7 +173,9 @@ fn steps(a: &Args) -> anyhow::Result<Vec<Step>> {
     }
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+/// Calibrate; the constants found are printed as the calibration file holds them (SI-based),
+/// the live readings in the display units `u`.
+pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let steps = steps(&a)?;
     let files = Files {
         from: a.from.clone(),
@@ -178,6 +184,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     };
     let mut live = Live {
         last: Instant::now(),
+        units: *u,
     };
     let opts = Options::default();
     let (cal, found) = if a.virtual_rig {

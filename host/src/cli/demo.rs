@@ -1,6 +1,7 @@
 //! `remanent demo`: the whole job on the built-in virtual rig — record a cycle of an invented
 //! demo magnet into a fresh folder, analyse it, plot it and write the report.
 
+use remanent::units::{flux, temp_q, DisplayUnits, Kind, Qty};
 use std::path::PathBuf;
 use std::process::ExitCode;
 use std::time::Duration;
@@ -50,7 +51,7 @@ fn demo_inspection(given: remanent::inspection::Inspection) -> remanent::inspect
 pub const REFERENCE_FILE: &str = "fixture-reference.toml";
 
 /// The demo reference part read on its own virtual rig: the fixture's reference.
-fn measure_reference(speed: f64, seed: u64) -> anyhow::Result<FixtureReference> {
+fn measure_reference(speed: f64, seed: u64, u: &DisplayUnits) -> anyhow::Result<FixtureReference> {
     let part = magnets::resolve(REFERENCE_PART)?;
     let mut opts = VirtualRigOptions::new(part.model.expect("a demo part has a model"));
     opts.speed = speed;
@@ -74,9 +75,10 @@ fn measure_reference(speed: f64, seed: u64) -> anyhow::Result<FixtureReference> 
     )?;
     rig.stop()?;
     println!(
-        "  it reads {:.2} mT at 20 °C for a certified {:.4} T: fixture factor {:.4}",
-        r.b20_mt,
-        r.br_t,
+        "  it reads {} at {} for a certified {}: fixture factor {:.4}",
+        flux(r.b20_mt, 2).render(u),
+        temp_q(20.0, 0).render(u),
+        Qty::one(Kind::Br, r.br_t, 4).render(u),
         r.factor()
     );
     Ok(r)
@@ -91,7 +93,7 @@ impl SurveyProgress for Quiet {
     fn note(&mut self, _: &str) {}
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let m = magnets::resolve(&a.magnet)?;
     let model = m
         .model
@@ -106,7 +108,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         "Remanent demo: {} ({}) on the virtual rig, profile `{}`, {}× real time",
         m.info.id, m.info.description, profile.name, a.speed
     );
-    let reference = measure_reference(a.speed, a.seed)?;
+    let reference = measure_reference(a.speed, a.seed, u)?;
     let mut opts = VirtualRigOptions::new(model);
     opts.speed = a.speed;
     opts.seed = a.seed;
@@ -126,9 +128,9 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         preroll_s: 60.0,
         stop: super::record::stop_flag()?,
     };
-    let summary = super::record::record_with_bar(port, rec)?;
+    let summary = super::record::record_with_bar(port, rec, u)?;
     let truth = rig.stop()?;
-    let code = super::record::report_end(&summary);
+    let code = super::record::report_end(&summary, u);
     a.store.keep("the record", |at| {
         remanent::jobs::history::store_record(at, &summary.dir)
     });
@@ -145,16 +147,22 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     let (loaded, analysis) = remanent::jobs::load_and_analyze(&req)?;
     let (series, title) = (&loaded.series, &loaded.title);
     println!();
-    print!("{}", remanent::analysis::summary::text(&analysis, title));
+    print!("{}", remanent::analysis::summary::text(&analysis, title, u));
+    let true_alpha =
+        model.alpha_pct_per_c + model.gamma_pct_per_c2 * (analysis.fit_range_c[1] - 20.0);
     println!(
-        "  (the virtual rig's truth: α = {:+.4} %/°C over the same range, loss {:.3} %)",
-        model.alpha_pct_per_c + model.gamma_pct_per_c2 * (analysis.fit_range_c[1] - 20.0),
+        "  (the virtual rig's truth: α = {} over the same range, loss {:.3} %)",
+        Qty::one(Kind::Alpha, true_alpha, 4).signed().render(u),
         truth.irreversible * 100.0
     );
     a.store.keep("the analysis", |at| {
         remanent::jobs::history::store_analysis(at, &out, &analysis)
     });
-    let mut written = remanent::report::write_all(&out, series, &analysis, title, false)?;
+    let look = remanent::report::Look {
+        units: *u,
+        ..Default::default()
+    };
+    let mut written = remanent::report::write_all_as(&out, series, &analysis, title, false, &look)?;
     written.insert(0, ref_file);
     println!();
     for f in written {

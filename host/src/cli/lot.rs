@@ -30,7 +30,7 @@ pub struct Args {
     store: super::options::StoreOpts,
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCode> {
     let outcome = remanent::jobs::lot::run(
         &a.runs,
         &a.out,
@@ -40,6 +40,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         },
         a.mixed_grades,
         a.force.force,
+        u,
     )?;
     a.store.keep("the lot's analyses", |at| {
         remanent::jobs::history::store_analyses(at, &outcome.analyses)
@@ -52,13 +53,13 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
             "{:<22} against the master: {:<13} {}",
             m.id,
             m.outcome.to_string(),
-            m.reason
+            m.reason.render(u)
         );
     }
     for (run, why) in &outcome.skipped {
         eprintln!("left out of the lot: {}: {why}", run.display());
     }
-    print!("{}", lot::text(&outcome.summary));
+    print!("{}", lot::text(&outcome.summary, u));
     if !outcome.skipped.is_empty() {
         let names: Vec<String> = outcome
             .skipped

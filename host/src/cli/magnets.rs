@@ -2,14 +2,19 @@
 
 use std::process::ExitCode;
 
+use remanent::units::DisplayUnits;
 use remanent_rig_model::catalogue::PARTS;
 
-pub fn run() -> anyhow::Result<ExitCode> {
-    println!("{:<16} {:<11} {:>9}  description", "id", "grade", "max_C");
+pub fn run(u: &DisplayUnits) -> anyhow::Result<ExitCode> {
+    let max = format!("max {}", u.temp_symbol());
+    println!("{:<16} {:<11} {:>9}  description", "id", "grade", max);
     for p in PARTS {
         println!(
             "{:<16} {:<11} {:>9.0}  {}",
-            p.id, p.grade, p.magnet.max_working_c, p.description
+            p.id,
+            p.grade,
+            u.temp(p.magnet.max_working_c),
+            p.description
         );
     }
     Ok(ExitCode::SUCCESS)

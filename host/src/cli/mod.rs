@@ -1,6 +1,7 @@
 //! Command-line front end: one module per subcommand, clap derive, anyhow at the edge.
 
 use clap::{Parser, Subcommand};
+use remanent::units::DisplayUnits;
 
 mod analyze;
 mod calibrate;
@@ -29,6 +30,8 @@ mod virtual_rig;
 struct Cli {
     #[command(subcommand)]
     command: Cmd,
+    #[command(flatten)]
+    units: options::UnitOpts,
 }
 
 #[derive(Subcommand)]
@@ -73,31 +76,36 @@ enum Cmd {
 
 pub fn main() -> std::process::ExitCode {
     let cli = Cli::parse();
-    let result = match cli.command {
-        Cmd::Demo(a) => demo::run(a),
-        Cmd::Record(a) => record::run(a),
-        Cmd::VirtualRig(a) => virtual_rig::run(a),
-        Cmd::Ports => ports::run(),
-        Cmd::Magnets => magnets::run(),
-        Cmd::Profiles => profiles::run(),
-        Cmd::Specs(a) => specs::run(a),
-        Cmd::ClearFault(a) => clear_fault::run(a),
-        Cmd::Analyze(a) => analyze::run(a),
-        Cmd::Report(a) => report::run(a),
-        Cmd::Replay(a) => replay::run(a),
-        Cmd::Lot(a) => lot::run(a),
-        Cmd::SamplingPlan(a) => sampling_plan::run(a),
-        Cmd::Calibrate(a) => calibrate::run(a),
-        Cmd::Reference(a) => reference::run(a),
-        Cmd::Survey(a) => survey::run(a),
-        Cmd::SelfTest(a) => self_test::run(a),
-        Cmd::History(a) => history::run(a),
-    };
+    let result = cli.units.resolve().and_then(|u| dispatch(cli.command, &u));
     match result {
         Ok(code) => code,
         Err(e) => {
             eprintln!("error: {e:#}");
             std::process::ExitCode::from(2)
         }
+    }
+}
+
+/// Each subcommand, with the display units for what it shows.
+fn dispatch(command: Cmd, u: &DisplayUnits) -> anyhow::Result<std::process::ExitCode> {
+    match command {
+        Cmd::Demo(a) => demo::run(a, u),
+        Cmd::Record(a) => record::run(a, u),
+        Cmd::VirtualRig(a) => virtual_rig::run(a),
+        Cmd::Ports => ports::run(),
+        Cmd::Magnets => magnets::run(u),
+        Cmd::Profiles => profiles::run(u),
+        Cmd::Specs(a) => specs::run(a, u),
+        Cmd::ClearFault(a) => clear_fault::run(a),
+        Cmd::Analyze(a) => analyze::run(a, u),
+        Cmd::Report(a) => report::run(a, u),
+        Cmd::Replay(a) => replay::run(a),
+        Cmd::Lot(a) => lot::run(a, u),
+        Cmd::SamplingPlan(a) => sampling_plan::run(a),
+        Cmd::Calibrate(a) => calibrate::run(a, u),
+        Cmd::Reference(a) => reference::run(a, u),
+        Cmd::Survey(a) => survey::run(a, u),
+        Cmd::SelfTest(a) => self_test::run(a, u),
+        Cmd::History(a) => history::run(a, u),
     }
 }

@@ -2,6 +2,38 @@
 
 use std::path::PathBuf;
 
+use remanent::units::{DisplayUnits, FluxUnit, TempUnit};
+
+/// The units numbers are shown in (every command; JSON and CSV files stay SI-based).
+#[derive(clap::Args, Clone, Debug, Default)]
+pub struct UnitOpts {
+    /// Show flux density in mT, G or T (default: the config file's choice, else mT; Br is
+    /// shown in T unless G is chosen). Files written for machines stay in mT and T.
+    #[arg(long, global = true, value_name = "mT|G|T", value_parser = parse_flux_unit)]
+    pub flux_unit: Option<FluxUnit>,
+    /// Show temperatures in C or F (default: the config file's choice, else C). Files written
+    /// for machines stay in °C.
+    #[arg(long, global = true, value_name = "C|F", value_parser = parse_temp_unit)]
+    pub temp_unit: Option<TempUnit>,
+}
+
+impl UnitOpts {
+    /// The units: these options, else the user's config file, else SI-based.
+    pub fn resolve(&self) -> anyhow::Result<DisplayUnits> {
+        Ok(remanent::units::choose(self.flux_unit, self.temp_unit)?)
+    }
+}
+
+fn parse_flux_unit(s: &str) -> Result<FluxUnit, String> {
+    s.parse()
+        .map_err(|e: remanent::units::UnknownUnit| e.to_string())
+}
+
+fn parse_temp_unit(s: &str) -> Result<TempUnit, String> {
+    s.parse()
+        .map_err(|e: remanent::units::UnknownUnit| e.to_string())
+}
+
 /// What a verdict is judged against: the spec table, and the fixture reference Br is referred to.
 #[derive(clap::Args, Clone, Debug)]
 pub struct SpecOpts {

@@ -3,24 +3,27 @@
 use std::process::ExitCode;
 
 use remanent::profiles::{ProfileSpec, BUILTIN_NAMES};
+use remanent::units::{temp_q, DisplayUnits};
 
-pub fn run() -> anyhow::Result<ExitCode> {
+pub fn run(u: &DisplayUnits) -> anyhow::Result<ExitCode> {
+    let deg = u.temp_symbol();
     for name in BUILTIN_NAMES {
         let p = ProfileSpec::resolve(name)?;
         println!(
-            "{:<12} up to {:>5.0} °C, about {:>3.0} min from 22 °C — {}",
+            "{:<12} up to {:>5.0} {deg}, about {:>3.0} min from {} — {}",
             p.name,
-            p.max_target_c(),
+            u.temp(p.max_target_c()),
             p.nominal_duration_s(22.0) / 60.0,
+            temp_q(22.0, 0).render(u),
             p.description
         );
         for s in &p.segments {
             println!(
-                "{:14}→ {:>5.1} °C at {} then hold {:.0} s",
+                "{:14}→ {:>5.1} {deg} at {} then hold {:.0} s",
                 "",
-                s.target_c,
+                u.temp(s.target_c),
                 if s.ramp_c_per_min > 0.0 {
-                    format!("{:.1} °C/min", s.ramp_c_per_min)
+                    format!("{:.1} {deg}/min", u.temp_span(s.ramp_c_per_min))
                 } else {
                     "once".into()
                 },

@@ -4,13 +4,15 @@ use std::time::Duration;
 
 use indicatif::{ProgressBar, ProgressStyle};
 use remanent::record::{LiveStatus, Progress};
+use remanent::units::DisplayUnits;
 
 pub struct Bar {
     bar: ProgressBar,
+    units: DisplayUnits,
 }
 
 impl Bar {
-    pub fn new(nominal_s: f64) -> Bar {
+    pub fn new(nominal_s: f64, units: &DisplayUnits) -> Bar {
         let bar = ProgressBar::new(nominal_s.max(1.0) as u64);
         bar.set_style(
             ProgressStyle::with_template("{spinner} [{bar:28}] {msg}")
@@ -18,7 +20,7 @@ impl Bar {
                 .progress_chars("=> "),
         );
         bar.enable_steady_tick(Duration::from_millis(200));
-        Bar { bar }
+        Bar { bar, units: *units }
     }
 
     pub fn finish(&self) {
@@ -33,6 +35,8 @@ fn fmt_opt(v: Option<f64>, unit: &str, prec: usize) -> String {
 
 impl Progress for Bar {
     fn update(&mut self, s: &LiveStatus) {
+        let u = &self.units;
+        let deg = u.temp_symbol();
         self.bar.set_position(s.elapsed_s as u64);
         let fault = s
             .fault
@@ -42,10 +46,18 @@ impl Progress for Bar {
             "device time {:>5.0} s, ~{:>5.0} s left | {} | {} | heater {:>3.0} % | {} | {} samples, {} missing, {} bad frames{fault}",
             s.elapsed_s,
             s.remaining_s,
-            fmt_opt(s.temp_c, "°C", 1),
-            fmt_opt(s.flux_mt, "mT", 2),
+            fmt_opt(s.temp_c.map(|t| u.temp(t)), deg, 1),
+            fmt_opt(
+                s.flux_mt.map(|b| u.flux(b)),
+                u.flux_symbol(),
+                u.flux_decimals(2)
+            ),
             s.duty_pct,
-            fmt_opt(s.ramp_c_per_min, "°C/min", 1),
+            fmt_opt(
+                s.ramp_c_per_min.map(|r| u.temp_span(r)),
+                &format!("{deg}/min"),
+                1
+            ),
             s.samples,
             s.gap_samples,
             s.bad_frames,
@@ -54,5 +66,9 @@ impl Progress for Bar {
 
     fn note(&mut self, message: &str) {
         self.bar.println(message);
+    }
+
+    fn note_phrase(&mut self, message: &remanent::units::Phrase) {
+        self.bar.println(message.render(&self.units));
     }
 }

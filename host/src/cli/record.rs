@@ -1,5 +1,6 @@
 //! `remanent record`: one heat cycle from a port into a new run directory.
 
+use remanent::units::DisplayUnits;
 use std::path::PathBuf;
 use std::process::ExitCode;
 use std::sync::atomic::{AtomicBool, Ordering};
@@ -51,7 +52,7 @@ pub fn stop_flag() -> anyhow::Result<Arc<AtomicBool>> {
     Ok(stop)
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let magnet = magnets::resolve(&a.magnet)?;
     let profile = ProfileSpec::resolve(&a.profile)?;
     profile.check_rating(
@@ -75,8 +76,8 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         preroll_s: 60.0,
         stop: stop_flag()?,
     };
-    let summary = record_with_bar(port, opts)?;
-    let code = report_end(&summary);
+    let summary = record_with_bar(port, opts, u)?;
+    let code = report_end(&summary, u);
     a.store.keep("the record", |at| {
         remanent::jobs::history::store_record(at, &summary.dir)
     });
@@ -86,15 +87,16 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
 pub fn record_with_bar(
     port: Box<dyn serialport::SerialPort>,
     opts: RecordOptions,
+    u: &DisplayUnits,
 ) -> anyhow::Result<RecordSummary> {
-    let mut bar = Bar::new(opts.profile.nominal_duration_s(22.0));
+    let mut bar = Bar::new(opts.profile.nominal_duration_s(22.0), u);
     let result = record(port, opts, &mut bar);
     bar.finish();
     Ok(result?)
 }
 
 /// Print how the record ended; the exit code says whether it is complete.
-pub fn report_end(s: &RecordSummary) -> ExitCode {
+pub fn report_end(s: &RecordSummary, u: &DisplayUnits) -> ExitCode {
     let c = &s.counts;
     use remanent::units::count;
     println!(
@@ -112,7 +114,7 @@ pub fn report_end(s: &RecordSummary) -> ExitCode {
     );
     match &s.end {
         RecordEnd::Finished | RecordEnd::Complete(_) => {
-            println!("ended: {}", s.end.describe());
+            println!("ended: {}", s.end.describe_in(u));
             ExitCode::SUCCESS
         }
         other => {

@@ -1,6 +1,7 @@
 //! `remanent reference`: read a reference magnet of known Br in the fixture and keep the
 //! fixture's reference, so later runs get Br free of the gap's uncertainty (`--reference`).
 
+use remanent::units::{flux, temp_q, DisplayUnits};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -34,14 +35,14 @@ pub struct Args {
     pub force: ForceOpts,
 }
 
-struct Print;
+struct Print(DisplayUnits);
 impl SurveyProgress for Print {
     fn reading(&mut self, r: &Reading) {
         println!(
-            "placement {}: {:.3} mT at {:.2} °C (scatter {:.3} %)",
+            "placement {}: {} at {} (scatter {:.3} %)",
             r.index,
-            r.flux_mt,
-            r.temp_c,
+            flux(r.flux_mt, 3).render(&self.0),
+            temp_q(r.temp_c, 2).render(&self.0),
             r.rel_sd * 100.0
         );
     }
@@ -51,7 +52,7 @@ impl SurveyProgress for Print {
 }
 
 /// Measure and write the reference; shared with the demo.
-pub fn measure(a: &Args) -> anyhow::Result<FixtureReference> {
+pub fn measure(a: &Args, u: &DisplayUnits) -> anyhow::Result<FixtureReference> {
     remanent::output::refuse_existing([a.out.clone()], a.force.force)?;
     let magnet = remanent::magnets::resolve(&a.magnet)?;
     if magnet.info.reference.is_none() {
@@ -70,23 +71,24 @@ pub fn measure(a: &Args) -> anyhow::Result<FixtureReference> {
         policy,
         a.placements,
         confirm,
-        &mut Print,
+        &mut Print(*u),
     )?;
     let text = toml::to_string(&r)?;
     remanent::output::write(&a.out, text.as_bytes(), a.force.force)?;
     println!(
-        "wrote {}: {} reads {:.3} mT at 20 °C (u = {:.3} mT), fixture factor {:.4}, repeatability {:.2} %",
+        "wrote {}: {} reads {} at {} (u = {}), fixture factor {:.4}, repeatability {:.2} %",
         a.out.display(),
         r.magnet,
-        r.b20_mt,
-        r.b20_u_mt,
+        flux(r.b20_mt, 3).render(u),
+        temp_q(20.0, 0).render(u),
+        flux(r.b20_u_mt, 3).render(u),
         r.factor(),
         r.repeatability_pct
     );
     Ok(r)
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
-    measure(&a)?;
+pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
+    measure(&a, u)?;
     Ok(ExitCode::SUCCESS)
 }

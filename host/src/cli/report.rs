@@ -40,10 +40,13 @@ pub enum PaperArg {
     Letter,
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
-    let paper = match a.paper {
-        PaperArg::A4 => remanent::report::pdf_flow::Paper::A4,
-        PaperArg::Letter => remanent::report::pdf_flow::Paper::Letter,
+pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCode> {
+    let look = remanent::report::Look {
+        units: *u,
+        paper: match a.paper {
+            PaperArg::A4 => remanent::report::pdf_flow::Paper::A4,
+            PaperArg::Letter => remanent::report::pdf_flow::Paper::Letter,
+        },
     };
     let req = remanent::jobs::InputRequest {
         input: a.run.clone(),
@@ -59,7 +62,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         .out
         .clone()
         .unwrap_or_else(|| remanent::jobs::report::default_out(&a.run));
-    let r = remanent::jobs::report::run_input(&req, &out, a.force.force, paper)?;
+    let r = remanent::jobs::report::run_input(&req, &out, a.force.force, &look)?;
     if let Some(why) = &r.not_analysed {
         eprintln!("note: {why}; wrote the time series and what could not be computed");
     }

@@ -1,5 +1,6 @@
 //! `remanent self-test`: sensors, heating, and the fault path, on a bench or an emulated board.
 
+use remanent::units::{span, DisplayUnits};
 use std::process::ExitCode;
 
 #[derive(clap::Args)]
@@ -26,7 +27,7 @@ enum DrillKind {
     StackOverflow,
 }
 
-fn print_steps(steps: &[remanent::selftest::Step]) -> bool {
+fn print_steps(steps: &[remanent::selftest::Step], u: &DisplayUnits) -> bool {
     let mut ok = true;
     for s in steps {
         ok &= s.passed;
@@ -34,13 +35,13 @@ fn print_steps(steps: &[remanent::selftest::Step]) -> bool {
             "  [{}] {:<28} {}",
             if s.passed { " ok " } else { "FAIL" },
             s.name,
-            s.detail
+            s.detail.render(u)
         );
     }
     ok
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let policy = a.calibration.policy();
     let cal = policy.provisional()?;
     let port = remanent::link::port::open(&a.port)?;
@@ -52,7 +53,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         };
         eprintln!("fault drill: the heater will be switched on, then the firmware made to fail");
         let steps = remanent::drill::run(port, cal, drill)?;
-        let ok = print_steps(&steps) && steps.len() == 4;
+        let ok = print_steps(&steps, u) && steps.len() == 4;
         println!("drill {}", if ok { "passed" } else { "FAILED" });
         return Ok(if ok {
             ExitCode::SUCCESS
@@ -61,9 +62,9 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         });
     }
     eprintln!(
-        "self-test: the heater will raise the reading by {:.0} K (toward a target {:.0} K above), then be tripped",
-        remanent::selftest::RISE_CHECK_K,
-        remanent::selftest::HEAT_BY_K
+        "self-test: the heater will raise the reading by {} (toward a target {} above), then be tripped",
+        span(remanent::selftest::RISE_CHECK_K, 0).render(u),
+        span(remanent::selftest::HEAT_BY_K, 0).render(u)
     );
     let (hello, steps) = remanent::selftest::run(port, cal, &policy)?;
     println!(
@@ -74,7 +75,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         hello.firmware[2],
         hello.version
     );
-    let mut ok = print_steps(&steps);
+    let mut ok = print_steps(&steps, u);
     ok &= steps.len() == remanent::selftest::STEPS;
     println!("self-test {}", if ok { "passed" } else { "FAILED" });
     Ok(if ok {

@@ -1,5 +1,6 @@
 //! `remanent survey`: room-temperature readings of many magnets in a row, ranked.
 
+use remanent::units::{flux, temp_q, DisplayUnits};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -33,15 +34,17 @@ pub struct Args {
 
 struct Print {
     label: String,
+    units: DisplayUnits,
 }
 impl SurveyProgress for Print {
     fn reading(&mut self, r: &Reading) {
+        let u = &self.units;
         println!(
-            "{} {:>3}: {:>9.3} mT at {:.1} °C (scatter {:.3} %)",
+            "{} {:>3}: {:>9} at {} (scatter {:.3} %)",
             self.label,
             r.index,
-            r.flux_mt,
-            r.temp_c,
+            flux(r.flux_mt, 3).render(u),
+            temp_q(r.temp_c, 1).render(u),
             r.rel_sd * 100.0
         );
     }
@@ -50,7 +53,7 @@ impl SurveyProgress for Print {
     }
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let out = a.out.clone().unwrap_or_else(|| {
         let stamp = remanent::run_dir::utc_now().replace([':', '-'], "");
         PathBuf::from("remanent-runs").join(format!("survey-{stamp}.csv"))
@@ -74,17 +77,18 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         confirm,
         &mut Print {
             label: a.label.clone(),
+            units: *u,
         },
     )?;
     let ranked = survey::rank(&readings);
     println!("\nranked, lowest first (median-relative):");
     for (i, r) in ranked.iter().enumerate() {
         println!(
-            "{:>3}. {} {:>3}  {:>9.3} mT  {:+7.2} %  M = {:+6.1}{}",
+            "{:>3}. {} {:>3}  {:>9}  {:+7.2} %  M = {:+6.1}{}",
             i + 1,
             a.label,
             r.reading.index,
-            r.reading.flux_mt,
+            flux(r.reading.flux_mt, 3).render(u),
             r.deviation_pct,
             r.z,
             if r.low {

@@ -43,7 +43,11 @@ impl Location {
                 return Location::parse(&e);
             }
         }
-        Location::Sqlite(data_dir().join("remanent").join("history.sqlite"))
+        Location::Sqlite(
+            crate::user_dirs::data_dir()
+                .join("remanent")
+                .join("history.sqlite"),
+        )
     }
 
     /// For messages (a URL without its password).
@@ -54,27 +58,4 @@ impl Location {
             Location::Off => "off".into(),
         }
     }
-}
-
-/// The user's data folder, from the environment: `$XDG_DATA_HOME` or `~/.local/share` (the XDG
-/// base-directory convention), `%APPDATA%` on Windows, `~/Library/Application Support` on macOS;
-/// the working folder when none is set.
-fn data_dir() -> PathBuf {
-    let env = |k: &str| {
-        std::env::var_os(k)
-            .filter(|v| !v.is_empty())
-            .map(PathBuf::from)
-    };
-    if cfg!(windows) {
-        return env("APPDATA").unwrap_or_else(|| PathBuf::from("."));
-    }
-    if cfg!(target_os = "macos") {
-        if let Some(h) = env("HOME") {
-            return h.join("Library").join("Application Support");
-        }
-    }
-    env("XDG_DATA_HOME")
-        .filter(|p| p.is_absolute())
-        .or_else(|| env("HOME").map(|h| h.join(".local").join("share")))
-        .unwrap_or_else(|| PathBuf::from("."))
 }

@@ -8,7 +8,7 @@ use super::query::TrendPoint;
 #[derive(Debug, Clone, PartialEq)]
 pub struct Panel {
     /// What it is, with its unit (`α, %/°C`).
-    pub quantity: &'static str,
+    pub quantity: String,
     /// (seconds since 1970, value, magnet id) of each run that has it, in time order.
     pub points: Vec<(f64, f64, String)>,
     /// The baseline's limits (None: fewer than two values).
@@ -45,7 +45,7 @@ pub fn chart(
     points: &[TrendPoint],
     baseline: usize,
 ) -> TrendChart {
-    let panel = |quantity: &'static str, pick: fn(&TrendPoint) -> Option<f64>| {
+    let panel = |quantity: &str, pick: fn(&TrendPoint) -> Option<f64>| {
         let pts: Vec<(f64, f64, String)> = points
             .iter()
             .filter_map(|p| {
@@ -56,7 +56,7 @@ pub fn chart(
             .collect();
         let values: Vec<f64> = pts.iter().map(|p| p.1).collect();
         Panel {
-            quantity,
+            quantity: quantity.into(),
             limits: individuals(&values, baseline),
             points: pts,
         }
@@ -70,5 +70,31 @@ pub fn chart(
             panel("Br, T", |p| p.br_t),
             panel("irreversible loss, %", |p| p.loss_pct),
         ],
+    }
+}
+
+impl TrendChart {
+    /// The chart in display units: α per shown degree and Br in the shown unit. Both convert
+    /// by a factor, so the limits of the converted values are the converted limits.
+    pub fn shown(&self, u: &crate::units::DisplayUnits) -> TrendChart {
+        let mut c = self.clone();
+        let factors = [
+            (u.per_degree(1.0), format!("α, {}", u.alpha_symbol())),
+            (u.br(1.0), format!("Br, {}", u.br_symbol())),
+        ];
+        for (p, (k, quantity)) in c.panels.iter_mut().zip(factors) {
+            p.quantity = quantity;
+            for q in &mut p.points {
+                q.1 *= k;
+            }
+            if let Some(l) = &mut p.limits {
+                // a negative factor would swap the limits; these are all positive
+                l.centre *= k;
+                l.lower *= k;
+                l.upper *= k;
+                l.mr_bar *= k;
+            }
+        }
+        c
     }
 }

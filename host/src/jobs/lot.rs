@@ -77,13 +77,15 @@ fn duplicates(runs: &[PathBuf], ids: &[(PathBuf, String)]) -> Vec<String> {
     out
 }
 
-/// Analyse `runs` into `out` (a new folder unless `force`).
+/// Analyse `runs` into `out` (a new folder unless `force`); the plot and page in the display
+/// units `u`, the CSV files in SI-based units.
 pub fn run(
     runs: &[PathBuf],
     out: &Path,
     judging: &Judging,
     mixed_grades: bool,
     force: bool,
+    u: &crate::units::DisplayUnits,
 ) -> Result<LotOutcome, LotError> {
     output::refuse_existing([out.to_path_buf()], force)?;
     let mut rows = Vec::new();
@@ -143,9 +145,9 @@ pub fn run(
     })?;
     let csv_path = out.join("lot.csv");
     output::write(&csv_path, lot::to_csv(&summary).as_bytes(), force)?;
-    let figure = plots::lot_figure(&out.join("lot"), &summary, spec, &title, force)?;
+    let figure = plots::lot_figure(&out.join("lot"), &summary, spec, &title, force, u)?;
     let html_path = out.join("lot.html");
-    let html = report::lot_html(&summary, &title, &figure);
+    let html = report::lot_html(&summary, &title, &figure, u);
     output::write(&html_path, html.as_bytes(), force)?;
     let mut written = vec![csv_path, html_path];
     written.extend(figure.files());

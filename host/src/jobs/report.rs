@@ -5,7 +5,7 @@
 use std::path::{Path, PathBuf};
 
 use super::analyze_input::{load, InputRequest, JobError, Judging};
-use crate::report::{self, ReportError};
+use crate::report::{self, Look, ReportError};
 
 /// The report job failed.
 #[derive(Debug, thiserror::Error)]
@@ -33,7 +33,7 @@ pub fn run(
     dir: &Path,
     judging: &Judging,
     force: bool,
-    paper: crate::report::pdf_flow::Paper,
+    look: &Look,
 ) -> Result<RunReport, RunReportError> {
     let req = InputRequest {
         input: dir.to_path_buf(),
@@ -41,7 +41,7 @@ pub fn run(
         reference: judging.reference.clone(),
         ..InputRequest::default()
     };
-    run_input(&req, dir, force, paper)
+    run_input(&req, dir, force, look)
 }
 
 /// Where a report of `input` goes unless told: beside a run directory's data, or a new folder
@@ -62,7 +62,7 @@ pub fn run_input(
     req: &InputRequest,
     out: &Path,
     force: bool,
-    paper: crate::report::pdf_flow::Paper,
+    look: &Look,
 ) -> Result<RunReport, RunReportError> {
     let loaded = load(req)?;
     std::fs::create_dir_all(out).map_err(|source| {
@@ -73,14 +73,21 @@ pub fn run_input(
     })?;
     Ok(match loaded.analyze(&req.input) {
         Ok(a) => RunReport {
-            written: report::write_all_on(out, &loaded.series, &a, &loaded.title, force, paper)?,
+            written: report::write_all_as(out, &loaded.series, &a, &loaded.title, force, look)?,
             not_analysed: None,
             analysis: Some(a),
         },
         Err(JobError::Analysis { source, .. }) => {
             let why = source.to_string();
             RunReport {
-                written: report::write_unanalysed(out, &loaded.series, &loaded.title, &why, force)?,
+                written: report::write_unanalysed(
+                    out,
+                    &loaded.series,
+                    &loaded.title,
+                    &why,
+                    force,
+                    &look.units,
+                )?,
                 not_analysed: Some(why),
                 analysis: None,
             }

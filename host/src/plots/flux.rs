@@ -12,13 +12,15 @@ use super::style::{
 };
 use crate::analysis::dataset::Series;
 use crate::analysis::Analysis;
+use crate::units::{self, DisplayUnits, Kind, Qty};
 
 /// Points of each branch drawn (each bin's extremes).
 const BRANCH_BINS: usize = 1500;
 
-/// What the fit line is drawn over, and what it says: after a loss the curve was fitted to
-/// the cooling branch, whose level is the flux left after the loss, so it is drawn there.
-pub fn fit_line(a: &Analysis) -> (Vec<(f64, f64)>, String) {
+/// What the fit line is drawn over (°C, mT), and what it says in `u`: after a loss the curve
+/// was fitted to the cooling branch, whose level is the flux left after the loss, so it is
+/// drawn there.
+pub fn fit_line(a: &Analysis, u: &DisplayUnits) -> (Vec<(f64, f64)>, String) {
     let (f0, f1) = (a.fit_range_c[0], a.fit_range_c[1]);
     let after_loss = a.fit_method_code == "cooling_branch";
     let level = if after_loss {
@@ -40,8 +42,9 @@ pub fn fit_line(a: &Analysis) -> (Vec<(f64, f64)>, String) {
     (
         pts,
         format!(
-            "{what}: α = {:+.4} ± {:.4} %/°C (k = 2) over {:.0}…{:.0} °C",
-            a.alpha_pct_per_c, a.alpha_u95_pct_per_c, f0, f1
+            "{what}: α = {} over {}",
+            units::alpha_with_u95(u, a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
+            Qty::range(Kind::Temp, f0, f1, 0).render(u)
         ),
     )
 }
@@ -51,8 +54,11 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     a: &Analysis,
     title: &str,
+    u: &DisplayUnits,
 ) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    // drawn in the display units: temperature across, flux up
+    let at = |t: f64, b: f64| (u.temp(t), u.flux(b));
     root.fill(&WHITE).map_err(e)?;
     let root = root
         .titled(
@@ -64,8 +70,8 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
     let seg = a.traces.segments.as_ref().ok_or("no segments")?;
     let tm = &a.traces.magnet_temp_c;
     let b = &a.traces.flux_corrected_mt;
-    let (tlo, thi) = range(tm.iter().copied());
-    let (blo, bhi) = range(b.iter().copied());
+    let (tlo, thi) = range(tm.iter().map(|&t| u.temp(t)));
+    let (blo, bhi) = range(b.iter().map(|&v| u.flux(v)));
     let mut chart = ChartBuilder::on(&plot)
         .margin(15)
         .x_label_area_size(50)
@@ -74,8 +80,11 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
         .map_err(e)?;
     chart
         .configure_mesh()
-        .x_desc("magnet temperature (lag-corrected), °C")
-        .y_desc("flux density at the probe, mT")
+        .x_desc(format!(
+            "magnet temperature (lag-corrected), {}",
+            u.temp_symbol()
+        ))
+        .y_desc(format!("flux density at the probe, {}", u.flux_symbol()))
         .x_label_formatter(&tick)
         .y_label_formatter(&tick)
         .label_style(("sans-serif", 16))
@@ -86,7 +95,7 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
     let pts = |r: std::ops::Range<usize>| {
         minmax_indices(r, b, BRANCH_BINS)
             .into_iter()
-            .map(|i| (tm[i], b[i]))
+            .map(|i| at(tm[i], b[i]))
             .collect::<Vec<_>>()
     };
     // cooling first as rings, then heating over it as dots, so where the branches coincide
@@ -115,9 +124,12 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
                 .map(|p| TriangleMarker::new(p, 5, REFERENCE.filled())),
         )
         .map_err(e)?;
-    let (line, fit_label) = fit_line(a);
+    let (line, fit_label) = fit_line(a, u);
     chart
-        .draw_series(LineSeries::new(line, FIT.mix(0.9).stroke_width(2)))
+        .draw_series(LineSeries::new(
+            line.into_iter().map(|(t, b)| at(t, b)),
+            FIT.mix(0.9).stroke_width(2),
+        ))
         .map_err(e)?;
     let loss = match a.irreversible_loss_pct {
         Some(l) => format!(" (loss {:.2} %)", if l.abs() < 0.005 { 0.0 } else { l }),
@@ -208,15 +220,19 @@ pub fn residuals<DB: DrawingBackend>(
     s: &Series,
     a: &Analysis,
     title: &str,
+    u: &DisplayUnits,
 ) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
+    // drawn in the display units: a residual is a flux difference, which converts as a flux
+    let at = |t: f64, r: f64| (u.temp(t), u.flux(r));
     root.fill(&WHITE).map_err(e)?;
     let root = root
         .titled(&format!("Fit residuals — {title}"), ("sans-serif", 20))
         .map_err(e)?;
     let (plot, side) = with_key_strip(&root);
     let (marks, lim) = residual_marks(s, a);
-    let (t0, t1) = (a.fit_range_c[0], a.fit_range_c[1]);
+    let lim = u.flux(lim);
+    let (t0, t1) = (u.temp(a.fit_range_c[0]), u.temp(a.fit_range_c[1]));
     let mut chart = ChartBuilder::on(&plot)
         .margin(15)
         .x_label_area_size(50)
@@ -225,8 +241,11 @@ pub fn residuals<DB: DrawingBackend>(
         .map_err(e)?;
     chart
         .configure_mesh()
-        .x_desc("magnet temperature (lag-corrected), °C")
-        .y_desc("measured − fitted, mT")
+        .x_desc(format!(
+            "magnet temperature (lag-corrected), {}",
+            u.temp_symbol()
+        ))
+        .y_desc(format!("measured − fitted, {}", u.flux_symbol()))
         .x_label_formatter(&tick)
         .y_label_formatter(&tick)
         .label_style(("sans-serif", 16))
@@ -239,14 +258,14 @@ pub fn residuals<DB: DrawingBackend>(
                 .draw_series(
                     p.iter()
                         .filter(|r| r.2)
-                        .map(|r| Circle::new((r.0, r.1), 2, COOLING.filled())),
+                        .map(|r| Circle::new(at(r.0, r.1), 2, COOLING.filled())),
                 )
                 .map_err(e)?;
             chart
                 .draw_series(
                     p.iter()
                         .filter(|r| !r.2)
-                        .map(|r| Circle::new((r.0, r.1), 2, HEATING.filled())),
+                        .map(|r| Circle::new(at(r.0, r.1), 2, HEATING.filled())),
                 )
                 .map_err(e)?;
             vec![
@@ -269,7 +288,7 @@ pub fn residuals<DB: DrawingBackend>(
                 .draw_series(cells.iter().map(|([x0, x1, y0, y1], c)| {
                     // darker where more points fall (log scale: a lone point still shows)
                     let f = 0.15 + 0.85 * ((*c as f64).ln_1p() / max.ln_1p());
-                    Rectangle::new([(*x0, *y0), (*x1, *y1)], COOLING.mix(f).filled())
+                    Rectangle::new([at(*x0, *y0), at(*x1, *y1)], COOLING.mix(f).filled())
                 }))
                 .map_err(e)?;
             let n: usize = cells.iter().map(|c| c.1).sum();

@@ -9,6 +9,7 @@ use super::style::{tickable, Chart, DrawResult, COOLING, HEATING};
 use crate::analysis::judge::HEAT_DAMAGE_PCT;
 use crate::lot::LotSummary;
 use crate::specs::GradeSpec;
+use crate::units::{temp_q, DisplayUnits, Kind, Qty};
 
 /// A panel's width for ids, px, and the width a character of a label takes.
 const PANEL_PX: usize = 440;
@@ -96,15 +97,16 @@ pub fn lot_alpha<DB: DrawingBackend>(
     s: &LotSummary,
     spec: Option<&GradeSpec>,
     title: &str,
+    u: &DisplayUnits,
 ) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     root.fill(&WHITE).map_err(e)?;
     let root = root.titled(title, ("sans-serif", 20)).map_err(e)?;
     let halves = root.split_evenly((2, 2));
-    alpha_panel(&halves[0], s, spec)?;
+    alpha_panel(&halves[0], s, spec, u)?;
     loss_panel(&halves[2], s)?;
-    counts_panel(&halves[3], s)?;
-    flux_panel(&halves[1], s)?;
+    counts_panel(&halves[3], s, u)?;
+    flux_panel(&halves[1], s, u)?;
     root.present().map_err(e)
 }
 
@@ -112,24 +114,27 @@ fn alpha_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     s: &LotSummary,
     spec: Option<&GradeSpec>,
+    u: &DisplayUnits,
 ) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     let n = s.rows.len();
     let id_of = id_labeller(s);
-    // α per magnet with its U95 and the spec limits
+    // α per magnet with its U95 and the spec limits, per displayed degree
+    let a = |v: f64| u.per_degree(v);
+    let limits = spec.map(|g| [a(g.alpha_min), a(g.alpha_max)]);
     let mut lo = s
         .rows
         .iter()
-        .map(|r| r.alpha - r.alpha_u95)
+        .map(|r| a(r.alpha - r.alpha_u95))
         .fold(f64::INFINITY, f64::min);
     let mut hi = s
         .rows
         .iter()
-        .map(|r| r.alpha + r.alpha_u95)
+        .map(|r| a(r.alpha + r.alpha_u95))
         .fold(f64::NEG_INFINITY, f64::max);
-    if let Some(g) = spec {
-        lo = lo.min(g.alpha_min);
-        hi = hi.max(g.alpha_max);
+    if let Some([min, max]) = limits {
+        lo = lo.min(min);
+        hi = hi.max(max);
     }
     let pad = (hi - lo) * 0.08 + 1e-4;
     let caption = match spec {
@@ -140,7 +145,7 @@ fn alpha_panel<DB: DrawingBackend>(
         caption: &caption,
         caption_size: 18,
         x_desc: "magnet (ranked by room-temperature flux)",
-        y_desc: "α(Br), %/°C",
+        y_desc: &format!("α(Br), {}", u.alpha_symbol()),
     };
     let mut c = magnet_chart(area, n, (lo - pad)..(hi + pad), &axes, &id_of)?;
     for (i, r) in s.rows.iter().enumerate() {
@@ -150,11 +155,11 @@ fn alpha_panel<DB: DrawingBackend>(
         } else {
             HEATING
         };
-        u95_bar(&mut c, x, r.alpha, r.alpha_u95, col)?;
+        u95_bar(&mut c, x, a(r.alpha), a(r.alpha_u95), col)?;
     }
-    if let Some(g) = spec {
+    if let Some(limits) = limits {
         // the limits are labelled in the caption, so no legend covers the points
-        for v in [g.alpha_min, g.alpha_max] {
+        for v in limits {
             c.draw_series(LineSeries::new(
                 [(-0.5, v), (n as f64 - 0.5, v)],
                 RED.stroke_width(2),
@@ -225,7 +230,11 @@ fn u95_bar<DB: DrawingBackend>(
     Ok(())
 }
 
-fn counts_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary) -> DrawResult {
+fn counts_panel<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    s: &LotSummary,
+    u: &DisplayUnits,
+) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     // the counts, in words
     let text_style = ("sans-serif", 18).into_font();
@@ -238,16 +247,20 @@ fn counts_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummar
             s.indeterminate
         ),
         format!(
-            "α(Br): mean {:+.4} %/°C, sd {:.4}",
-            s.alpha.mean, s.alpha.sd
+            "α(Br): mean {}, sd {:.4}",
+            Qty::one(Kind::Alpha, s.alpha.mean, 4).signed().render(u),
+            u.per_degree(s.alpha.sd)
         ),
         match s.loss {
             Some(l) => format!("loss: mean {:.3} %, sd {:.3}", l.mean, l.sd),
             None => "loss: not measured".into(),
         },
         format!(
-            "B at 20 °C: median {:.2} mT, sd {:.2}",
-            s.b20.median, s.b20.sd
+            "B at {}: median {}, sd {:.d$}",
+            temp_q(20.0, 0).render(u),
+            Qty::one(Kind::Flux, s.b20.median, 2).render(u),
+            u.flux(s.b20.sd),
+            d = u.flux_decimals(2)
         ),
         format!(
             "outliers: {}",
@@ -285,7 +298,11 @@ fn counts_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummar
     Ok(())
 }
 
-fn flux_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary) -> DrawResult {
+fn flux_panel<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    s: &LotSummary,
+    u: &DisplayUnits,
+) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     let n = s.rows.len();
     let id_of = id_labeller(s);
@@ -297,12 +314,16 @@ fn flux_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary)
         .map(|r| (r.b20_mt - med) / med * 100.0)
         .collect();
     let lim = dev.iter().map(|d| d.abs()).fold(1.0, f64::max) * 1.15;
-    let caption = format!("Flux at 20 °C vs the median, {med:.2} mT");
+    let at20 = temp_q(20.0, 0).render(u);
+    let caption = format!(
+        "Flux at {at20} vs the median, {}",
+        Qty::one(Kind::Flux, med, 2).render(u)
+    );
     let axes = Axes {
         caption: &caption,
         caption_size: 20,
         x_desc: "magnet",
-        y_desc: "B at 20 °C − median, %",
+        y_desc: &format!("B at {at20} − median, %"),
     };
     let mut c = magnet_chart(area, n, -lim..lim, &axes, &id_of)?;
     c.draw_series(s.rows.iter().zip(&dev).enumerate().map(|(i, (r, d))| {

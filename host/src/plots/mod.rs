@@ -21,19 +21,21 @@ use crate::analysis::dataset::Series;
 use crate::analysis::Analysis;
 use crate::output;
 use crate::specs::GradeSpec;
+use crate::units::DisplayUnits;
 use figure::render_figure;
 
 /// The plots of one run, by file stem.
 pub const RUN_PLOTS: [&str; 3] = ["flux_vs_temp", "residuals", "timeline"];
 
-/// Every run plot into `dir`; refuses to replace files unless `force` (checked for all of
-/// them before any is written).
+/// Every run plot into `dir`, in the display units `u`; refuses to replace files unless
+/// `force` (checked for all of them before any is written).
 pub fn run_figures(
     dir: &Path,
     s: &Series,
     a: &Analysis,
     title: &str,
     force: bool,
+    u: &DisplayUnits,
 ) -> Result<Vec<Figure>, PlotError> {
     let stems: Vec<PathBuf> = RUN_PLOTS.iter().map(|n| dir.join(n)).collect();
     output::refuse_existing(
@@ -44,10 +46,14 @@ pub fn run_figures(
     )?;
     let magnet_c = Some(a.traces.magnet_temp_c.as_slice());
     Ok(vec![
-        render_figure!(&stems[0], true, |area| flux::flux_vs_temp(&area, a, title))?,
-        render_figure!(&stems[1], true, |area| flux::residuals(&area, s, a, title))?,
+        render_figure!(&stems[0], true, |area| flux::flux_vs_temp(
+            &area, a, title, u
+        ))?,
+        render_figure!(&stems[1], true, |area| flux::residuals(
+            &area, s, a, title, u
+        ))?,
         render_figure!(&stems[2], true, |area| timeline::draw_timeline(
-            &area, s, magnet_c, title
+            &area, s, magnet_c, title, u
         ))?,
     ])
 }
@@ -59,8 +65,9 @@ pub fn write_run_plots(
     a: &Analysis,
     title: &str,
     force: bool,
+    u: &DisplayUnits,
 ) -> Result<Vec<PathBuf>, PlotError> {
-    Ok(run_figures(dir, s, a, title, force)?
+    Ok(run_figures(dir, s, a, title, force, u)?
         .iter()
         .flat_map(Figure::files)
         .collect())
@@ -72,9 +79,10 @@ pub fn timeline_figure(
     s: &Series,
     title: &str,
     force: bool,
+    u: &DisplayUnits,
 ) -> Result<Figure, PlotError> {
     render_figure!(stem, force, |area| timeline::draw_timeline(
-        &area, s, None, title
+        &area, s, None, title, u
     ))
 }
 
@@ -85,8 +93,9 @@ pub fn lot_figure(
     spec: Option<&GradeSpec>,
     title: &str,
     force: bool,
+    u: &DisplayUnits,
 ) -> Result<Figure, PlotError> {
-    render_figure!(stem, force, |area| lot::lot_alpha(&area, s, spec, title))
+    render_figure!(stem, force, |area| lot::lot_alpha(&area, s, spec, title, u))
 }
 
 /// [`lot_figure`], as the files written (refuses to replace them).
@@ -96,7 +105,9 @@ pub fn write_lot_plot(
     spec: Option<&GradeSpec>,
     title: &str,
 ) -> Result<Vec<PathBuf>, PlotError> {
-    Ok(lot_figure(stem, s, spec, title, false)?.files().to_vec())
+    Ok(lot_figure(stem, s, spec, title, false, &DisplayUnits::SI)?
+        .files()
+        .to_vec())
 }
 
 /// The OC curve of `plan` as `stem`.png/.svg (refuses to replace them unless `force`).

@@ -11,6 +11,7 @@ use super::style::{
     HEATING, REFERENCE,
 };
 use crate::analysis::dataset::Series;
+use crate::units::DisplayUnits;
 
 /// Points per trace drawn (each bin's extremes).
 const BINS: usize = 1500;
@@ -127,6 +128,7 @@ pub fn draw_timeline<DB: DrawingBackend>(
     s: &Series,
     magnet_c: Option<&[f64]>,
     title: &str,
+    u: &DisplayUnits,
 ) -> DrawResult {
     let e = |x: DrawingAreaErrorKind<DB::ErrorType>| x.to_string();
     root.fill(&WHITE).map_err(e)?;
@@ -135,8 +137,8 @@ pub fn draw_timeline<DB: DrawingBackend>(
         .map_err(e)?;
     let panels = root.split_evenly((3, 1));
     let axis = Axis::new(s);
-    temperature_panel(&panels[0], &axis, s, magnet_c)?;
-    flux_panel(&panels[1], &axis, s)?;
+    temperature_panel(&panels[0], &axis, s, magnet_c, u)?;
+    flux_panel(&panels[1], &axis, s, u)?;
     duty_panel(&panels[2], &axis, s)?;
     root.present().map_err(e)
 }
@@ -191,23 +193,27 @@ fn temperature_panel<DB: DrawingBackend>(
     axis: &Axis,
     s: &Series,
     magnet_c: Option<&[f64]>,
+    u: &DisplayUnits,
 ) -> DrawResult {
     let (plot, side) = with_key_strip(area);
-    let (lo, hi) = range(s.temp_c.iter().copied());
-    let mut c = time_panel(&plot, axis.x.clone(), lo..hi, "temperature, °C", None)?;
+    let shown = |v: &[f64]| v.iter().map(|&t| u.temp(t)).collect::<Vec<f64>>();
+    let temp = shown(&s.temp_c);
+    let (lo, hi) = range(temp.iter().copied());
+    let y_desc = format!("temperature, {}", u.temp_symbol());
+    let mut c = time_panel(&plot, axis.x.clone(), lo..hi, &y_desc, None)?;
     axis.marks(&mut c, (lo, hi))?;
     let mut keys = vec![Key::Line(HEATING, "thermocouple".into())];
-    line(&mut c, axis, &s.temp_c, HEATING.stroke_width(2))?;
+    line(&mut c, axis, &temp, HEATING.stroke_width(2))?;
     if let Some(m) = magnet_c {
-        line(&mut c, axis, m, COOLING.stroke_width(2))?;
+        line(&mut c, axis, &shown(m), COOLING.stroke_width(2))?;
         keys.push(Key::Line(COOLING, "magnet (lag-corrected)".into()));
     }
     if let Some(p) = &s.probe_c {
-        line(&mut c, axis, p, FIT.stroke_width(2))?;
+        line(&mut c, axis, &shown(p), FIT.stroke_width(2))?;
         keys.push(Key::Line(FIT, "Hall probe".into()));
     }
     if let Some(sp) = &s.setpoint_c {
-        setpoint(&mut c, axis, sp)?;
+        setpoint(&mut c, axis, &shown(sp))?;
         keys.push(Key::Dashed(
             BLACK,
             "setpoint (while the heater follows one)".into(),
@@ -221,12 +227,15 @@ fn flux_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     axis: &Axis,
     s: &Series,
+    u: &DisplayUnits,
 ) -> DrawResult {
     let (plot, side) = with_key_strip(area);
-    let (lo, hi) = range(s.flux_mt.iter().copied());
-    let mut c = time_panel(&plot, axis.x.clone(), lo..hi, "flux density, mT", None)?;
+    let flux: Vec<f64> = s.flux_mt.iter().map(|&b| u.flux(b)).collect();
+    let (lo, hi) = range(flux.iter().copied());
+    let y_desc = format!("flux density, {}", u.flux_symbol());
+    let mut c = time_panel(&plot, axis.x.clone(), lo..hi, &y_desc, None)?;
     axis.marks(&mut c, (lo, hi))?;
-    line(&mut c, axis, &s.flux_mt, REFERENCE.stroke_width(1))?;
+    line(&mut c, axis, &flux, REFERENCE.stroke_width(1))?;
     draw_keys(
         &side,
         &[Key::Line(REFERENCE, "flux density at the probe".into())],

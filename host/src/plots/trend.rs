@@ -74,7 +74,7 @@ fn draw_panel<DB: DrawingBackend>(
         .build_cartesian_2d(x.clone(), tickable(y_range(p)))
         .map_err(e)?;
     let mut mesh = c.configure_mesh();
-    mesh.y_desc(p.quantity)
+    mesh.y_desc(&p.quantity)
         .y_label_formatter(&tick)
         .x_labels(8)
         .x_label_formatter(&|d| {

@@ -110,7 +110,7 @@ impl AutoEnd {
     }
 
     /// Whether the record can end now; the words for its end if so.
-    pub fn check(&mut self) -> Option<String> {
+    pub fn check(&mut self) -> Option<crate::units::Phrase> {
         let now = *self.series.time_s.last()?;
         if now < self.next_check_s || !self.cooled_enough() {
             return None;
@@ -138,10 +138,14 @@ impl AutoEnd {
             && loss_u.is_finite()
             && loss_u <= t.loss_u95_pct;
         done.then(|| {
-            format!(
-                "ended by the analysis: α known to ±{:.4} %/°C and the loss to ±{:.3} % (k = 2), within ±{} %/°C and ±{} %",
-                a.alpha_u95_pct_per_c, loss_u, t.alpha_u95_pct_per_c, t.loss_u95_pct
-            )
+            use crate::units::alpha;
+            crate::phrase![
+                "ended by the analysis: α known to ±",
+                alpha(a.alpha_u95_pct_per_c, 4),
+                format!(" and the loss to ±{loss_u:.3} % (k = 2), within ±"),
+                alpha(t.alpha_u95_pct_per_c, 4),
+                format!(" and ±{} %", t.loss_u95_pct),
+            ]
         })
     }
 }

@@ -129,9 +129,9 @@ impl Recorder {
                 return Ok(end);
             }
             if let Some(words) = self.complete() {
-                progress.note(&words);
+                progress.note_phrase(&words);
                 self.stop_device(acq, w)?;
-                w.event(None, "complete", &words)?;
+                w.event(None, "complete", &words.to_string())?;
                 return Ok(RecordEnd::Complete(words));
             }
             if self.resend {
@@ -313,7 +313,7 @@ impl Recorder {
     }
 
     /// Whether the analysis can already state what the record is for.
-    fn complete(&mut self) -> Option<String> {
+    fn complete(&mut self) -> Option<crate::units::Phrase> {
         if self.start != Start::Running {
             return None;
         }

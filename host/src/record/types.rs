@@ -76,6 +76,11 @@ pub trait Progress {
     fn update(&mut self, status: &LiveStatus);
     /// Something worth telling the user.
     fn note(&mut self, message: &str);
+    /// Words with quantities worth telling the user (in SI-based units unless the receiver
+    /// shows them in its own).
+    fn note_phrase(&mut self, message: &crate::units::Phrase) {
+        self.note(&message.to_string());
+    }
 }
 
 /// Progress that goes nowhere.
@@ -92,7 +97,7 @@ pub enum RecordEnd {
     Finished,
     /// The analysis, asked during the run, could state α and the loss to the tolerance: the
     /// record ended there (heater off, acknowledged).
-    Complete(String),
+    Complete(crate::units::Phrase),
     /// The user stopped it; the device acknowledged the stop.
     Stopped,
     /// The device tripped an interlock; its heater is off.
@@ -110,7 +115,7 @@ impl RecordEnd {
     pub fn describe(&self) -> String {
         match self {
             RecordEnd::Finished => "profile finished".into(),
-            RecordEnd::Complete(why) => why.clone(),
+            RecordEnd::Complete(why) => why.to_string(),
             RecordEnd::Stopped => "stopped by the user; heater off (acknowledged)".into(),
             RecordEnd::Fault(f) => format!("device fault: {}; heater off", describe_fault(*f)),
             RecordEnd::DeviceFaulted => {
@@ -125,6 +130,14 @@ impl RecordEnd {
 }
 
 impl RecordEnd {
+    /// [`RecordEnd::describe`] for the user, in the display units `u`.
+    pub fn describe_in(&self, u: &crate::units::DisplayUnits) -> String {
+        match self {
+            RecordEnd::Complete(why) => why.render(u),
+            other => other.describe(),
+        }
+    }
+
     /// The record has what it was for: the profile ran out, or the analysis ended it.
     pub fn is_complete(&self) -> bool {
         matches!(self, RecordEnd::Finished | RecordEnd::Complete(_))

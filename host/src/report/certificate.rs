@@ -3,10 +3,11 @@
 //! pages; the results; the B–T plot; the uncertainty budgets; notes; signature lines.
 
 use super::notes::budget_rows;
-use super::pdf_flow::{Flow, Paper};
+use super::pdf_flow::Flow;
+use super::Look;
 use crate::analysis::{Analysis, BudgetLine};
 use crate::run_dir::RunMeta;
-use crate::units;
+use crate::units::{self, DisplayUnits, Kind, Qty};
 
 /// The certificate's file name.
 pub const CERTIFICATE_FILE: &str = "certificate.pdf";
@@ -62,23 +63,23 @@ fn header(a: &Analysis, meta: Option<&RunMeta>) -> Vec<(&'static str, String)> {
     ]
 }
 
-fn results(a: &Analysis) -> Vec<(&'static str, String)> {
+fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(&'static str, String)> {
     let mut r = vec![
         (
             "α(Br)",
             format!(
                 "{} over {}",
-                units::alpha_with_u95(a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
-                units::range_c(a.fit_range_c)
+                units::alpha_with_u95(u, a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
+                units::temp_range(u, a.fit_range_c)
             ),
         ),
         (
             "Irreversible loss",
             match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
-                (Some(l), Some(u)) => format!(
+                (Some(l), Some(lu)) => format!(
                     "{} at room temperature, after a peak of {}",
-                    units::loss_with_u95(l, u),
-                    units::temp_c(a.max_magnet_temp_c)
+                    units::loss_with_u95(l, lu),
+                    units::temp(u, a.max_magnet_temp_c)
                 ),
                 _ => "not computed (the notes say why)".into(),
             },
@@ -92,7 +93,10 @@ fn results(a: &Analysis) -> Vec<(&'static str, String)> {
         };
         r.push((
             "Br",
-            format!("{:.4} ± {:.4} T (k = 2), {how}", b.br_t, b.br_u95_t),
+            format!(
+                "{} (k = 2), {how}",
+                Qty::pm(Kind::Br, b.br_t, b.br_u95_t, 4).render(u)
+            ),
         ));
     }
     r.push(("Material family", a.material_family.clone()));
@@ -113,13 +117,13 @@ fn rows(f: &mut Flow, rows: &[(&str, String)], size: f32) {
     }
 }
 
-fn verdict_block(f: &mut Flow, a: &Analysis) {
+fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
     let size = 9.5;
     let reason_x = 58.0;
     let wrapped: Vec<Vec<String>> = a
         .checks
         .iter()
-        .map(|c| Flow::wrap(&c.reason, f.width_mm() - reason_x, size))
+        .map(|c| Flow::wrap(&c.reason.render(u), f.width_mm() - reason_x, size))
         .collect();
     let height = 16.0
         + wrapped
@@ -147,7 +151,8 @@ fn verdict_block(f: &mut Flow, a: &Analysis) {
     f.skip(3.0);
 }
 
-fn budget(f: &mut Flow, heading: &str, lines: &[BudgetLine], unit: &str) {
+/// A budget table; `scale` takes its terms to the displayed unit.
+fn budget(f: &mut Flow, heading: &str, lines: &[BudgetLine], unit: &str, scale: f64) {
     if lines.is_empty() {
         return;
     }
@@ -155,7 +160,7 @@ fn budget(f: &mut Flow, heading: &str, lines: &[BudgetLine], unit: &str) {
     f.keep_together(8.0 + Flow::lines_mm(lines.len() + 2, size));
     f.text_at(0.0, 10.0, true, heading);
     f.skip(6.0);
-    for (src, kind, u) in budget_rows(lines) {
+    for (src, kind, u) in budget_rows(lines, scale) {
         let wrapped = Flow::wrap(&src, f.width_mm() - 50.0, size);
         f.text_at(
             f.width_mm() - 40.0,
@@ -168,7 +173,7 @@ fn budget(f: &mut Flow, heading: &str, lines: &[BudgetLine], unit: &str) {
             f.skip(Flow::lines_mm(1, size));
         }
     }
-    let combined = 2.0 * BudgetLine::combined(lines);
+    let combined = 2.0 * BudgetLine::combined(lines) * scale;
     f.text_at(
         0.0,
         size,
@@ -197,14 +202,16 @@ fn signatures(f: &mut Flow) {
     }
 }
 
-/// The certificate of `a` as PDF bytes; `plot_png` is the B–T plot.
+/// The certificate of `a` as PDF bytes, on `look`'s paper in its units; `plot_png` is the
+/// B–T plot.
 pub fn certificate(
     a: &Analysis,
     meta: Option<&RunMeta>,
     plot_png: &[u8],
-    paper: Paper,
+    look: &Look,
 ) -> Result<Vec<u8>, String> {
-    let mut f = Flow::new("Remanent inspection certificate", paper)?;
+    let u = &look.units;
+    let mut f = Flow::new("Remanent inspection certificate", look.paper)?;
     f.text_at(
         0.0,
         14.0,
@@ -231,12 +238,16 @@ pub fn certificate(
             "UNCALIBRATED BENCH: measured without a valid calibration; not for acceptance.",
         );
     }
+    if let Some(note) = u.shown_note() {
+        f.paragraph(0.0, 8.5, false, &note);
+        f.skip(1.0);
+    }
     rows(&mut f, &header(a, meta), 9.5);
     f.skip(2.0);
     f.rule(0.0, f.width_mm());
     f.skip(4.0);
-    verdict_block(&mut f, a);
-    rows(&mut f, &results(a), 9.5);
+    verdict_block(&mut f, a, u);
+    rows(&mut f, &results(a, u), 9.5);
     f.skip(3.0);
     f.image_png(plot_png, f.width_mm())?;
     f.skip(4.0);
@@ -244,26 +255,29 @@ pub fn certificate(
         &mut f,
         "Uncertainty budget of α (standard uncertainties)",
         &a.alpha_budget,
-        "%/°C",
+        &u.alpha_symbol(),
+        u.per_degree(1.0),
     );
     budget(
         &mut f,
         "Uncertainty budget of the loss",
         &a.loss_budget,
         "%",
+        1.0,
     );
     budget(
         &mut f,
         "Uncertainty budget of Br (relative)",
         &a.br_budget,
         "%",
+        1.0,
     );
     if !a.notes.is_empty() {
         f.keep_together(20.0);
         f.text_at(0.0, 10.0, true, "Notes");
         f.skip(6.0);
         for n in &a.notes {
-            f.paragraph(3.0, 8.5, false, &format!("• {n}"));
+            f.paragraph(3.0, 8.5, false, &format!("• {}", n.render(u)));
         }
         f.skip(2.0);
     }

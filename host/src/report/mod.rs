@@ -15,14 +15,25 @@ use std::path::{Path, PathBuf};
 
 pub use lot_page::lot_html;
 pub use markdown::markdown;
-pub use notes::{METHOD_NOTES, SAFETY_NOTES};
+pub use notes::{safety_notes, METHOD_NOTES};
 
 use crate::analysis::dataset::Series;
 use crate::analysis::Analysis;
 use crate::output::{self, OutputError};
 use crate::plots::{self, PlotError};
 use crate::run_dir;
+use crate::units::DisplayUnits;
 use page::Page;
+
+/// How the outputs people read are presented: display units and paper. Data files (JSON,
+/// CSV) ignore it and stay in SI-based units.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Look {
+    /// The units numbers are shown in.
+    pub units: DisplayUnits,
+    /// The certificate's paper.
+    pub paper: pdf_flow::Paper,
+}
 
 /// Writing the report failed.
 #[derive(Debug, thiserror::Error)]
@@ -42,7 +53,7 @@ pub const MD_FILE: &str = "report.md";
 /// Machine-readable analysis.
 pub const JSON_FILE: &str = "analysis.json";
 
-/// Write every output of a run; returns the files written.
+/// Write every output of a run in SI-based units on A4; returns the files written.
 pub fn write_all(
     dir: &Path,
     series: &Series,
@@ -50,36 +61,37 @@ pub fn write_all(
     title: &str,
     force: bool,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    write_all_on(dir, series, a, title, force, pdf_flow::Paper::A4)
+    write_all_as(dir, series, a, title, force, &Look::default())
 }
 
-/// [`write_all`] with the certificate on `paper`.
-pub fn write_all_on(
+/// [`write_all`] in `look`'s units and on its paper.
+pub fn write_all_as(
     dir: &Path,
     series: &Series,
     a: &Analysis,
     title: &str,
     force: bool,
-    paper: pdf_flow::Paper,
+    look: &Look,
 ) -> Result<Vec<PathBuf>, ReportError> {
+    let u = &look.units;
     let docs = [JSON_FILE, MD_FILE, HTML_FILE, certificate::CERTIFICATE_FILE].map(|f| dir.join(f));
     output::refuse_existing(docs.clone(), force)?;
-    let figures = plots::run_figures(dir, series, a, title, force)?;
+    let figures = plots::run_figures(dir, series, a, title, force, u)?;
     let meta = run_dir::read_meta(dir).ok();
     let json = serde_json::to_string_pretty(a).expect("analysis serializes");
     output::write(&docs[0], json.as_bytes(), force)?;
     output::write(
         &docs[1],
-        markdown(a, meta.as_ref(), title).as_bytes(),
+        markdown(a, meta.as_ref(), title, u).as_bytes(),
         force,
     )?;
-    let html = run_page::html(a, meta.as_ref(), title, &figures);
+    let html = run_page::html(a, meta.as_ref(), title, &figures, u);
     output::write(&docs[2], html.as_bytes(), force)?;
     let plot = std::fs::read(&figures[0].png).map_err(|source| OutputError::Io {
         path: figures[0].png.display().to_string(),
         source,
     })?;
-    let pdf = certificate::certificate(a, meta.as_ref(), &plot, paper).map_err(|reason| {
+    let pdf = certificate::certificate(a, meta.as_ref(), &plot, look).map_err(|reason| {
         OutputError::Produce {
             path: docs[3].display().to_string(),
             reason,
@@ -99,18 +111,20 @@ pub fn write_unanalysed(
     title: &str,
     reason: &str,
     force: bool,
+    u: &DisplayUnits,
 ) -> Result<Vec<PathBuf>, ReportError> {
     let (md_path, html_path) = (dir.join(MD_FILE), dir.join(HTML_FILE));
     output::refuse_existing([md_path.clone(), html_path.clone()], force)?;
-    let figure = plots::timeline_figure(&dir.join("timeline"), series, title, force)?;
+    let figure = plots::timeline_figure(&dir.join("timeline"), series, title, force, u)?;
     let meta = run_dir::read_meta(dir).ok();
-    let facts = notes::facts(meta.as_ref());
+    let facts = notes::facts(meta.as_ref(), u);
+    let safety = safety_notes(u);
     let mut md = format!("# Remanent report — {title}\n\n**Not analysed:** {reason}\n\n");
     for (k, v) in &facts {
         md.push_str(&format!("- **{k}**: {v}\n"));
     }
     md.push_str("\n![time series](timeline.png)\n\n## Safety\n\n");
-    for n in SAFETY_NOTES {
+    for n in &safety {
         md.push_str(&format!("- {n}\n"));
     }
     output::write(&md_path, md.as_bytes(), force)?;
@@ -119,7 +133,7 @@ pub fn write_unanalysed(
         .facts(&facts)
         .figure("timeline", figure.svg_element())
         .h2("Safety")
-        .list(SAFETY_NOTES);
+        .list(safety.iter().map(String::as_str));
     output::write(&html_path, page.finish().as_bytes(), force)?;
     let mut written = figure.files().to_vec();
     written.extend([md_path, html_path]);

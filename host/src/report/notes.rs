@@ -3,7 +3,7 @@
 
 use crate::analysis::BudgetLine;
 use crate::run_dir::RunMeta;
-use crate::units;
+use crate::units::{self, temp_q, DisplayUnits, Kind, Qty};
 
 /// Method notes shared by both formats.
 pub const METHOD_NOTES: [&str; 6] = [
@@ -15,36 +15,42 @@ pub const METHOD_NOTES: [&str; 6] = [
     "Irreversible loss: settled readings at room temperature before and after the excursion, corrected to one temperature with the fitted reversible curve. Open-circuit measurement: for ferrite and AlNiCo the working point moves with temperature, so the field's coefficient is not exactly α(Br).",
 ];
 
-/// Safety notes printed in every report.
-pub const SAFETY_NOTES: [&str; 4] = [
-    "Let the fixture cool below 50 °C before handling; metal at 65–70 °C burns in about a second. Use non-magnetic tools: a hot magnet still jumps to steel.",
-    "Rare-earth magnets pinch, chip and shatter: eye protection; keep them away from pacemakers and implants.",
-    "Coatings and adhesives give off fumes above about 120–150 °C: ventilate.",
-    "Mains wiring, earthing and the independent thermal cut-off follow IEC 61010-1 / IEC 61010-2-010 and the local wiring code, done by a qualified person.",
-];
+/// Safety notes printed in every report, their temperatures in the display units `u`.
+pub fn safety_notes(u: &DisplayUnits) -> [String; 4] {
+    let t = |c: f64| temp_q(c, 0).render(u);
+    let r = |lo: f64, hi: f64| Qty::range(Kind::Temp, lo, hi, 0).render(u);
+    [
+        format!("Let the fixture cool below {} before handling; metal at {} burns in about a second. Use non-magnetic tools: a hot magnet still jumps to steel.", t(50.0), r(65.0, 70.0)),
+        "Rare-earth magnets pinch, chip and shatter: eye protection; keep them away from pacemakers and implants.".into(),
+        format!("Coatings and adhesives give off fumes above about {}: ventilate.", r(120.0, 150.0)),
+        "Mains wiring, earthing and the independent thermal cut-off follow IEC 61010-1 / IEC 61010-2-010 and the local wiring code, done by a qualified person.".into(),
+    ]
+}
 
-/// Budget lines as table rows: source, type, standard uncertainty.
-pub fn budget_rows(lines: &[BudgetLine]) -> Vec<(String, String, String)> {
+/// Budget lines as table rows: source, type, standard uncertainty (times `scale`, which
+/// takes a budget of α to the displayed degree).
+pub fn budget_rows(lines: &[BudgetLine], scale: f64) -> Vec<(String, String, String)> {
     lines
         .iter()
         .map(|l| {
             (
                 l.source.clone(),
                 l.kind.to_string(),
-                crate::units::uncertainty(l.u),
+                crate::units::uncertainty(l.u * scale),
             )
         })
         .collect()
 }
 
-/// The run's facts as name–value pairs (a plain CSV log has few).
-pub fn facts(meta: Option<&RunMeta>) -> Vec<(String, String)> {
+/// The run's facts as name–value pairs (a plain CSV log has few); the calibration as its file
+/// states it (SI-based), every other temperature in the display units `u`.
+pub fn facts(meta: Option<&RunMeta>, u: &DisplayUnits) -> Vec<(String, String)> {
     let Some(m) = meta else {
         return vec![("source".into(), "plain CSV log".into())];
     };
     let mut f = vec![
         ("magnet".into(), format!("{} — {} ({})", m.magnet.id, m.magnet.description, m.magnet.grade)),
-        ("rated maximum".into(), format!("{:.0} °C", m.magnet.max_working_c)),
+        ("rated maximum".into(), temp_q(m.magnet.max_working_c, 0).render(u)),
         ("profile".into(), format!("{}: {}", m.profile.name, m.profile.description)),
         ("recorded".into(), format!("{} … {}", m.started_utc, m.finished_utc.clone().unwrap_or_else(|| "unfinished".into()))),
         ("port".into(), m.port.clone()),
@@ -64,7 +70,7 @@ pub fn facts(meta: Option<&RunMeta>) -> Vec<(String, String)> {
             },
         ),
         (
-            "calibration".into(),
+            "calibration (as its file states it)".into(),
             format!(
                 "Hall {:.3} mV/mT, {:+.3} %/°C (u {:.3}); gap {:.2} mm (u {:.2}); thermocouple gain ±{} %",
                 m.calibration.hall.sensor.sensitivity_mv_per_mt,
@@ -81,8 +87,12 @@ pub fn facts(meta: Option<&RunMeta>) -> Vec<(String, String)> {
         f.push((
             "device".into(),
             format!(
-                "board {}, firmware {}, protocol {} ({}), ceiling {:.0} °C",
-                d.board, d.firmware, d.protocol, d.schema, d.ceiling_c
+                "board {}, firmware {}, protocol {} ({}), ceiling {}",
+                d.board,
+                d.firmware,
+                d.protocol,
+                d.schema,
+                temp_q(d.ceiling_c, 0).render(u)
             ),
         ));
     }

@@ -1,34 +1,40 @@
 //! The HTML report of a run: the verdict, the facts, the results, the checks with their
 //! reasons, the notes, the budgets, the plots (SVG, embedded), the method and the safety notes.
 
-use super::notes::{budget_rows, facts, METHOD_NOTES, SAFETY_NOTES};
+use super::notes::{budget_rows, facts, safety_notes, METHOD_NOTES};
 use super::page::{esc, Page};
 use crate::analysis::Analysis;
 use crate::plots::Figure;
 use crate::run_dir::RunMeta;
-use crate::units;
+use crate::units::{self, temp_q, DisplayUnits, Kind, Qty};
 
-/// The results table's rows.
-fn results(a: &Analysis) -> Vec<(String, String)> {
+/// The results table's rows, in the display units `u`.
+fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(String, String)> {
+    let at20 = temp_q(20.0, 0).render(u);
     let mut rows = vec![
         (
-            "α(Br), mean 20 °C … top of range".to_string(),
-            units::alpha_with_u95(a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
+            format!("α(Br), mean {at20} … top of range"),
+            units::alpha_with_u95(u, a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
         ),
         (
             "fitted range".into(),
             format!(
                 "{} ({}, {} points)",
-                units::range_c(a.fit_range_c),
+                units::temp_range(u, a.fit_range_c),
                 a.fit_method,
                 a.fit_points
             ),
         ),
         (
-            "tangent at 20 °C, quadratic term".into(),
+            format!("tangent at {at20}, quadratic term"),
             format!(
-                "{:+.4} %/°C, {:+.6} %/°C²",
-                a.alpha_at_20c_pct_per_c, a.gamma_pct_per_c2
+                "{}, {}",
+                Qty::one(Kind::Alpha, a.alpha_at_20c_pct_per_c, 4)
+                    .signed()
+                    .render(u),
+                Qty::one(Kind::Alpha2, a.gamma_pct_per_c2, 6)
+                    .signed()
+                    .render(u)
             ),
         ),
         (
@@ -40,10 +46,10 @@ fn results(a: &Analysis) -> Vec<(String, String)> {
         (
             "irreversible loss".into(),
             match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
-                (Some(l), Some(u)) => format!(
-                    "{} after {:.1} °C",
-                    units::loss_with_u95(l, u),
-                    a.max_magnet_temp_c
+                (Some(l), Some(lu)) => format!(
+                    "{} after {}",
+                    units::loss_with_u95(l, lu),
+                    units::temp(u, a.max_magnet_temp_c)
                 ),
                 _ => "not computed".into(),
             },
@@ -53,14 +59,18 @@ fn results(a: &Analysis) -> Vec<(String, String)> {
         rows.push(if a.br_referred {
             (
                 "Br (referred to the fixture's reference magnet)".into(),
-                format!("{:.4} ± {:.4} T (k = 2)", b.br_t, b.br_u95_t),
+                format!(
+                    "{} (k = 2)",
+                    Qty::pm(Kind::Br, b.br_t, b.br_u95_t, 4).render(u)
+                ),
             )
         } else {
             (
                 "Br from geometry".into(),
                 format!(
-                    "{:.3} ± {:.3} T (k = 2); {:+.2} % per +0.1 mm gap",
-                    b.br_t, b.br_u95_t, b.pct_per_0_1_mm
+                    "{} (k = 2); {:+.2} % per +0.1 mm gap",
+                    Qty::pm(Kind::Br, b.br_t, b.br_u95_t, 3).render(u),
+                    b.pct_per_0_1_mm
                 ),
             )
         });
@@ -69,8 +79,14 @@ fn results(a: &Analysis) -> Vec<(String, String)> {
     rows
 }
 
-/// The page.
-pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure]) -> String {
+/// The page, in the display units `u`.
+pub fn html(
+    a: &Analysis,
+    meta: Option<&RunMeta>,
+    title: &str,
+    figures: &[Figure],
+    u: &DisplayUnits,
+) -> String {
     let mut page = Page::new("report", title);
     let v = a.verdict;
     if a.uncalibrated {
@@ -78,6 +94,9 @@ pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure
     }
     let i = &a.provenance.inspection;
     let dash = |v: &Option<String>| v.clone().unwrap_or_else(|| "—".into());
+    if let Some(note) = u.shown_note() {
+        page.p(&note);
+    }
     page.raw(&format!("<p class=\"v {}\">Verdict: {v}</p>", v.word()))
         .h2("Inspection")
         .facts(&[
@@ -86,9 +105,9 @@ pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure
             ("supplier".into(), dash(&i.supplier)),
             ("operator".into(), dash(&i.operator)),
         ])
-        .facts(&facts(meta))
+        .facts(&facts(meta, u))
         .h2("Results")
-        .facts(&results(a))
+        .facts(&results(a, u))
         .h2("Verdict and reasons");
     let mut checks = String::from("<table><tr><th>check</th><th>outcome</th><th>reason</th></tr>");
     for c in &a.checks {
@@ -96,24 +115,28 @@ pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure
         checks.push_str(&format!(
             "<tr><td>{}</td><td class=\"{o}\">{o}</td><td>{}</td></tr>",
             esc(&c.what),
-            esc(&c.reason)
+            esc(&c.reason.render(u))
         ));
     }
     page.raw("<div class=\"keep\">")
         .raw(&checks)
         .raw("</table></div>");
     for n in &a.notes {
-        page.p(&format!("Note: {n}"));
+        page.p(&format!("Note: {}", n.render(u)));
     }
-    for (name, lines) in [
-        ("α (%/°C)", &a.alpha_budget),
-        ("irreversible loss (%)", &a.loss_budget),
-        ("Br (relative, %)", &a.br_budget),
+    for (name, lines, scale) in [
+        (
+            format!("α ({})", u.alpha_symbol()),
+            &a.alpha_budget,
+            u.per_degree(1.0),
+        ),
+        ("irreversible loss (%)".into(), &a.loss_budget, 1.0),
+        ("Br (relative, %)".into(), &a.br_budget, 1.0),
     ] {
         if lines.is_empty() {
             continue;
         }
-        let rows: Vec<Vec<String>> = budget_rows(lines)
+        let rows: Vec<Vec<String>> = budget_rows(lines, scale)
             .into_iter()
             .map(|(s, k, u)| vec![s, k, u])
             .collect();
@@ -134,6 +157,6 @@ pub fn html(a: &Analysis, meta: Option<&RunMeta>, title: &str, figures: &[Figure
         .list(METHOD_NOTES)
         .raw("</div>")
         .h2("Safety")
-        .list(SAFETY_NOTES);
+        .list(safety_notes(u).iter().map(String::as_str));
     page.finish()
 }

@@ -158,7 +158,9 @@ fn irreversible_loss_is_recovered_with_its_uncertainty() {
             "{magnet}: an exposure above the rating is not damage"
         );
         assert!(
-            a.notes.iter().any(|n| n.starts_with("exposure loss")),
+            a.notes
+                .iter()
+                .any(|n| n.to_string().starts_with("exposure loss")),
             "{magnet}: {:#?}",
             a.notes
         );
@@ -216,9 +218,9 @@ fn a_curie_sweep_finds_the_collapse_and_still_gives_alpha() {
         a.fit_range_c[1]
     );
     assert!(
-        a.notes
-            .iter()
-            .any(|n| n.contains("irreversible loss below the collapse")),
+        a.notes.iter().any(|n| n
+            .to_string()
+            .contains("irreversible loss below the collapse")),
         "{:?}",
         a.notes
     );

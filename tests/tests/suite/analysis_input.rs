@@ -50,7 +50,9 @@ fn soak_points_alone_give_alpha_and_say_so() {
     assert!(a.lag_time_constant_s.is_none());
     assert!(a.irreversible_loss_pct.is_none());
     assert!(
-        a.notes.iter().any(|n| n.contains("no cooling branch")),
+        a.notes
+            .iter()
+            .any(|n| n.to_string().contains("no cooling branch")),
         "{:?}",
         a.notes
     );

@@ -219,5 +219,8 @@ fn a_stale_calibration_is_refused_before_anything_starts_and_uncalibrated_runs_s
     assert_eq!(a.provenance.magnet_id.as_deref(), Some("RM-N42-D10x5"));
     assert_eq!(a.provenance.run, "run");
     assert!(a.provenance.started_utc.is_some() && !a.provenance.analysed_utc.is_empty());
-    assert!(remanent::analysis::summary::text(&a, "t").contains("UNCALIBRATED"));
+    assert!(
+        remanent::analysis::summary::text(&a, "t", &remanent::units::DisplayUnits::SI)
+            .contains("UNCALIBRATED")
+    );
 }

@@ -39,7 +39,16 @@ fn certified(dir: &Path, paper: Paper) -> std::path::PathBuf {
     };
     text = toml::to_string(&meta).unwrap_or(text);
     std::fs::write(out.join("run.toml"), text).unwrap();
-    let r = remanent::jobs::report::run(&out, &Default::default(), false, paper).unwrap();
+    let r = remanent::jobs::report::run(
+        &out,
+        &Default::default(),
+        false,
+        &remanent::report::Look {
+            paper,
+            ..Default::default()
+        },
+    )
+    .unwrap();
     assert!(r.written.iter().any(|p| p.ends_with("certificate.pdf")));
     out.join("certificate.pdf")
 }
@@ -181,7 +190,7 @@ fn a_loggers_csv_file_gets_the_whole_report_beside_it() {
     };
     let out = remanent::jobs::report::default_out(&log);
     assert_eq!(out, dir.path().join("bench-log-report"));
-    let r = remanent::jobs::report::run_input(&req, &out, false, Paper::A4).unwrap();
+    let r = remanent::jobs::report::run_input(&req, &out, false, &Default::default()).unwrap();
     assert!(r.not_analysed.is_none());
     for f in [
         "report.html",
@@ -198,5 +207,32 @@ fn a_loggers_csv_file_gets_the_whole_report_beside_it() {
         "the page says what it came from"
     );
     // a second report into the same folder is refused without --force
-    assert!(remanent::jobs::report::run_input(&req, &out, false, Paper::A4).is_err());
+    assert!(remanent::jobs::report::run_input(&req, &out, false, &Default::default()).is_err());
+}
+
+#[test]
+#[ignore = "needs poppler-utils (pdftotext): .ci/run installs it"]
+fn certificate_pages_in_gauss_and_fahrenheit_say_so_and_convert_alpha() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("run");
+    rapid_run(&out, 5);
+    let look = remanent::report::Look {
+        units: remanent::units::DisplayUnits {
+            flux: remanent::units::FluxUnit::Gauss,
+            temp: remanent::units::TempUnit::Fahrenheit,
+        },
+        ..Default::default()
+    };
+    remanent::jobs::report::run(&out, &Default::default(), false, &look).unwrap();
+    let pdf = out.join("certificate.pdf");
+    let text = tool("pdftotext", &["-layout", pdf.to_str().unwrap(), "-"]);
+    let json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("analysis.json")).unwrap()).unwrap();
+    // α in %/°F is α in %/°C divided by 1.8 (a kelvin is 1.8 °F: NIST SP 811 §B.9)
+    let alpha_f = json["alpha_pct_per_C"].as_f64().unwrap() / 1.8;
+    let shown = format!("{alpha_f:+.4} ±");
+    assert!(text.contains(&shown), "{shown} missing:\n{text}");
+    assert!(text.contains("Shown in °F and G"), "{text}");
+    assert!(text.contains("%/°F (k = 2) over"), "{text}");
+    assert!(!text.contains("%/°C (k = 2)"), "{text}");
 }

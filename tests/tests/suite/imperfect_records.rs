@@ -210,6 +210,7 @@ fn a_loss_whose_reference_correction_would_swamp_it_is_refused_saying_by_how_muc
     let why = a
         .notes
         .iter()
+        .map(|n| n.to_string())
         .find(|n| n.contains("referring the two readings to one temperature"))
         .unwrap_or_else(|| panic!("{:#?}", a.notes));
     assert!(

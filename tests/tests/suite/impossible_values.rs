@@ -120,7 +120,14 @@ fn plotting_an_all_nan_series_finishes() {
     let stem = dir.path().join("timeline");
     let (tx, rx) = mpsc::channel();
     std::thread::spawn(move || {
-        let r = remanent::plots::timeline_figure(&stem, &s, "all NaN", false).map(|_| ());
+        let r = remanent::plots::timeline_figure(
+            &stem,
+            &s,
+            "all NaN",
+            false,
+            &remanent::units::DisplayUnits::SI,
+        )
+        .map(|_| ());
         let _ = tx.send(r.map_err(|e| e.to_string()));
     });
     // a hang, not a speed: plotters' tick search never ends on a NaN range

@@ -115,7 +115,7 @@ fn blank_cells_are_skipped_and_counted() {
     assert!(
         an.notes
             .iter()
-            .any(|n| n.contains("rows left out: blank `temp_C`")),
+            .any(|n| n.to_string().contains("rows left out: blank `temp_C`")),
         "{:#?}",
         an.notes
     );

@@ -70,6 +70,7 @@ fn a_lot_is_one_grade_unless_told_and_duplicates_and_unreadable_runs_are_reporte
         &Default::default(),
         false,
         false,
+        &remanent::units::DisplayUnits::SI,
     )
     .err()
     .unwrap();
@@ -84,6 +85,7 @@ fn a_lot_is_one_grade_unless_told_and_duplicates_and_unreadable_runs_are_reporte
         &Default::default(),
         false,
         false,
+        &remanent::units::DisplayUnits::SI,
     )
     .unwrap();
     assert!(
@@ -100,6 +102,7 @@ fn a_lot_is_one_grade_unless_told_and_duplicates_and_unreadable_runs_are_reporte
         &Default::default(),
         true,
         false,
+        &remanent::units::DisplayUnits::SI,
     )
     .unwrap();
     assert_eq!(mixed.summary.rows.len(), 2);
@@ -123,7 +126,8 @@ fn the_self_test_names_a_latched_fault_and_measures_from_its_own_start() {
     let start = &steps[0];
     assert!(start.passed, "{start:?}");
     assert!(
-        start.detail.contains("emergency stop") && start.detail.contains("cleared"),
+        start.detail.to_string().contains("emergency stop")
+            && start.detail.to_string().contains("cleared"),
         "{start:?}"
     );
     let heats = steps.iter().find(|s| s.name == "heater heats").unwrap();
@@ -131,6 +135,7 @@ fn the_self_test_names_a_latched_fault_and_measures_from_its_own_start() {
     // the time is the step's own, not the rig's since power-on
     let secs: f64 = heats
         .detail
+        .to_string()
         .split(" after ")
         .nth(1)
         .unwrap()
@@ -144,7 +149,10 @@ fn the_self_test_names_a_latched_fault_and_measures_from_its_own_start() {
     let (port, cal) = rig(true);
     let (_, steps) = remanent::selftest::run(port, cal, &Default::default()).unwrap();
     let tc = steps.iter().find(|s| s.name == "thermocouple").unwrap();
-    assert!(!tc.passed && tc.detail.contains("open"), "{tc:?}");
+    assert!(
+        !tc.passed && tc.detail.to_string().contains("open"),
+        "{tc:?}"
+    );
     assert!(steps.iter().all(|s| s.name != "heater heats"), "{steps:#?}");
 }
 
@@ -166,7 +174,7 @@ fn toml_blocks(file: &str) -> Vec<String> {
 fn every_file_format_example_in_the_notes_is_accepted() {
     let dir = tempfile::tempdir().unwrap();
     let blocks = toml_blocks("file-formats.md");
-    assert_eq!(blocks.len(), 3);
+    assert_eq!(blocks.len(), 4);
     let write = |name: &str, text: &str| {
         let p = dir.path().join(name);
         std::fs::write(&p, text).unwrap();
@@ -179,6 +187,14 @@ fn every_file_format_example_in_the_notes_is_accepted() {
     assert_eq!(p.segments.len(), 3);
     let s = remanent::specs::SpecTable::load(&write("s.toml", &blocks[2])).unwrap();
     assert_eq!(s.find("n42sh").unwrap().alpha_min, -0.125);
+    let u = remanent::units::load(&write("config.toml", &blocks[3])).unwrap();
+    assert_eq!(
+        (u.flux, u.temp),
+        (
+            remanent::units::FluxUnit::Gauss,
+            remanent::units::TempUnit::Fahrenheit
+        )
+    );
     let cal = write("c.toml", &toml_blocks("calibration.md")[0]);
     let cal = remanent::calibration::Calibration::load(&cal).unwrap();
     assert!(cal.dates.required().iter().all(|d| d.1.is_some()));

@@ -145,7 +145,11 @@ fn a_lot_finds_the_weak_magnet() {
         .iter()
         .filter(|r| r.id != "LOT-06")
         .all(|r| r.outlier.is_empty());
-    assert!(clean, "{}", lot::text(&s));
+    assert!(
+        clean,
+        "{}",
+        lot::text(&s, &remanent::units::DisplayUnits::SI)
+    );
     assert_eq!(s.rows.last().unwrap().id, "LOT-06", "ranked last by flux");
     assert!(s.alpha.sd < 0.001, "α spread {:.5}", s.alpha.sd);
     let csv = lot::to_csv(&s);

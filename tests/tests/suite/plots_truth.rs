@@ -72,7 +72,7 @@ fn after_a_loss_the_fit_is_drawn_on_the_cooling_branch_it_was_fitted_to() {
     let a = &t.analysis;
     assert_eq!(a.fit_method_code, "cooling_branch");
     assert!(a.irreversible_loss_pct.unwrap() > 1.0);
-    let (line, label) = fit_line(a);
+    let (line, label) = fit_line(a, &remanent::units::DisplayUnits::SI);
     assert!(label.contains("cooling branch"), "{label}");
     // the line against the cooling samples in the fitted range: within the noise, not the loss
     let seg = a.traces.segments.as_ref().unwrap();
@@ -111,7 +111,15 @@ fn lines_break_at_gaps_and_keys_and_ticks_are_clean() {
         &out,
     );
     let (s, _) = dataset::load_run(&out, None).unwrap();
-    let figs = remanent::plots::run_figures(&out, &s, &t.analysis, "test", false).unwrap();
+    let figs = remanent::plots::run_figures(
+        &out,
+        &s,
+        &t.analysis,
+        "test",
+        false,
+        &remanent::units::DisplayUnits::SI,
+    )
+    .unwrap();
     let svg = &figs[0].svg;
     let texts = svg_texts(svg);
     let key_x = (remanent::plots::SIZE.0 - remanent::plots::style::KEY_WIDTH) as f64;
@@ -158,7 +166,15 @@ fn a_mixed_lot_names_every_grade_and_every_magnet_whole() {
         .collect();
     let out = dir.path().join("lot");
     let judging = remanent::jobs::Judging::default();
-    let done = remanent::jobs::lot::run(&runs, &out, &judging, true, false).unwrap();
+    let done = remanent::jobs::lot::run(
+        &runs,
+        &out,
+        &judging,
+        true,
+        false,
+        &remanent::units::DisplayUnits::SI,
+    )
+    .unwrap();
     assert_eq!(done.analyses.len(), 3);
     let svg = std::fs::read_to_string(out.join("lot.svg")).unwrap();
     let texts = svg_texts(&svg);

@@ -135,7 +135,7 @@ fn br_referred_to_a_reference_is_right_across_gaps_and_probe_sensitivities() {
 fn an_undecided_check_says_what_would_decide_it() {
     use remanent::analysis::verdict::what_would_decide;
     // Br 1.3101 ± 0.038 T against 1.27 … 1.33: the upper limit is 0.0199 T away
-    let s = what_would_decide(1.3101, 0.038, 1.27, 1.33, "T");
+    let s = what_would_decide(1.3101, 0.038, 1.27, 1.33, remanent::units::Kind::Br).to_string();
     assert!(
         s.contains("below ±0.0199 T") && s.contains("48 % smaller"),
         "{s}"
@@ -165,6 +165,7 @@ fn a_lot_is_judged_against_a_master_sample_of_its_grade() {
         &judging,
         false,
         false,
+        &remanent::units::DisplayUnits::SI,
     )
     .unwrap();
     let by = |id: &str| {
@@ -202,7 +203,9 @@ fn loss_from_a_test_run_above_the_rating_is_exposure_loss_not_damage() {
         a.checks
     );
     assert!(
-        a.notes.iter().any(|n| n.starts_with("exposure loss")),
+        a.notes
+            .iter()
+            .any(|n| n.to_string().starts_with("exposure loss")),
         "{:#?}",
         a.notes
     );

@@ -50,7 +50,7 @@ fn rapid_meets_the_accuracy_goal_in_under_15_minutes_and_says_why_it_ended() {
         assert_eq!(meta.end_reason, Some(t.end.describe()), "{label}");
         assert!(t.end.is_complete(), "{label}: {:?}", t.end);
         if let RecordEnd::Complete(why) = &t.end {
-            assert!(why.contains("ended by the analysis"), "{why}");
+            assert!(why.to_string().contains("ended by the analysis"), "{why}");
             ended_by_analysis += 1;
         }
     }

@@ -112,7 +112,7 @@ pub const SHORT_CYCLE: [(f64, f64, f64); 3] =
 /// Fail unless one of the analysis's notes contains `text` (showing them all).
 pub fn assert_noted(a: &remanent::analysis::Analysis, text: &str) {
     assert!(
-        a.notes.iter().any(|n| n.contains(text)),
+        a.notes.iter().any(|n| n.to_string().contains(text)),
         "no note says `{text}`: {:#?}",
         a.notes
     );

@@ -24,7 +24,7 @@ fn num(v: Option<f64>, digits: usize) -> String {
         .unwrap_or_else(|| "—".into())
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCode> {
     let mut store = super::common::open(&a.store)?;
     let rows = store.find(&a.filter.filter((!a.all).then_some(a.limit)))?;
     if rows.is_empty() {
@@ -39,8 +39,8 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         "lot",
         "supplier",
         "verdict",
-        "α %/°C",
-        "Br T",
+        format!("α {}", u.alpha_symbol()),
+        format!("Br {}", u.br_symbol()),
         "loss %"
     );
     for r in &rows {
@@ -53,8 +53,8 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
             t(&r.lot),
             t(&r.supplier),
             r.verdict.as_deref().unwrap_or("not analysed"),
-            num(r.alpha_pct_per_c, 4),
-            num(r.br_t, 4),
+            num(r.alpha_pct_per_c.map(|v| u.per_degree(v)), 4),
+            num(r.br_t.map(|v| u.br(v)), u.br_decimals(4)),
             num(r.loss_pct, 3),
         );
     }

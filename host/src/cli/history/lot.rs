@@ -15,14 +15,19 @@ pub struct Args {
     store: StoreOpts,
 }
 
-fn spread(v: Option<(f64, f64)>, digits: usize) -> String {
+/// Mean and standard deviation, each times `k` (the display unit's factor).
+fn spread(v: Option<(f64, f64)>, k: f64, digits: usize) -> String {
     match v {
-        Some((m, s)) => format!("mean {m:.digits$}, standard deviation {s:.digits$}"),
+        Some((m, s)) => format!(
+            "mean {:.digits$}, standard deviation {:.digits$}",
+            m * k,
+            s * k
+        ),
         None => "—".into(),
     }
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCode> {
     let mut store = super::common::open(&a.store)?;
     let runs = store.find(&Filter {
         lot: Some(a.lot.clone()),
@@ -48,9 +53,14 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         "  verdicts   {} pass, {} fail, {} indeterminate",
         s.pass, s.fail, s.indeterminate
     );
-    println!("  α %/°C     {}", spread(s.alpha_pct_per_c, 4));
-    println!("  Br T       {}", spread(s.br_t, 4));
-    println!("  loss %     {}", spread(s.loss_pct, 3));
+    let alpha = format!("α {}", u.alpha_symbol());
+    let br = format!("Br {}", u.br_symbol());
+    println!(
+        "  {alpha:<10} {}",
+        spread(s.alpha_pct_per_c, u.per_degree(1.0), 4)
+    );
+    println!("  {br:<10} {}", spread(s.br_t, u.br(1.0), u.br_decimals(4)));
+    println!("  loss %     {}", spread(s.loss_pct, 1.0, 3));
     for r in runs.iter().filter(|r| r.verdict.as_deref() != Some("pass")) {
         println!(
             "  {:<22} {}",

@@ -35,12 +35,12 @@ enum Cmd {
     Info(info::Args),
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCode> {
     match a.command {
         Cmd::Import(a) => import::run(a),
-        Cmd::Find(a) => find::run(a),
-        Cmd::Lot(a) => lot::run(a),
-        Cmd::Trend(a) => trend::run(a),
+        Cmd::Find(a) => find::run(a, u),
+        Cmd::Lot(a) => lot::run(a, u),
+        Cmd::Trend(a) => trend::run(a, u),
         Cmd::Export(a) => export::run(a),
         Cmd::Info(a) => info::run(a),
     }

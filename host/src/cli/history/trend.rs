@@ -3,6 +3,8 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
+use remanent::units::DisplayUnits;
+
 use crate::cli::options::{ForceOpts, StoreOpts};
 
 #[derive(clap::Args)]
@@ -25,7 +27,7 @@ pub struct Args {
     store: StoreOpts,
 }
 
-pub fn run(a: Args) -> anyhow::Result<ExitCode> {
+pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let mut store = super::common::open(&a.store)?;
     let points = store.trend(&a.supplier, a.grade.as_deref())?;
     if points.is_empty() {
@@ -44,7 +46,8 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         a.grade.as_deref(),
         &points,
         a.baseline as usize,
-    );
+    )
+    .shown(u);
     for p in &chart.panels {
         match p.limits {
             Some(l) => println!(

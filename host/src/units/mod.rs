@@ -1,10 +1,21 @@
 //! The one place quantities become text: how many decimals each quantity gets and how its
 //! unit and uncertainty are written. Reports, summaries and tables call these, so another
-//! display unit or precision is a change here alone.
+//! display unit or precision is a change here alone. Numbers are held in SI-based units
+//! everywhere else; [`DisplayUnits`] converts them as they are shown, and a [`Phrase`] carries
+//! quantities inside words (notes, check reasons) until then.
+
+mod config;
+mod display;
+mod phrase;
+
+pub use config::{choose, config_path, load, ConfigError, CONFIG_ENV};
+pub use display::{DisplayUnits, FluxUnit, TempUnit, UnknownUnit};
+pub use phrase::{alpha, flux, span, temp as temp_q, Kind, Part, Phrase, Qty};
 
 /// α with its expanded uncertainty: `-0.1144 ± 0.0021 %/°C (k = 2)`.
-pub fn alpha_with_u95(alpha_pct_per_c: f64, u95: f64) -> String {
-    format!("{alpha_pct_per_c:+.4} ± {u95:.4} %/°C (k = 2)")
+pub fn alpha_with_u95(u: &DisplayUnits, alpha_pct_per_c: f64, u95: f64) -> String {
+    let q = Qty::pm(Kind::Alpha, alpha_pct_per_c, u95, 4).signed();
+    format!("{} (k = 2)", q.render(u))
 }
 
 /// Irreversible loss with its expanded uncertainty: `0.123 ± 0.010 % (k = 2)`.
@@ -13,13 +24,13 @@ pub fn loss_with_u95(loss_pct: f64, u95: f64) -> String {
 }
 
 /// A temperature range: `21.3 … 99.8 °C`.
-pub fn range_c(r: [f64; 2]) -> String {
-    format!("{:.1} … {:.1} °C", r[0], r[1])
+pub fn temp_range(u: &DisplayUnits, r: [f64; 2]) -> String {
+    Qty::range(Kind::Temp, r[0], r[1], 1).render(u)
 }
 
 /// A temperature: `99.8 °C`.
-pub fn temp_c(t: f64) -> String {
-    format!("{t:.1} °C")
+pub fn temp(u: &DisplayUnits, c: f64) -> String {
+    phrase::temp(c, 1).render(u)
 }
 
 /// A standard uncertainty in a budget table (in the budget's own unit), to two significant
@@ -67,11 +78,12 @@ mod tests {
 
     #[test]
     fn quantities_carry_their_units_and_counts_agree_with_their_nouns() {
+        let si = DisplayUnits::SI;
         assert_eq!(
-            alpha_with_u95(-0.11436, 0.0021),
+            alpha_with_u95(&si, -0.11436, 0.0021),
             "-0.1144 ± 0.0021 %/°C (k = 2)"
         );
-        assert_eq!(range_c([21.26, 99.84]), "21.3 … 99.8 °C");
+        assert_eq!(temp_range(&si, [21.26, 99.84]), "21.3 … 99.8 °C");
         assert_eq!(count(1, "gap", "gaps"), "1 gap");
         assert_eq!(count(0, "gap", "gaps"), "0 gaps");
         // budget terms keep two significant digits however small
