@@ -243,8 +243,8 @@ pub fn text(s: &LotSummary, u: &crate::units::DisplayUnits) -> String {
     let mut out = String::new();
     let _ = writeln!(
         out,
-        "{} magnets: {} pass, {} fail, {} indeterminate",
-        s.rows.len(),
+        "{}: {} pass, {} fail, {} indeterminate",
+        crate::units::count(s.rows.len() as u64, "magnet", "magnets"),
         s.passed,
         s.failed,
         s.indeterminate

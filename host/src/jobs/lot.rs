@@ -132,10 +132,10 @@ pub fn run(
         .then(|| grades.first().and_then(|g| table.find(g)))
         .flatten();
     let title = match distinct.as_slice() {
-        [one] => format!("{} magnets, grade {one}", summary.rows.len()),
+        [one] => format!("{}, grade {one}", magnets(summary.rows.len())),
         many => format!(
-            "{} magnets, mixed grades: {}",
-            summary.rows.len(),
+            "{}, mixed grades: {}",
+            magnets(summary.rows.len()),
             many.join(", ")
         ),
     };
@@ -213,4 +213,9 @@ fn against_master(
         }
     }
     Ok((rows, warnings))
+}
+
+/// `1 magnet`, `12 magnets`.
+fn magnets(n: usize) -> String {
+    crate::units::count(n as u64, "magnet", "magnets")
 }

@@ -240,8 +240,8 @@ fn counts_panel<DB: DrawingBackend>(
     let text_style = ("sans-serif", 18).into_font();
     let lines = [
         format!(
-            "{} magnets: {} pass, {} fail, {} indeterminate",
-            s.rows.len(),
+            "{}: {} pass, {} fail, {} indeterminate",
+            crate::units::count(s.rows.len() as u64, "magnet", "magnets"),
             s.passed,
             s.failed,
             s.indeterminate

@@ -148,6 +148,8 @@ fn a_lot_page_and_plot_show_alpha_per_degree_fahrenheit_and_flux_in_tesla() {
     assert!(html.contains(&format!("{:.5}", row.b20_mt / 1000.0)));
     let svg = std::fs::read_to_string(out.join("lot.svg")).unwrap();
     assert!(svg.contains("α(Br), %/°F") && svg.contains("B at 68 °F"));
+    // one magnet is one, not "1 magnets"
+    assert!(svg.contains("1 magnet, grade N42SH"), "title");
     // lot.csv stays SI-based
     let csv = std::fs::read_to_string(out.join("lot.csv")).unwrap();
     assert!(csv.contains(&format!("{:.5}", row.alpha)), "{csv}");
