@@ -98,3 +98,46 @@ impl TrendChart {
         c
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::units::{DisplayUnits, FluxUnit, TempUnit};
+
+    #[test]
+    fn a_chart_in_display_units_has_the_limits_of_the_converted_values() {
+        let points: Vec<TrendPoint> = (0..30)
+            .map(|k| TrendPoint {
+                when_utc: format!("2026-01-{:02}T08:00:00Z", k % 28 + 1),
+                magnet_id: Some(format!("M{k}")),
+                lot: None,
+                alpha_pct_per_c: Some(-0.11 + 0.001 * f64::from(k % 5)),
+                br_t: Some(1.30 + 0.002 * f64::from(k % 3)),
+                loss_pct: Some(0.01 * f64::from(k % 4)),
+            })
+            .collect();
+        let si = chart("S", None, &points, 25);
+        let us = si.shown(&DisplayUnits {
+            flux: FluxUnit::Gauss,
+            temp: TempUnit::Fahrenheit,
+        });
+        // the individuals chart's limits are linear in the values (centre ± 2.66 MR̄), so the
+        // limits computed from converted values are the converted limits
+        for (k, (p_si, p_us)) in si.panels.iter().zip(&us.panels).enumerate() {
+            let factor = [1.0 / 1.8, 1e4, 1.0][k];
+            let values: Vec<f64> = p_us.points.iter().map(|q| q.1).collect();
+            let direct = super::individuals(&values, 25).unwrap();
+            let (a, b) = (p_si.limits.unwrap(), p_us.limits.unwrap());
+            for (x, y, z) in [
+                (a.centre, b.centre, direct.centre),
+                (a.lower, b.lower, direct.lower),
+                (a.upper, b.upper, direct.upper),
+            ] {
+                assert!((x * factor - y).abs() <= 1e-9 * y.abs().max(1.0), "{k}");
+                assert!((y - z).abs() <= 1e-9 * z.abs().max(1.0), "{k}");
+            }
+        }
+        assert_eq!(us.panels[0].quantity, "α, %/°F");
+        assert_eq!(us.panels[1].quantity, "Br, G");
+    }
+}
