@@ -10,7 +10,10 @@
 #     cycle from it with `remanent record`, check the record, run `remanent self-test` (an
 #     injected fault must drive the heater off within one control period), then the fault
 #     drills: a panic, a hung loop and a stack overflow must each reset the board, which comes
-#     back latched with the heater off and says why.
+#     back latched with the heater off and says why;
+#  7. run the Pico image itself (the very bytes of the UF2) on an emulated RP2040 (npm's
+#     rp2040js, pinned in firmware/pico-emu/package-lock.json; Node from Debian), its sensors
+#     and heater simulated at the bus level from the rig model: tests/tests/pico.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 ROOT=$PWD
@@ -37,6 +40,10 @@ EMU=firmware/boards/emulated/target/thumbv7m-none-eabi/release/remanent-board-em
 echo "-- building the Pico board (thumbv6m-none-eabi), the image users flash"
 (cd firmware/boards/pico && cargo build --release -q)
 PICO=firmware/boards/pico/target/thumbv6m-none-eabi/release/remanent-board-pico
+
+echo "-- the Pico board with its fault drills (a test build: panic and hung loop on command)"
+(cd firmware/boards/pico && cargo build --release -q --features drills --target-dir target/drills)
+PICO_DRILLS=firmware/boards/pico/target/drills/thumbv6m-none-eabi/release/remanent-board-pico
 
 echo "-- image sizes"
 llvm-size-22 "$EMU" "$PICO"
@@ -68,4 +75,14 @@ for drill in panic hang stack-overflow; do
   echo "-- fault drill: $drill"
   timeout 120 target/release/remanent self-test --port "$LINK" --drill "$drill"
 done
+echo "-- the Pico image on an emulated RP2040"
+if ! command -v node >/dev/null || ! command -v npm >/dev/null; then
+  apt-get update -qq && apt-get install -y -qq --no-install-recommends nodejs npm >/dev/null
+fi
+(cd firmware/pico-emu && npm ci --no-audit --no-fund --silent)
+llvm-objcopy-22 -O binary "$PICO_DRILLS" target/remanent-pico-drills.bin
+REMANENT_PICO_IMAGE="$ROOT/target/remanent-pico.bin" \
+REMANENT_PICO_DRILLS_IMAGE="$ROOT/target/remanent-pico-drills.bin" \
+REMANENT_BIN="$ROOT/target/release/remanent" \
+  timeout 1500 cargo test -q --release -p remanent-tests --test pico -- --ignored --test-threads 2 --nocapture
 echo "-- firmware checks passed"

@@ -1,6 +1,10 @@
 //! The host link: USB CDC-ACM serviced from the USB interrupt, so sensor conversions in the
-//! main loop never delay it. The main loop moves bytes in and out under a critical section.
-//! Each board's serial number is the flash chip's unique id.
+//! main loop never delay it. The interrupt also takes every packet the host sent into a
+//! receive queue: the controller holds its interrupt asserted until an OUT buffer is read, so a
+//! packet left for the main loop would re-enter the handler for ever and starve the loop (the
+//! watchdog then resets the chip — found by running this image on the emulated RP2040). The
+//! main loop moves bytes in and out under a critical section. Each board's serial number is
+//! the flash chip's unique id.
 
 use core::cell::RefCell;
 
@@ -16,9 +20,13 @@ use usbd_serial::SerialPort;
 /// may use and when a bench needs its own).
 const VID_PID: UsbVidPid = UsbVidPid(0x16c0, 0x27dd);
 
+/// Bytes from the host waiting for the main loop (several frames' worth).
+type RxQueue = heapless::Deque<u8, 512>;
+
 struct Link {
     device: UsbDevice<'static, hal::usb::UsbBus>,
     serial: SerialPort<'static, hal::usb::UsbBus>,
+    rx: RxQueue,
 }
 
 static LINK: Mutex<RefCell<Option<Link>>> = Mutex::new(RefCell::new(None));
@@ -54,7 +62,13 @@ pub fn start(bus: &'static UsbBusAllocator<hal::usb::UsbBus>, serial_number: &'s
         return; // one language: cannot fail
     };
     let device = builder.device_class(usbd_serial::USB_CLASS_CDC).build();
-    critical_section::with(|cs| LINK.borrow(cs).replace(Some(Link { device, serial })));
+    critical_section::with(|cs| {
+        LINK.borrow(cs).replace(Some(Link {
+            device,
+            serial,
+            rx: RxQueue::new(),
+        }))
+    });
     // SAFETY: the handler only touches LINK, under a critical section.
     unsafe { pac::NVIC::unmask(pac::Interrupt::USBCTRL_IRQ) };
 }
@@ -62,7 +76,19 @@ pub fn start(bus: &'static UsbBusAllocator<hal::usb::UsbBus>, serial_number: &'s
 /// Bytes from the host, if any.
 pub fn read(buf: &mut [u8]) -> usize {
     critical_section::with(|cs| match LINK.borrow_ref_mut(cs).as_mut() {
-        Some(l) => l.serial.read(buf).unwrap_or(0),
+        Some(l) => {
+            let mut n = 0;
+            while n < buf.len() {
+                match l.rx.pop_front() {
+                    Some(b) => {
+                        buf[n] = b;
+                        n += 1;
+                    }
+                    None => break,
+                }
+            }
+            n
+        }
         None => 0,
     })
 }
@@ -80,6 +106,14 @@ fn USBCTRL_IRQ() {
     critical_section::with(|cs| {
         if let Some(l) = LINK.borrow_ref_mut(cs).as_mut() {
             l.device.poll(&mut [&mut l.serial]);
+            // take what the host sent, so its buffer is free and the interrupt clears; a full
+            // queue drops bytes (the frame's CRC then fails and the host sends it again)
+            let mut packet = [0u8; 64];
+            while let Ok(n @ 1..) = l.serial.read(&mut packet) {
+                for &b in &packet[..n] {
+                    let _ = l.rx.push_back(b);
+                }
+            }
         }
     });
 }

@@ -1,0 +1,350 @@
+//! The Pico image users flash, run on an emulated RP2040 (npm's rp2040js, no boot ROM) with its
+//! world simulated at the bus level from the rig model, held to the promises the host tests
+//! make of the firmware library. Each scenario is judged from pins and bytes only: the enable
+//! and heater lines, what crosses the USB link, and the rig's own temperatures.
+//!
+//! `firmware/ci.sh` builds the images and runs these (`--ignored`: they need Node and the
+//! images): `REMANENT_PICO_IMAGE` is the build that becomes the UF2; `REMANENT_PICO_DRILLS_IMAGE`
+//! the same board crate with its `drills` feature, for the panic and hung-loop drills a user's
+//! image does not carry.
+
+mod emu;
+mod record;
+
+use emu::{image, Emu, ENABLE_PIN, HEATER_PIN};
+use remanent_protocol::{
+    Command, DeviceHello, DeviceMsg, Drill, Fault, RefuseReason, ResetCause, RunState, VERSION,
+};
+
+const USER_IMAGE: &str = "REMANENT_PICO_IMAGE";
+const DRILLS_IMAGE: &str = "REMANENT_PICO_DRILLS_IMAGE";
+/// USB serviced within this, µs (the bound: one control period's worth of slack).
+const USB_SERVICE_LIMIT_US: u64 = 10_000;
+
+fn hello(m: &DeviceMsg) -> Option<DeviceHello> {
+    match m {
+        DeviceMsg::Hello(h) => Some(h.clone()),
+        _ => None,
+    }
+}
+
+fn fault(m: &DeviceMsg) -> Option<Fault> {
+    match m {
+        DeviceMsg::Fault(f) => Some(f.fault),
+        _ => None,
+    }
+}
+
+/// Enumerated since the chip last started, and the device's hello after the host's (asked
+/// again if the chip resets meanwhile).
+fn handshake(e: &mut Emu) -> (u64, DeviceHello) {
+    let last = |e: &Emu, what: &str| e.events_with(what).last().copied();
+    let up = |e: &Emu| match (last(e, "usb configured"), last(e, "reset watchdog")) {
+        (Some(configured), Some(reset)) => configured > reset,
+        (configured, None) => configured.is_some(),
+        (None, Some(_)) => false,
+    };
+    for _ in 0..5 {
+        assert!(e.run_until(3000, |e| up(e)), "the device enumerated");
+        let sent = e.t_us;
+        e.send(Command::Hello(VERSION));
+        if e.run_until(1000, |e| e.find(sent, hello).is_some()) {
+            return e.find(sent, hello).expect("hello");
+        }
+    }
+    panic!(
+        "no hello: {:?}",
+        e.msgs.iter().rev().take(3).collect::<Vec<_>>()
+    );
+}
+
+fn manual(setpoint_c: f64, limit_c: f64) -> Command {
+    Command::Manual {
+        setpoint_tenth_c: (setpoint_c * 10.0) as i16,
+        limit_tenth_c: (limit_c * 10.0) as i16,
+    }
+}
+
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
+fn pico_boots_enumerates_and_says_hello_with_the_heater_off() {
+    let mut e = Emu::start(&image(USER_IMAGE));
+    let (t, h) = handshake(&mut e);
+    println!("hello at {:.3} s: {h:?}", t as f64 / 1e6);
+    assert_eq!(h.board.as_str(), "pico");
+    assert_eq!(h.version, VERSION);
+    assert_eq!(h.boot.reset, ResetCause::PowerOn);
+    assert_eq!(h.latched, None);
+    // idle: samples flow at the default 10 Hz and the heater is never enabled
+    let from = e.t_us;
+    e.run_alive(2000, 500);
+    let samples = e
+        .msgs
+        .iter()
+        .filter(|(t, m)| *t >= from && matches!(m, DeviceMsg::Sample(_)))
+        .count();
+    assert!((18..=22).contains(&samples), "{samples} samples in 2 s");
+    assert!(
+        !e.pin_high_since(ENABLE_PIN, 0),
+        "the enable line stayed low"
+    );
+    assert_eq!(e.bad_frames, 0);
+    assert!(
+        e.max_usb_service_us <= USB_SERVICE_LIMIT_US,
+        "{} µs",
+        e.max_usb_service_us
+    );
+}
+
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
+fn pico_drops_the_heater_within_2_5_s_of_the_last_heartbeat() {
+    let mut e = Emu::start(&image(USER_IMAGE));
+    handshake(&mut e);
+    e.send(manual(40.0, 50.0));
+    e.run_alive(3000, 500);
+    assert!(e.enable, "heating under manual control");
+    // the host goes quiet
+    let last = e.last_host_us.expect("sent");
+    assert!(e.run_until(4000, |e| !e.enable), "the enable line fell");
+    let off = e.pin_went(ENABLE_PIN, false, last).expect("fell");
+    let after_s = (off - last) as f64 / 1e6;
+    println!("heartbeat lost: enable low {after_s:.2} s after the last host bytes");
+    assert!(after_s <= 2.5, "{after_s:.2} s");
+    assert_eq!(e.find(last, fault).map(|x| x.1), Some(Fault::HeartbeatLost));
+    assert!(
+        e.max_usb_service_us <= USB_SERVICE_LIMIT_US,
+        "{} µs",
+        e.max_usb_service_us
+    );
+}
+
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
+fn pico_with_no_converter_reports_a_fault_and_never_heats() {
+    let mut e = Emu::start(&image(USER_IMAGE));
+    e.tell("C 0"); // nothing on the SPI bus: its data line reads as its pad's pull
+    let (_, h) = handshake(&mut e);
+    // the fault is latched from the first reading, before any host asked: the hello says so
+    assert_eq!(h.latched, Some(Fault::SensorBus), "{h:?}");
+    let id = e.send(manual(60.0, 70.0));
+    e.run_alive(3000, 500);
+    let refused = e.find(0, |m| match m {
+        DeviceMsg::Refused(r) if r.id == id => Some(r.reason),
+        _ => None,
+    });
+    println!(
+        "no converter: hello latched {:?}, heat refused: {refused:?}",
+        h.latched
+    );
+    assert_eq!(
+        refused.map(|r| r.1),
+        Some(RefuseReason::FaultLatched(Fault::SensorBus))
+    );
+    assert!(
+        !e.pin_high_since(ENABLE_PIN, 0),
+        "the enable line never rose"
+    );
+    assert!(!e.pin_high_since(HEATER_PIN, 0), "nor the heater output");
+}
+
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
+fn pico_trips_a_detached_thermocouple_before_the_block_passes_its_limit_by_10_k() {
+    let mut e = Emu::start(&image(USER_IMAGE));
+    handshake(&mut e);
+    let (setpoint, limit) = (45.0, 50.0);
+    e.send(manual(setpoint, limit));
+    // heat to near the setpoint, then the junction slips off the plate
+    for _ in 0..180 {
+        if e.rig.thermal.plate_c >= setpoint - 3.0 {
+            break;
+        }
+        e.run_alive(500, 500);
+    }
+    assert!(
+        e.rig.thermal.plate_c >= setpoint - 3.0,
+        "heated to {:.1} °C",
+        e.rig.thermal.plate_c
+    );
+    let at_s = e.rig.time_s();
+    e.rig.faults.thermocouple_detached_at_s = Some(at_s);
+    let detached_us = e.t_us;
+    let tripped = loop {
+        e.run_alive(500, 500);
+        if let Some((t, f)) = e.find(detached_us, fault) {
+            break Some((t, f));
+        }
+        if e.t_us > detached_us + 60_000_000 {
+            break None;
+        }
+    };
+    let (t, f) = tripped.expect("a trip within 60 s of the junction coming off");
+    println!(
+        "detached at {:.1} °C: {f:?} after {:.1} s, plate peak {:.1} °C",
+        setpoint - 3.0,
+        (t - detached_us) as f64 / 1e6,
+        e.plate_max_c
+    );
+    assert!(
+        e.plate_max_c < limit + 10.0,
+        "plate reached {:.1} °C",
+        e.plate_max_c
+    );
+    e.run_ms(500);
+    assert!(!e.enable, "heater disabled after the trip");
+}
+
+/// A failure of the firmware: the heater lines low within `off_within_ms`, the chip reset, and
+/// back up latched and saying why, with the heater staying off. `after_reset` runs once the
+/// chip has reset (a wedged bus freed, say).
+fn safe_after(
+    e: &mut Emu,
+    fail: impl FnOnce(&mut Emu),
+    after_reset: impl FnOnce(&mut Emu),
+    why: ResetCause,
+    off_within_ms: u64,
+) {
+    handshake(e);
+    e.send(manual(40.0, 50.0));
+    e.run_alive(2000, 500);
+    assert!(e.enable, "heating before the failure");
+    let at = e.t_us;
+    fail(e);
+    assert!(
+        e.run_until(off_within_ms + 5, |e| !e.enable),
+        "the enable line fell"
+    );
+    let off = e.pin_went(ENABLE_PIN, false, at).expect("fell");
+    let ms = (off - at) as f64 / 1000.0;
+    println!("{why:?}: enable low {ms:.1} ms after the failure");
+    assert!(ms <= off_within_ms as f64, "{ms:.1} ms");
+    assert!(
+        e.run_until(2000, |e| !e.events_with("reset watchdog").is_empty()),
+        "the chip reset"
+    );
+    let reset_at = e.events_with("reset watchdog")[0];
+    after_reset(e);
+    let (_, h) = handshake(e);
+    assert_eq!(h.boot.reset, why, "{h:?}");
+    assert!(h.latched.is_some(), "comes back latched: {h:?}");
+    // the host asks for heat again: refused while latched, and the line stays low
+    e.send(manual(40.0, 50.0));
+    e.run_alive(2000, 500);
+    assert!(
+        !e.pin_high_since(ENABLE_PIN, reset_at),
+        "the heater stayed off after the reset"
+    );
+    assert!(!e.pin_high_since(HEATER_PIN, reset_at), "its output too");
+}
+
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
+fn pico_hard_fault_drops_the_heater_and_resets_the_chip() {
+    let mut e = Emu::start(&image(USER_IMAGE));
+    safe_after(&mut e, |e| e.tell("F"), |_| {}, ResetCause::HardFault, 100);
+}
+
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
+fn pico_stuck_sensor_bus_hangs_the_loop_and_the_watchdog_resets_it() {
+    let mut e = Emu::start(&image(USER_IMAGE));
+    // a wedged device holds the I2C bus: the main loop never completes another period; while
+    // it stays wedged the chip keeps resetting with the heater off, then it lets go
+    let wedged = |e: &mut Emu| {
+        let at = e.t_us;
+        e.run_ms(3000);
+        assert!(
+            !e.pin_high_since(ENABLE_PIN, at),
+            "the heater stayed off while wedged"
+        );
+        assert!(!e.pin_high_since(HEATER_PIN, at), "its output too");
+        e.tell("I 0");
+    };
+    safe_after(
+        &mut e,
+        |e| e.tell("I 1"),
+        wedged,
+        ResetCause::Watchdog,
+        1000,
+    );
+}
+
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico drills image: firmware/ci.sh runs it"]
+fn pico_panic_drops_the_heater_within_100_ms_and_resets_the_chip() {
+    let mut e = Emu::start(&image(DRILLS_IMAGE));
+    let drill = |e: &mut Emu| {
+        e.send(Command::Drill(Drill::Panic));
+    };
+    safe_after(&mut e, drill, |_| {}, ResetCause::Panic, 100);
+}
+
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico drills image: firmware/ci.sh runs it"]
+fn pico_hung_loop_is_reset_by_the_watchdog_and_the_heater_stays_off() {
+    let mut e = Emu::start(&image(DRILLS_IMAGE));
+    let drill = |e: &mut Emu| {
+        e.send(Command::Drill(Drill::Hang));
+    };
+    safe_after(&mut e, drill, |_| {}, ResetCause::Watchdog, 1000);
+}
+
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
+fn pico_counts_what_it_cannot_send_while_the_host_stops_reading_for_3_s() {
+    let mut e = Emu::start(&image(USER_IMAGE));
+    handshake(&mut e);
+    e.run_alive(2000, 500);
+    e.tell("R 0");
+    let stopped = e.t_us;
+    e.run_alive(3000, 500);
+    e.tell("R 1");
+    let resumed = e.t_us;
+    e.run_alive(3000, 500);
+    // the pause was real: nothing reached the host while it did not read
+    let during = e
+        .msgs
+        .iter()
+        .filter(|(t, _)| *t > stopped + 50_000 && *t < resumed)
+        .count();
+    assert_eq!(
+        during, 0,
+        "{during} messages arrived while the host was not reading"
+    );
+    // every sample numbered from before the pause to after it arrived, or is counted dropped
+    let mut seqs: Vec<u8> = Vec::new();
+    let mut beacons = Vec::new();
+    for (t, m) in &e.msgs {
+        match m {
+            DeviceMsg::Sample(s) if *t >= stopped - 1_000_000 => seqs.push(s.seq_lo),
+            DeviceMsg::Beacon(b) => beacons.push((*t, *b)),
+            _ => {}
+        }
+    }
+    let missing: u32 = seqs
+        .windows(2)
+        .map(|w| u32::from(w[1].wrapping_sub(w[0])).saturating_sub(1))
+        .sum();
+    let before = beacons
+        .iter()
+        .rfind(|b| b.0 < stopped)
+        .map(|b| b.1.dropped_total);
+    let after = beacons.last().map(|b| b.1.dropped_total);
+    let counted = after.unwrap_or(0) - before.unwrap_or(0);
+    println!(
+        "host paused 3 s: {} samples arrived, {missing} missing, {counted} counted dropped",
+        seqs.len()
+    );
+    assert_eq!(missing, counted, "each missing sample is counted");
+    assert!(
+        seqs.len() + missing as usize >= 60,
+        "the samples kept being taken"
+    );
+    assert_eq!(beacons.last().map(|b| b.1.state), Some(RunState::Idle));
+    assert!(
+        e.max_usb_service_us <= USB_SERVICE_LIMIT_US,
+        "{} µs",
+        e.max_usb_service_us
+    );
+}
