@@ -89,6 +89,10 @@ fn pico_boots_enumerates_and_says_hello_with_the_heater_off() {
         "the enable line stayed low"
     );
     assert_eq!(e.bad_frames, 0);
+    println!(
+        "longest wait of a USB buffer for the interrupt handler: {} µs",
+        e.max_usb_service_us
+    );
     assert!(
         e.max_usb_service_us <= USB_SERVICE_LIMIT_US,
         "{} µs",

@@ -35,6 +35,16 @@ ramp_C_per_min = 30.0
 hold_s = 12.0
 "#;
 
+/// The host tool's process, ended with the test whatever happens.
+struct Recorder(std::process::Child);
+
+impl Drop for Recorder {
+    fn drop(&mut self) {
+        let _ = self.0.kill();
+        let _ = self.0.wait();
+    }
+}
+
 #[test]
 #[ignore = "needs Node, rp2040js, the Pico image and a release build of remanent: firmware/ci.sh runs it"]
 fn remanent_record_on_the_pico_image_keeps_every_sample_and_follows_the_setpoint() {
@@ -45,23 +55,25 @@ fn remanent_record_on_the_pico_image_keeps_every_sample_and_follows_the_setpoint
     let (mut master, slave) = TTYPort::pair().expect("a pseudo-terminal");
     let path = slave.name().expect("its path");
     let mut e = Emu::start(&image("REMANENT_PICO_IMAGE"));
-    let mut child = Process::new(remanent_bin())
-        .args([
-            "record",
-            "--port",
-            &path,
-            "--magnet",
-            "RM-N42SH-D10x5",
-            "--uncalibrated",
-        ])
-        .arg("--full-profile")
-        .arg("--profile")
-        .arg(&profile)
-        .arg("--out")
-        .arg(&out)
-        .env("REMANENT_HISTORY", "off")
-        .spawn()
-        .expect("remanent");
+    let mut child = Recorder(
+        Process::new(remanent_bin())
+            .args([
+                "record",
+                "--port",
+                &path,
+                "--magnet",
+                "RM-N42SH-D10x5",
+                "--uncalibrated",
+            ])
+            .arg("--full-profile")
+            .arg("--profile")
+            .arg(&profile)
+            .arg("--out")
+            .arg(&out)
+            .env("REMANENT_HISTORY", "off")
+            .spawn()
+            .expect("remanent"),
+    );
     let mut buf = [0u8; 512];
     let status = loop {
         // bytes from the host tool go to the device; the device's go back, slice by slice
@@ -76,7 +88,7 @@ fn remanent_record_on_the_pico_image_keeps_every_sample_and_follows_the_setpoint
         if !raw.is_empty() {
             master.write_all(&raw).expect("to the host tool");
         }
-        if let Some(s) = child.try_wait().expect("remanent") {
+        if let Some(s) = child.0.try_wait().expect("remanent") {
             break s;
         }
         assert!(
