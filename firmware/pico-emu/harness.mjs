@@ -42,7 +42,6 @@ let chip = null;
 let clock = null;
 let host = null;
 let offsetNs = 0; // emulated time before the chip's last reset
-let resets = 0;
 const scratch = new Uint32Array(8);
 const pins = { [HEATER_PIN]: false, [ENABLE_PIN]: false };
 let heaterSince = 0;
@@ -81,7 +80,6 @@ function startChip(reason) {
     wd.alarm.enable = false;
     wd.timer.enable = false;
     scratch.set(wd.scratchData);
-    resets += 1;
     const why = wd.reason === 1 ? 'timer' : 'forced';
     out(`E reset watchdog ${why} pc ${chip.core.PC.toString(16)}`);
     pendingReset = wd.reason;

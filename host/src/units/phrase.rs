@@ -70,7 +70,7 @@ impl Qty {
         self
     }
 
-    /// The value(s) converted, and the unit and decimals they are shown with.
+    /// `v` in the units shown (`as_span`: a difference, for a temperature's ± part).
     fn convert(&self, u: &DisplayUnits, v: f64, as_span: bool) -> f64 {
         match self.kind {
             Kind::Temp if as_span => u.temp_span(v),

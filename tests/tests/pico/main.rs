@@ -274,13 +274,18 @@ fn pico_stuck_sensor_bus_hangs_the_loop_and_the_watchdog_resets_it() {
     );
 }
 
+/// The failure a drills build carries out on command.
+fn command_drill(drill: Drill) -> impl FnOnce(&mut Emu) {
+    move |e: &mut Emu| {
+        e.send(Command::Drill(drill));
+    }
+}
+
 #[test]
 #[ignore = "needs Node, rp2040js and the Pico drills image: firmware/ci.sh runs it"]
 fn pico_panic_drops_the_heater_within_100_ms_and_resets_the_chip() {
     let mut e = Emu::start(&image(DRILLS_IMAGE));
-    let drill = |e: &mut Emu| {
-        e.send(Command::Drill(Drill::Panic));
-    };
+    let drill = command_drill(Drill::Panic);
     safe_after(&mut e, drill, |_| {}, ResetCause::Panic, 100);
 }
 
@@ -288,9 +293,7 @@ fn pico_panic_drops_the_heater_within_100_ms_and_resets_the_chip() {
 #[ignore = "needs Node, rp2040js and the Pico drills image: firmware/ci.sh runs it"]
 fn pico_hung_loop_is_reset_by_the_watchdog_and_the_heater_stays_off() {
     let mut e = Emu::start(&image(DRILLS_IMAGE));
-    let drill = |e: &mut Emu| {
-        e.send(Command::Drill(Drill::Hang));
-    };
+    let drill = command_drill(Drill::Hang);
     safe_after(&mut e, drill, |_| {}, ResetCause::Watchdog, 1000);
 }
 

@@ -7,27 +7,13 @@ use std::path::Path;
 use std::process::Command;
 
 use remanent::inspection::Inspection;
-use remanent::jobs::trial::{self, TrialSpec};
 use remanent::report::pdf_flow::Paper;
 use remanent::run_dir::read_meta;
-
-/// The demo part on `rapid`, ended by the analysis, into `out`.
-fn rapid_run(out: &Path, seed: u64) {
-    let spec = TrialSpec {
-        magnet: "RM-N42SH-D10x5".into(),
-        magnet_tau_s: 45.0,
-        profile: remanent::profiles::ProfileSpec::resolve("rapid").unwrap(),
-        auto_end: Some(Default::default()),
-        preroll_s: 60.0,
-        seed,
-    };
-    trial::run(&spec, out).unwrap();
-}
 
 /// A short run of the demo part with a shipment's details, reported on `paper`.
 fn certified(dir: &Path, paper: Paper) -> std::path::PathBuf {
     let out = dir.join("run");
-    rapid_run(&out, 3);
+    crate::util::rapid_run(&out, 3);
     // the shipment's details, as `record --lot … --order … --supplier … --operator …` keeps them
     let mut text = std::fs::read_to_string(out.join("run.toml")).unwrap();
     let mut meta = read_meta(&out).unwrap();
@@ -167,7 +153,7 @@ fn certificate_pages_render_and_carry_the_inspection_read_back_by_poppler() {
 fn a_loggers_csv_file_gets_the_whole_report_beside_it() {
     let dir = tempfile::tempdir().unwrap();
     let run = dir.path().join("run");
-    rapid_run(&run, 8);
+    crate::util::rapid_run(&run, 8);
     // the same record as another logger would write it: time, temperature, flux
     let (s, _) = remanent::analysis::dataset::load_run(&run, None).unwrap();
     let mut text = String::from("time_s,temp_C,flux_mT\n");
@@ -215,7 +201,7 @@ fn a_loggers_csv_file_gets_the_whole_report_beside_it() {
 fn certificate_pages_in_gauss_and_fahrenheit_say_so_and_convert_alpha() {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("run");
-    rapid_run(&out, 5);
+    crate::util::rapid_run(&out, 5);
     let look = remanent::report::Look {
         units: remanent::units::DisplayUnits {
             flux: remanent::units::FluxUnit::Gauss,

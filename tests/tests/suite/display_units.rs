@@ -6,7 +6,6 @@
 
 use std::path::{Path, PathBuf};
 
-use remanent::jobs::trial::{self, TrialSpec};
 use remanent::report::Look;
 use remanent::units::{DisplayUnits, FluxUnit, TempUnit};
 
@@ -18,15 +17,7 @@ const US: DisplayUnits = DisplayUnits {
 /// The demo part on `rapid` into `dir/name`, reported in `look`.
 fn reported(dir: &Path, name: &str, look: &Look) -> PathBuf {
     let out = dir.join(name);
-    let spec = TrialSpec {
-        magnet: "RM-N42SH-D10x5".into(),
-        magnet_tau_s: 45.0,
-        profile: remanent::profiles::ProfileSpec::resolve("rapid").unwrap(),
-        auto_end: Some(Default::default()),
-        preroll_s: 60.0,
-        seed: 11,
-    };
-    trial::run(&spec, &out).unwrap();
+    crate::util::rapid_run(&out, 11);
     remanent::jobs::report::run(&out, &Default::default(), false, look).unwrap();
     out
 }

@@ -117,3 +117,17 @@ pub fn assert_noted(a: &remanent::analysis::Analysis, text: &str) {
         a.notes
     );
 }
+
+/// The demo part on `rapid`, ended by the analysis, into `out`.
+pub fn rapid_run(out: &std::path::Path, seed: u64) {
+    use remanent::jobs::trial::{self, TrialSpec};
+    let spec = TrialSpec {
+        magnet: "RM-N42SH-D10x5".into(),
+        magnet_tau_s: 45.0,
+        profile: remanent::profiles::ProfileSpec::resolve("rapid").unwrap(),
+        auto_end: Some(Default::default()),
+        preroll_s: 60.0,
+        seed,
+    };
+    trial::run(&spec, out).unwrap();
+}
