@@ -108,16 +108,22 @@ impl FixtureReference {
                 "the reference's reading in this fixture".to_string(),
                 self.b20_u_mt / self.b20_mt * 100.0,
             ),
+            // the reference's mean over its placements, and the part's one placement: each
+            // moves its reading by the fixture's repeatability
             (
                 format!(
-                    "placing a magnet again (repeatability, {} placement{})",
+                    "placing the reference ({} placement{})",
                     self.placements,
                     if self.placements == 1 {
-                        ", typical value"
+                        ", typical repeatability"
                     } else {
                         "s"
                     }
                 ),
+                self.repeatability_pct / (self.placements.max(1) as f64).sqrt(),
+            ),
+            (
+                "placing the part (one placement)".to_string(),
                 self.repeatability_pct,
             ),
             (

@@ -10,7 +10,7 @@ use super::fit_data::FitData;
 use super::lag;
 use super::lag_estimate::Lagged;
 use super::lsq::{self, Fit};
-use super::model::{autocorrelation_inflation, propagate, Quadratic};
+use super::model::{autocorrelation_inflation, propagate, Quadratic, REFERENCE_C};
 use super::prepare::Prepared;
 use super::result::BudgetLine;
 
@@ -40,6 +40,11 @@ impl AlphaResult {
     pub fn u_c(&self) -> f64 {
         BudgetLine::combined(&self.budget)
     }
+
+    /// Expanded uncertainty (the budget's 95.45 % coverage interval), %/°C.
+    pub fn u95(&self) -> f64 {
+        BudgetLine::expanded(&self.budget)
+    }
 }
 
 /// Fit and budget.
@@ -63,9 +68,9 @@ pub fn estimate(
     let gain_pct = cal
         .map(|c| c.thermocouple.gain_tolerance_pct)
         .unwrap_or(ctx.default_tc_gain_pct);
-    budget.push(BudgetLine::b(
+    budget.push(BudgetLine::rectangular(
         format!("thermocouple gain tolerance ±{gain_pct} % (rectangular)"),
-        alpha.abs() * gain_pct / 100.0 / 3f64.sqrt(),
+        gain_sensitivity(&model, t_hi) * gain_pct / 100.0 / 3f64.sqrt(),
     ));
     let probe_slope =
         p.s.probe_c
@@ -110,7 +115,7 @@ pub fn estimate(
             (h.join().unwrap_or(alpha), a_at(lo))
         });
         let spread = (a_hi - a_lo).abs() / 2.0;
-        budget.push(BudgetLine::b(
+        budget.push(BudgetLine::rectangular(
             format!("lag model (τ {lo:.0} … {hi:.0} s, rectangular)"),
             spread / 3f64.sqrt(),
         ));
@@ -124,6 +129,14 @@ pub fn estimate(
         budget,
         inflation,
     })
+}
+
+/// How much α moves per unit of relative thermocouple gain error, %/°C: a reading of
+/// (1 + g)·T in °C shrinks every slope by 1 + g and moves the top of the fit, on a curved B(T),
+/// by g·T — to first order δα = −g·(α + γ·(T_top + 20 °C)) (worked by hand from the model
+/// B = b0·(1 + α₁x + γx²), x = T − 20, read at x' = (1 + g)(x + 20) − 20).
+pub fn gain_sensitivity(model: &Quadratic, top_c: f64) -> f64 {
+    (model.mean_alpha_pct_per_c(top_c) + model.gamma_pct_per_c2() * (top_c + REFERENCE_C)).abs()
 }
 
 /// Slope of `y` against `x` (least squares), every `stride`-th point.

@@ -48,7 +48,7 @@ pub fn full(
             "scatter of the compared branch points (type A)",
             sd / (n as f64 / CORRELATED_SAMPLES).max(1.0).sqrt() * 100.0,
         ),
-        BudgetLine::b(
+        BudgetLine::rectangular(
             format!(
                 "lag model (τ ± {:.0} %, rectangular)",
                 lag_tolerance * 100.0
@@ -61,7 +61,7 @@ pub fn full(
         .fold(f64::INFINITY, f64::min);
     Some(LossResult {
         loss_pct: loss * 100.0,
-        u95_pct: 2.0 * BudgetLine::combined(&budget),
+        u95_pct: BudgetLine::expanded(&budget),
         budget,
         ref_c: [t_lo, t_lo],
         ref_probe_c: None,

@@ -165,3 +165,29 @@ fn line_rss(x: impl Iterator<Item = f64> + Clone, y: &[f64]) -> f64 {
     }
     (syy - sxy * sxy / sxx).max(0.0)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_ramp_is_followed_one_time_constant_behind() {
+        // a first-order lag of τ on a ramp of rate r settles to T − r·τ (the textbook ramp
+        // response of a first-order system): r = 0.05 K/s, τ = 30 s, so 1.5 K behind
+        let time: Vec<f64> = (0..4000).map(|i| f64::from(i) * 0.5).collect();
+        let temp: Vec<f64> = time.iter().map(|t| 20.0 + 0.05 * t).collect();
+        let m = lagged(&time, &temp, 30.0);
+        let behind = temp[3999] - m[3999];
+        assert!((behind - 1.5).abs() < 1e-3, "{behind}");
+        // a step is approached as 1 − e^(−t/τ): after one τ, 63.2 % of the way
+        let step: Vec<f64> = time
+            .iter()
+            .map(|&t| if t > 0.0 { 10.0 } else { 0.0 })
+            .collect();
+        let m = lagged(&time, &step, 30.0);
+        let frac = m[60] / 10.0; // t = 30 s
+        assert!((frac - (1.0 - (-1.0f64).exp())).abs() < 0.01, "{frac}");
+        // no lag: the input itself
+        assert_eq!(lagged(&time, &temp, 0.0), temp);
+    }
+}

@@ -2,14 +2,14 @@
 //! referred to one temperature with the fitted reversible curve — with its own budget.
 
 use super::context::Context;
-use super::model::Quadratic;
+use super::model::{autocorrelation_inflation, Quadratic};
 use super::prepare::{mean, Prepared};
 use super::result::BudgetLine;
 use super::segments::Segments;
 use remanent_physics::shape::dln_bz_per_mm;
 
-/// Readings within a reference window are correlated over about this many samples: the
-/// type-A term counts them as n / this.
+/// Points compared between the heating and cooling branches are correlated over about this
+/// many samples: the branch loss's type-A term counts them as n / this.
 pub const CORRELATED_SAMPLES: f64 = 10.0;
 /// The reversible correction between the references is known as well as α itself (the same
 /// fitted curve, the same thermocouple gain and lag), relatively; never better than this
@@ -76,13 +76,25 @@ fn settled(r: &std::ops::Range<usize>) -> std::ops::Range<usize> {
     r.start + (r.end - r.start) * 7 / 10..r.end
 }
 
-/// How much the flux still drifted across a window: the difference of its two halves'
-/// means, relative to the mean, % (a window that has not settled shows it here).
-fn drift_pct(flux: &[f64], r: &std::ops::Range<usize>) -> f64 {
-    let mid = r.start + (r.end - r.start) / 2;
-    let (a, _, _) = mean(flux[r.start..mid].iter().copied());
-    let (b, _, _) = mean(flux[mid..r.end].iter().copied());
-    ((b - a) / (0.5 * (a + b))).abs() * 100.0
+/// The standard uncertainty of a window's mean, mT: its scatter over √n, inflated for
+/// neighbouring readings that move together (lag-1 autocorrelation, as the fit's residuals).
+fn mean_u(v: &[f64]) -> f64 {
+    let (m, sd, n) = mean(v.iter().copied());
+    let dev: Vec<f64> = v.iter().map(|x| x - m).collect();
+    sd * autocorrelation_inflation(&dev) / (n.max(1) as f64).sqrt()
+}
+
+/// How much the flux still drifted across a window beyond what its scatter explains: the
+/// difference of its two halves' means, less the part the readings' own noise would give
+/// (in quadrature), relative to the mean, % (a window that has not settled shows it here).
+fn drift_pct(v: &[f64]) -> f64 {
+    let mid = v.len() / 2;
+    let (a, _, _) = mean(v[..mid].iter().copied());
+    let (b, _, _) = mean(v[mid..].iter().copied());
+    // each half's mean carries √2 × the whole window's mean_u
+    let noise = 2.0 * mean_u(v);
+    let d = b - a;
+    (d * d - noise * noise).max(0.0).sqrt() / (0.5 * (a + b)).abs() * 100.0
 }
 
 /// Quick loss estimate (fraction, no budget) for the lag search.
@@ -166,18 +178,14 @@ pub fn full(
             .collect()
     };
     let (flux0, flux1) = (referred(&before_r, t0), referred(&after_r, t1));
-    let (b0, sd0, n0) = mean(flux0.iter().copied());
-    let (b1, sd1, n1) = mean(flux1.iter().copied());
+    let (b0, _, _) = mean(flux0.iter().copied());
+    let (b1, _, _) = mean(flux1.iter().copied());
     let (tc0, _, _) = mean(before_r.clone().map(|i| p.s.temp_c[i]));
     let (tc1, _, _) = mean(after_r.clone().map(|i| p.s.temp_c[i]));
     let lag_shift_k = ((t0 - tc0).powi(2) + (t1 - tc1).powi(2)).sqrt();
     let ratio = model.eval_mt(t0) / model.eval_mt(t1);
     let loss = (b0 - b1 * ratio) / b0;
-    let u_mean = ((sd0 * sd0 / (n0 as f64 / CORRELATED_SAMPLES).max(1.0))
-        + (sd1 * sd1 / (n1 as f64 / CORRELATED_SAMPLES).max(1.0)))
-    .sqrt()
-        / b0
-        * 100.0;
+    let u_mean = mean_u(&flux0).hypot(mean_u(&flux1)) / b0 * 100.0;
     let alpha_rel = (model.b1_mt_per_c / model.b0_mt).abs();
     // the curve bridges the references: the correction is known as well as α, relatively
     let correction_pct = (ratio - 1.0).abs() * 100.0;
@@ -193,9 +201,7 @@ pub fn full(
         BudgetLine::a("scatter of the reference readings (type A)", u_mean),
         BudgetLine::b(
             "drift within the reference windows (not fully settled)",
-            (drift_pct(&flux0, &(0..flux0.len())).powi(2)
-                + drift_pct(&flux1, &(0..flux1.len())).powi(2))
-            .sqrt(),
+            drift_pct(&flux0).hypot(drift_pct(&flux1)),
         ),
         BudgetLine::b(
             "lag correction of the reference temperatures",
@@ -234,10 +240,119 @@ pub fn full(
     }
     Ok(LossResult {
         loss_pct: loss * 100.0,
-        u95_pct: 2.0 * BudgetLine::combined(&budget),
+        u95_pct: BudgetLine::expanded(&budget),
         budget,
         ref_c: [t0, t1],
         ref_probe_c: ref_probe,
         probe_term_pct: probe_term,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::series::Series;
+
+    /// 100 readings at `t0` around `b0`, 100 on the excursion, 100 at `t1` around `b1`; the
+    /// readings alternate ±0.01 mT about their level.
+    fn record(t0: f64, b0: f64, t1: f64, b1: f64) -> Series {
+        let mut s = Series::default();
+        for i in 0..300 {
+            let (t, b) = match i {
+                0..100 => (t0, b0),
+                100..200 => (100.0, 150.0),
+                _ => (t1, b1),
+            };
+            s.time_s.push(f64::from(i));
+            s.temp_c.push(t);
+            s.flux_mt.push(b + if i % 2 == 0 { 0.01 } else { -0.01 });
+        }
+        s
+    }
+
+    fn segments() -> Segments {
+        Segments {
+            before: 0..100,
+            after: Some(200..300),
+            peak: 150,
+            heating: 100..150,
+            cooling: 150..200,
+            soaks: Vec::new(),
+        }
+    }
+
+    fn ctx() -> Context {
+        Context {
+            calibration: None,
+            magnet: None,
+            specs: crate::specs::SpecTable::builtin(),
+            default_tc_gain_pct: 0.75,
+            reference: None,
+        }
+    }
+
+    /// B = 200 − 0.2·(T − 20) mT.
+    const LINE: Quadratic = Quadratic {
+        b0_mt: 200.0,
+        b1_mt_per_c: -0.2,
+        b2_mt_per_c2: 0.0,
+    };
+
+    fn loss_of(s: &Series, alpha: (f64, f64)) -> Result<LossResult, NoLoss> {
+        let p = Prepared::new(s, &ctx(), &mut Vec::new());
+        full(&p, &segments(), &s.temp_c, &ctx(), &LINE, alpha, 0.1)
+    }
+
+    #[test]
+    fn references_at_one_temperature_give_the_drop_and_its_scatter() {
+        // 199 → 198.005 mT at 25 °C: (199 − 198.005) / 199 = 0.5 % lost (by hand); a gain
+        // reads as a negative loss
+        let l = loss_of(&record(25.0, 199.0, 25.0, 198.005), (-0.1, 1e-4)).expect("loss");
+        assert!((l.loss_pct - 0.5).abs() < 1e-9, "{}", l.loss_pct);
+        let gain = loss_of(&record(25.0, 199.0, 25.0, 199.995), (-0.1, 1e-4)).expect("loss");
+        assert!((gain.loss_pct + 0.5).abs() < 1e-9, "{}", gain.loss_pct);
+        // scatter: the settled 30 readings of each window alternate ±0.01, sd 0.01·√(30/29),
+        // uncorrelated (ρ < 0 taken as 0), so each mean is known to sd/√30 and the two
+        // together to √2 · 0.0018570 = 0.0026262 mT, 0.0013197 % of 199 mT (by hand)
+        let scatter = l.budget[0].u;
+        assert!((scatter - 0.0013197).abs() < 2e-7, "{scatter}");
+        // alternating readings do not drift; nothing to correct between equal temperatures
+        assert_eq!(l.budget[1].u, 0.0, "{:?}", l.budget[1]);
+        assert_eq!(l.budget[3].u, 0.0, "{:?}", l.budget[3]);
+        // every term normal: U95 = 2·u_c
+        assert!((l.u95_pct - 2.0 * scatter).abs() < 1e-12);
+        assert_eq!(l.ref_c, [25.0, 25.0]);
+    }
+
+    #[test]
+    fn references_apart_are_bridged_by_the_curve_and_that_is_budgeted() {
+        // before at 25 °C: B = 199; after at 35 °C the curve gives 197, and 1 % was lost:
+        // 197 · 0.99 = 195.03 mT; referred to 25 °C: 195.03 · 199/197 = 197.01, a 1 % loss
+        let l = loss_of(&record(25.0, 199.0, 35.0, 195.03), (-0.1, 1e-4)).expect("loss");
+        assert!((l.loss_pct - 1.0).abs() < 1e-9, "{}", l.loss_pct);
+        // the correction (199/197 − 1 = 1.0152 %) known as well as α, never better than 1 %
+        let corr = &l.budget[3];
+        assert!(corr.source.contains("reversible correction"));
+        assert!((corr.u - 0.010152).abs() < 1e-6, "{}", corr.u);
+        // with α known only to 10 %, the correction alone would carry ±0.2 %: refused
+        match loss_of(&record(25.0, 199.0, 35.0, 195.03), (-0.1, 0.01)) {
+            Err(NoLoss::CorrectionTooUncertain { ref_c, u95_pct }) => {
+                assert_eq!(ref_c, [25.0, 35.0]);
+                assert!((u95_pct - 0.20305).abs() < 1e-4, "{u95_pct}");
+            }
+            other => panic!("{:?}", other.map(|l| l.loss_pct)),
+        }
+    }
+
+    #[test]
+    fn a_record_with_no_return_has_no_loss() {
+        let s = record(25.0, 199.0, 25.0, 198.0);
+        let p = Prepared::new(&s, &ctx(), &mut Vec::new());
+        let seg = Segments {
+            after: None,
+            ..segments()
+        };
+        let r = full(&p, &seg, &s.temp_c, &ctx(), &LINE, (-0.1, 1e-4), 0.1);
+        assert_eq!(r.err(), Some(NoLoss::NoReturn));
+    }
 }

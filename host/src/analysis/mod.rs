@@ -36,6 +36,7 @@ pub mod summary;
 pub mod verdict;
 
 pub mod context;
+pub mod coverage;
 pub mod pipeline;
 
 pub use context::{AnalysisError, Context, DEFAULT_TC_GAIN_PCT};

@@ -108,3 +108,76 @@ pub fn propagate(gradient: &[f64; 3], covariance: &[f64]) -> f64 {
     }
     var
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// B = 200 − 0.21·x − 0.00024·x² mT, x = T − 20 °C.
+    const Q: Quadratic = Quadratic {
+        b0_mt: 200.0,
+        b1_mt_per_c: -0.21,
+        b2_mt_per_c2: -0.00024,
+    };
+
+    #[test]
+    fn tangent_and_two_point_alpha_against_hand_values() {
+        // tangent at 20 °C: −0.21 / 200 = −0.105 %/°C (by hand)
+        assert!((Q.alpha_at_reference_pct_per_c() + 0.105).abs() < 1e-12);
+        // two-point to 120 °C (IEC 60404-8-1's mean coefficient): B(120) = 200 − 21 − 2.4 =
+        // 176.6 mT, so (176.6 − 200) / (200 · 100) = −0.117 %/°C (by hand)
+        assert!((Q.eval_mt(120.0) - 176.6).abs() < 1e-9);
+        assert!((Q.mean_alpha_pct_per_c(120.0) + 0.117).abs() < 1e-12);
+        // to 80 °C: B = 200 − 12.6 − 0.864 = 186.536, (186.536 − 200) / (200 · 60) = −0.1122
+        assert!((Q.mean_alpha_pct_per_c(80.0) + 0.1122).abs() < 1e-12);
+        // γ: −0.00024 / 200 = −1.2e-4 %/°C²
+        assert!((Q.gamma_pct_per_c2() + 1.2e-4).abs() < 1e-15);
+    }
+
+    #[test]
+    fn the_gradient_is_the_two_point_alphas_own() {
+        let g = Q.mean_alpha_gradient(120.0);
+        let h = [1e-4, 1e-7, 1e-9];
+        for (i, step) in h.iter().enumerate() {
+            let mut p = Q;
+            match i {
+                0 => p.b0_mt += step,
+                1 => p.b1_mt_per_c += step,
+                _ => p.b2_mt_per_c2 += step,
+            }
+            let numeric = (p.mean_alpha_pct_per_c(120.0) - Q.mean_alpha_pct_per_c(120.0)) / step;
+            assert!(
+                (numeric - g[i]).abs() < 1e-5 * g[i].abs(),
+                "∂/∂b{i}: {numeric} against {}",
+                g[i]
+            );
+        }
+    }
+
+    #[test]
+    fn an_exact_quadratic_is_fitted_back() {
+        let t: Vec<f64> = (0..50).map(|i| 20.0 + 2.0 * f64::from(i)).collect();
+        let b: Vec<f64> = t.iter().map(|&x| Q.eval_mt(x)).collect();
+        let (m, _) = Quadratic::fit(&t, &b).expect("fit");
+        assert!((m.b0_mt - 200.0).abs() < 1e-9 && (m.b1_mt_per_c + 0.21).abs() < 1e-11);
+        assert!((m.b2_mt_per_c2 + 0.00024).abs() < 1e-13);
+    }
+
+    #[test]
+    fn propagation_and_inflation_against_hand_values() {
+        // identity covariance: gᵀg; a correlated pair doubles the cross term
+        assert_eq!(
+            propagate(&[1.0, 2.0, 3.0], &[1., 0., 0., 0., 1., 0., 0., 0., 1.]),
+            14.0
+        );
+        assert_eq!(
+            propagate(&[1.0, 1.0, 0.0], &[1., 0.5, 0., 0.5, 1., 0., 0., 0., 1.]),
+            3.0
+        );
+        // alternating residuals: ρ < 0 is taken as 0, no inflation
+        assert_eq!(autocorrelation_inflation(&[1.0, -1.0, 1.0, -1.0]), 1.0);
+        // residuals 1, 1, −1, −1: ρ = (1 − 1 + 1) / 4 = 0.25, √(1.25 / 0.75) (by hand)
+        let want = (1.25f64 / 0.75).sqrt();
+        assert!((autocorrelation_inflation(&[1.0, 1.0, -1.0, -1.0]) - want).abs() < 1e-12);
+    }
+}

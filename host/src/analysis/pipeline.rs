@@ -135,10 +135,10 @@ fn analyze_cycle(
             a.alpha, u_c
         )));
     }
-    let alpha_table = table_alpha(&a.model, a.range_c[1], (a.alpha, 2.0 * u_c), &mut notes);
+    let alpha_table = table_alpha(&a.model, a.range_c[1], (a.alpha, a.u95()), &mut notes);
     let measured = judge::Measured {
         alpha_table,
-        alpha: (a.alpha, 2.0 * u_c),
+        alpha: (a.alpha, a.u95()),
         b20_mt: a.model.b0_mt,
         // the fit's own error of B20, inflated as α's is for neighbouring residuals
         b20_u_mt: a.fit.covariance[0].max(0.0).sqrt() * a.inflation,
@@ -153,7 +153,7 @@ fn analyze_cycle(
         schema_version: super::result::SCHEMA_VERSION,
         provenance: Default::default(),
         alpha_pct_per_c: a.alpha,
-        alpha_u95_pct_per_c: 2.0 * u_c,
+        alpha_u95_pct_per_c: a.u95(),
         alpha_fit_se_pct_per_c: a.u_fit,
         alpha_at_20c_pct_per_c: a.model.alpha_at_reference_pct_per_c(),
         gamma_pct_per_c2: a.model.gamma_pct_per_c2(),

@@ -8,6 +8,16 @@ use super::model::Quadratic;
 use super::segments::Segments;
 use super::verdict::{Check, Outcome};
 
+/// How a contribution's knowledge is spread: what the coverage interval is computed from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Distribution {
+    /// A standard deviation of a normal distribution (every type A term, most type B ones).
+    Normal,
+    /// Bounds known, nothing between them preferred: u = half-width / √3.
+    Rectangular,
+}
+
 /// One contribution to an uncertainty budget.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct BudgetLine {
@@ -17,6 +27,8 @@ pub struct BudgetLine {
     pub kind: char,
     /// Standard uncertainty, in the result's unit.
     pub u: f64,
+    /// How it is spread.
+    pub distribution: Distribution,
 }
 
 impl BudgetLine {
@@ -26,21 +38,48 @@ impl BudgetLine {
             source: source.into(),
             kind: 'A',
             u,
+            distribution: Distribution::Normal,
         }
     }
 
-    /// A type B contribution.
+    /// A type B contribution given as a normal standard deviation.
     pub fn b(source: impl Into<String>, u: f64) -> BudgetLine {
         BudgetLine {
             source: source.into(),
             kind: 'B',
             u,
+            distribution: Distribution::Normal,
         }
     }
 
-    /// Root sum of squares of a budget.
+    /// A type B contribution known by its bounds (rectangular; `u` is half-width / √3).
+    pub fn rectangular(source: impl Into<String>, u: f64) -> BudgetLine {
+        BudgetLine {
+            distribution: Distribution::Rectangular,
+            ..BudgetLine::b(source, u)
+        }
+    }
+
+    /// Root sum of squares of a budget: the combined standard uncertainty.
     pub fn combined(lines: &[BudgetLine]) -> f64 {
         lines.iter().map(|l| l.u * l.u).sum::<f64>().sqrt()
+    }
+
+    /// The expanded uncertainty of a budget: the half-width of its 95.45 % coverage interval
+    /// (k = 2 for normal terms alone; see [`super::coverage`]).
+    pub fn expanded(lines: &[BudgetLine]) -> f64 {
+        let normal = lines
+            .iter()
+            .filter(|l| l.distribution == Distribution::Normal)
+            .map(|l| l.u * l.u)
+            .sum::<f64>()
+            .sqrt();
+        let rect: Vec<f64> = lines
+            .iter()
+            .filter(|l| l.distribution == Distribution::Rectangular)
+            .map(|l| l.u)
+            .collect();
+        super::coverage::half_width(normal, &rect)
     }
 }
 

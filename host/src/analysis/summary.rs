@@ -44,7 +44,7 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
         (Some(l), Some(lu)) => {
             let _ = writeln!(
                 s,
-                "  irreversible loss:    {l:.3} % ± {lu:.3} % (k = 2), peak {}",
+                "  irreversible loss:    {l:.3} % ± {lu:.3} % (95 %), peak {}",
                 units::temp(u, a.max_magnet_temp_c)
             );
         }

@@ -18,7 +18,12 @@ pub enum Outcome {
     Indeterminate,
 }
 
-/// A measured value against limits, allowing for its expanded uncertainty.
+/// The rule [`judge`] applies, as a statement of conformity must name it (ISO/IEC 17025:2017
+/// 7.8.6): printed on the certificate and in the report.
+pub const DECISION_RULE: &str = "Decision rule: guarded acceptance with the expanded uncertainty U95 (95 % coverage), in the manner of ISO 14253-1 and ILAC-G8. A check passes only when the whole interval value ± U95 lies within the limits (touching a limit counts as within); it fails only when the whole interval lies outside them; otherwise, or when a value or its uncertainty is not a finite number, it is indeterminate. The verdict fails if any check fails, else is indeterminate if any check is, else passes.";
+
+/// A measured value against limits, allowing for its expanded uncertainty: the
+/// [`DECISION_RULE`] (an open side is an infinite limit).
 pub fn judge(value: f64, u95: f64, min: f64, max: f64) -> Outcome {
     if !(value.is_finite() && u95.is_finite() && u95 >= 0.0) {
         // a number that is not one decides nothing
@@ -181,5 +186,151 @@ impl std::fmt::Display for Outcome {
             Outcome::Fail => "FAIL",
             Outcome::Indeterminate => "INDETERMINATE",
         })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use Outcome::*;
+
+    const INF: f64 = f64::INFINITY;
+
+    /// The decision rule at and around every edge, against limits 1.0 … 2.0 and one-sided
+    /// specs; each row worked by hand from the rule's words (ISO 14253-1's guarded acceptance:
+    /// conformity proven when value ± U lies in the zone, nonconformity when it lies outside).
+    #[test]
+    fn the_decision_rule_at_every_edge() {
+        let rows: &[(f64, f64, f64, f64, Outcome, &str)] = &[
+            (1.5, 0.1, 1.0, 2.0, Pass, "well inside"),
+            (
+                1.1,
+                0.1,
+                1.0,
+                2.0,
+                Pass,
+                "touching the lower limit from inside",
+            ),
+            (
+                1.9,
+                0.1,
+                1.0,
+                2.0,
+                Pass,
+                "touching the upper limit from inside",
+            ),
+            (1.5, 0.5, 1.0, 2.0, Pass, "interval exactly the zone"),
+            (
+                1.05,
+                0.1,
+                1.0,
+                2.0,
+                Indeterminate,
+                "straddling the lower limit",
+            ),
+            (
+                1.95,
+                0.1,
+                1.0,
+                2.0,
+                Indeterminate,
+                "straddling the upper limit",
+            ),
+            (
+                0.95,
+                0.1,
+                1.0,
+                2.0,
+                Indeterminate,
+                "value below, interval reaching in",
+            ),
+            (
+                2.05,
+                0.1,
+                1.0,
+                2.0,
+                Indeterminate,
+                "value above, interval reaching in",
+            ),
+            (
+                1.5,
+                0.6,
+                1.0,
+                2.0,
+                Indeterminate,
+                "interval wider than the zone",
+            ),
+            (
+                0.9,
+                0.1,
+                1.0,
+                2.0,
+                Indeterminate,
+                "touching the lower limit from outside",
+            ),
+            (
+                2.1,
+                0.1,
+                1.0,
+                2.0,
+                Indeterminate,
+                "touching the upper limit from outside",
+            ),
+            (0.85, 0.1, 1.0, 2.0, Fail, "wholly below"),
+            (2.15, 0.1, 1.0, 2.0, Fail, "wholly above"),
+            (1.0, 0.0, 1.0, 2.0, Pass, "on the limit with no uncertainty"),
+            (
+                0.999,
+                0.0,
+                1.0,
+                2.0,
+                Fail,
+                "just outside with no uncertainty",
+            ),
+            (5.0, 0.1, 1.0, INF, Pass, "one-sided minimum, far above"),
+            (
+                1.05,
+                0.1,
+                1.0,
+                INF,
+                Indeterminate,
+                "one-sided minimum, straddling",
+            ),
+            (0.8, 0.1, 1.0, INF, Fail, "one-sided minimum, below"),
+            (-5.0, 0.1, -INF, 1.0, Pass, "one-sided maximum, far below"),
+            (1.2, 0.1, -INF, 1.0, Fail, "one-sided maximum, above"),
+            (f64::NAN, 0.1, 1.0, 2.0, Indeterminate, "value NaN"),
+            (1.5, f64::NAN, 1.0, 2.0, Indeterminate, "U95 NaN"),
+            (INF, 0.1, 1.0, 2.0, Indeterminate, "value infinite"),
+            (1.5, INF, 1.0, 2.0, Indeterminate, "U95 infinite"),
+            (1.5, -0.1, 1.0, 2.0, Indeterminate, "negative U95"),
+            (
+                -INF,
+                0.1,
+                -INF,
+                1.0,
+                Indeterminate,
+                "infinite value on an open side",
+            ),
+        ];
+        for &(v, u, lo, hi, want, what) in rows {
+            assert_eq!(
+                judge(v, u, lo, hi),
+                want,
+                "{what}: {v} ± {u} against {lo} … {hi}"
+            );
+        }
+    }
+
+    #[test]
+    fn the_verdict_combines_checks_fail_first() {
+        let c = |outcome| Check {
+            what: "x".into(),
+            outcome,
+            reason: "".into(),
+        };
+        assert_eq!(overall(&[c(Pass), c(Pass)]), Pass);
+        assert_eq!(overall(&[c(Pass), c(Indeterminate)]), Indeterminate);
+        assert_eq!(overall(&[c(Indeterminate), c(Fail), c(Pass)]), Fail);
     }
 }

@@ -199,7 +199,7 @@ mod tests {
         assert_eq!(super::tick(&0.25), "0.25");
         assert_eq!(super::tick(&-0.0), "0");
         assert_eq!(super::tick(&-1.5e-3), "-0.0015");
-        let w = crate::units::wrap_words("fit: α = -0.1142 ± 0.0016 %/°C (k = 2), 22…98 °C", 30);
+        let w = crate::units::wrap_words("fit: α = -0.1142 ± 0.0016 %/°C (95 %), 22…98 °C", 30);
         assert!(
             w.len() == 2 && w.iter().all(|l| l.chars().count() <= 30),
             "{w:?}"

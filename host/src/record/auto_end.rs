@@ -142,7 +142,7 @@ impl AutoEnd {
             crate::phrase![
                 "ended by the analysis: α known to ±",
                 alpha(a.alpha_u95_pct_per_c, 4),
-                format!(" and the loss to ±{loss_u:.3} % (k = 2), within ±"),
+                format!(" and the loss to ±{loss_u:.3} % (95 %), within ±"),
                 alpha(t.alpha_u95_pct_per_c, 4),
                 format!(" and ±{} %", t.loss_u95_pct),
             ]

@@ -125,7 +125,8 @@ fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
         .iter()
         .map(|c| Flow::wrap(&c.reason.render(u), f.width_mm() - reason_x, size))
         .collect();
-    let height = 16.0
+    // the outcome lines, then the decision rule's paragraph (four lines at most)
+    let height = 30.0
         + wrapped
             .iter()
             .map(|w| Flow::lines_mm(w.len(), size) + 1.0)
@@ -147,6 +148,7 @@ fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
         }
         f.skip(1.0);
     }
+    f.paragraph(0.0, 8.0, false, crate::analysis::verdict::DECISION_RULE);
     f.rule(0.0, f.width_mm());
     f.skip(3.0);
 }
@@ -173,12 +175,15 @@ fn budget(f: &mut Flow, heading: &str, lines: &[BudgetLine], unit: &str, scale: 
             f.skip(Flow::lines_mm(1, size));
         }
     }
-    let combined = 2.0 * BudgetLine::combined(lines) * scale;
+    let expanded = BudgetLine::expanded(lines) * scale;
     f.text_at(
         0.0,
         size,
         true,
-        &format!("expanded (k = 2): {} {unit}", units::uncertainty(combined)),
+        &format!(
+            "expanded (95 % coverage): {} {unit}",
+            units::uncertainty(expanded)
+        ),
     );
     f.skip(Flow::lines_mm(1, size) + 3.0);
 }

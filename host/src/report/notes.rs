@@ -5,14 +5,15 @@ use crate::analysis::BudgetLine;
 use crate::run_dir::RunMeta;
 use crate::units::{self, temp_q, DisplayUnits, Kind, Qty};
 
-/// Method notes shared by both formats.
-pub const METHOD_NOTES: [&str; 6] = [
+/// Method notes shared by both formats (the decision rule last).
+pub const METHOD_NOTES: [&str; 7] = [
     "Thermocouple: ITS-90 Type K reference and inverse functions (NIST Monograph 175) with cold-junction compensation; the converter chip's linear 41.276 µV/°C approximation is undone.",
     "Flux: Hall code to mT with the rig calibration's offset, sensitivity and the probe's own temperature coefficient (probe temperature from its thermistor, Beta equation); readings are referred to the gap at 20 °C using the standoff's expansion.",
     "Thermal lag: the magnet follows the thermocouple as a first-order system; its time constant is the one that makes the heating and cooling branches coincide.",
     "Fit: B(T) = B20·(1 + α(T − 20) + γ(T − 20)²) by QR least squares on the lag-corrected temperature; α is reported as the mean coefficient between 20 °C and the top of the fitted range (two-point form), with the tangent at 20 °C beside it.",
-    "Uncertainty: GUM (JCGM 100:2008) budget combining the fit (type A) with thermocouple gain tolerance, the probe coefficient's uncertainty, the standoff expansion and the lag model (type B), expanded with k = 2.",
+    "Uncertainty: GUM (JCGM 100:2008) budget combining the fit (type A) with thermocouple gain tolerance, the probe coefficient's uncertainty, the standoff expansion and the lag model (type B); the expanded uncertainty U95 is the half-width of the budget's 95.45 % coverage interval (JCGM 101:2008 §5.3): k = 2 when every term is normal, less when a rectangular term (the thermocouple's gain tolerance, the lag band) rules it. Coverage is checked by simulation in the test suite.",
     "Irreversible loss: settled readings at room temperature before and after the excursion, corrected to one temperature with the fitted reversible curve. Open-circuit measurement: for ferrite and AlNiCo the working point moves with temperature, so the field's coefficient is not exactly α(Br).",
+    crate::analysis::verdict::DECISION_RULE,
 ];
 
 /// Safety notes printed in every report, their temperatures in the display units `u`.

@@ -12,15 +12,15 @@ pub use config::{choose, config_path, load, ConfigError, CONFIG_ENV};
 pub use display::{DisplayUnits, FluxUnit, TempUnit, UnknownUnit};
 pub use phrase::{alpha, flux, span, temp as temp_q, Kind, Part, Phrase, Qty};
 
-/// α with its expanded uncertainty: `-0.1144 ± 0.0021 %/°C (k = 2)`.
+/// α with its expanded uncertainty: `-0.1144 ± 0.0021 %/°C (95 %)`.
 pub fn alpha_with_u95(u: &DisplayUnits, alpha_pct_per_c: f64, u95: f64) -> String {
     let q = Qty::pm(Kind::Alpha, alpha_pct_per_c, u95, 4).signed();
-    format!("{} (k = 2)", q.render(u))
+    format!("{} (95 %)", q.render(u))
 }
 
-/// Irreversible loss with its expanded uncertainty: `0.123 ± 0.010 % (k = 2)`.
+/// Irreversible loss with its expanded uncertainty: `0.123 ± 0.010 % (95 %)`.
 pub fn loss_with_u95(loss_pct: f64, u95: f64) -> String {
-    format!("{loss_pct:.3} ± {u95:.3} % (k = 2)")
+    format!("{loss_pct:.3} ± {u95:.3} % (95 %)")
 }
 
 /// A temperature range: `21.3 … 99.8 °C`.
@@ -81,7 +81,7 @@ mod tests {
         let si = DisplayUnits::SI;
         assert_eq!(
             alpha_with_u95(&si, -0.11436, 0.0021),
-            "-0.1144 ± 0.0021 %/°C (k = 2)"
+            "-0.1144 ± 0.0021 %/°C (95 %)"
         );
         assert_eq!(temp_range(&si, [21.26, 99.84]), "21.3 … 99.8 °C");
         assert_eq!(count(1, "gap", "gaps"), "1 gap");

@@ -66,6 +66,9 @@ pub struct Bench {
     pub temp_step_k: f64,
     pub flux_noise_mt: f64,
     pub flux_step_mt: f64,
+    /// The thermocouple's gain error, % of its reading in °C (Type K's tolerance is a
+    /// percentage of the reading, IEC 60584-1; 0: a perfect thermocouple).
+    pub tc_gain_pct: f64,
     pub seed: u64,
 }
 
@@ -80,6 +83,7 @@ impl Default for Bench {
             temp_step_k: 0.1,
             flux_noise_mt: 0.015,
             flux_step_mt: 0.01,
+            tc_gain_pct: 0.0,
             seed: 0x5eed_1234,
         }
     }
@@ -178,7 +182,11 @@ pub fn run(bench: &Bench, magnet: &TrueMagnet, program: &[Step]) -> (Vec<Row>, T
             truth.peak_magnet_c = truth.peak_magnet_c.max(st[2]);
             if t >= next_log - 1e-9 {
                 let q = |v: f64, step: f64| (v / step).round() * step;
-                let temp = q(st[1] + bench.temp_noise_k * rng.normal(), bench.temp_step_k);
+                let read_c = st[1] * (1.0 + bench.tc_gain_pct / 100.0);
+                let temp = q(
+                    read_c + bench.temp_noise_k * rng.normal(),
+                    bench.temp_step_k,
+                );
                 let b = magnet.reversible_mt(st[2]) * (1.0 - st[3]);
                 let flux = q(b + bench.flux_noise_mt * rng.normal(), bench.flux_step_mt);
                 rows.push(Row {

@@ -98,7 +98,7 @@ fn a_report_in_gauss_and_fahrenheit_converts_every_shown_number_and_no_file() {
     );
 
     let html = std::fs::read_to_string(us.join("report.html")).unwrap();
-    assert!(html.contains("%/°F (k = 2)") && html.contains("Shown in °F and G"));
+    assert!(html.contains("%/°F (95 %)") && html.contains("Shown in °F and G"));
     // plot axes, in the SVG text
     let svg = |name: &str| std::fs::read_to_string(us.join(name)).unwrap();
     assert!(svg("flux_vs_temp.svg").contains("flux density at the probe, G"));
