@@ -98,14 +98,11 @@ fn certificate_pages_render_and_carry_the_inspection_read_back_by_poppler() {
         assert_eq!(images, pages);
         // the key text, and the verdict block whole on one page
         let all = tool("pdftotext", &["-layout", p, "-"]);
-        let json: serde_json::Value = serde_json::from_str(
-            &std::fs::read_to_string(dir.path().join("run/analysis.json")).unwrap(),
-        )
-        .unwrap();
-        let verdict = format!(
-            "Verdict: {}",
-            json["verdict"].as_str().unwrap().to_uppercase()
-        );
+        // the scenario's truth: a conforming N42SH measured with no reference magnet, so Br
+        // comes from geometry with the gap's ±3 % or so — wider than half the grade's Br
+        // window (1.27 … 1.33 T, ±2.3 %), so no Br can be proven inside it: by the decision
+        // rule the verdict cannot be PASS, and nothing about the part is wrong: INDETERMINATE
+        let verdict = "Verdict: INDETERMINATE against grade N42SH".to_string();
         assert!(all.contains(&verdict), "{verdict} missing:\n{all}");
         for want in [
             "Inspection certificate",
@@ -117,6 +114,7 @@ fn certificate_pages_render_and_carry_the_inspection_read_back_by_poppler() {
             "Uncertainty budget of α",
             "Signatures",
             "Tested by",
+            "Decision rule: guarded acceptance",
         ] {
             assert!(all.contains(want), "{want} missing:\n{all}");
         }
@@ -219,6 +217,6 @@ fn certificate_pages_in_gauss_and_fahrenheit_say_so_and_convert_alpha() {
     let shown = format!("{alpha_f:+.4} ±");
     assert!(text.contains(&shown), "{shown} missing:\n{text}");
     assert!(text.contains("Shown in °F and G"), "{text}");
-    assert!(text.contains("%/°F (k = 2) over"), "{text}");
-    assert!(!text.contains("%/°C (k = 2)"), "{text}");
+    assert!(text.contains("%/°F (95 %) over"), "{text}");
+    assert!(!text.contains("%/°C (95 %)"), "{text}");
 }

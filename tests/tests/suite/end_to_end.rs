@@ -148,20 +148,31 @@ fn a_full_cycle_records_without_gaps_and_recovers_alpha() {
 
 #[test]
 fn link_corruption_is_detected_and_counted_and_never_written() {
+    use remanent::virtual_rig::SimulatedPort;
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("noisy");
-    let (summary, rig) = run(
-        "RM-S2C17-D10x5",
-        &out,
-        |o| {
-            // bits flipped and bytes lost on the wire between rig and host
-            o.link_flip_probability = 0.002;
-            o.link_drop_probability = 0.001;
-        },
-        short_profile(),
-    );
-    let damaged = rig.truth().bytes_damaged;
-    drop(rig);
+    let m = magnets::resolve("RM-S2C17-D10x5").unwrap();
+    let mut opts = VirtualRigOptions::new(m.model.unwrap());
+    // bits flipped and bytes lost on the wire between rig and host
+    opts.link_flip_probability = 0.002;
+    opts.link_drop_probability = 0.001;
+    opts.keep_sent = true;
+    let rec = RecordOptions {
+        inspection: Default::default(),
+        auto_end: None,
+        port_label: "noisy".into(),
+        magnet: m.info.clone(),
+        profile: short_profile(),
+        calibration: Calibration::virtual_rig(&opts.params),
+        policy: Default::default(),
+        out: out.clone(),
+        silence_timeout: Duration::from_secs(3),
+        preroll_s: 60.0,
+        stop: Arc::new(AtomicBool::new(false)),
+    };
+    let mut port = SimulatedPort::new(opts);
+    let summary = record(&mut port, rec, &mut Quiet).unwrap();
+    let damaged = port.bench().truth().bytes_damaged;
     assert_eq!(summary.end, RecordEnd::Finished);
     let c = &summary.counts;
     let rejected = c.frames_bad_crc + c.frames_bad_cobs + c.frames_other;
@@ -173,13 +184,25 @@ fn link_corruption_is_detected_and_counted_and_never_written() {
     // a lost delimiter merges two frames into one rejection
     assert!(rejected <= 2 * damaged);
     assert!(c.gap_samples > 0 && c.gaps > 0);
-    // every written sample is consistent: thermocouple near the plate's range, flux plausible
-    let (series, _) = dataset::load_run(&out, None).unwrap();
-    assert!(series.temp_c.iter().all(|t| (15.0..120.0).contains(t)));
-    assert!(
-        series.flux_mt.iter().all(|b| (100.0..250.0).contains(b)),
-        "a corrupted sample was written"
-    );
+    // every written row is exactly the sample the device sent under its sequence number
+    let sent = port.bench().sent_samples().unwrap();
+    let recorded = crate::integrity::rows(&out);
+    assert!(recorded.len() > 500, "{} rows", recorded.len());
+    for r in &recorded {
+        let s = sent
+            .get(&r.seq)
+            .unwrap_or_else(|| panic!("seq {} was never sent", r.seq));
+        assert_eq!(
+            (r.hall_code, r.probe_code, r.thermo_word),
+            (s.hall_code, s.probe_code, s.thermo),
+            "row seq {} holds a corrupted or misplaced sample",
+            r.seq
+        );
+    }
+    // and what is missing between the first and last row is exactly the counted gap
+    let (first, last) = (recorded[0].seq, recorded.last().unwrap().seq);
+    let missing = (first..=last).filter(|q| sent.contains_key(q)).count() - recorded.len();
+    assert_eq!(missing as u64, c.gap_samples);
 }
 
 #[test]
@@ -450,6 +473,8 @@ fn a_noisy_link_never_leaves_a_record_hanging() {
             let mut opts = VirtualRigOptions::new(m.model.unwrap());
             opts.seed = seed;
             opts.link_flip_probability = 0.01;
+            opts.keep_sent = true;
+            let out = dir.path().join(format!("run{seed}"));
             let rec = RecordOptions {
                 inspection: Default::default(),
                 auto_end: None,
@@ -458,13 +483,26 @@ fn a_noisy_link_never_leaves_a_record_hanging() {
                 profile: short_profile(),
                 calibration: Calibration::virtual_rig(&opts.params),
                 policy: Default::default(),
-                out: dir.path().join(format!("run{seed}")),
+                out: out.clone(),
                 silence_timeout: Duration::from_secs(3),
                 preroll_s: 10.0,
                 stop: Arc::new(AtomicBool::new(false)),
             };
             let mut port = SimulatedPort::new(opts);
-            results.push(record(&mut port, rec, &mut Quiet).map(|s| (s.end, s.counts)));
+            let r = record(&mut port, rec, &mut Quiet);
+            // rows that are not the sample the device sent under their sequence number
+            let sent = port.bench().sent_samples().expect("kept");
+            let rows = crate::integrity::rows(&out);
+            let wrong = rows
+                .iter()
+                .filter(|r| {
+                    sent.get(&r.seq).is_none_or(|s| {
+                        (r.hall_code, r.probe_code, r.thermo_word)
+                            != (s.hall_code, s.probe_code, s.thermo)
+                    })
+                })
+                .count();
+            results.push(r.map(|s| (s.end, s.counts, rows.len(), wrong)));
         }
         let _ = tx.send(results);
     });
@@ -472,8 +510,13 @@ fn a_noisy_link_never_leaves_a_record_hanging() {
         .recv_timeout(Duration::from_secs(240))
         .expect("a record hung on a noisy link");
     for r in results {
-        let (end, counts) = r.unwrap();
+        let (end, counts, rows, wrong) = r.unwrap();
         assert_eq!(end, RecordEnd::Finished);
         assert!(counts.frames_bad_crc + counts.frames_bad_cobs + counts.frames_other > 100);
+        assert!(rows > 100, "{rows} rows kept");
+        assert_eq!(
+            wrong, 0,
+            "of {rows} rows, {wrong} are not what the device sent"
+        );
     }
 }

@@ -27,7 +27,7 @@ fn profile(hold_s: f64) -> ProfileSpec {
     }
 }
 
-fn rows(dir: &std::path::Path) -> Vec<SampleRow> {
+pub fn rows(dir: &std::path::Path) -> Vec<SampleRow> {
     let parse = |b: &[u8]| {
         std::str::from_utf8(b)
             .map_err(|e| e.to_string())

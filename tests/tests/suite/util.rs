@@ -131,3 +131,36 @@ pub fn rapid_run(out: &std::path::Path, seed: u64) {
     };
     trial::run(&spec, out).unwrap();
 }
+
+/// A plot's files show what they must: the SVG carries every `text` (axis labels, series,
+/// ids) and at least `points` drawn markers (circles); the PNG beside it is a real image of the
+/// SVG's size (its IHDR read from the file).
+pub fn assert_plot_shows(stem: &std::path::Path, texts: &[&str], points: usize) {
+    let svg = std::fs::read_to_string(stem.with_extension("svg")).expect("the SVG");
+    for t in texts {
+        assert!(svg.contains(t), "{} lacks {t:?}", stem.display());
+    }
+    let drawn = svg.matches("<circle").count();
+    assert!(
+        drawn >= points,
+        "{}: {drawn} markers, want {points}",
+        stem.display()
+    );
+    let png = std::fs::read(stem.with_extension("png")).expect("the PNG");
+    assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n", "PNG signature");
+    let dim = |at: usize| u32::from_be_bytes([png[at], png[at + 1], png[at + 2], png[at + 3]]);
+    let attr = |name: &str| -> u32 {
+        let i = svg.find(&format!("{name}=\"")).expect("svg size") + name.len() + 2;
+        svg[i..]
+            .split('"')
+            .next()
+            .unwrap()
+            .parse()
+            .expect("svg size number")
+    };
+    assert_eq!(
+        (dim(16), dim(20)),
+        (attr("width"), attr("height")),
+        "PNG of the SVG's size"
+    );
+}
