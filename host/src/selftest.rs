@@ -105,9 +105,12 @@ impl<P: Read + Write> Probe<P> {
     }
 }
 
-/// Step 0: why the device last started and what is latched now; a latch is cleared if it
-/// may be (and if not, the device's reason is given).
+/// Step 0: why the device last started and what is latched now. A latch the host caused (an
+/// emergency stop, a lost heartbeat) is cleared so the test can go on; any other is left for
+/// the operator: a heating fault is cleared only by `remanent clear-fault`, after a look at
+/// the fixture, never by a test on its own.
 fn start_up<P: Read + Write>(p: &mut Probe<P>, hello: &DeviceHello) -> Result<Step, LinkError> {
+    use remanent_firmware::safety::latch::{class, FaultClass};
     let boot = describe_boot(&hello.boot);
     let latched = hello
         .latched
@@ -123,6 +126,26 @@ fn start_up<P: Read + Write>(p: &mut Probe<P>, hello: &DeviceHello) -> Result<St
         (Some(b), Some(l)) => format!("{b}; {l}"),
         (Some(x), None) | (None, Some(x)) => x,
     };
+    match hello.latched.map(class) {
+        None => {
+            return Ok(Step {
+                name: "start-up",
+                passed: true,
+                detail: format!("{why}; nothing latched now").into(),
+            })
+        }
+        Some(FaultClass::Host) => {}
+        Some(_) => {
+            return Ok(Step {
+                name: "start-up",
+                passed: false,
+                detail: format!(
+                "{why}; left latched: check the fixture, then clear it with `remanent clear-fault`"
+            )
+                .into(),
+            })
+        }
+    }
     let id = p.acq.send(Command::ClearFault)?;
     let reply = p.reply(id, 50)?;
     let passed = matches!(
@@ -307,6 +330,11 @@ pub fn run<P: Read + Write>(
         faults: Vec::new(),
     };
     let mut steps = vec![start_up(&mut p, &hello)?];
+    let heating_latched = hello.latched.map(remanent_firmware::safety::latch::class)
+        == Some(remanent_firmware::safety::latch::FaultClass::Heating);
+    if heating_latched {
+        return Ok((hello, steps)); // nothing more may be tried until the operator clears it
+    }
     let Some(first) = p.watch(30, |_| true)? else {
         steps.push(Step {
             name: "samples arrive",

@@ -13,12 +13,16 @@ pub struct FirmwareConfig {
     pub plant: PlantModel,
     /// Plausibility of the converter's words.
     pub plausible: Plausible,
-    /// Heating while commanded off: after the heater has been off this long, ms…
-    pub off_settle_ms: u32,
-    /// …a rise of this much, 0.1 °C…
-    pub off_rise_tenth_c: i16,
-    /// …within this long is heating while off, ms.
-    pub off_window_ms: u32,
+    /// Heating that the duty cannot explain: a rise this much beyond the most the duty of the
+    /// recent past could give, 0.1 °C…
+    pub excess_allowance_tenth_c: i16,
+    /// …judged over at least this long, ms (longer for a slow fixture: see
+    /// [`crate::safety::response::ExcessWatch`])…
+    pub excess_window_min_ms: u32,
+    /// …counting the duty of this long before the window too (at least four of the plant's
+    /// longest thermocouple lags): what a lagging thermocouple still shows of heat put in
+    /// earlier, ms.
+    pub lag_allowance_ms: u32,
     /// A heating fault clears only within this much of ambient (the cold junction), 0.1 °C.
     pub ambient_band_tenth_c: i16,
     /// This many trips…
@@ -39,22 +43,36 @@ pub struct FirmwareConfig {
     pub oversample: u8,
 }
 
-/// A first-order energy balance of the heated block: what the firmware expects a duty to do.
+/// A first-order energy balance of the heated block, as identified for this fixture, with the
+/// bounds the interlocks allow around it.
 ///
-/// The heating-response interlock compares the measured rise with the rise this model predicts
-/// from the energy put in; the board's values are refined by what the interlock itself sees
-/// (within bounds), so a modest error in them does not trip a normal run.
+/// The heating-response interlock asks whether the measured rise could come from *any* fixture
+/// within these bounds (a heater from `gain_min` to `gain_max` of its identified effect, which
+/// covers a heater ±25 % off and mains ±10 %; a loss up to `loss_max_factor` of the identified
+/// one; a thermocouple lagging the block by up to `max_lag_s`): too little rise for the weakest
+/// such fixture is [`remanent_protocol::Fault::NoHeatingResponse`], more than the strongest
+/// could give is [`remanent_protocol::Fault::HeatingWhileOff`]. The loss is taken from the
+/// measured temperature every period, so the prediction follows the measurement.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PlantModel {
-    /// Heater power at full duty, W.
+    /// Heater power at full duty and nominal mains, W.
     pub heater_w: f32,
     /// Heat capacity of the block the thermocouple sits on, J/K.
     pub heat_capacity_j_per_k: f32,
     /// Loss of that block to ambient, W/K.
     pub loss_w_per_k: f32,
-    /// The rise is judged once the model predicts this much, 0.1 °C.
+    /// The weakest heating effect allowed, as a fraction of the identified one.
+    pub gain_min: f32,
+    /// The strongest, likewise.
+    pub gain_max: f32,
+    /// The largest loss allowed, as a multiple of the identified one.
+    pub loss_max_factor: f32,
+    /// The longest thermocouple lag allowed, s.
+    pub max_lag_s: f32,
+    /// The rise is judged once the weakest fixture, seen through the longest lag, must have
+    /// risen this much, 0.1 °C.
     pub judge_rise_tenth_c: i16,
-    /// A measured rise below this fraction of the predicted one trips.
+    /// A measured rise below this fraction of that trips.
     pub min_fraction: f32,
 }
 
@@ -64,9 +82,26 @@ impl PlantModel {
         heater_w: 600.0,
         heat_capacity_j_per_k: 150.0,
         loss_w_per_k: 1.2,
-        judge_rise_tenth_c: 40,
-        min_fraction: 0.3,
+        gain_min: 0.55,
+        gain_max: 1.6,
+        // the identification measures the loss to about ±10 %
+        loss_max_factor: 1.2,
+        // the junction clamped in the plate answers within half a second: 1.5× that plus
+        // 0.5 s (an identified lag is budgeted the same way, up to 5 s)
+        max_lag_s: 1.25,
+        judge_rise_tenth_c: 20,
+        min_fraction: 0.5,
     };
+
+    /// Full-power rise rate of the identified block, K/s.
+    pub fn full_rate_k_per_s(&self) -> f32 {
+        self.heater_w / self.heat_capacity_j_per_k.max(1.0)
+    }
+
+    /// The block's cooling time constant, s.
+    pub fn cooling_tau_s(&self) -> f32 {
+        self.heat_capacity_j_per_k / self.loss_w_per_k.max(1e-3)
+    }
 }
 
 /// What a working thermocouple converter can report.
@@ -90,8 +125,10 @@ impl Plausible {
     };
 }
 
-/// Highest temperature any build may heat to: 400.0 °C. Above this a fixture's insulation and
-/// a magnet's coating are no longer safe (hardware-notes/safety.md).
+/// Highest temperature any build may heat to: 400.0 °C, set by the fixture's wiring insulation
+/// and the thermocouple's own rating. It says nothing about the magnet: coatings and adhesives
+/// decompose and fume above about 120–150 °C, so a profile above that needs ventilation and
+/// accepts a damaged coating (hardware-notes/safety.md).
 pub const ABSOLUTE_CEILING_TENTH_C: i16 = 4000;
 
 impl FirmwareConfig {
@@ -108,9 +145,9 @@ impl FirmwareConfig {
         stuck_timeout_ms: 60_000,
         plant: PlantModel::REFERENCE,
         plausible: Plausible::REFERENCE,
-        off_settle_ms: 60_000,
-        off_rise_tenth_c: 20,
-        off_window_ms: 30_000,
+        excess_allowance_tenth_c: 20,
+        excess_window_min_ms: 5_000,
+        lag_allowance_ms: 2_000,
         ambient_band_tenth_c: 150,
         lockout_trips: 3,
         lockout_window_ms: 3_600_000,
@@ -121,6 +158,16 @@ impl FirmwareConfig {
         period_ms: 100,
         oversample: 4,
     };
+
+    /// The duty the controller may ask: the configured cap, and never so much that the
+    /// strongest fixture the identification allows would rise faster than nine tenths of the
+    /// rise-rate limit (a small block under a large heater heats at a fraction of full power).
+    pub fn duty_cap(&self) -> f32 {
+        let cap = f32::from(self.limits.duty_cap_pct.min(100)) / 100.0;
+        let max_rise = f32::from(self.limits.max_rise_tenth_c_per_s) / 10.0;
+        let fastest = self.plant.gain_max * self.plant.full_rate_k_per_s();
+        cap.min(0.9 * max_rise / fastest.max(1e-6))
+    }
 
     /// The ceiling actually enforced: the configured one, never above the absolute ceiling.
     pub fn ceiling_tenth_c(&self) -> i16 {

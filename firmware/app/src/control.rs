@@ -24,20 +24,34 @@ impl Pi {
     }
 
     /// One update: setpoint and measurement in °C, period in s; returns duty in `0..=cap`.
+    /// Without a feed-forward: [`Pi::update_with`] with none.
+    pub fn update(&mut self, setpoint_c: f32, measured_c: f32, dt_s: f32, cap: f32) -> f32 {
+        self.update_with(0.0, setpoint_c, measured_c, dt_s, cap)
+    }
+
+    /// One update with a feed-forward duty `ff` (what the identified fixture needs to follow
+    /// the setpoint): the PI corrects around it, so a ramp's power need not wind the integral.
     ///
     /// The integral only moves when the output is not saturated, or when the error would
     /// bring it back out of saturation, so a long ramp cannot wind it up.
-    pub fn update(&mut self, setpoint_c: f32, measured_c: f32, dt_s: f32, cap: f32) -> f32 {
+    pub fn update_with(
+        &mut self,
+        ff: f32,
+        setpoint_c: f32,
+        measured_c: f32,
+        dt_s: f32,
+        cap: f32,
+    ) -> f32 {
         let error = setpoint_c - measured_c;
         let p = self.kp * error;
         let candidate = self.integral + self.ki * error * dt_s;
-        let unsaturated = p + candidate;
+        let unsaturated = ff + p + candidate;
         let saturated_high = unsaturated > cap && error > 0.0;
         let saturated_low = unsaturated < 0.0 && error < 0.0;
         if !saturated_high && !saturated_low {
-            self.integral = candidate.clamp(0.0, cap);
+            self.integral = candidate.clamp(-cap, cap);
         }
-        (p + self.integral).clamp(0.0, cap)
+        (ff + p + self.integral).clamp(0.0, cap)
     }
 
     /// The integral term, duty fraction.

@@ -45,6 +45,11 @@ pub struct Heater<P, O> {
     duty_cap: f32,
     duty: f32,
     window: Option<Window>,
+    /// Time-proportioning: the output's on-time counted since `counted_from_ms`, and when
+    /// [`Heater::tick`] last ran.
+    on_counted_ms: u32,
+    counted_from_ms: Option<u32>,
+    last_tick_ms: Option<u32>,
 }
 
 /// Resolution of duty commands given to the PWM (parts per this).
@@ -68,6 +73,26 @@ impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
             duty_cap: f32::from(duty_cap_pct.min(100)) / 100.0,
             duty: 0.0,
             window: None,
+            on_counted_ms: 0,
+            counted_from_ms: None,
+            last_tick_ms: None,
+        }
+    }
+
+    /// The fraction of full power the heater got since the last call: the duty for a DC
+    /// switch; for time-proportioning, the output's counted on-time over the time elapsed
+    /// (a window delivers its whole half-cycles at its start, whatever the duty does later).
+    pub fn delivered(&mut self, now_ms: u32) -> f32 {
+        if !matches!(self.drive_kind, HeaterDrive::TimeProportioning { .. }) {
+            return self.duty;
+        }
+        let from = self.counted_from_ms.replace(now_ms).unwrap_or(now_ms);
+        let span = now_ms.wrapping_sub(from);
+        let on = core::mem::take(&mut self.on_counted_ms);
+        if span == 0 {
+            self.duty
+        } else {
+            (on as f32 / span as f32).clamp(0.0, 1.0)
         }
     }
 
@@ -80,13 +105,28 @@ impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
         pin.and(pwm)
     }
 
-    /// Drive at `fraction` of full power (capped), with the enable pin high.
+    /// Drive at `fraction` of full power (capped), with the enable pin high; a zero duty
+    /// drops the enable pin as well, so a switch that fails on while nothing is asked of it
+    /// still has its second path open.
     pub fn drive(
         &mut self,
         _permit: Permit,
         fraction: f32,
     ) -> Result<(), Error<P::Error, O::Error>> {
-        let duty = fraction.clamp(0.0, self.duty_cap);
+        let mut duty = fraction.clamp(0.0, self.duty_cap);
+        if let HeaterDrive::TimeProportioning {
+            window_ms,
+            half_cycle_us,
+        } = self.drive_kind
+        {
+            // what a window delivers: whole half-cycles, so the duty the interlocks count is
+            // the one the heater gets (a tenth of a half-cycle asked is none, 0.6 is one)
+            duty =
+                window_on_ms(duty, window_ms, half_cycle_us) as f32 / f32::from(window_ms.max(1));
+        }
+        if duty <= 0.0 {
+            return self.off();
+        }
         if let HeaterDrive::Pwm { .. } = self.drive_kind {
             let steps = (duty * f32::from(DUTY_STEPS)) as u16;
             self.pwm
@@ -108,6 +148,10 @@ impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
         else {
             return Ok(());
         };
+        let last = self.last_tick_ms.replace(now_ms).unwrap_or(now_ms);
+        if self.window.is_some_and(|w| w.output_on) {
+            self.on_counted_ms = self.on_counted_ms.saturating_add(now_ms.wrapping_sub(last));
+        }
         if self.duty <= 0.0 && self.window.is_none() {
             return Ok(());
         }

@@ -64,6 +64,21 @@ impl ProfileRunner {
         self.phase
     }
 
+    /// How fast the setpoint moves now, °C/s (negative going down; 0 outside a ramp).
+    pub fn ramp_c_per_s(&self) -> f32 {
+        match (self.phase, self.segment()) {
+            (Phase::Ramp, Some(seg)) if seg.ramp_tenth_c_per_min > 0 => {
+                let rate = f32::from(seg.ramp_tenth_c_per_min) / 600.0;
+                if seg.target_tenth_c < self.ramp_from_tenth_c {
+                    -rate
+                } else {
+                    rate
+                }
+            }
+            _ => 0.0,
+        }
+    }
+
     fn segment(&self) -> Option<Segment> {
         self.profile.segments.0.get(self.index).copied()
     }

@@ -27,7 +27,10 @@ fn mean_power_w(drive: HeaterDrive, duty: f32, seconds: u32) -> f64 {
     );
     let mut interlocks = Interlocks::new(FirmwareConfig::REFERENCE, 0);
     let word = Reading::Word(ThermoWord::from_parts(4 * 25, 16 * 25, None));
-    let permit = interlocks.check(0, word, 0.0, true).unwrap().unwrap();
+    let permit = interlocks
+        .check(0, word, (0.0, 0.0), true)
+        .unwrap()
+        .unwrap();
     heater.drive(permit, duty).unwrap();
     let mut energy_j = 0.0;
     for ms in 0..seconds * 1000 {

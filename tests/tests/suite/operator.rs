@@ -221,3 +221,40 @@ fn every_file_format_example_in_the_notes_is_accepted() {
         "{e}"
     );
 }
+
+#[test]
+fn the_self_test_leaves_a_heating_fault_for_the_operator_to_clear() {
+    use remanent::link::Session;
+    use remanent_protocol::DeviceMsg;
+    // the switch fails on while the fixture is idle: the device latches heating while off
+    let m = magnets::resolve("RM-N42SH-D10x5").unwrap();
+    let mut opts = VirtualRigOptions::new(m.model.unwrap());
+    opts.faults.switch_stuck_on_at_s = Some(0.0);
+    let cal = Calibration::virtual_rig(&opts.params);
+    let mut port = SimulatedPort::new(opts);
+    let mut s = Session::new(&mut port);
+    s.handshake(std::time::Duration::from_secs(5), &mut |_| {})
+        .unwrap();
+    let mut fault = None;
+    for _ in 0..20_000 {
+        for f in s.read().unwrap().frames.into_iter().flatten() {
+            if let DeviceMsg::Fault(r) = f {
+                fault.get_or_insert(r.fault);
+            }
+        }
+        if fault.is_some() {
+            break;
+        }
+        s.send(remanent_protocol::Command::Heartbeat).unwrap();
+    }
+    assert_eq!(fault, Some(Fault::HeatingWhileOff));
+    drop(s);
+    let (_, steps) = remanent::selftest::run(&mut port, cal, &Default::default()).unwrap();
+    assert_eq!(steps.len(), 1, "nothing more is tried: {steps:#?}");
+    let start = &steps[0];
+    let detail = start.detail.to_string();
+    assert!(
+        !start.passed && detail.contains("left latched") && detail.contains("clear-fault"),
+        "{start:?}"
+    );
+}

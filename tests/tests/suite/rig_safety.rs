@@ -98,18 +98,23 @@ fn a_switch_that_fails_on_is_reported_and_the_enable_line_dropped() {
     };
     let mut d = Driver::new(faults, HeaterSwitch::Dc);
     d.run(600.0);
-    assert_eq!(d.faults, vec![Fault::HeatingWhileOff]);
-    // reported within the settling time plus a few seconds of 4 K/s heating: the firmware can
-    // only drop the enable line and say so; the independent thermal cut-off and the contactor
-    // on the enable line do the rest (hardware-notes/safety.md)
+    // the block heats on past the ceiling (350 °C): that is reported too, once
+    assert_eq!(
+        d.faults,
+        vec![Fault::HeatingWhileOff, Fault::OverTemperature]
+    );
+    // reported once the idle block is past the ambient band (a hand-warm part stays within
+    // it) and still rising beyond what no duty explains: a few seconds of 4 K/s heating. The
+    // firmware can only drop the enable line and say so; the independent thermal cut-off and
+    // the contactor on the enable line do the rest (hardware-notes/safety.md)
     let r = d.reports[0];
     println!(
         "switch failed on at 400 s: reported at {:.1} s, {:.1} °C",
         f64::from(r.time_ms) / 1000.0,
         f64::from(r.temp_tenth_c) / 10.0
     );
-    assert!(r.time_ms <= 400_000 + 60_000 + 3_000, "{r:?}");
-    assert!(r.temp_tenth_c < 400, "{r:?}");
+    assert!(r.time_ms <= 400_000 + 10_000, "{r:?}");
+    assert!(r.temp_tenth_c < 600, "{r:?}");
 }
 
 #[test]

@@ -159,7 +159,6 @@ where
             .map_err(|_| RefuseReason::FaultLatched(remanent_protocol::Fault::SensorBus))?;
         let temp = judge_word(&self.cfg, word).map_err(RefuseReason::FaultLatched)?;
         self.interlocks.set_run_limit(profile.limit_tenth_c);
-        self.interlocks.restart_detectors();
         self.pi.reset();
         let (band, wait) = (self.cfg.soak_band_tenth_c, self.cfg.soak_wait_max_ms);
         let run = ProfileRunner::start(profile, now_ms, temp, band, wait);
@@ -181,7 +180,6 @@ where
         }
         self.interlocks.set_run_limit(limit_tenth_c);
         if !matches!(self.mode, Mode::Manual(_)) {
-            self.interlocks.restart_detectors();
             self.pi.reset();
         }
         self.enter(now_ms, Mode::Manual(setpoint_tenth_c));
@@ -219,7 +217,10 @@ where
             });
         }
         let word = self.tc.read_word().ok();
-        latch::may_clear(&self.cfg, fault, word)?;
+        let off_ms = self.heater_off_ms(now_ms);
+        let limit = self.interlocks.run_limit_tenth_c();
+        latch::may_clear(&self.cfg, fault, word, off_ms, limit)?;
+        self.reported = 0;
         fw_info!("cleared {}", fault);
         self.interlocks.restart_detectors();
         self.interlocks.set_run_limit(self.cfg.ceiling_tenth_c());

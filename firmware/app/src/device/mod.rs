@@ -8,23 +8,24 @@
 //! flood of replies cannot empty. Commands are handled in [`commands`].
 
 mod commands;
+mod period;
 
 use embedded_hal::digital::OutputPin;
 use embedded_hal::pwm::SetDutyCycle;
 use remanent_protocol::decoder::HostDecoder;
 use remanent_protocol::{
-    encode, BootReport, DeviceMsg, Drill, Fault, FaultReport, ResetCause, RunState, SafetyLimits,
-    StateReport, MAX_DEVICE_FRAME,
+    encode, BootReport, DeviceMsg, Drill, Fault, ResetCause, RunState, SafetyLimits, StateReport,
+    MAX_DEVICE_FRAME,
 };
 
 use crate::config::FirmwareConfig;
 use crate::control::Pi;
 use crate::heater::Heater;
-use crate::log::{fw_info, fw_warn};
+use crate::log::fw_info;
 use crate::outbox::Outbox;
 use crate::profile::ProfileRunner;
-use crate::safety::latch::TripLog;
-use crate::safety::{Interlocks, Reading};
+use crate::safety::latch::{self, TripLog};
+use crate::safety::Interlocks;
 use crate::sampler::Sampler;
 use crate::traits::{Adc, Thermocouple};
 
@@ -102,12 +103,24 @@ pub struct Device<A, T, P, O> {
     rx_errors: u32,
     periods: u32,
     drill: Option<Drill>,
+    /// When the heater last had a duty, ms (boot counts: the heater is off from reset).
+    last_heat_ms: u32,
+    /// Faults already reported while the present latch holds (bit per fault).
+    reported: u32,
 }
 
-/// The fault a reset leaves latched.
+/// A fault's bit in the reported set.
+fn fault_bit(fault: Fault) -> u32 {
+    1 << (fault as u32 & 31)
+}
+
+/// The fault a reset leaves latched: the reset's own, or one that was latched when the board
+/// went down (a latch the host caused is forgotten; no other is).
 fn boot_fault(boot: &BootReport) -> Option<Fault> {
     match boot.reset {
-        ResetCause::PowerOn => None,
+        ResetCause::PowerOn => boot
+            .last_fault
+            .filter(|f| latch::class(*f) != latch::FaultClass::Host),
         ResetCause::Watchdog => Some(Fault::Watchdog),
         ResetCause::Panic | ResetCause::HardFault => Some(Fault::Crashed),
     }
@@ -137,6 +150,17 @@ where
             Some(f) => Mode::Faulted(f),
             None => Mode::Idle,
         };
+        let mut trips = if boot.locked {
+            TripLog::locked()
+        } else {
+            TripLog::default()
+        };
+        // a reset by the watchdog or after a crash is a trip like any other
+        if boot.reset != ResetCause::PowerOn {
+            if let Some(f) = boot_fault(&boot) {
+                trips.record(&cfg, now_ms, f);
+            }
+        }
         fw_info!("boot: {} (last fault {})", boot.reset, boot.last_fault);
         Device {
             cfg,
@@ -146,11 +170,7 @@ where
             tc,
             heater,
             interlocks: Interlocks::new(cfg, now_ms),
-            trips: if boot.locked {
-                TripLog::locked()
-            } else {
-                TripLog::default()
-            },
+            trips,
             pi: Pi::new(cfg.kp_per_c, cfg.ki_per_c_s),
             sampler: Sampler::new(now_ms, cfg.period_ms, cfg.oversample),
             decoder: HostDecoder::for_host_msgs(),
@@ -162,6 +182,8 @@ where
             rx_errors: 0,
             periods: 0,
             drill: None,
+            last_heat_ms: now_ms,
+            reported: boot_fault(&boot).map_or(0, fault_bit),
         }
     }
 
@@ -236,12 +258,14 @@ where
     /// Run whatever is due at `now_ms`: a sample and control period, the heater's switching,
     /// a beacon.
     pub fn poll(&mut self, now_ms: u32) {
+        // switching first, at the time the board just read: the control period below blocks
+        // on the sensors, and an edge timed after it would be late by that much
+        if self.heater.tick(now_ms).is_err() {
+            self.trip(now_ms, Fault::HeaterDrive);
+        }
         while let Some((seq, late)) = self.sampler.take_due(now_ms) {
             self.control_period(now_ms, seq, late);
             self.periods = self.periods.wrapping_add(1);
-        }
-        if self.heater.tick(now_ms).is_err() {
-            self.trip(now_ms, Fault::HeaterDrive);
         }
         if self.handshaken && now_ms.wrapping_sub(self.last_beacon_ms) >= BEACON_INTERVAL_MS {
             self.last_beacon_ms = now_ms;
@@ -257,86 +281,6 @@ where
         };
         // cannot fail: the buffer holds the largest device frame
         encode(&msg, buf).ok()
-    }
-
-    fn control_period(&mut self, now_ms: u32, seq: u32, late_ms: u32) {
-        let acq = self.sampler.acquire(&mut self.adc, &mut self.tc);
-        let reading = match (acq.thermo, acq.adc_failed) {
-            (Some(w), false) => Reading::Word(w),
-            _ => Reading::BusError,
-        };
-        let temp_now = match reading {
-            Reading::Word(w) => crate::safety::judge_word(&self.cfg, w).ok(),
-            Reading::BusError => None,
-        };
-        // what the state machine wants
-        let mut finished = false;
-        self.setpoint_tenth_c = match &mut self.mode {
-            Mode::Profile(run) => {
-                let sp = temp_now.and_then(|t| run.update(now_ms, t));
-                finished = sp.is_none() && temp_now.is_some();
-                sp
-            }
-            Mode::Manual(sp) => Some(*sp),
-            Mode::Idle | Mode::Faulted(_) => None,
-        };
-        if finished {
-            self.enter(now_ms, Mode::Idle);
-        }
-        let applied = self.heater.duty();
-        let wanted = self.setpoint_tenth_c.is_some();
-        match self.interlocks.check(now_ms, reading, applied, wanted) {
-            Err(fault) => self.trip(now_ms, fault),
-            Ok(Some(permit)) => {
-                let sp = f32::from(self.setpoint_tenth_c.unwrap_or(0)) / 10.0;
-                let t = f32::from(temp_now.unwrap_or(0)) / 10.0;
-                let dt = f32::from(self.sampler.period_ms()) / 1000.0;
-                let duty = self.pi.update(sp, t, dt, self.heater.duty_cap());
-                if self.heater.drive(permit, duty).is_err() {
-                    self.trip(now_ms, Fault::HeaterDrive);
-                }
-            }
-            Ok(None) => {
-                let _ = self.heater.off();
-                self.pi.reset();
-            }
-        }
-        if !self.handshaken {
-            return; // nobody to send to; the schedule still advances
-        }
-        match (acq.thermo, acq.adc_failed) {
-            (Some(word), false) => {
-                let faulted = matches!(self.mode, Mode::Faulted(_));
-                let duty = self.heater.duty();
-                let sample = Sampler::sample(seq, late_ms, &acq, word, duty, duty > 0.0, faulted);
-                self.sampler.enqueue(sample);
-            }
-            _ => self.sampler.skip(),
-        }
-    }
-
-    /// Heater off and the fault latched and reported. A fault while another is latched is
-    /// reported only when it is news the host must act on (heating while off).
-    fn trip(&mut self, now_ms: u32, fault: Fault) {
-        if self.heater.off().is_err() {
-            fw_warn!("heater output did not answer while switching off");
-        }
-        self.pi.reset();
-        self.setpoint_tenth_c = None;
-        match self.mode {
-            Mode::Faulted(f) if f == fault || fault != Fault::HeatingWhileOff => return,
-            _ => {}
-        }
-        let locked = self.trips.record(&self.cfg, now_ms, fault);
-        fw_warn!("trip: {} (locked {})", fault, locked);
-        self.mode = Mode::Faulted(fault);
-        let temp_tenth_c = self.interlocks.last_temp_tenth_c().unwrap_or(0);
-        self.outbox.report(DeviceMsg::Fault(FaultReport {
-            time_ms: now_ms,
-            fault,
-            temp_tenth_c,
-        }));
-        self.report_state(now_ms);
     }
 
     fn enter(&mut self, now_ms: u32, mode: Mode) {

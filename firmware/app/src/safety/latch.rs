@@ -2,8 +2,12 @@
 //!
 //! A sensor fault clears once the converter sends a valid, plausible word again; a heating
 //! fault (and a reset by the watchdog or after a crash) only once that word shows the fixture
-//! back near ambient; a fault the host caused clears at once. Trips within the lockout window
-//! are counted: reaching the configured number locks heating until the power is cycled.
+//! back near ambient — and where the thermocouple itself is suspect (no heating response, a
+//! stuck reading) only once the heater has also been off for
+//! as long as the identified block needs to cool from the run limit, evidence the suspect
+//! sensor does not provide; a fault the host caused clears at once. The worst fault is kept
+//! latched ([`severity`]). Trips within the lockout window are counted: reaching the
+//! configured number locks heating until the power is cycled.
 
 use remanent_protocol::{Fault, RefuseReason, ThermoWord};
 
@@ -41,11 +45,47 @@ pub fn class(fault: Fault) -> FaultClass {
     }
 }
 
-/// May `fault` be cleared, given a fresh word from the converter (`None`: its bus failed)?
+/// How bad a latched fault is: the worse of two is kept. Heating going wrong beats a sensor
+/// that cannot be trusted, which beats the host's doing; among heating faults, heat that was
+/// not asked for (over-temperature, heating while off, a rise too fast) comes first.
+pub fn severity(fault: Fault) -> u8 {
+    match (class(fault), fault) {
+        (_, Fault::OverTemperature | Fault::HeatingWhileOff | Fault::RiseTooFast) => 4,
+        (FaultClass::Heating, _) => 3,
+        (FaultClass::Sensor, _) => 2,
+        (FaultClass::Host, _) => 1,
+    }
+}
+
+/// Faults after which the thermocouple's own word cannot show the fixture has cooled.
+fn thermocouple_suspect(fault: Fault) -> bool {
+    matches!(fault, Fault::NoHeatingResponse | Fault::StuckReading)
+}
+
+/// How long the heater must have been off before a suspect thermocouple's fault may clear,
+/// ms: the identified block's cooling from `limit_tenth_c` to within the ambient band,
+/// τ·ln((limit − ambient) / band), with the logarithm taken at the next whole power of two
+/// (never shorter than the true time).
+pub fn cooling_wait_ms(cfg: &FirmwareConfig, limit_tenth_c: i16, ambient_tenth_c: i16) -> u32 {
+    let excess = i32::from(limit_tenth_c) - i32::from(ambient_tenth_c);
+    let band = i32::from(cfg.ambient_band_tenth_c.max(1));
+    if excess <= band {
+        return 0;
+    }
+    let ratio = (excess as u32).div_ceil(band as u32);
+    let log2 = 32 - (ratio - 1).leading_zeros(); // ⌈log₂ ratio⌉
+    let ln = log2 as f32 * core::f32::consts::LN_2;
+    (cfg.plant.cooling_tau_s() * ln * 1000.0) as u32
+}
+
+/// May `fault` be cleared, given a fresh word from the converter (`None`: its bus failed),
+/// the time the heater has been off (`heater_off_ms`) and the run limit it ran under?
 pub fn may_clear(
     cfg: &FirmwareConfig,
     fault: Fault,
     word: Option<ThermoWord>,
+    heater_off_ms: u32,
+    limit_tenth_c: i16,
 ) -> Result<(), RefuseReason> {
     let cls = class(fault);
     if cls == FaultClass::Host {
@@ -63,6 +103,12 @@ pub fn may_clear(
                 temp_tenth_c,
                 below_tenth_c,
             });
+        }
+        if thermocouple_suspect(fault)
+            && heater_off_ms < cooling_wait_ms(cfg, limit_tenth_c, ambient_tenth_c)
+        {
+            // the reading may be of air: wait out the block's own cooling
+            return Err(RefuseReason::FaultLatched(fault));
         }
     }
     Ok(())
@@ -131,19 +177,51 @@ mod tests {
         let hot = ThermoWord::from_parts(4 * 60, 25 * 16, None); // 60 °C, 25 °C ambient
         let cool = ThermoWord::from_parts(4 * 30, 25 * 16, None);
         assert_eq!(
-            may_clear(&CFG, Fault::StuckReading, Some(hot)),
+            may_clear(&CFG, Fault::OverTemperature, Some(hot), 0, 3500),
             Err(RefuseReason::TooHotToClear {
                 temp_tenth_c: 600,
                 below_tenth_c: 400
             })
         );
-        assert_eq!(may_clear(&CFG, Fault::StuckReading, Some(cool)), Ok(()));
         assert_eq!(
-            may_clear(&CFG, Fault::ConverterImplausible, Some(ThermoWord(0))),
+            may_clear(&CFG, Fault::OverTemperature, Some(cool), 0, 3500),
+            Ok(())
+        );
+        // a suspect thermocouple reading cool is not enough: the block's own cooling time
+        // from 350 °C, τ = 150/1.2 = 125 s times ln of ⌈325/15⌉ = 22 at the next power of two
+        // (32: 5·ln 2 = 3.47), 433 s
+        let wait = cooling_wait_ms(&CFG, 3500, 250);
+        assert_eq!(wait, 433_216, "{wait}");
+        assert_eq!(
+            may_clear(&CFG, Fault::StuckReading, Some(cool), wait - 1, 3500),
+            Err(RefuseReason::FaultLatched(Fault::StuckReading))
+        );
+        assert_eq!(
+            may_clear(&CFG, Fault::StuckReading, Some(cool), wait, 3500),
+            Ok(())
+        );
+        assert_eq!(
+            may_clear(
+                &CFG,
+                Fault::ConverterImplausible,
+                Some(ThermoWord(0)),
+                0,
+                3500
+            ),
             Err(RefuseReason::FaultLatched(Fault::ConverterImplausible))
         );
-        assert_eq!(may_clear(&CFG, Fault::SensorBus, Some(hot)), Ok(()));
-        assert_eq!(may_clear(&CFG, Fault::HeartbeatLost, None), Ok(()));
+        assert_eq!(
+            may_clear(&CFG, Fault::SensorBus, Some(hot), 0, 3500),
+            Ok(())
+        );
+        assert_eq!(may_clear(&CFG, Fault::HeartbeatLost, None, 0, 3500), Ok(()));
+    }
+
+    #[test]
+    fn the_worse_fault_is_kept() {
+        assert!(severity(Fault::OverTemperature) > severity(Fault::NoHeatingResponse));
+        assert!(severity(Fault::NoHeatingResponse) > severity(Fault::ThermocoupleOpen));
+        assert!(severity(Fault::ThermocoupleOpen) > severity(Fault::HeartbeatLost));
     }
 
     #[test]

@@ -1,10 +1,13 @@
 //! Safety interlocks, enforced every control period whatever the host has asked.
 //!
 //! [`Interlocks::check`] is the only place a [`Permit`] is made: it checks the sensor bus, the
-//! converter's plausibility and fault bits, the temperature limits, the rise rate, heating
-//! while commanded off, and — while heating — the host heartbeat, a stuck reading and the
-//! heating response against the energy put in. Any failure is a [`Fault`] that the device
-//! latches; [`latch`] says when it may be cleared and when repeated trips lock heating.
+//! converter's plausibility and fault bits, the temperature limits, the rise rate (over a
+//! second, and a jump within one period), the energy balances of [`response`] — too little
+//! heating for the weakest fixture the identification allows, more than the strongest could
+//! give — every period whether heating or not, and while heating the host heartbeat and a
+//! stuck reading. No command resets that evidence: only a cleared fault does, and clearing
+//! needs the fixture near ambient. Any failure is a [`Fault`] that the device latches;
+//! [`latch`] says when it may be cleared and when repeated trips lock heating.
 
 pub mod latch;
 pub mod plausibility;
@@ -16,7 +19,7 @@ use remanent_protocol::{Fault, ThermoWord};
 use crate::config::FirmwareConfig;
 use crate::heater::Permit;
 use plausibility::Plausibility;
-use response::{OffWatch, ResponseCheck};
+use response::{ExcessWatch, ResponseCheck};
 
 /// A duty change (fraction of full power) that shows the controller acting on the reading.
 const STUCK_DUTY_MOVE: f32 = 0.05;
@@ -30,6 +33,16 @@ pub enum Reading {
     BusError,
 }
 
+/// Since when the thermocouple's counts have not changed, and what the duty did meanwhile.
+#[derive(Debug, Clone, Copy)]
+struct Unchanged {
+    since_ms: u32,
+    counts: i16,
+    duty0: f32,
+    duty_sum: f32,
+    periods: u32,
+}
+
 /// Interlock state carried from one period to the next.
 #[derive(Debug, Clone)]
 pub struct Interlocks {
@@ -37,10 +50,10 @@ pub struct Interlocks {
     run_limit_tenth_c: i16,
     last_host_ms: u32,
     rate_ref: Option<(u32, i16)>,
-    unchanged_since: Option<(u32, i16, f32)>,
+    unchanged_since: Option<Unchanged>,
     plausibility: Plausibility,
     response: ResponseCheck,
-    off_watch: OffWatch,
+    excess: ExcessWatch,
     last_temp_tenth_c: Option<i16>,
 }
 
@@ -75,7 +88,7 @@ impl Interlocks {
             unchanged_since: None,
             plausibility: Plausibility::default(),
             response: ResponseCheck::default(),
-            off_watch: OffWatch::default(),
+            excess: ExcessWatch::default(),
             last_temp_tenth_c: None,
         }
     }
@@ -105,26 +118,25 @@ impl Interlocks {
         self.last_temp_tenth_c
     }
 
-    /// The heating model's gain as refined by the response check.
-    pub fn response_gain(&self) -> f32 {
-        self.response.gain()
-    }
-
-    /// Forget the history that the detectors use (after a cleared fault or a new run).
+    /// Forget the history that the detectors use: only after a fault was cleared, which needs
+    /// the fixture shown near ambient. No command that starts or stops heating calls this, so
+    /// no sequence of commands talks its way past the evidence.
     pub fn restart_detectors(&mut self) {
         self.rate_ref = None;
         self.unchanged_since = None;
         self.response.restart();
+        self.excess = ExcessWatch::default();
     }
 
-    /// Check every interlock for this period. `applied_duty` is the duty of the period that
-    /// just ended (0..=1); `heating_wanted` whether the state machine wants the heater on.
-    /// Returns a permit only when heating is wanted and all pass.
+    /// Check every interlock for this period. `applied_duty` is what the heater got in the
+    /// period that just ended (0..=1: its whole half-cycles when time-proportioning),
+    /// `commanded_duty` what the controller asked; `heating_wanted` whether the state machine
+    /// wants the heater on. Returns a permit only when heating is wanted and all pass.
     pub fn check(
         &mut self,
         now_ms: u32,
         reading: Reading,
-        applied_duty: f32,
+        (applied_duty, commanded_duty): (f32, f32),
         heating_wanted: bool,
     ) -> Result<Option<Permit>, Fault> {
         let word = match reading {
@@ -139,30 +151,41 @@ impl Interlocks {
             return Err(Fault::ConverterImplausible);
         }
         let temp = judge_word(&self.cfg, word)?;
+        let rate = self.check_rise_rate(now_ms, temp);
         self.last_temp_tenth_c = Some(temp);
         if temp > self.run_limit_tenth_c || temp > self.cfg.ceiling_tenth_c() {
             return Err(Fault::OverTemperature);
         }
-        self.check_rise_rate(now_ms, temp)?;
-        self.off_watch
-            .update(&self.cfg, now_ms, temp, applied_duty <= 0.0)?;
+        rate?;
+        // the energy balances run every period, heating or not: their evidence is not reset
+        // by a Stop or a new setpoint
+        let ambient_tenth_c = (i32::from(word.cj_counts()) * 5 / 8) as i16;
+        self.excess
+            .update(&self.cfg, now_ms, temp, ambient_tenth_c, applied_duty)?;
+        let (temp_c, ambient_c) = (f32::from(temp) / 10.0, word.cj_c());
+        let limit_c = f32::from(self.run_limit_tenth_c) / 10.0;
+        self.response
+            .update(&self.cfg, limit_c, now_ms, temp_c, ambient_c, applied_duty)?;
         if !heating_wanted {
             self.unchanged_since = None;
-            self.response.restart();
             return Ok(None);
         }
         if now_ms.wrapping_sub(self.last_host_ms) > u32::from(self.cfg.limits.heartbeat_timeout_ms)
         {
             return Err(Fault::HeartbeatLost);
         }
-        self.check_stuck(now_ms, word, applied_duty)?;
-        let (temp_c, ambient_c) = (f32::from(temp) / 10.0, word.cj_c());
-        self.response
-            .update(&self.cfg, now_ms, temp_c, ambient_c, applied_duty)?;
+        self.check_stuck(now_ms, word, commanded_duty)?;
         Ok(Some(Permit { _private: () }))
     }
 
     fn check_rise_rate(&mut self, now_ms: u32, temp: i16) -> Result<(), Fault> {
+        // a jump of more than a second's worth within one period is no block heating
+        if let Some(last) = self.last_temp_tenth_c {
+            if i32::from(temp) - i32::from(last) > i32::from(self.cfg.limits.max_rise_tenth_c_per_s)
+            {
+                return Err(Fault::RiseTooFast);
+            }
+        }
         match self.rate_ref {
             None => self.rate_ref = Some((now_ms, temp)),
             Some((t0, temp0)) => {
@@ -181,23 +204,31 @@ impl Interlocks {
     }
 
     /// The thermocouple's own reading unchanged while heating (the cold-junction bits may
-    /// still move: a stuck junction on a live chip) although the controller has moved the
-    /// duty since: it is acting on an error it never sees corrected. A quiet reading at a
-    /// settled hold, with the duty steady, is no fault.
+    /// still move: a stuck junction on a live chip) although the controller's duty, on
+    /// average since the reading froze, has moved away from where it was: it is acting on an
+    /// error it never sees corrected. A quiet reading at a settled hold, the duty jittering
+    /// about its level, is no fault.
     fn check_stuck(&mut self, now_ms: u32, word: ThermoWord, duty: f32) -> Result<(), Fault> {
-        if duty <= 0.0 {
-            self.unchanged_since = None;
-            return Ok(());
-        }
         let tc = word.tc_counts();
-        match self.unchanged_since {
-            Some((since, last, duty0)) if last == tc => {
-                let moved = (duty - duty0).abs() >= STUCK_DUTY_MOVE;
-                if moved && now_ms.wrapping_sub(since) >= self.cfg.stuck_timeout_ms {
+        match &mut self.unchanged_since {
+            Some(s) if s.counts == tc => {
+                s.duty_sum += duty;
+                s.periods += 1;
+                let mean = s.duty_sum / s.periods as f32;
+                let moved = (mean - s.duty0).abs() >= STUCK_DUTY_MOVE;
+                if moved && now_ms.wrapping_sub(s.since_ms) >= self.cfg.stuck_timeout_ms {
                     return Err(Fault::StuckReading);
                 }
             }
-            _ => self.unchanged_since = Some((now_ms, tc, duty)),
+            _ => {
+                self.unchanged_since = Some(Unchanged {
+                    since_ms: now_ms,
+                    counts: tc,
+                    duty0: duty,
+                    duty_sum: 0.0,
+                    periods: 0,
+                })
+            }
         }
         Ok(())
     }

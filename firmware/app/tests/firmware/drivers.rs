@@ -161,9 +161,15 @@ fn heater_drives_pwm_and_enable_and_turns_both_off() {
     let reading = remanent_firmware::safety::Reading::Word(
         remanent_protocol::ThermoWord::from_parts(100, 400, None),
     );
-    let permit = interlocks.check(0, reading, 0.0, true).unwrap().unwrap();
+    let permit = interlocks
+        .check(0, reading, (0.0, 0.0), true)
+        .unwrap()
+        .unwrap();
     heater.drive(permit, 0.5).unwrap();
-    let permit = interlocks.check(100, reading, 0.5, true).unwrap().unwrap();
+    let permit = interlocks
+        .check(100, reading, (0.5, 0.5), true)
+        .unwrap()
+        .unwrap();
     heater.drive(permit, 1.0).unwrap();
     assert!((heater.duty() - 0.85).abs() < 1e-6);
     heater.off().unwrap();

@@ -3,9 +3,10 @@
 
 use remanent_firmware::device::Mode;
 use remanent_firmware::heater::{window_on_ms, Heater};
+use remanent_firmware::safety::latch::cooling_wait_ms;
 use remanent_protocol::*;
 
-use crate::safety_scenarios::{assert_latched, heating_bench};
+use crate::safety_scenarios::{assert_latched, assert_latched_then, heating_bench};
 use crate::util::{bench_config, Bench, FakePin, FakePwm, Plant, Shared};
 
 /// Detach the heater, wait for the trip, cool to ambient, clear.
@@ -26,6 +27,16 @@ fn trip_and_recover(b: &mut Bench) -> Option<RefuseReason> {
     assert!(matches!(b.reply_to(id), Some(Err(_))));
     b.plant.borrow_mut().temp_c = 24.0;
     b.run_for(1_000);
+    let id = b.send(Command::ClearFault);
+    if let Some(Err(r)) = b.reply_to(id) {
+        if matches!(r, RefuseReason::LockedOut { .. }) {
+            return Some(r);
+        }
+        // a thermocouple that saw no heating may be reading air: its word near ambient is
+        // not enough until the block has had its own time to cool from the run limit
+        assert_eq!(r, RefuseReason::FaultLatched(Fault::NoHeatingResponse));
+    }
+    b.run_for(cooling_wait_ms(&bench_config(), 1500, 250));
     let id = b.send(Command::ClearFault);
     b.reply_to(id).and_then(|r| r.err())
 }
@@ -91,6 +102,12 @@ fn a_board_reset_by_its_watchdog_comes_up_latched_and_says_why() {
     // near ambient: the host may clear it
     let id = b.send(Command::ClearFault);
     assert_eq!(b.reply_to(id), Some(Ok(())));
+    // the reset counted as a trip: two more heating trips lock
+    assert_eq!(trip_and_recover(&mut b), None, "second trip clears");
+    assert_eq!(
+        trip_and_recover(&mut b),
+        Some(RefuseReason::LockedOut { trips: 3 })
+    );
     // a lock survives the reset
     let locked = BootReport {
         locked: true,
@@ -140,7 +157,10 @@ fn time_proportioning_turns_the_output_fully_on_for_whole_half_cycles() {
     let mut interlocks = remanent_firmware::safety::Interlocks::new(bench_config(), 0);
     let word = ThermoWord::from_parts(4 * 30, 16 * 25, None);
     let reading = remanent_firmware::safety::Reading::Word(word);
-    let permit = interlocks.check(0, reading, 0.0, true).unwrap().unwrap();
+    let permit = interlocks
+        .check(0, reading, (0.0, 0.0), true)
+        .unwrap()
+        .unwrap();
     heater.drive(permit, 0.333).unwrap();
     // three windows at 1 ms steps: the output is only ever fully on or fully off
     let mut on_ms = 0;
@@ -158,4 +178,53 @@ fn time_proportioning_turns_the_output_fully_on_for_whole_half_cycles() {
     );
     heater.off().unwrap();
     assert!(!plant.borrow().enabled && plant.borrow().duty == 0.0);
+}
+
+#[test]
+fn a_latch_held_when_the_board_went_down_is_held_again_after_the_restart() {
+    // the board reset (not by its watchdog) while an over-temperature was latched: the record
+    // it kept says so, and the device comes back latched, refusing to heat
+    let boot = BootReport {
+        reset: ResetCause::PowerOn,
+        last_fault: Some(Fault::OverTemperature),
+        locked: false,
+    };
+    let mut b = Bench::with(bench_config(), boot, HeaterDrive::Pwm { frequency_hz: 500 });
+    assert!(matches!(
+        b.device.mode(),
+        Mode::Faulted(Fault::OverTemperature)
+    ));
+    let id = b.start_manual(40.0, 100.0);
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::FaultLatched(Fault::OverTemperature)))
+    );
+    // a latch the host caused (a lost heartbeat) is not carried over
+    let boot = BootReport {
+        last_fault: Some(Fault::HeartbeatLost),
+        ..boot
+    };
+    let b = Bench::with(bench_config(), boot, HeaterDrive::Pwm { frequency_hz: 500 });
+    assert!(matches!(b.device.mode(), Mode::Idle));
+}
+
+#[test]
+fn heat_from_outside_is_caught_as_unexplained_and_every_later_fault_is_reported() {
+    // 400 W from outside into the 150 J/K block while it ramps: more than any duty explains
+    let mut b = heating_bench(60.0);
+    b.plant.borrow_mut().external_heat_w = 400.0;
+    let took = b.run_until(15_000, |b| matches!(b.device.mode(), Mode::Faulted(_)));
+    assert_latched(&b, Fault::HeatingWhileOff);
+    println!("outside heat caught after {took} ms");
+    // it goes on heating past the run limit (150 °C): that is reported too, once, and the
+    // latched fault stays the first of the two equally bad ones
+    b.run_until(200_000, |b| b.plant.borrow().temp_c > 151.0);
+    b.run_for(5_000);
+    assert_latched_then(&b, Fault::HeatingWhileOff, &[Fault::OverTemperature]);
+    // a new run is refused with the latched fault named
+    let id = b.start_manual(40.0, 100.0);
+    assert_eq!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::FaultLatched(Fault::HeatingWhileOff)))
+    );
 }

@@ -5,3 +5,6 @@ mod drivers;
 mod latches;
 mod safety_scenarios;
 mod util;
+mod zoo;
+mod zoo_rig;
+mod zoo_runs;
