@@ -100,7 +100,7 @@ pub fn device() -> [(&'static str, DeviceMsg); 7] {
 }
 
 /// One named example of every host command.
-pub fn host() -> [(&'static str, HostMsg); 9] {
+pub fn host() -> [(&'static str, HostMsg); 11] {
     let mut segments = Segments::default();
     let _ = segments.0.push(Segment {
         target_tenth_c: 1000,
@@ -150,5 +150,26 @@ pub fn host() -> [(&'static str, HostMsg); 9] {
         ("clear", msg(7, Command::ClearFault)),
         ("inject", msg(8, Command::InjectFault)),
         ("drill", msg(9, Command::Drill(Drill::Hang))),
+        (
+            "fixture",
+            msg(
+                10,
+                Command::Fixture(FixtureModel {
+                    rate_mk_per_s: 4000,
+                    cooling_tau_s: 125,
+                    lag_ms: 500,
+                }),
+            ),
+        ),
+        (
+            "duty",
+            msg(
+                11,
+                Command::Duty {
+                    duty_pct: 20,
+                    limit_tenth_c: 800,
+                },
+            ),
+        ),
     ]
 }

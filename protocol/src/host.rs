@@ -17,7 +17,7 @@ pub struct HostMsg {
 }
 
 /// Number of [`Command`] variants.
-pub const COMMAND_VARIANTS: u8 = 9;
+pub const COMMAND_VARIANTS: u8 = 11;
 
 /// Host commands. Every command also counts as a heartbeat.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, MaxSize)]
@@ -46,6 +46,31 @@ pub enum Command {
     InjectFault,
     /// Make the firmware fail as a bug would, to prove the safe state (test builds only).
     Drill(Drill),
+    /// The fixture as its identification found it (`remanent calibrate fixture`): the
+    /// interlocks judge the heating against it. Sent at every connection; refused out of
+    /// bounds or during a run.
+    Fixture(FixtureModel),
+    /// Drive the heater at a fixed duty until stopped or the limit is reached (the
+    /// identification's steps); capped like any heating, and by the model-free cap while the
+    /// fixture is not identified.
+    Duty {
+        /// Duty, % of full power.
+        duty_pct: u8,
+        /// The run's limit, 0.1 °C.
+        limit_tenth_c: i16,
+    },
+}
+
+/// A fixture's identified thermal behaviour, in the terms a temperature record determines.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, MaxSize)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct FixtureModel {
+    /// The block's heating rate at full duty and nominal mains, mK/s.
+    pub rate_mk_per_s: u32,
+    /// Its cooling time constant toward ambient, s.
+    pub cooling_tau_s: u32,
+    /// How far the thermocouple lags the block, ms.
+    pub lag_ms: u32,
 }
 
 /// A failure of the firmware itself, for drills on test builds.

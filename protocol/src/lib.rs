@@ -29,6 +29,8 @@ pub use device::{
 };
 pub use frame::{encode, EncodeError, MAX_DEVICE_FRAME, MAX_FRAME, MAX_HOST_FRAME};
 pub use handshake::{check_compatible, HandshakeError, Version, PROTOCOL_VERSION, VERSION};
-pub use host::{Command, Drill, HostMsg, Profile, SamplingConfig, Segment, Segments, MAX_SEGMENTS};
+pub use host::{
+    Command, Drill, FixtureModel, HostMsg, Profile, SamplingConfig, Segment, Segments, MAX_SEGMENTS,
+};
 pub use label::Label;
 pub use thermo_word::ThermoWord;

@@ -41,6 +41,69 @@ pub struct FirmwareConfig {
     pub period_ms: u16,
     /// Default conversions averaged per sample.
     pub oversample: u8,
+    /// Whether `plant` is this fixture's identification. Until it is (a board for any
+    /// fixture starts without one; the host sends it with `Command::Fixture`), heating runs
+    /// under [`ModelFree`] limits and no energy balance judges it.
+    pub identified: bool,
+    /// The limits that need no model of the fixture.
+    pub model_free: ModelFree,
+}
+
+/// Limits for a fixture nobody has identified yet: a low duty cap (a fifth of any heater,
+/// slow on any block) and a low ceiling (below where coatings fume, and where a part of the
+/// commonest grades starts to lose flux), which cannot false-trip and bound what a wrong
+/// guess could do until the thermal cut-off takes over.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ModelFree {
+    /// Duty cap, %.
+    pub duty_cap_pct: u8,
+    /// Ceiling, 0.1 °C.
+    pub ceiling_tenth_c: i16,
+}
+
+impl ModelFree {
+    /// 20 % and 80 °C.
+    pub const REFERENCE: ModelFree = ModelFree {
+        duty_cap_pct: 20,
+        ceiling_tenth_c: 800,
+    };
+}
+
+/// What the host's identification says, checked before the device takes it.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Identified {
+    /// Heating rate at full duty, K/s.
+    pub rate_k_per_s: f32,
+    /// Cooling time constant, s.
+    pub cooling_tau_s: f32,
+    /// Thermocouple lag, s.
+    pub lag_s: f32,
+}
+
+/// The heat capacity the device takes for an identified fixture, J/K: a temperature record
+/// determines only rates, so the plant is scaled to this and the heater and loss follow.
+const NOMINAL_CAPACITY_J_PER_K: f32 = 1000.0;
+
+impl Identified {
+    /// Bounds an identification must lie within: 5 mK/s … 50 K/s at full duty, a cooling
+    /// time constant of 20 s … 6 h, a lag of at most 5 s.
+    pub fn checked(self) -> Option<Identified> {
+        let ok = (0.005..=50.0).contains(&self.rate_k_per_s)
+            && (20.0..=21_600.0).contains(&self.cooling_tau_s)
+            && (0.0..=5.0).contains(&self.lag_s);
+        ok.then_some(self)
+    }
+
+    /// The plant model for `base`'s bounds with these values.
+    pub fn plant(self, base: PlantModel) -> PlantModel {
+        PlantModel {
+            heater_w: self.rate_k_per_s * NOMINAL_CAPACITY_J_PER_K,
+            heat_capacity_j_per_k: NOMINAL_CAPACITY_J_PER_K,
+            loss_w_per_k: NOMINAL_CAPACITY_J_PER_K / self.cooling_tau_s,
+            max_lag_s: 1.5 * self.lag_s + 0.5,
+            ..base
+        }
+    }
 }
 
 /// A first-order energy balance of the heated block, as identified for this fixture, with the
@@ -157,6 +220,15 @@ impl FirmwareConfig {
         soak_wait_max_ms: 20 * 60_000,
         period_ms: 100,
         oversample: 4,
+        identified: true,
+        model_free: ModelFree::REFERENCE,
+    };
+
+    /// The reference settings on a fixture nobody has identified yet (a board for any
+    /// fixture): model-free limits until the host sends the identification.
+    pub const UNIDENTIFIED: FirmwareConfig = FirmwareConfig {
+        identified: false,
+        ..FirmwareConfig::REFERENCE
     };
 
     /// The duty the controller may ask: the configured cap, and never so much that the
@@ -164,6 +236,9 @@ impl FirmwareConfig {
     /// rise-rate limit (a small block under a large heater heats at a fraction of full power).
     pub fn duty_cap(&self) -> f32 {
         let cap = f32::from(self.limits.duty_cap_pct.min(100)) / 100.0;
+        if !self.identified {
+            return cap.min(f32::from(self.model_free.duty_cap_pct) / 100.0);
+        }
         let max_rise = f32::from(self.limits.max_rise_tenth_c_per_s) / 10.0;
         let fastest = self.plant.gain_max * self.plant.full_rate_k_per_s();
         cap.min(0.9 * max_rise / fastest.max(1e-6))
@@ -171,6 +246,11 @@ impl FirmwareConfig {
 
     /// The ceiling actually enforced: the configured one, never above the absolute ceiling.
     pub fn ceiling_tenth_c(&self) -> i16 {
-        self.limits.ceiling_tenth_c.min(ABSOLUTE_CEILING_TENTH_C)
+        let ceiling = self.limits.ceiling_tenth_c.min(ABSOLUTE_CEILING_TENTH_C);
+        if self.identified {
+            ceiling
+        } else {
+            ceiling.min(self.model_free.ceiling_tenth_c)
+        }
     }
 }

@@ -13,10 +13,17 @@ mod record;
 
 use emu::{image, Emu, ENABLE_PIN, HEATER_PIN};
 use remanent_protocol::{
-    Command, DeviceHello, DeviceMsg, Drill, Fault, RefuseReason, ResetCause, RunState, VERSION,
+    Command, DeviceHello, DeviceMsg, Drill, Fault, FixtureModel, RefuseReason, ResetCause,
+    RunState, VERSION,
 };
 
 const USER_IMAGE: &str = "REMANENT_PICO_IMAGE";
+/// The reference rig's identification.
+const REFERENCE_FIXTURE: FixtureModel = FixtureModel {
+    rate_mk_per_s: 4000,
+    cooling_tau_s: 125,
+    lag_ms: 0,
+};
 const DRILLS_IMAGE: &str = "REMANENT_PICO_DRILLS_IMAGE";
 /// USB serviced within this, µs (the bound: one control period's worth of slack).
 const USB_SERVICE_LIMIT_US: u64 = 10_000;
@@ -49,7 +56,19 @@ fn handshake(e: &mut Emu) -> (u64, DeviceHello) {
         let sent = e.t_us;
         e.send(Command::Hello(VERSION));
         if e.run_until(1000, |e| e.find(sent, hello).is_some()) {
-            return e.find(sent, hello).expect("hello");
+            let found = e.find(sent, hello).expect("hello");
+            // as the host does at every connection: the fixture's identification (the
+            // reference rig: 600 W into 150 J/K, 1.2 W/K, the junction in the plate)
+            let id = e.send(Command::Fixture(REFERENCE_FIXTURE));
+            let acked = move |m: &DeviceMsg| match m {
+                DeviceMsg::Ack(a) if a.id == id => Some(()),
+                _ => None,
+            };
+            assert!(
+                e.run_until(1000, |e| e.find(sent, acked).is_some()),
+                "the identification was not taken"
+            );
+            return found;
         }
     }
     panic!(

@@ -4,11 +4,12 @@
 use embedded_hal::digital::OutputPin;
 use embedded_hal::pwm::SetDutyCycle;
 use remanent_protocol::{
-    Ack, Command, DeviceHello, DeviceMsg, Drill, HostMsg, Label, Profile, Refusal, RefuseReason,
-    SafetyLimits, SamplingConfig, SensorSetup, ThermoKind, VERSION,
+    Ack, Command, DeviceHello, DeviceMsg, Drill, FixtureModel, HostMsg, Label, Profile, Refusal,
+    RefuseReason, SafetyLimits, SamplingConfig, SensorSetup, ThermoKind, VERSION,
 };
 
 use super::{Device, Mode, FIRMWARE_VERSION};
+use crate::config::Identified;
 use crate::drivers::ads1115::{HALL_FULL_SCALE_UV, PROBE_FULL_SCALE_UV};
 use crate::log::{fw_info, fw_warn};
 use crate::profile::ProfileRunner;
@@ -100,6 +101,11 @@ where
                 Ok(())
             }
             Command::Drill(drill) => self.drill(drill),
+            Command::Fixture(model) => self.take_fixture(model),
+            Command::Duty {
+                duty_pct,
+                limit_tenth_c,
+            } => self.start_duty(now_ms, duty_pct, limit_tenth_c),
         };
         match result {
             Ok(()) => self.ack(id),
@@ -134,7 +140,7 @@ where
         match self.mode {
             Mode::Faulted(f) => Err(RefuseReason::FaultLatched(f)),
             Mode::Profile(_) => Err(RefuseReason::Busy),
-            Mode::Idle | Mode::Manual(_) => Ok(()),
+            Mode::Idle | Mode::Manual(_) | Mode::Duty(..) => Ok(()),
         }
     }
 
@@ -225,6 +231,48 @@ where
         self.interlocks.restart_detectors();
         self.interlocks.set_run_limit(self.cfg.ceiling_tenth_c());
         self.enter(now_ms, Mode::Idle);
+        Ok(())
+    }
+
+    /// The host's identification of the fixture: bounds-checked, then the interlocks judge
+    /// the heating against it (and the model-free limits no longer apply).
+    fn take_fixture(&mut self, model: FixtureModel) -> Result<(), RefuseReason> {
+        if matches!(
+            self.mode,
+            Mode::Profile(_) | Mode::Manual(_) | Mode::Duty(..)
+        ) {
+            return Err(RefuseReason::Busy);
+        }
+        let id = Identified {
+            rate_k_per_s: model.rate_mk_per_s as f32 / 1000.0,
+            cooling_tau_s: model.cooling_tau_s as f32,
+            lag_s: model.lag_ms as f32 / 1000.0,
+        }
+        .checked()
+        .ok_or(RefuseReason::Invalid)?;
+        self.cfg.plant = id.plant(self.cfg.plant);
+        self.cfg.identified = true;
+        self.interlocks.set_config(self.cfg);
+        fw_info!("fixture identified");
+        Ok(())
+    }
+
+    /// An identification step: a fixed duty under a run limit, capped as any heating is.
+    fn start_duty(
+        &mut self,
+        now_ms: u32,
+        duty_pct: u8,
+        limit_tenth_c: i16,
+    ) -> Result<(), RefuseReason> {
+        self.ready_for_run()?;
+        self.check_limit(limit_tenth_c)?;
+        let duty = f32::from(duty_pct) / 100.0;
+        if duty_pct == 0 || duty > self.cfg.duty_cap() + 1e-6 {
+            return Err(RefuseReason::Invalid);
+        }
+        self.interlocks.set_run_limit(limit_tenth_c);
+        self.pi.reset();
+        self.enter(now_ms, Mode::Duty(duty, limit_tenth_c));
         Ok(())
     }
 

@@ -43,6 +43,8 @@ pub enum Mode {
     Profile(ProfileRunner),
     /// Holding a setpoint, 0.1 °C.
     Manual(i16),
+    /// A fixed duty (0..=1) under a run limit, 0.1 °C: an identification's step.
+    Duty(f32, i16),
     /// Heater off until the fault is cleared.
     Faulted(Fault),
 }
@@ -52,7 +54,7 @@ impl Mode {
         match self {
             Mode::Idle => RunState::Idle,
             Mode::Profile(_) => RunState::Profile,
-            Mode::Manual(_) => RunState::Manual,
+            Mode::Manual(_) | Mode::Duty(..) => RunState::Manual,
             Mode::Faulted(_) => RunState::Faulted,
         }
     }
@@ -317,6 +319,7 @@ impl From<FirmwareConfig> for SafetyLimits {
     fn from(cfg: FirmwareConfig) -> Self {
         SafetyLimits {
             ceiling_tenth_c: cfg.ceiling_tenth_c(),
+            duty_cap_pct: (cfg.duty_cap() * 100.0 + 0.5) as u8,
             ..cfg.limits
         }
     }

@@ -37,6 +37,7 @@ where
                 sp
             }
             Mode::Manual(sp) => Some(*sp),
+            Mode::Duty(_, limit) => Some(*limit),
             Mode::Idle | Mode::Faulted(_) => None,
         };
         if finished {
@@ -127,6 +128,10 @@ where
     /// ramp's rate — so a ramp does not wind the integral and the plateau after it is met
     /// without overshoot.
     fn control(&mut self, temp_c: f32, ambient_c: f32) -> f32 {
+        let cap = self.heater.duty_cap().min(self.cfg.duty_cap());
+        if let Mode::Duty(duty, _) = self.mode {
+            return duty.min(cap); // an identification step: open loop, under every interlock
+        }
         let sp = f32::from(self.setpoint_tenth_c.unwrap_or(0)) / 10.0;
         let rate = match &self.mode {
             Mode::Profile(run) => run.ramp_c_per_s(),
@@ -134,7 +139,6 @@ where
         };
         let m = &self.cfg.plant;
         let need_w = m.loss_w_per_k * (sp - ambient_c) + m.heat_capacity_j_per_k * rate;
-        let cap = self.heater.duty_cap().min(self.cfg.duty_cap());
         let ff = (need_w / m.heater_w.max(1.0)).clamp(0.0, cap);
         let dt = f32::from(self.sampler.period_ms()) / 1000.0;
         self.pi.update_with(ff, sp, temp_c, dt, cap)

@@ -103,6 +103,13 @@ impl Interlocks {
         self.last_host_ms
     }
 
+    /// Take a new configuration (the host's identification of the fixture): the evidence
+    /// gathered so far is kept.
+    pub fn set_config(&mut self, cfg: FirmwareConfig) {
+        self.cfg = cfg;
+        self.run_limit_tenth_c = self.run_limit_tenth_c.min(cfg.ceiling_tenth_c());
+    }
+
     /// Set the run's own limit (already checked to be at most the ceiling).
     pub fn set_run_limit(&mut self, limit_tenth_c: i16) {
         self.run_limit_tenth_c = limit_tenth_c.min(self.cfg.ceiling_tenth_c());

@@ -65,6 +65,11 @@ impl ResponseCheck {
         ambient_c: f32,
         duty: f32,
     ) -> Result<(), Fault> {
+        if !cfg.identified {
+            // no model to judge against: the model-free limits bound the heating instead
+            self.restart();
+            return Ok(());
+        }
         let m = &cfg.plant;
         let dt_s = match self.last_ms.replace(now_ms) {
             Some(last) => now_ms.wrapping_sub(last) as f32 / 1000.0,
@@ -204,10 +209,19 @@ impl ExcessWatch {
         // replaces the loss
         let window_s = (n_w as u32 * bucket_ms) as f32 / 1000.0;
         let above_k = (f32::from(then) - f32::from(ambient_tenth_c)).max(0.0) / 10.0;
-        let least_loss_k =
-            m.loss_w_per_k / m.loss_max_factor * above_k / m.heat_capacity_j_per_k * window_s;
-        let budget_k = m.gain_max * m.full_rate_k_per_s() * duty_s - least_loss_k
-            + f32::from(cfg.excess_allowance_tenth_c) / 10.0;
+        let (heat_per_duty_s, least_loss_k) = if cfg.identified {
+            let loss = m.loss_w_per_k / m.loss_max_factor * above_k / m.heat_capacity_j_per_k;
+            (m.gain_max * m.full_rate_k_per_s(), loss * window_s)
+        } else {
+            // unidentified: any duty explains any rise; only heat with none at all is judged
+            (f32::INFINITY, 0.0)
+        };
+        let heat_k = if duty_s > 0.0 {
+            heat_per_duty_s * duty_s
+        } else {
+            0.0
+        };
+        let budget_k = heat_k - least_loss_k + f32::from(cfg.excess_allowance_tenth_c) / 10.0;
         if rise_k <= budget_k {
             return Ok(());
         }
@@ -260,9 +274,16 @@ impl ExcessWatch {
         }
         let m = &cfg.plant;
         let duty_s: f32 = self.long.iter().map(|b| b.duty_s).sum();
+        if !cfg.identified && duty_s > 0.0 {
+            return Ok(()); // no model: only a rise with no duty at all is judged
+        }
         let above_k_s: f32 = self.long.iter().map(|b| b.above_k_s).sum();
         let heat_k = m.gain_max * m.full_rate_k_per_s() * duty_s;
-        let loss_k = m.loss_w_per_k / m.loss_max_factor / m.heat_capacity_j_per_k * above_k_s;
+        let loss_k = if cfg.identified {
+            m.loss_w_per_k / m.loss_max_factor / m.heat_capacity_j_per_k * above_k_s
+        } else {
+            0.0
+        };
         let owed_k = m.max_lag_s * m.gain_max * m.full_rate_k_per_s() * cfg.duty_cap();
         let allow_k = f32::from(cfg.excess_allowance_tenth_c) / 10.0;
         let rise_k = f32::from(temp_tenth_c - first.start_tenth_c) / 10.0;

@@ -97,7 +97,8 @@ fn main() -> ! {
     pwm.enable();
     let mut channel = pwm.channel_a;
     channel.output_to(pins.gpio14);
-    let cfg = FirmwareConfig::REFERENCE;
+    // a board for any fixture: model-free limits until the host sends the identification
+    let cfg = FirmwareConfig::UNIDENTIFIED;
     let heater = Heater::new(channel, enable, cfg.limits.duty_cap_pct, HEATER_DRIVE);
 
     // sensors
