@@ -62,6 +62,38 @@ pub struct ThermocoupleCalibration {
     pub offset_u_c: f64,
 }
 
+/// The fixture's thermal behaviour as `remanent calibrate fixture` identified it, each value
+/// with its standard uncertainty: what the firmware's interlocks judge the heating against.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct FixtureCalibration {
+    /// The block's heating rate at full duty (at the mains of the day), K/s.
+    #[serde(rename = "rate_K_per_s")]
+    pub rate_k_per_s: f64,
+    /// Its standard uncertainty, K/s.
+    #[serde(rename = "rate_u_K_per_s")]
+    pub rate_u_k_per_s: f64,
+    /// The block's cooling time constant toward ambient, s.
+    pub cooling_tau_s: f64,
+    /// Its standard uncertainty, s.
+    pub cooling_tau_u_s: f64,
+    /// How far the thermocouple lags the block, s.
+    pub thermocouple_lag_s: f64,
+    /// Its standard uncertainty, s.
+    pub thermocouple_lag_u_s: f64,
+}
+
+impl FixtureCalibration {
+    /// As the device takes it (the device checks the bounds itself).
+    pub fn model(&self) -> remanent_protocol::FixtureModel {
+        let whole = |v: f64| v.round().clamp(0.0, f64::from(u32::MAX)) as u32;
+        remanent_protocol::FixtureModel {
+            rate_mk_per_s: whole(self.rate_k_per_s * 1000.0),
+            cooling_tau_s: whole(self.cooling_tau_s),
+            lag_ms: whole(self.thermocouple_lag_s * 1000.0),
+        }
+    }
+}
+
 /// A rig's full calibration.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct Calibration {
@@ -73,6 +105,9 @@ pub struct Calibration {
     pub ntc: NtcCalibration,
     /// Thermocouple.
     pub thermocouple: ThermocoupleCalibration,
+    /// The fixture's identification (none: the device heats under its model-free limits).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fixture: Option<FixtureCalibration>,
     /// When each calibration step was last done.
     #[serde(default, skip_serializing_if = "Dates::is_empty")]
     pub dates: Dates,

@@ -80,6 +80,9 @@ pub struct Dates {
     /// Gap and standoff.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub gap: Option<Stamp>,
+    /// The fixture's identification.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fixture: Option<Stamp>,
 }
 
 impl Dates {

@@ -116,13 +116,21 @@ const CALIBRATION_KEYS: &[&str] = &[
 ];
 
 /// The calibration's keys that older files do not have (allowed, not required): uncertainties
-/// of the zero, the sensitivity and the thermocouple offset, and the dates of the steps.
+/// of the zero, the sensitivity and the thermocouple offset, the dates of the steps, and the
+/// fixture's identification.
 const CALIBRATION_OPTIONAL_KEYS: &[&str] = &[
     "hall.offset_u_mv",
     "hall.sensitivity_u_pct",
     "thermocouple.offset_u_c",
     "dates",
     "dates.*",
+    "fixture",
+    "fixture.rate_K_per_s",
+    "fixture.rate_u_K_per_s",
+    "fixture.cooling_tau_s",
+    "fixture.cooling_tau_u_s",
+    "fixture.thermocouple_lag_s",
+    "fixture.thermocouple_lag_u_s",
 ];
 
 /// Every key of a parsed table, as dotted paths (`segment[].hold_s` for arrays of tables).
@@ -180,6 +188,12 @@ fn rules(kind: Kind) -> &'static [(&'static str, Rule)] {
             ("thermocouple.offset_u_c", NonNeg),
             ("hall.offset_u_mv", NonNeg),
             ("hall.sensitivity_u_pct", NonNeg),
+            ("fixture.rate_K_per_s", Pos),
+            ("fixture.rate_u_K_per_s", NonNeg),
+            ("fixture.cooling_tau_s", Pos),
+            ("fixture.cooling_tau_u_s", NonNeg),
+            ("fixture.thermocouple_lag_s", NonNeg),
+            ("fixture.thermocouple_lag_u_s", NonNeg),
         ],
         Kind::Magnet => &[
             ("shape.cylinder.diameter_mm", Pos),

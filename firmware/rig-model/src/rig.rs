@@ -316,10 +316,10 @@ impl Rig {
             return t;
         }
         let Some(at_s) = self.faults.thermocouple_detached_at_s else {
-            return self.thermal.plate_c;
+            return self.thermal.junction_c;
         };
         if self.time_s < at_s {
-            return self.thermal.plate_c;
+            return self.thermal.junction_c;
         }
         let from_c = *self.detached_from_c.get_or_insert(self.thermal.plate_c);
         let since_s = self.time_s - at_s;

@@ -24,6 +24,9 @@ pub struct ThermalParams {
     pub ambient_drift_k: f64,
     /// Ambient drift period, s.
     pub ambient_period_s: f64,
+    /// How far the thermocouple's junction lags the plate, s (0: clamped in it).
+    #[serde(default)]
+    pub thermocouple_lag_s: f64,
 }
 
 impl ThermalParams {
@@ -38,6 +41,7 @@ impl ThermalParams {
         ambient_c: 22.0,
         ambient_drift_k: 0.4,
         ambient_period_s: 5400.0,
+        thermocouple_lag_s: 0.0,
     };
 }
 
@@ -50,6 +54,8 @@ pub struct ThermalState {
     pub magnet_c: f64,
     /// Hall probe.
     pub probe_c: f64,
+    /// The thermocouple's junction (behind the plate by the lag).
+    pub junction_c: f64,
 }
 
 impl ThermalState {
@@ -59,6 +65,7 @@ impl ThermalState {
             plate_c: t_c,
             magnet_c: t_c,
             probe_c: t_c,
+            junction_c: t_c,
         }
     }
 
@@ -69,6 +76,12 @@ impl ThermalState {
         self.magnet_c += (self.plate_c - self.magnet_c) / p.magnet_tau_s * dt_s;
         let probe_eq = ambient_c + p.probe_coupling * (self.plate_c - ambient_c);
         self.probe_c += (probe_eq - self.probe_c) / p.probe_tau_s * dt_s;
+        self.junction_c = if p.thermocouple_lag_s > 0.0 {
+            self.junction_c
+                + (self.plate_c - self.junction_c) * dt_s / (p.thermocouple_lag_s + dt_s)
+        } else {
+            self.plate_c
+        };
     }
 }
 

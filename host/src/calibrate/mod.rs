@@ -5,6 +5,8 @@
 //! readings hold still (or over a warming), and writes the constant with its uncertainty and
 //! the date into the calibration.
 
+pub mod fixture;
+pub mod fixture_fit;
 pub mod reading;
 pub mod setup;
 pub mod steps;

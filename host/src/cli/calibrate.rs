@@ -15,7 +15,7 @@ use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 use super::options::{parse_finite, ForceOpts};
 
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq)]
-enum Which {
+pub(super) enum Which {
     /// The probe's zero in a zero-field can.
     Zero,
     /// The zero's drift: the probe warmed alone in the can.
@@ -32,27 +32,30 @@ enum Which {
     Gap,
     /// Every step above, in that order.
     All,
+    /// The fixture itself: a duty step and a cool-down, unattended (heats the block about
+    /// 20 K under the device's model-free limits); what the firmware judges heating against.
+    Fixture,
 }
 
 #[derive(clap::Args)]
 pub struct Args {
     /// Which step.
     #[arg(value_enum)]
-    step: Which,
+    pub(super) step: Which,
     /// Serial port of the bench.
     #[arg(long, required_unless_present = "virtual_rig")]
-    port: Option<String>,
+    pub(super) port: Option<String>,
     /// Play the steps on the built-in virtual rig instead of a bench.
     #[arg(long = "virtual")]
-    virtual_rig: bool,
+    pub(super) virtual_rig: bool,
     /// Start from this calibration (default: the reference design's nominal constants).
     #[arg(long)]
-    from: Option<PathBuf>,
+    pub(super) from: Option<PathBuf>,
     /// Write the calibration here (updated after every step).
     #[arg(long)]
-    out: PathBuf,
+    pub(super) out: PathBuf,
     #[command(flatten)]
-    force: ForceOpts,
+    pub(super) force: ForceOpts,
     /// Coil pair: turns in each coil.
     #[arg(long, default_value_t = 130.0)]
     turns: f64,
@@ -83,6 +86,15 @@ pub struct Args {
     /// Gap step: the standoff material's expansion coefficient, 1/K.
     #[arg(long, requires = "standoff_mm")]
     standoff_cte_per_k: Option<f64>,
+    /// Fixture step: the duty step, % (the device's cap applies).
+    #[arg(long, default_value_t = 20)]
+    pub(super) duty_pct: u8,
+    /// Fixture step: heat until the block has risen this much, K.
+    #[arg(long, default_value_t = 20.0, value_parser = parse_finite)]
+    pub(super) rise_k: f64,
+    /// Fixture step on the virtual rig: a fixture file of your own (as `virtual-rig --fixture`).
+    #[arg(long, requires = "virtual_rig")]
+    pub(super) fixture: Option<PathBuf>,
 }
 
 struct Live {
@@ -153,7 +165,7 @@ fn steps(a: &Args) -> anyhow::Result<Vec<Step>> {
             Which::IcePoint => Step::IcePoint,
             Which::BoilingPoint => Step::BoilingPoint(pressure),
             Which::Gap => Step::Gap(reference(a)?),
-            Which::All => unreachable!("expanded below"),
+            Which::All | Which::Fixture => unreachable!("expanded below, or identified apart"),
         })
     };
     match a.step {
@@ -176,6 +188,9 @@ fn steps(a: &Args) -> anyhow::Result<Vec<Step>> {
 /// Calibrate; the constants found are printed as the calibration file holds them (SI-based),
 /// the live readings in the display units `u`.
 pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
+    if a.step == Which::Fixture {
+        return super::calibrate_fixture::run(&a, u);
+    }
     let steps = steps(&a)?;
     let files = Files {
         from: a.from.clone(),

@@ -5,6 +5,7 @@ use remanent::units::DisplayUnits;
 
 mod analyze;
 mod calibrate;
+mod calibrate_fixture;
 mod clear_fault;
 mod demo;
 mod history;

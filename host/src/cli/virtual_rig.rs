@@ -47,6 +47,11 @@ pub struct Args {
     /// In survey mode, these magnets (1-based, comma-separated) have lost 5 % of their flux.
     #[arg(long, value_delimiter = ',')]
     survey_damaged: Vec<usize>,
+    /// Your own fixture (TOML: heater_w, heat_capacity_j_per_k, loss_w_per_k,
+    /// thermocouple_lag_s, mains_hz, mains_deviation_pct; examples in hardware-notes/fixtures/):
+    /// the virtual board then starts unidentified, as a new bench does.
+    #[arg(long)]
+    fixture: Option<std::path::PathBuf>,
 }
 
 pub fn run(a: Args) -> anyhow::Result<ExitCode> {
@@ -69,6 +74,9 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     };
     if a.zero_cross_relay {
         opts.params.switch = remanent_rig_model::HeaterSwitch::ZeroCross { half_cycle_s: 0.01 };
+    }
+    if let Some(path) = &a.fixture {
+        remanent::virtual_rig::FixtureFile::load(path)?.apply(&mut opts);
     }
     opts.link_flip_probability = a.link_flip_probability;
     if let Some(n) = a.survey {

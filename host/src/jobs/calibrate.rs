@@ -88,3 +88,25 @@ pub fn run<P: Read + Write>(
     }
     Ok((cal, found))
 }
+
+/// Identify the fixture on `port` and keep it, dated, in the calibration from `files.from`,
+/// written to `files.out`; the calibration and the fit.
+pub fn identify_fixture<P: Read + Write>(
+    port: P,
+    files: &Files,
+    plan: &crate::calibrate::fixture::Plan,
+    progress: &mut dyn crate::calibrate::fixture::Progress,
+) -> Result<(Calibration, crate::calibrate::fixture_fit::Fitted), CalibrateJobError> {
+    use crate::calibrate::fixture;
+    let mut cal = starting_point(files.from.as_deref())?;
+    output::refuse_existing([files.out.clone()], files.force)?;
+    let (found, fitted) = fixture::identify(port, &cal, plan, progress).map_err(|source| {
+        CalibrateJobError::Step {
+            step: "fixture".into(),
+            source,
+        }
+    })?;
+    fixture::keep(&mut cal, found);
+    save(&cal, &files.out, true)?;
+    Ok((cal, fitted))
+}

@@ -8,7 +8,8 @@ use std::io::{Read, Write};
 use std::time::{Duration, Instant};
 
 use remanent_protocol::{
-    Beacon, Command, DeviceHello, DeviceMsg, FaultReport, FrameError, RefuseReason, StateReport,
+    Beacon, Command, DeviceHello, DeviceMsg, FaultReport, FixtureModel, FrameError, RefuseReason,
+    StateReport,
 };
 
 use super::session::{LinkError, Received, Session};
@@ -164,6 +165,8 @@ pub struct Acquisition<P> {
     last_beat_device_s: f64,
     device_now_s: f64,
     empty_reads: u32,
+    /// The fixture's identification, given again after every handshake.
+    fixture: Option<FixtureModel>,
 }
 
 /// While nothing arrives, a heartbeat goes out every this many empty reads too: device time
@@ -194,6 +197,7 @@ impl<P: Read + Write> Acquisition<P> {
             last_beat_device_s: 0.0,
             device_now_s: 0.0,
             empty_reads: 0,
+            fixture: calibration.fixture.map(|f| f.model()),
         };
         let mut batch = Batch::default();
         for r in early {
@@ -202,7 +206,39 @@ impl<P: Read + Write> Acquisition<P> {
                 acq.take(f, &mut batch.events);
             }
         }
+        if let Some(f) = calibration.fixture {
+            acq.send_fixture(f.model(), &mut batch)?;
+        }
         Ok((acq, hello, batch))
+    }
+
+    /// Give the device the fixture's identification and wait for its answer, keeping every
+    /// byte and event that arrives meanwhile in `batch`; a refusal is an error.
+    fn send_fixture(&mut self, model: FixtureModel, batch: &mut Batch) -> Result<(), LinkError> {
+        let id = self.send(Command::Fixture(model))?;
+        let start = Instant::now();
+        while start.elapsed() < Duration::from_secs(5) {
+            let b = self.poll()?;
+            batch.bytes.extend(b.bytes);
+            for e in b.events {
+                let answer = match &e {
+                    Event::Reply { id: i, result } if *i == id => Some(*result),
+                    _ => None,
+                };
+                batch.events.push(e);
+                match answer {
+                    Some(Ok(())) => return Ok(()),
+                    Some(Err(reason)) => {
+                        return Err(LinkError::Refused {
+                            command: "the fixture's identification",
+                            reason,
+                        })
+                    }
+                    None => {}
+                }
+            }
+        }
+        Err(LinkError::NoAnswer("the fixture's identification"))
     }
 
     /// Ingest one frame. Device time moves on one period with every sample that arrives (its
@@ -285,6 +321,10 @@ impl<P: Read + Write> Acquisition<P> {
         let hello = self.session.handshake(timeout, &mut |_| {})?;
         self.ingest.restart_after_hello();
         self.last_byte = Instant::now();
+        // a reset forgets the identification: the device is told again
+        if let Some(model) = self.fixture {
+            self.send(Command::Fixture(model))?;
+        }
         Ok(hello)
     }
 }

@@ -118,6 +118,10 @@ pub const SURVEY_GAP_S: f64 = 8.0;
 impl SimulatedBench {
     /// A bench with `opts`' magnet and faults, running firmware configured by `cfg`.
     pub fn new(opts: VirtualRigOptions, cfg: FirmwareConfig) -> Self {
+        let cfg = FirmwareConfig {
+            identified: cfg.identified && opts.identified,
+            ..cfg
+        };
         let rig: Handle = Rc::new(RefCell::new(Rig::new(opts.params, opts.magnet, opts.seed)));
         rig.borrow_mut().faults = opts.faults;
         let board = BoardInfo {

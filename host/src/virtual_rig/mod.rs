@@ -8,11 +8,13 @@
 //! interlock itself is tested on the in-process [`SimulatedPort`], which keeps the 2 s.
 
 mod bench;
+mod fixture_file;
 mod options;
 mod port;
 mod pty;
 
 pub use bench::{heater_drive, SceneControl, SimulatedBench, SURVEY_GAP_S};
+pub use fixture_file::{FixtureFile, FixtureFileError};
 pub use options::{survey_set, virtual_config, RigTruth, VirtualRigOptions};
 pub use port::SimulatedPort;
 pub use pty::VirtualRig;

@@ -39,6 +39,9 @@ pub struct VirtualRigOptions {
     pub survey: Vec<(Magnet, f64)>,
     /// How long each survey magnet stays in the fixture, s (an empty fixture for 8 s between).
     pub survey_dwell_s: f64,
+    /// Whether the virtual board knows its fixture (the reference fixture is identified; a
+    /// builder's own from `--fixture` is not, until the host sends the identification).
+    pub identified: bool,
 }
 
 impl VirtualRigOptions {
@@ -56,6 +59,7 @@ impl VirtualRigOptions {
             keep_sent: false,
             survey: Vec::new(),
             survey_dwell_s: 20.0,
+            identified: true,
         }
     }
 }
@@ -133,6 +137,7 @@ impl Calibration {
                 gain_tolerance_pct: 0.4,
                 offset_u_c: 0.0,
             },
+            fixture: None,
             dates: Default::default(),
         }
     }

@@ -198,6 +198,7 @@ fn every_file_format_example_in_the_notes_is_accepted() {
     let cal = write("c.toml", &toml_blocks("calibration.md")[0]);
     let cal = remanent::calibration::Calibration::load(&cal).unwrap();
     assert!(cal.dates.required().iter().all(|d| d.1.is_some()));
+    assert_eq!(cal.fixture.map(|f| f.cooling_tau_s), Some(124.0));
     // the reference magnet's file, with its certified Br
     let r = write("r.toml", &toml_blocks("calibration.md")[1]);
     let r = remanent::magnets::resolve(r.to_str().unwrap()).unwrap();
