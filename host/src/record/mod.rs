@@ -23,6 +23,9 @@ use crate::link::LinkError;
 use crate::run_dir::{utc_now, Counts, DeviceInfo, RunDirError, RunMeta, RunWriter};
 use recorder::Recorder;
 
+/// A device capping its duty at this or less is running its model-free limits.
+const MODEL_FREE_CAP_PCT: u8 = 20;
+
 /// Record one cycle from `port`.
 pub fn record<P: Read + Write>(
     port: P,
@@ -44,6 +47,13 @@ pub fn record<P: Read + Write>(
         f64::from(hello.limits.ceiling_tenth_c) / 10.0
     ));
     progress.note(&format!("heater drive: {}", describe_heater(&hello.heater)));
+    if opts.calibration.fixture.is_none() && hello.limits.duty_cap_pct <= MODEL_FREE_CAP_PCT {
+        progress.note(&format!(
+            "this bench's fixture is not identified: the device heats at most {} % and to {:.0} °C until `remanent calibrate fixture` has run (hardware-notes/fixtures.md)",
+            hello.limits.duty_cap_pct,
+            f64::from(hello.limits.ceiling_tenth_c) / 10.0
+        ));
+    }
     if let Some(why) = describe_boot(&hello.boot) {
         progress.note(&why);
     }

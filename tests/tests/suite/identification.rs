@@ -208,3 +208,59 @@ fn an_unidentified_bench_refuses_to_heat_past_its_model_free_ceiling_until_it_is
         "{err}"
     );
 }
+
+#[test]
+fn a_record_on_an_unidentified_bench_says_so_and_stays_under_the_model_free_limits() {
+    use remanent::record::{
+        record, LiveStatus, Progress as RecordProgress, RecordEnd, RecordOptions,
+    };
+    use std::sync::atomic::AtomicBool;
+    use std::sync::Arc;
+    struct Notes(Vec<String>);
+    impl RecordProgress for Notes {
+        fn update(&mut self, _: &LiveStatus) {}
+        fn note(&mut self, m: &str) {
+            self.0.push(m.to_string());
+        }
+    }
+    let f = fixture(200.0, 450.0, 1.0, 3.0, 50.0, 0.0);
+    let opts = rig(&f);
+    let m = remanent::magnets::resolve("RM-N42SH-D10x5").unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let seg = |target_c, ramp_c_per_min, hold_s| remanent::profiles::SegmentSpec {
+        target_c,
+        ramp_c_per_min,
+        hold_s,
+    };
+    let rec = RecordOptions {
+        inspection: Default::default(),
+        auto_end: None,
+        port_label: "unidentified".into(),
+        magnet: m.info.clone(),
+        profile: remanent::profiles::ProfileSpec {
+            name: "warm".into(),
+            description: "a short warm hold".into(),
+            limit_c: 60.0,
+            segments: vec![seg(40.0, 10.0, 60.0), seg(30.0, 10.0, 10.0)],
+        },
+        calibration: remanent::calibration::Calibration::virtual_rig(&opts.params),
+        policy: Default::default(),
+        out: dir.path().join("run"),
+        silence_timeout: std::time::Duration::from_secs(10),
+        preroll_s: 10.0,
+        stop: Arc::new(AtomicBool::new(false)),
+    };
+    let mut notes = Notes(Vec::new());
+    let summary = record(&mut SimulatedPort::new(opts), rec, &mut notes).unwrap();
+    assert_eq!(summary.end, RecordEnd::Finished);
+    assert!(
+        notes
+            .0
+            .iter()
+            .any(|n| n.contains("fixture is not identified")
+                && n.contains("20 %")
+                && n.contains("80 °C")),
+        "{:#?}",
+        notes.0
+    );
+}
