@@ -265,3 +265,23 @@ impl Analysis {
         self.irreversible_loss_pct.unwrap_or(0.0).max(0.0) / 100.0
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_budget_combines_in_quadrature_and_expands_by_its_distribution() {
+        // 3 and 4 combine to 5 (GUM 5.1.2, uncorrelated inputs, unit sensitivities)
+        let normal = [BudgetLine::a("a", 3.0), BudgetLine::b("b", 4.0)];
+        assert_eq!(BudgetLine::combined(&normal), 5.0);
+        // normal terms alone: k = 2
+        assert_eq!(BudgetLine::expanded(&normal), 10.0);
+        // one rectangular term alone: 95.45 % of its half-width √3·u (by hand: u = 1/√3
+        // gives a half-width of 1, so 0.9545)
+        let rect = [BudgetLine::rectangular("r", 1.0 / 3f64.sqrt())];
+        assert!((BudgetLine::expanded(&rect) - 0.9545).abs() < 1e-3);
+        // the combined standard uncertainty is the same whatever the distribution
+        assert!((BudgetLine::combined(&rect) - 1.0 / 3f64.sqrt()).abs() < 1e-12);
+    }
+}
