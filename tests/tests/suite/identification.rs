@@ -122,11 +122,33 @@ fn the_identification_recovers_each_fixture_within_its_stated_uncertainty() {
     assert!(failures.is_empty(), "{failures:#?}");
 }
 
+/// Ask for a hold at 100 °C (limit 110 °C); the device's answer.
+fn heat_to_100(
+    acq: &mut remanent::link::acquisition::Acquisition<&mut SimulatedPort>,
+) -> Option<Result<(), remanent_protocol::RefuseReason>> {
+    use remanent::link::acquisition::Event;
+    let cmd = remanent_protocol::Command::Manual {
+        setpoint_tenth_c: 1000,
+        limit_tenth_c: 1100,
+    };
+    let id = acq.send(cmd).unwrap();
+    let reply = acq
+        .wait_for(
+            std::time::Duration::from_secs(5),
+            |e| matches!(e, Event::Reply { id: i, .. } if *i == id),
+        )
+        .unwrap();
+    match reply {
+        Some(Event::Reply { result, .. }) => Some(result),
+        _ => None,
+    }
+}
+
 #[test]
 fn an_unidentified_bench_refuses_to_heat_past_its_model_free_ceiling_until_it_is_identified() {
     use remanent::link::acquisition::Acquisition;
     use remanent::link::LinkError;
-    use remanent_protocol::{Command, RefuseReason};
+    use remanent_protocol::RefuseReason;
     let f = fixture(200.0, 450.0, 1.0, 3.0, 50.0, 10.0);
     let dir = tempfile::tempdir().unwrap();
     let files = Files {
@@ -143,54 +165,18 @@ fn an_unidentified_bench_refuses_to_heat_past_its_model_free_ceiling_until_it_is
         (hello.limits.ceiling_tenth_c, hello.limits.duty_cap_pct),
         (800, 20)
     );
-    let id = acq
-        .send(Command::Manual {
-            setpoint_tenth_c: 1000,
-            limit_tenth_c: 1100,
-        })
-        .unwrap();
-    let reply = acq
-        .wait_for(
-            std::time::Duration::from_secs(5),
-            |e| matches!(e, remanent::link::acquisition::Event::Reply { id: i, .. } if *i == id),
-        )
-        .unwrap();
-    assert!(
-        matches!(
-            reply,
-            Some(remanent::link::acquisition::Event::Reply {
-                result: Err(RefuseReason::AboveCeiling {
-                    ceiling_tenth_c: 800
-                }),
-                ..
-            })
-        ),
-        "{reply:?}"
+    assert_eq!(
+        heat_to_100(&mut acq),
+        Some(Err(RefuseReason::AboveCeiling {
+            ceiling_tenth_c: 800
+        }))
     );
     drop(acq);
     // identified (the same board, the same port): the calibration carries it to the device
     let (cal, _) = identify_fixture(&mut port, &files, &Plan::default(), &mut Quiet).unwrap();
     let (mut acq, _, _) =
         Acquisition::connect(&mut port, cal, std::time::Duration::from_secs(5)).unwrap();
-    let id = acq
-        .send(Command::Manual {
-            setpoint_tenth_c: 1000,
-            limit_tenth_c: 1100,
-        })
-        .unwrap();
-    let reply = acq
-        .wait_for(
-            std::time::Duration::from_secs(5),
-            |e| matches!(e, remanent::link::acquisition::Event::Reply { id: i, .. } if *i == id),
-        )
-        .unwrap();
-    assert!(
-        matches!(
-            reply,
-            Some(remanent::link::acquisition::Event::Reply { result: Ok(()), .. })
-        ),
-        "{reply:?}"
-    );
+    assert_eq!(heat_to_100(&mut acq), Some(Ok(())));
     // an identification out of the device's bounds is refused at the connection, by name
     let mut bad = cal;
     bad.fixture.as_mut().unwrap().thermocouple_lag_s = 9.0;

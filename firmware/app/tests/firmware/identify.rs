@@ -29,11 +29,7 @@ const BENCH_MODEL: FixtureModel = FixtureModel {
 #[test]
 fn an_unidentified_fixture_heats_only_under_the_model_free_limits() {
     let mut b = unidentified();
-    let hello = b.received.iter().find_map(|m| match m {
-        DeviceMsg::Hello(h) => Some(h.limits),
-        _ => None,
-    });
-    let limits = hello.expect("hello");
+    let limits = b.link.hello().expect("hello").limits;
     assert_eq!((limits.ceiling_tenth_c, limits.duty_cap_pct), (800, 20));
     let id = b.start_manual(100.0, 120.0);
     assert_eq!(

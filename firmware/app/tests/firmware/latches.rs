@@ -88,11 +88,7 @@ fn a_board_reset_by_its_watchdog_comes_up_latched_and_says_why() {
         locked: false,
     };
     let mut b = Bench::with(bench_config(), boot, HeaterDrive::Pwm { frequency_hz: 500 });
-    let hello = b.received.iter().find_map(|m| match m {
-        DeviceMsg::Hello(h) => Some(h.clone()),
-        _ => None,
-    });
-    assert_eq!(hello.expect("hello").boot, boot);
+    assert_eq!(b.link.hello().expect("hello").boot, boot);
     assert!(matches!(b.device.mode(), Mode::Faulted(Fault::Watchdog)));
     let id = b.start_manual(40.0, 100.0);
     assert_eq!(

@@ -4,6 +4,7 @@
 mod drivers;
 mod identify;
 mod latches;
+mod link;
 mod safety_scenarios;
 mod util;
 mod zoo;

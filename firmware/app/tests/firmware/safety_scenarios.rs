@@ -378,6 +378,7 @@ fn a_profile_runs_to_the_end_and_turns_the_heater_off() {
     assert!(b.faults().is_empty(), "{:?}", b.faults());
     // samples arrived with consecutive sequence numbers
     let seqs: Vec<u8> = b
+        .link
         .received
         .iter()
         .filter_map(|m| match m {

@@ -9,7 +9,6 @@ use embedded_hal::pwm::{ErrorType as PwmErrorType, SetDutyCycle};
 use remanent_firmware::device::{BoardInfo, Device};
 use remanent_firmware::heater::Heater;
 use remanent_firmware::{Adc, AdcInput, FirmwareConfig, Thermocouple};
-use remanent_protocol::decoder::DeviceDecoder;
 use remanent_protocol::thermo_word::ThermoFault;
 use remanent_protocol::*;
 
@@ -144,12 +143,11 @@ pub struct Bench {
     pub plant: Shared,
     pub device: FakeDevice,
     pub now_ms: u32,
-    pub next_id: u16,
     pub heartbeat: bool,
     /// Every step, a burst of commands arrives before the link is drained.
     pub flood: bool,
-    decoder: DeviceDecoder,
-    pub received: Vec<DeviceMsg>,
+    /// The host's side of the link.
+    pub link: crate::link::Link,
 }
 
 pub const STEP_MS: u32 = 100;
@@ -183,11 +181,9 @@ impl Bench {
             plant,
             device,
             now_ms: 0,
-            next_id: 1,
             heartbeat: true,
             flood: false,
-            decoder: DeviceDecoder::for_device_msgs(),
-            received: Vec::new(),
+            link: Default::default(),
         };
         bench.send(Command::Hello(VERSION));
         bench.run_for(200);
@@ -195,23 +191,7 @@ impl Bench {
     }
 
     pub fn send(&mut self, command: Command) -> u16 {
-        let id = self.next_id;
-        self.next_id += 1;
-        let mut buf = [0u8; MAX_HOST_FRAME];
-        let frame = encode(&HostMsg { id, command }, &mut buf).unwrap().to_vec();
-        self.device.receive(self.now_ms, &frame);
-        self.drain();
-        id
-    }
-
-    fn drain(&mut self) {
-        let mut buf = [0u8; MAX_DEVICE_FRAME];
-        while let Some(frame) = self.device.next_frame(&mut buf) {
-            let frame = frame.to_vec();
-            let received = &mut self.received;
-            self.decoder
-                .feed(&frame, |r| received.push(r.expect("device frames decode")));
-        }
+        self.link.send(&mut self.device, self.now_ms, command)
     }
 
     /// Advance the plant and the device by one step.
@@ -232,15 +212,8 @@ impl Bench {
             p.ticks += 1;
         }
         if self.flood {
-            let mut buf = [0u8; MAX_HOST_FRAME];
             for _ in 0..40 {
-                let id = self.next_id;
-                self.next_id = self.next_id.wrapping_add(1);
-                let msg = HostMsg {
-                    id,
-                    command: Command::Stop,
-                };
-                let frame = encode(&msg, &mut buf).unwrap().to_vec();
+                let (_, frame) = self.link.frame(Command::Stop);
                 self.device.receive(self.now_ms, &frame);
             }
         }
@@ -248,7 +221,7 @@ impl Bench {
             self.send(Command::Heartbeat);
         }
         self.device.poll(self.now_ms);
-        self.drain();
+        self.link.drain(&mut self.device);
     }
 
     pub fn run_for(&mut self, ms: u32) {
@@ -276,21 +249,11 @@ impl Bench {
     }
 
     pub fn faults(&self) -> Vec<Fault> {
-        self.received
-            .iter()
-            .filter_map(|m| match m {
-                DeviceMsg::Fault(f) => Some(f.fault),
-                _ => None,
-            })
-            .collect()
+        self.link.faults()
     }
 
     pub fn reply_to(&self, id: u16) -> Option<Result<(), RefuseReason>> {
-        self.received.iter().find_map(|m| match m {
-            DeviceMsg::Ack(a) if a.id == id => Some(Ok(())),
-            DeviceMsg::Refused(r) if r.id == id => Some(Err(r.reason)),
-            _ => None,
-        })
+        self.link.reply_to(id)
     }
 
     pub fn start_manual(&mut self, setpoint_c: f64, limit_c: f64) -> u16 {

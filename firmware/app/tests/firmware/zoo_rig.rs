@@ -105,9 +105,8 @@ pub struct Rig {
     pub device: Device<FakeAdc, Tc, Pwm, Pin>,
     pub now_ms: u32,
     step_ms: u32,
-    next_id: u16,
-    decoder: remanent_protocol::decoder::DeviceDecoder,
-    pub received: Vec<DeviceMsg>,
+    /// The host's side of the link.
+    pub link: crate::link::Link,
     /// The host sends a heartbeat every half second.
     pub heartbeat: bool,
 }
@@ -145,9 +144,7 @@ impl Rig {
             now_ms: 0,
             // time-proportioning switches whole half-cycles: poll often enough to see them
             step_ms: if fixture.mains_hz == 0 { 100 } else { 20 },
-            next_id: 1,
-            decoder: remanent_protocol::decoder::DeviceDecoder::for_device_msgs(),
-            received: Vec::new(),
+            link: Default::default(),
             heartbeat: true,
         };
         rig.send(Command::Hello(VERSION));
@@ -155,23 +152,7 @@ impl Rig {
     }
 
     pub fn send(&mut self, command: Command) -> u16 {
-        let id = self.next_id;
-        self.next_id += 1;
-        let mut buf = [0u8; MAX_HOST_FRAME];
-        let frame = encode(&HostMsg { id, command }, &mut buf).unwrap().to_vec();
-        self.device.receive(self.now_ms, &frame);
-        self.drain();
-        id
-    }
-
-    fn drain(&mut self) {
-        let mut buf = [0u8; MAX_DEVICE_FRAME];
-        while let Some(frame) = self.device.next_frame(&mut buf) {
-            let frame = frame.to_vec();
-            let received = &mut self.received;
-            self.decoder
-                .feed(&frame, |r| received.push(r.expect("device frames decode")));
-        }
+        self.link.send(&mut self.device, self.now_ms, command)
     }
 
     /// Advance the plant and the device by one step.
@@ -212,7 +193,7 @@ impl Rig {
             self.send(Command::Heartbeat);
         }
         self.device.poll(self.now_ms);
-        self.drain();
+        self.link.drain(&mut self.device);
     }
 
     pub fn run_for(&mut self, ms: u32) {
@@ -223,21 +204,11 @@ impl Rig {
     }
 
     pub fn faults(&self) -> Vec<Fault> {
-        self.received
-            .iter()
-            .filter_map(|m| match m {
-                DeviceMsg::Fault(f) => Some(f.fault),
-                _ => None,
-            })
-            .collect()
+        self.link.faults()
     }
 
     pub fn reply_to(&self, id: u16) -> Option<Result<(), RefuseReason>> {
-        self.received.iter().find_map(|m| match m {
-            DeviceMsg::Ack(a) if a.id == id => Some(Ok(())),
-            DeviceMsg::Refused(r) if r.id == id => Some(Err(r.reason)),
-            _ => None,
-        })
+        self.link.reply_to(id)
     }
 
     pub fn latched(&self) -> Option<Fault> {
