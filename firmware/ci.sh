@@ -33,6 +33,8 @@ echo "-- formatting and lints of the board crates"
 for b in support pico emulated; do
   (cd "firmware/boards/$b" && cargo fmt --check && cargo clippy -q --release -- -D warnings)
 done
+echo "-- the Pico board for 60 Hz mains (the bench's mains are a build option)"
+(cd firmware/boards/pico && cargo clippy -q --release --features mains-60hz -- -D warnings)
 
 echo "-- building the emulated board (thumbv7m-none-eabi)"
 (cd firmware/boards/emulated && cargo build --release -q)

@@ -3,8 +3,8 @@
 //! Pins (hardware-notes/wiring.md): I2C0 SDA GP4 / SCL GP5 to the ADC; SPI0 SCK GP18,
 //! MISO GP16 (pulled up: an absent converter reads all ones), CS GP17 to the thermocouple
 //! converter; heater output on GP14; heater enable on GP15; status LED on GP25. The heater
-//! output drives a zero-crossing relay by time-proportioning (2 s windows of whole 50 Hz
-//! half-cycles; hardware-notes/heater-drive.md). The host link is USB CDC-ACM on the Pico's own
+//! output drives a zero-crossing relay by time-proportioning (2 s windows of whole mains
+//! half-cycles, 50 Hz or with `mains-60hz` 60 Hz; hardware-notes/heater-drive.md). The host link is USB CDC-ACM on the Pico's own
 //! USB port, serviced from its interrupt ([`usb`]). A panic, a hard fault (a stack overflow
 //! hits the MPU guard) or a hung loop reaches the safe state of [`safe`] and resets the chip;
 //! it comes back latched and says why in its hello. Logs go out over RTT with defmt.
@@ -35,10 +35,16 @@ use usb_device::class_prelude::UsbBusAllocator;
 pub static BOOT2: [u8; 256] = rp2040_boot2::BOOT_LOADER_W25Q080;
 
 const XTAL_FREQ_HZ: u32 = 12_000_000;
-/// The heater's switch: a zero-crossing relay on 50 Hz mains.
+/// The mains half-cycle, µs: part of the bench's configuration, chosen when the image is built
+/// (`--features mains-60hz` for 60 Hz mains; 50 Hz otherwise).
+#[cfg(not(feature = "mains-60hz"))]
+const MAINS_HALF_CYCLE_US: u16 = 10_000;
+#[cfg(feature = "mains-60hz")]
+const MAINS_HALF_CYCLE_US: u16 = 8_333;
+/// The heater's switch: a zero-crossing relay, in 2 s windows of whole mains half-cycles.
 const HEATER_DRIVE: HeaterDrive = HeaterDrive::TimeProportioning {
     window_ms: 2000,
-    half_cycle_us: 10_000,
+    half_cycle_us: MAINS_HALF_CYCLE_US,
 };
 /// Watchdog timeout: a few control periods (the longest period is 250 ms).
 const WATCHDOG_MS: u32 = 500;
