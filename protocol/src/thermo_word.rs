@@ -66,6 +66,12 @@ impl ThermoWord {
         ((self.tc_counts() as i32 * 5) / 2) as i16
     }
 
+    /// Cold-junction temperature in tenths of a degree Celsius, rounded toward zero
+    /// (counts × 0.625).
+    pub fn cj_tenth_c(self) -> i16 {
+        ((self.cj_counts() as i32 * 5) / 8) as i16
+    }
+
     /// Cold-junction temperature, °C.
     pub fn cj_c(self) -> f32 {
         self.cj_counts() as f32 * CJ_C_PER_COUNT

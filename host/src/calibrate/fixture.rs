@@ -241,12 +241,7 @@ pub fn identify<P: Read + Write>(
     }
     run.read_until(Phase::Cooling, progress, |t, _| t - stopped >= plan.cool_s)?;
     // a relay on time-proportioning: heat enters up to half a window early
-    let timing_s = match hello.heater {
-        remanent_protocol::HeaterDrive::TimeProportioning { window_ms, .. } => {
-            f64::from(window_ms) / 2000.0
-        }
-        remanent_protocol::HeaterDrive::Pwm { .. } => 0.0,
-    };
+    let timing_s = relay.map_or(0.0, |(window_s, _)| window_s / 2.0);
     let mut fitted = fit(&run.trace, timing_s).map_err(CalibrateError::Unusable)?;
     if let Some((window_s, half_s)) = relay {
         // what the relay delivered is known as well as its half-cycles allow (rectangular)

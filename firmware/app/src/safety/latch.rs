@@ -94,8 +94,8 @@ pub fn may_clear(
     let good = word.filter(|w| w.fault().is_none() && word_plausible(&cfg.plausible, *w));
     let w = good.ok_or(RefuseReason::FaultLatched(fault))?;
     if cls == FaultClass::Heating {
-        // ambient from the cold junction (0.0625 °C counts → 0.1 °C)
-        let ambient_tenth_c = (i32::from(w.cj_counts()) * 5 / 8) as i16;
+        // ambient from the cold junction
+        let ambient_tenth_c = w.cj_tenth_c();
         let below_tenth_c = ambient_tenth_c.saturating_add(cfg.ambient_band_tenth_c);
         let temp_tenth_c = w.tc_tenth_c();
         if temp_tenth_c >= below_tenth_c {

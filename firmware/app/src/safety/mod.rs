@@ -166,7 +166,7 @@ impl Interlocks {
         rate?;
         // the energy balances run every period, heating or not: their evidence is not reset
         // by a Stop or a new setpoint
-        let ambient_tenth_c = (i32::from(word.cj_counts()) * 5 / 8) as i16;
+        let ambient_tenth_c = word.cj_tenth_c();
         self.excess
             .update(&self.cfg, now_ms, temp, ambient_tenth_c, applied_duty)?;
         let (temp_c, ambient_c) = (f32::from(temp) / 10.0, word.cj_c());

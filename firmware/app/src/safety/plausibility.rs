@@ -43,9 +43,7 @@ pub fn word_plausible(cfg: &Plausible, word: ThermoWord) -> bool {
     if word.0 == 0 || word.0 == u32::MAX || word.0 & RESERVED_BITS != 0 {
         return false;
     }
-    // cold junction in 0.1 °C: counts × 0.625
-    let cj_tenth_c = i32::from(word.cj_counts()) * 5 / 8;
-    (i32::from(cfg.cj_min_tenth_c)..=i32::from(cfg.cj_max_tenth_c)).contains(&cj_tenth_c)
+    (cfg.cj_min_tenth_c..=cfg.cj_max_tenth_c).contains(&word.cj_tenth_c())
 }
 
 #[cfg(test)]

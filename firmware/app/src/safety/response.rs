@@ -29,6 +29,24 @@ pub struct ResponseCheck {
     last_ms: Option<u32>,
 }
 
+/// Seconds since the period before (none for the first), and `now_ms` kept for the next.
+fn step_s(last_ms: &mut Option<u32>, now_ms: u32) -> f32 {
+    last_ms
+        .replace(now_ms)
+        .map_or(0.0, |last| now_ms.wrapping_sub(last) as f32 / 1000.0)
+}
+
+/// A rise with no duty at all on an idle fixture within the ambient band: what a hand-warm
+/// part placed on it does, which no switch failing on stays within.
+fn warm_part_placed(
+    cfg: &FirmwareConfig,
+    duty_s: f32,
+    temp_tenth_c: i16,
+    ambient_tenth_c: i16,
+) -> bool {
+    duty_s <= 0.0 && temp_tenth_c <= ambient_tenth_c.saturating_add(cfg.ambient_band_tenth_c)
+}
+
 /// How long a window may run before it is judged or given up, ms: the configured window, or
 /// three times what the weakest fixture at the duty cap, losing the most it may at the run
 /// limit `limit_c` above `ambient_c`, needs to show the judged rise through the longest lag,
@@ -71,10 +89,7 @@ impl ResponseCheck {
             return Ok(());
         }
         let m = &cfg.plant;
-        let dt_s = match self.last_ms.replace(now_ms) {
-            Some(last) => now_ms.wrapping_sub(last) as f32 / 1000.0,
-            None => 0.0,
-        };
+        let dt_s = step_s(&mut self.last_ms, now_ms);
         let w = self.window.get_or_insert(Window {
             since_ms: now_ms,
             temp0_c: temp_c,
@@ -174,10 +189,7 @@ impl ExcessWatch {
         duty: f32,
     ) -> Result<(), Fault> {
         let (bucket_ms, n_w, n_total) = excess_geometry(cfg);
-        let dt_s = match self.last_ms.replace(now_ms) {
-            Some(last) => now_ms.wrapping_sub(last) as f32 / 1000.0,
-            None => 0.0,
-        };
+        let dt_s = step_s(&mut self.last_ms, now_ms);
         self.long_balance(cfg, now_ms, temp_tenth_c, ambient_tenth_c, duty, dt_s)?;
         let (start, acc) = self.open.get_or_insert((now_ms, 0.0));
         *acc += duty.max(0.0) * dt_s;
@@ -225,17 +237,12 @@ impl ExcessWatch {
         if rise_k <= budget_k {
             return Ok(());
         }
-        // an idle fixture near ambient: a hand-warm part placed on it warms the reading a few
-        // kelvin, which no duty explains; a switch failed on takes it past the band
-        let near_ambient = temp_tenth_c <= ambient_tenth_c.saturating_add(cfg.ambient_band_tenth_c);
-        if duty_s <= 0.0 && near_ambient {
+        if warm_part_placed(cfg, duty_s, temp_tenth_c, ambient_tenth_c) {
             return Ok(());
         }
         Err(Fault::HeatingWhileOff)
     }
-}
 
-impl ExcessWatch {
     /// The long balance: over the coarse buckets kept (one to four minutes), the reading may
     /// rise by no more than the strongest fixture's heating from the duty, less the least it
     /// can lose at the temperatures it was at, plus what a lagging thermocouple still owed at
@@ -287,8 +294,8 @@ impl ExcessWatch {
         let owed_k = m.max_lag_s * m.gain_max * m.full_rate_k_per_s() * cfg.duty_cap();
         let allow_k = f32::from(cfg.excess_allowance_tenth_c) / 10.0;
         let rise_k = f32::from(temp_tenth_c - first.start_tenth_c) / 10.0;
-        let near_ambient = temp_tenth_c <= ambient_tenth_c.saturating_add(cfg.ambient_band_tenth_c);
-        if rise_k > heat_k - loss_k + owed_k + allow_k && !(duty_s <= 0.0 && near_ambient) {
+        let placed = warm_part_placed(cfg, duty_s, temp_tenth_c, ambient_tenth_c);
+        if rise_k > heat_k - loss_k + owed_k + allow_k && !placed {
             return Err(Fault::HeatingWhileOff);
         }
         Ok(())
