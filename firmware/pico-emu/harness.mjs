@@ -7,9 +7,14 @@
 // After each slice the harness writes what happened, then waits for the driver's lines up to
 // `G` (go) before running the next slice:
 //   out  U <hex>               bytes the device sent to the host (CDC data)
-//        P <t_us> <pin> <0|1>  a heater pin changed (GP14 output, GP15 enable)
+//        P <t_us> <pin> <0|1>  the heater output (GP14) changed, or the relay's enable did
+//                              (pin 15: the board's retriggerable monostable on GP15's rising
+//                              edges, which holds the relay for ENABLE_HOLD_US after each)
 //        E <words>             an event: the chip reset (and why), USB configured, a fault
-//        S <t_us> <heater_on_us> <enable> <max_usb_service_us>  end of the slice
+//        S <t_us> <heater_on_us> <enable> <max_usb_service_us> <max_enable_gap_us> <rising_edges>
+//                              end of the slice: the relay's enable now, the longest wait
+//                              between GP15's rising edges while it held, and its rising edges
+//                              in this slice
 //   in   V <hall> <probe> <thermo_word>   sensor codes from now on
 //        H <hex>               bytes from the host to the device
 //        R <0|1>               the host reads (1) or stops reading (0)
@@ -30,6 +35,9 @@ const HEATER_PIN = 14;
 const ENABLE_PIN = 15;
 const EXC_HARDFAULT = 3;
 const CYCLE_NS = 8; // 125 MHz
+// the enable path's retriggerable monostable: its hold after each rising edge of GP15
+// (hardware-notes/safety.md sizes it)
+const ENABLE_HOLD_NS = Number(process.env.PICO_EMU_ENABLE_HOLD_US ?? 100_000) * 1000;
 
 const [imagePath, sliceArg] = process.argv.slice(2);
 const image = readFileSync(imagePath);
@@ -47,18 +55,46 @@ const pins = { [HEATER_PIN]: false, [ENABLE_PIN]: false };
 let heaterSince = 0;
 let heaterOnNs = 0;
 let maxServiceNs = 0;
+// the enable path: GP15's last rising edge, the monostable's output, edges this slice
+let lastRiseNs = -Infinity;
+let relayEnabled = false;
+let maxEnableGapNs = 0;
+let risingEdges = 0;
 
 const nowNs = () => offsetNs + (clock ? clock.nanos : 0);
 
 function pinChanged(pin, high) {
   if (pins[pin] === high) return;
   const t = nowNs();
-  if (pin === HEATER_PIN) {
-    if (high) heaterSince = t;
-    else heaterOnNs += t - heaterSince;
-  }
   pins[pin] = high;
+  if (pin === ENABLE_PIN) {
+    enableEdge(t, high);
+    return;
+  }
+  if (high) heaterSince = t;
+  else heaterOnNs += t - heaterSince;
   out(`P ${Math.round(t / 1000)} ${pin} ${high ? 1 : 0}`);
+}
+
+/** The monostable drops once its hold after the last rising edge has passed. */
+function enableLapse(t) {
+  if (relayEnabled && t - lastRiseNs > ENABLE_HOLD_NS) {
+    relayEnabled = false;
+    out(`P ${Math.round((lastRiseNs + ENABLE_HOLD_NS) / 1000)} ${ENABLE_PIN} 0`);
+  }
+}
+
+/** GP15 changed at `t`: a rising edge retriggers the monostable. */
+function enableEdge(t, high) {
+  enableLapse(t);
+  if (!high) return;
+  risingEdges += 1;
+  if (relayEnabled) maxEnableGapNs = Math.max(maxEnableGapNs, t - lastRiseNs);
+  lastRiseNs = t;
+  if (!relayEnabled) {
+    relayEnabled = true;
+    out(`P ${Math.round(t / 1000)} ${ENABLE_PIN} 1`);
+  }
 }
 
 /** A fresh chip: power-on, or a reset that keeps only the watchdog's scratch and reason. */
@@ -202,13 +238,15 @@ let sliceEnd = 0;
 while (obey()) {
   sliceEnd += sliceNs;
   heaterOnNs = 0;
+  risingEdges = 0;
   heaterSince = Math.max(heaterSince, sliceEnd - sliceNs);
   runSlice(sliceEnd);
+  enableLapse(sliceEnd);
   let on = heaterOnNs;
   if (pins[HEATER_PIN]) on += sliceEnd - Math.max(heaterSince, sliceEnd - sliceNs);
   const service = Math.max(maxServiceNs, host.maxServiceNs);
   out(
-    `S ${Math.round(sliceEnd / 1000)} ${Math.round(on / 1000)} ${pins[ENABLE_PIN] ? 1 : 0} ${Math.round(service / 1000)}`,
+    `S ${Math.round(sliceEnd / 1000)} ${Math.round(on / 1000)} ${relayEnabled ? 1 : 0} ${Math.round(service / 1000)} ${Math.round(maxEnableGapNs / 1000)} ${risingEdges}`,
   );
   writeSync(1, pending.join('\n') + '\n');
   pending.length = 0;

@@ -6,6 +6,12 @@
 //! slow time-proportioning instead: in each window the output is fully on for a whole number
 //! of mains half-cycles, set by [`Heater::tick`] from the main loop.
 //!
+//! The enable pin is either a level (high while heating) or, with
+//! [`Heater::with_toggling_enable`], a square wave toggled from [`Heater::tick`] while heating
+//! is permitted: the board's enable path then needs edges (a charge pump or a retriggerable
+//! monostable, hardware-notes/safety.md), so a pin stuck high, a halted core or a hung main
+//! loop cannot hold the relay on.
+//!
 //! Energising needs a [`Permit`], which only the interlocks can issue (`safety` module), so no
 //! code path can switch the heater on without every interlock having passed this period.
 
@@ -50,7 +56,14 @@ pub struct Heater<P, O> {
     on_counted_ms: u32,
     counted_from_ms: Option<u32>,
     last_tick_ms: Option<u32>,
+    /// A toggling enable: flipped every [`TOGGLE_MS`] by [`Heater::tick`] while heating.
+    toggling: bool,
+    enable_high: bool,
+    last_toggle_ms: u32,
 }
+
+/// A toggling enable's half-period, ms (at most: a tick that comes late flips late).
+pub const TOGGLE_MS: u32 = 1;
 
 /// Resolution of duty commands given to the PWM (parts per this).
 const DUTY_STEPS: u16 = 1000;
@@ -76,7 +89,17 @@ impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
             on_counted_ms: 0,
             counted_from_ms: None,
             last_tick_ms: None,
+            toggling: false,
+            enable_high: false,
+            last_toggle_ms: 0,
         }
+    }
+
+    /// Drive the enable pin as a square wave while heating, toggled from [`Heater::tick`]
+    /// (the main loop), never as a steady level.
+    pub fn with_toggling_enable(mut self) -> Self {
+        self.toggling = true;
+        self
     }
 
     /// The fraction of full power the heater got since the last call: the duty for a DC
@@ -100,6 +123,7 @@ impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
     pub fn off(&mut self) -> Result<(), Error<P::Error, O::Error>> {
         self.duty = 0.0;
         self.window = None;
+        self.enable_high = false;
         let pin = self.enable.set_low().map_err(Error::Pin);
         let pwm = self.pwm.set_duty_cycle_fully_off().map_err(Error::Pwm);
         pin.and(pwm)
@@ -133,14 +157,34 @@ impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
                 .set_duty_cycle_fraction(steps, DUTY_STEPS)
                 .map_err(Error::Pwm)?;
         }
-        self.enable.set_high().map_err(Error::Pin)?;
+        if !self.toggling || self.duty <= 0.0 {
+            // a toggling enable starts with an edge now; tick keeps it toggling
+            self.enable.set_high().map_err(Error::Pin)?;
+            self.enable_high = true;
+        }
         self.duty = duty;
         Ok(())
     }
 
-    /// Time-proportioning: switch the output for `now_ms` (call at least every few ms).
-    /// Each window's on-time is fixed at its start from the duty then in force.
+    /// Call from the main loop at least every few ms: toggles a toggling enable while heating
+    /// and, when time-proportioning, switches the output for `now_ms` (each window's on-time
+    /// fixed at its start from the duty then in force).
     pub fn tick(&mut self, now_ms: u32) -> Result<(), Error<P::Error, O::Error>> {
+        if self.toggling && self.duty > 0.0 && now_ms.wrapping_sub(self.last_toggle_ms) >= TOGGLE_MS
+        {
+            self.last_toggle_ms = now_ms;
+            self.enable_high = !self.enable_high;
+            let r = if self.enable_high {
+                self.enable.set_high()
+            } else {
+                self.enable.set_low()
+            };
+            r.map_err(Error::Pin)?;
+        }
+        self.switch_window(now_ms)
+    }
+
+    fn switch_window(&mut self, now_ms: u32) -> Result<(), Error<P::Error, O::Error>> {
         let HeaterDrive::TimeProportioning {
             window_ms,
             half_cycle_us,
@@ -201,7 +245,75 @@ impl<P: SetDutyCycle, O: OutputPin> Heater<P, O> {
 
 #[cfg(test)]
 mod tests {
-    use super::window_on_ms;
+    use super::*;
+    use core::convert::Infallible;
+
+    /// An enable pin that counts its rising and falling edges.
+    #[derive(Default)]
+    struct EdgePin {
+        high: bool,
+        edges: u32,
+    }
+    impl embedded_hal::digital::ErrorType for EdgePin {
+        type Error = Infallible;
+    }
+    impl OutputPin for EdgePin {
+        fn set_low(&mut self) -> Result<(), Infallible> {
+            self.edges += u32::from(self.high);
+            self.high = false;
+            Ok(())
+        }
+        fn set_high(&mut self) -> Result<(), Infallible> {
+            self.edges += u32::from(!self.high);
+            self.high = true;
+            Ok(())
+        }
+    }
+    struct NoPwm;
+    impl embedded_hal::pwm::ErrorType for NoPwm {
+        type Error = Infallible;
+    }
+    impl SetDutyCycle for NoPwm {
+        fn max_duty_cycle(&self) -> u16 {
+            1000
+        }
+        fn set_duty_cycle(&mut self, _duty: u16) -> Result<(), Infallible> {
+            Ok(())
+        }
+    }
+
+    fn edges_over(heater: &mut Heater<NoPwm, EdgePin>, from_ms: u32, ms: u32) -> u32 {
+        let before = heater.enable.edges;
+        for t in from_ms..from_ms + ms {
+            heater.tick(t).unwrap();
+        }
+        heater.enable.edges - before
+    }
+
+    #[test]
+    fn a_toggling_enable_toggles_only_while_heating_and_only_when_ticked() {
+        let drive = HeaterDrive::TimeProportioning {
+            window_ms: 2000,
+            half_cycle_us: 10_000,
+        };
+        let mut h = Heater::new(NoPwm, EdgePin::default(), 85, drive).with_toggling_enable();
+        h.off().unwrap();
+        assert_eq!(edges_over(&mut h, 0, 100), 0, "idle: no edges");
+        h.drive(Permit { _private: () }, 0.5).unwrap();
+        // a 1 ms half-period: an edge every tick of a 1 ms loop
+        assert_eq!(edges_over(&mut h, 100, 100), 100, "heating: a square wave");
+        // driving again at another duty does not hold the line at a level
+        h.drive(Permit { _private: () }, 0.3).unwrap();
+        assert_eq!(edges_over(&mut h, 200, 10), 10);
+        h.off().unwrap();
+        assert!(!h.enable.high, "off: low");
+        assert_eq!(edges_over(&mut h, 300, 100), 0, "off: no edges");
+        // a level enable: high while heating, no edges
+        let mut level = Heater::new(NoPwm, EdgePin::default(), 85, drive);
+        level.drive(Permit { _private: () }, 0.5).unwrap();
+        assert_eq!(edges_over(&mut level, 0, 100), 0);
+        assert!(level.enable.high);
+    }
 
     #[test]
     fn time_proportioning_switches_whole_half_cycles() {

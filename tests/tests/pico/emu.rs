@@ -1,7 +1,8 @@
 //! The Pico image on the emulated RP2040 (`firmware/pico-emu/harness.mjs`, run by Node), in
 //! lockstep with the rig model: each millisecond of emulated time the harness reports the heater
 //! output's on-time, the enable pin and what the device sent; the rig model advances with that
-//! power and hands back the next ADC codes and thermocouple word. Everything a scenario judges
+//! power and hands back the next ADC codes and thermocouple word. The enable the rig sees is
+//! the relay's, as the board's retriggerable monostable makes it from GP15's edges. Everything a scenario judges
 //! comes from here: pins, bytes, and the rig's own temperatures.
 
 use std::io::{BufRead, BufReader, Write};
@@ -18,6 +19,9 @@ pub const SLICE_US: u64 = 1000;
 pub const HEATER_PIN: u32 = 14;
 /// The enable line.
 pub const ENABLE_PIN: u32 = 15;
+/// The board's retriggerable monostable on the enable line holds the relay this long after
+/// each rising edge, µs (hardware-notes/safety.md sizes it against the longest gap).
+pub const ENABLE_HOLD_US: u64 = 100_000;
 
 /// The image under test: the build that becomes the UF2 (`REMANENT_PICO_IMAGE`), or another
 /// build of the same board crate named by `var`.
@@ -46,8 +50,13 @@ pub struct Emu {
     pub pins: Vec<(u64, u32, bool)>,
     /// What else the harness reported: resets, USB, injected faults.
     pub events: Vec<(u64, String)>,
-    /// The enable line now.
+    /// The relay's enable now: the board's retriggerable monostable, held by GP15's rising
+    /// edges (the harness models it; `pins` carries its changes as pin 15).
     pub enable: bool,
+    /// The end of the last slice in which GP15 had a rising edge, µs.
+    pub last_enable_edge_us: Option<u64>,
+    /// Longest wait between GP15's rising edges while the relay was enabled, µs.
+    pub max_enable_gap_us: u64,
     /// Longest wait of a USB buffer for the device's interrupt handler, µs.
     pub max_usb_service_us: u64,
     /// Hottest the heated plate has been, °C.
@@ -69,6 +78,7 @@ impl Emu {
             .arg(&harness)
             .arg(image)
             .arg(SLICE_US.to_string())
+            .env("PICO_EMU_ENABLE_HOLD_US", ENABLE_HOLD_US.to_string())
             .stdin(Stdio::piped())
             .stdout(Stdio::piped())
             .stderr(Stdio::inherit())
@@ -94,6 +104,8 @@ impl Emu {
             pins: Vec::new(),
             events: Vec::new(),
             enable: false,
+            last_enable_edge_us: None,
+            max_enable_gap_us: 0,
             max_usb_service_us: 0,
             plate_max_c: f64::MIN,
             last_host_us: None,
@@ -190,6 +202,10 @@ impl Emu {
                 let on = num(f.next());
                 self.enable = num(f.next()) == 1;
                 self.max_usb_service_us = self.max_usb_service_us.max(num(f.next()));
+                self.max_enable_gap_us = num(f.next());
+                if num(f.next()) > 0 {
+                    self.last_enable_edge_us = Some(self.t_us);
+                }
                 return Some(on);
             }
             _ => panic!("harness: unexpected line `{line}`"),

@@ -14,7 +14,7 @@ mod record;
 use emu::{image, Emu, ENABLE_PIN, HEATER_PIN};
 use remanent_protocol::{
     Command, DeviceHello, DeviceMsg, Drill, Fault, FixtureModel, RefuseReason, ResetCause,
-    RunState, VERSION,
+    RunState, SamplingConfig, VERSION,
 };
 
 const USER_IMAGE: &str = "REMANENT_PICO_IMAGE";
@@ -216,18 +216,60 @@ fn pico_trips_a_detached_thermocouple_before_the_block_passes_its_limit_by_10_k(
     );
     e.run_ms(500);
     assert!(!e.enable, "heater disabled after the trip");
+    let last_edge = e.last_enable_edge_us.expect("GP15 toggled while heating");
+    assert!(
+        last_edge <= t,
+        "GP15 toggled at {last_edge} µs, after the trip at {t} µs"
+    );
 }
 
-/// A failure of the firmware: the heater lines low within `off_within_ms`, the chip reset, and
-/// back up latched and saying why, with the heater staying off. `after_reset` runs once the
-/// chip has reset (a wedged bus freed, say).
+#[test]
+#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
+fn pico_toggles_the_enable_within_the_monostable_hold_even_at_the_slowest_sampling() {
+    let mut e = Emu::start(&image(USER_IMAGE));
+    handshake(&mut e);
+    // the longest the loop blocks: a sample of 16 conversions of both inputs
+    let slowest = SamplingConfig {
+        period_ms: 250,
+        oversample: 16,
+    };
+    e.send(Command::Configure(slowest));
+    e.run_alive(500, 500);
+    e.send(manual(40.0, 50.0));
+    e.run_alive(500, 500);
+    let from = e.t_us;
+    assert!(e.enable, "heating");
+    e.run_alive(5000, 500);
+    let gap_ms = e.max_enable_gap_us as f64 / 1000.0;
+    println!("oversample 16: longest gap between GP15's rising edges {gap_ms:.1} ms");
+    assert!(
+        e.pin_went(ENABLE_PIN, false, from).is_none(),
+        "the relay dropped while heating (longest gap {gap_ms:.1} ms)"
+    );
+    assert!(
+        e.max_enable_gap_us * 3 <= emu::ENABLE_HOLD_US * 2,
+        "a gap of {gap_ms:.1} ms leaves less than a third of the hold in reserve"
+    );
+}
+
+/// How fast a failure must take the heater off: GP15 stops toggling within `edges_ms` and the
+/// relay's enable is low within `off_ms` (the monostable's hold after the last edge).
+struct Deadline {
+    edges_ms: u64,
+    off_ms: u64,
+}
+
+/// A failure of the firmware: GP15 stops toggling and the relay drops within the deadline, the
+/// chip resets, and comes back latched and saying why, with the heater staying off.
+/// `after_reset` runs once the chip has reset (a wedged bus freed, say).
 fn safe_after(
     e: &mut Emu,
     fail: impl FnOnce(&mut Emu),
     after_reset: impl FnOnce(&mut Emu),
     why: ResetCause,
-    off_within_ms: u64,
+    deadline: Deadline,
 ) {
+    let off_within_ms = deadline.off_ms;
     handshake(e);
     e.send(manual(40.0, 50.0));
     e.run_alive(2000, 500);
@@ -240,8 +282,19 @@ fn safe_after(
     );
     let off = e.pin_went(ENABLE_PIN, false, at).expect("fell");
     let ms = (off - at) as f64 / 1000.0;
-    println!("{why:?}: enable low {ms:.1} ms after the failure");
+    // the relay drops because GP15 stopped toggling: its last rising edge came at the failure
+    let last_edge = e.last_enable_edge_us.expect("GP15 toggled while heating");
+    println!(
+        "{why:?}: GP15's last rising edge {:.1} ms after the failure, relay enable low {ms:.1} ms \
+         after it (longest gap between edges while heating {:.1} ms)",
+        (last_edge as f64 - at as f64) / 1000.0,
+        e.max_enable_gap_us as f64 / 1000.0
+    );
     assert!(ms <= off_within_ms as f64, "{ms:.1} ms");
+    assert!(
+        last_edge <= at + deadline.edges_ms * 1000,
+        "GP15 kept toggling until {last_edge} µs after a failure at {at} µs"
+    );
     assert!(
         e.run_until(2000, |e| !e.events_with("reset watchdog").is_empty()),
         "the chip reset"
@@ -265,7 +318,17 @@ fn safe_after(
 #[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
 fn pico_hard_fault_drops_the_heater_and_resets_the_chip() {
     let mut e = Emu::start(&image(USER_IMAGE));
-    safe_after(&mut e, |e| e.tell("F"), |_| {}, ResetCause::HardFault, 100);
+    let deadline = Deadline {
+        edges_ms: 1,
+        off_ms: 105,
+    };
+    safe_after(
+        &mut e,
+        |e| e.tell("F"),
+        |_| {},
+        ResetCause::HardFault,
+        deadline,
+    );
 }
 
 #[test]
@@ -289,7 +352,11 @@ fn pico_stuck_sensor_bus_hangs_the_loop_and_the_watchdog_resets_it() {
         |e| e.tell("I 1"),
         wedged,
         ResetCause::Watchdog,
-        1000,
+        // the loop blocks at its next sample's conversion (within one 100 ms period)
+        Deadline {
+            edges_ms: 150,
+            off_ms: 250,
+        },
     );
 }
 
@@ -305,7 +372,11 @@ fn command_drill(drill: Drill) -> impl FnOnce(&mut Emu) {
 fn pico_panic_drops_the_heater_within_100_ms_and_resets_the_chip() {
     let mut e = Emu::start(&image(DRILLS_IMAGE));
     let drill = command_drill(Drill::Panic);
-    safe_after(&mut e, drill, |_| {}, ResetCause::Panic, 100);
+    let deadline = Deadline {
+        edges_ms: 10,
+        off_ms: 115,
+    };
+    safe_after(&mut e, drill, |_| {}, ResetCause::Panic, deadline);
 }
 
 #[test]
@@ -313,7 +384,13 @@ fn pico_panic_drops_the_heater_within_100_ms_and_resets_the_chip() {
 fn pico_hung_loop_is_reset_by_the_watchdog_and_the_heater_stays_off() {
     let mut e = Emu::start(&image(DRILLS_IMAGE));
     let drill = command_drill(Drill::Hang);
-    safe_after(&mut e, drill, |_| {}, ResetCause::Watchdog, 1000);
+    // the loop spins with interrupts still serviced: no edges, so the relay drops long before
+    // the watchdog resets the chip
+    let deadline = Deadline {
+        edges_ms: 10,
+        off_ms: 115,
+    };
+    safe_after(&mut e, drill, |_| {}, ResetCause::Watchdog, deadline);
 }
 
 #[test]

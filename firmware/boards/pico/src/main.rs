@@ -4,7 +4,9 @@
 //! MISO GP16 (pulled up: an absent converter reads all ones), CS GP17 to the thermocouple
 //! converter; heater output on GP14; heater enable on GP15; status LED on GP25. The heater
 //! output drives a zero-crossing relay by time-proportioning (2 s windows of whole mains
-//! half-cycles, 50 Hz or with `mains-60hz` 60 Hz; hardware-notes/heater-drive.md). The host link is USB CDC-ACM on the Pico's own
+//! half-cycles, 50 Hz or with `mains-60hz` 60 Hz; hardware-notes/heater-drive.md); the enable
+//! pin is a square wave from the main loop while heating, for a retriggerable monostable that
+//! drops the relay when the edges stop. The host link is USB CDC-ACM on the Pico's own
 //! USB port, serviced from its interrupt ([`usb`]). A panic, a hard fault (a stack overflow
 //! hits the MPU guard) or a hung loop reaches the safe state of [`safe`] and resets the chip;
 //! it comes back latched and says why in its hello. Logs go out over RTT with defmt.
@@ -105,7 +107,10 @@ fn main() -> ! {
     channel.output_to(pins.gpio14);
     // a board for any fixture: model-free limits until the host sends the identification
     let cfg = FirmwareConfig::UNIDENTIFIED;
-    let heater = Heater::new(channel, enable, cfg.limits.duty_cap_pct, HEATER_DRIVE);
+    // the enable line toggles from the main loop while heating: the board's retriggerable
+    // monostable holds the relay only while edges come (hardware-notes/safety.md)
+    let heater =
+        Heater::new(channel, enable, cfg.limits.duty_cap_pct, HEATER_DRIVE).with_toggling_enable();
 
     // sensors
     let sda: hal::gpio::Pin<_, hal::gpio::FunctionI2C, hal::gpio::PullUp> =
