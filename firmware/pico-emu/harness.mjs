@@ -1,6 +1,8 @@
 // Runs the flat Pico image (the build that becomes the UF2) on an emulated RP2040, in lockstep
 // with a driver on stdin/stdout, one slice of emulated time at a time. No boot ROM: the image
-// starts at its second-stage loader in flash, and it calls no ROM routine.
+// starts at its second-stage loader in flash; the few flash routines it calls for its fault
+// log come from a stand-in (rom.mjs). The flash keeps what was written across resets and
+// power cycles.
 //
 //   node harness.mjs IMAGE.bin [SLICE_US]
 //
@@ -21,12 +23,15 @@
 //        C <0|1>               the thermocouple converter is on the bus or not
 //        I <0|1>               the I2C bus is stuck (1): a wedged device holds it
 //        F                     a hard fault now (as a corrupted instruction would raise)
+//        O                     the power goes off and on: a fresh chip with nothing kept but
+//                              the flash
 //        G                     run the next slice;  Q  quit
 
 import { readFileSync, readSync, writeSync } from 'node:fs';
 import { GPIOPinState, Simulator } from 'rp2040js';
 
 import { attachAdc, attachConverter, World } from './bus.mjs';
+import { romImage, serveBreak } from './rom.mjs';
 import { UsbHost } from './usb-host.mjs';
 
 const FLASH_START = 0x10000000;
@@ -51,6 +56,8 @@ let clock = null;
 let host = null;
 let offsetNs = 0; // emulated time before the chip's last reset
 const scratch = new Uint32Array(8);
+const rom = romImage();
+let flash = null; // the flash's contents, carried from one chip to the next
 const pins = { [HEATER_PIN]: false, [ENABLE_PIN]: false };
 let heaterSince = 0;
 let heaterOnNs = 0;
@@ -100,13 +107,16 @@ function enableEdge(t, high) {
 /** A fresh chip: power-on, or a reset that keeps only the watchdog's scratch and reason. */
 function startChip(reason) {
   if (clock) offsetNs += clock.nanos;
+  if (chip) flash = chip.flash.slice();
   if (host) maxServiceNs = Math.max(maxServiceNs, host.maxServiceNs);
   // a simulator only for its chip and clock: the loop below runs the chip
   const sim = new Simulator();
   clock = sim.clock;
   chip = sim.rp2040;
   chip.logger = { debug() {}, info() {}, warn() {}, error() {} };
-  chip.flash.set(image, 0);
+  chip.loadBootrom(rom);
+  if (flash) chip.flash.set(flash);
+  else chip.flash.set(image, 0);
   const wd = chip.peripherals[0x40058];
   wd.scratchData.set(scratch);
   wd.reason = reason;
@@ -121,7 +131,9 @@ function startChip(reason) {
     pendingReset = wd.reason;
     dumpProfile();
   };
-  chip.onBreak = () => chip.core.exceptionEntry(EXC_HARDFAULT);
+  chip.onBreak = (code) => {
+    if (!serveBreak(chip, code)) chip.core.exceptionEntry(EXC_HARDFAULT);
+  };
   for (const pin of [HEATER_PIN, ENABLE_PIN]) {
     chip.gpio[pin].addListener((state) => pinChanged(pin, state === GPIOPinState.High));
     pinChanged(pin, false); // every pin is an input after a reset: the pull-downs hold it low
@@ -226,6 +238,11 @@ function obey() {
       case 'F':
         out('E injected hard fault');
         chip.core.exceptionEntry(EXC_HARDFAULT);
+        break;
+      case 'O':
+        out('E power cycled');
+        scratch.fill(0);
+        pendingReset = 0;
         break;
       default:
         process.stderr.write(`harness: unknown line \`${line}\`\n`);

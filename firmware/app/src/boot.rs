@@ -8,6 +8,7 @@
 use remanent_protocol::{BootReport, Fault, ResetCause};
 
 use crate::device::Persisted;
+use crate::safety::latch;
 
 /// Marks a valid record ("REM1").
 pub const MAGIC: u32 = 0x5245_4d31;
@@ -47,10 +48,16 @@ pub fn cause_code(cause: ResetCause) -> u32 {
     CAUSES.iter().position(|c| *c == cause).unwrap_or(0) as u32
 }
 
-fn fault_code(fault: Option<Fault>) -> u32 {
+/// A fault's code in a record (`0xff`: none).
+pub(crate) fn fault_code(fault: Option<Fault>) -> u32 {
     fault
         .and_then(|f| FAULTS.iter().position(|g| *g == f))
         .map_or(NO_FAULT, |i| i as u32)
+}
+
+/// The fault of `code`, if it is one.
+pub(crate) fn fault_from_code(code: u32) -> Option<Fault> {
+    FAULTS.get(code as usize).copied()
 }
 
 /// The record for the running firmware: a plain start next time unless a reset path says
@@ -78,18 +85,43 @@ pub fn with_cause(words: [u32; 4], cause: ResetCause) -> [u32; 4] {
 
 /// Read a record back at start-up; anything malformed is a power-on.
 pub fn read(words: [u32; 4]) -> BootReport {
+    read_valid(words).unwrap_or(BootReport::POWER_ON)
+}
+
+/// Why this start happened, from the record a reset keeps (`words`) and the one a power cycle
+/// keeps (`stored`, the board's [`crate::fault_log`]): with no valid reset record this is a
+/// power-on that brings back the stored latch and lock; with both, the worse fault and either
+/// lock (a flash write that failed never loses a latch).
+pub fn on_start(words: [u32; 4], stored: Option<Persisted>) -> BootReport {
+    let stored = stored.unwrap_or_default();
+    let Some(mut report) = read_valid(words) else {
+        return BootReport {
+            reset: ResetCause::PowerOn,
+            last_fault: stored.fault,
+            locked: stored.locked,
+        };
+    };
+    report.locked |= stored.locked;
+    report.last_fault = match (report.last_fault, stored.fault) {
+        (Some(a), Some(b)) if latch::severity(b) > latch::severity(a) => Some(b),
+        (a, b) => a.or(b),
+    };
+    report
+}
+
+fn read_valid(words: [u32; 4]) -> Option<BootReport> {
     if words[0] != MAGIC {
-        return BootReport::POWER_ON;
+        return None;
     }
     let reset = CAUSES.get(words[1] as usize).copied();
     let last_fault = FAULTS.get(words[2] as usize).copied();
     match (reset, words[3]) {
-        (Some(reset), locked @ (0 | 1)) => BootReport {
+        (Some(reset), locked @ (0 | 1)) => Some(BootReport {
             reset,
             last_fault,
             locked: locked == 1,
-        },
-        _ => BootReport::POWER_ON,
+        }),
+        _ => None,
     }
 }
 
@@ -119,5 +151,37 @@ mod tests {
         assert_eq!(read([MAGIC, 1, 2, 7]), BootReport::POWER_ON);
         let plain = read(record(Persisted::default()));
         assert_eq!(plain, BootReport::POWER_ON);
+    }
+
+    #[test]
+    fn a_power_cycle_brings_back_the_stored_latch_and_lock_and_the_worse_fault_wins() {
+        let stored = Persisted {
+            fault: Some(Fault::OverTemperature),
+            locked: true,
+        };
+        // power cycled: the reset record is gone, the flash's is not
+        assert_eq!(
+            on_start([0; 4], Some(stored)),
+            BootReport {
+                reset: ResetCause::PowerOn,
+                last_fault: Some(Fault::OverTemperature),
+                locked: true
+            }
+        );
+        assert_eq!(on_start([0; 4], None), BootReport::POWER_ON);
+        // a watchdog reset with a milder latch in its record: the worse one and the lock stay
+        let mut w = record(Persisted {
+            fault: Some(Fault::ThermocoupleOpen),
+            locked: false,
+        });
+        w[1] = cause_code(ResetCause::Watchdog);
+        let r = on_start(w, Some(stored));
+        assert_eq!(r.reset, ResetCause::Watchdog);
+        assert_eq!(r.last_fault, Some(Fault::OverTemperature));
+        assert!(r.locked);
+        // the flash holds nothing worse: the reset record stands
+        let r = on_start(w, Some(Persisted::default()));
+        assert_eq!(r.last_fault, Some(Fault::ThermocoupleOpen));
+        assert!(!r.locked);
     }
 }

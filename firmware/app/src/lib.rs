@@ -11,6 +11,7 @@ pub mod config;
 pub mod control;
 pub mod device;
 pub mod drivers;
+pub mod fault_log;
 pub mod heater;
 pub mod log;
 pub mod outbox;

@@ -8,13 +8,15 @@
 //! the same board crate with its `drills` feature, for the panic and hung-loop drills a user's
 //! image does not carry.
 
+mod crash;
 mod emu;
+mod latch;
 mod record;
 
 use emu::{image, Emu, ENABLE_PIN, HEATER_PIN};
 use remanent_protocol::{
-    Command, DeviceHello, DeviceMsg, Drill, Fault, FixtureModel, RefuseReason, ResetCause,
-    RunState, SamplingConfig, VERSION,
+    Command, DeviceHello, DeviceMsg, Fault, FixtureModel, RefuseReason, ResetCause, RunState,
+    SamplingConfig, VERSION,
 };
 
 const USER_IMAGE: &str = "REMANENT_PICO_IMAGE";
@@ -173,58 +175,6 @@ fn pico_with_no_converter_reports_a_fault_and_never_heats() {
 
 #[test]
 #[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
-fn pico_trips_a_detached_thermocouple_before_the_block_passes_its_limit_by_10_k() {
-    let mut e = Emu::start(&image(USER_IMAGE));
-    handshake(&mut e);
-    let (setpoint, limit) = (45.0, 50.0);
-    e.send(manual(setpoint, limit));
-    // heat to near the setpoint, then the junction slips off the plate
-    for _ in 0..180 {
-        if e.rig.thermal.plate_c >= setpoint - 3.0 {
-            break;
-        }
-        e.run_alive(500, 500);
-    }
-    assert!(
-        e.rig.thermal.plate_c >= setpoint - 3.0,
-        "heated to {:.1} °C",
-        e.rig.thermal.plate_c
-    );
-    let at_s = e.rig.time_s();
-    e.rig.faults.thermocouple_detached_at_s = Some(at_s);
-    let detached_us = e.t_us;
-    let tripped = loop {
-        e.run_alive(500, 500);
-        if let Some((t, f)) = e.find(detached_us, fault) {
-            break Some((t, f));
-        }
-        if e.t_us > detached_us + 60_000_000 {
-            break None;
-        }
-    };
-    let (t, f) = tripped.expect("a trip within 60 s of the junction coming off");
-    println!(
-        "detached at {:.1} °C: {f:?} after {:.1} s, plate peak {:.1} °C",
-        setpoint - 3.0,
-        (t - detached_us) as f64 / 1e6,
-        e.plate_max_c
-    );
-    assert!(
-        e.plate_max_c < limit + 10.0,
-        "plate reached {:.1} °C",
-        e.plate_max_c
-    );
-    e.run_ms(500);
-    assert!(!e.enable, "heater disabled after the trip");
-    let last_edge = e.last_enable_edge_us.expect("GP15 toggled while heating");
-    assert!(
-        last_edge <= t,
-        "GP15 toggled at {last_edge} µs, after the trip at {t} µs"
-    );
-}
-
-#[test]
-#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
 fn pico_toggles_the_enable_within_the_monostable_hold_even_at_the_slowest_sampling() {
     let mut e = Emu::start(&image(USER_IMAGE));
     handshake(&mut e);
@@ -250,147 +200,6 @@ fn pico_toggles_the_enable_within_the_monostable_hold_even_at_the_slowest_sampli
         e.max_enable_gap_us * 3 <= emu::ENABLE_HOLD_US * 2,
         "a gap of {gap_ms:.1} ms leaves less than a third of the hold in reserve"
     );
-}
-
-/// How fast a failure must take the heater off: GP15 stops toggling within `edges_ms` and the
-/// relay's enable is low within `off_ms` (the monostable's hold after the last edge).
-struct Deadline {
-    edges_ms: u64,
-    off_ms: u64,
-}
-
-/// A failure of the firmware: GP15 stops toggling and the relay drops within the deadline, the
-/// chip resets, and comes back latched and saying why, with the heater staying off.
-/// `after_reset` runs once the chip has reset (a wedged bus freed, say).
-fn safe_after(
-    e: &mut Emu,
-    fail: impl FnOnce(&mut Emu),
-    after_reset: impl FnOnce(&mut Emu),
-    why: ResetCause,
-    deadline: Deadline,
-) {
-    let off_within_ms = deadline.off_ms;
-    handshake(e);
-    e.send(manual(40.0, 50.0));
-    e.run_alive(2000, 500);
-    assert!(e.enable, "heating before the failure");
-    let at = e.t_us;
-    fail(e);
-    assert!(
-        e.run_until(off_within_ms + 5, |e| !e.enable),
-        "the enable line fell"
-    );
-    let off = e.pin_went(ENABLE_PIN, false, at).expect("fell");
-    let ms = (off - at) as f64 / 1000.0;
-    // the relay drops because GP15 stopped toggling: its last rising edge came at the failure
-    let last_edge = e.last_enable_edge_us.expect("GP15 toggled while heating");
-    println!(
-        "{why:?}: GP15's last rising edge {:.1} ms after the failure, relay enable low {ms:.1} ms \
-         after it (longest gap between edges while heating {:.1} ms)",
-        (last_edge as f64 - at as f64) / 1000.0,
-        e.max_enable_gap_us as f64 / 1000.0
-    );
-    assert!(ms <= off_within_ms as f64, "{ms:.1} ms");
-    assert!(
-        last_edge <= at + deadline.edges_ms * 1000,
-        "GP15 kept toggling until {last_edge} µs after a failure at {at} µs"
-    );
-    assert!(
-        e.run_until(2000, |e| !e.events_with("reset watchdog").is_empty()),
-        "the chip reset"
-    );
-    let reset_at = e.events_with("reset watchdog")[0];
-    after_reset(e);
-    let (_, h) = handshake(e);
-    assert_eq!(h.boot.reset, why, "{h:?}");
-    assert!(h.latched.is_some(), "comes back latched: {h:?}");
-    // the host asks for heat again: refused while latched, and the line stays low
-    e.send(manual(40.0, 50.0));
-    e.run_alive(2000, 500);
-    assert!(
-        !e.pin_high_since(ENABLE_PIN, reset_at),
-        "the heater stayed off after the reset"
-    );
-    assert!(!e.pin_high_since(HEATER_PIN, reset_at), "its output too");
-}
-
-#[test]
-#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
-fn pico_hard_fault_drops_the_heater_and_resets_the_chip() {
-    let mut e = Emu::start(&image(USER_IMAGE));
-    let deadline = Deadline {
-        edges_ms: 1,
-        off_ms: 105,
-    };
-    safe_after(
-        &mut e,
-        |e| e.tell("F"),
-        |_| {},
-        ResetCause::HardFault,
-        deadline,
-    );
-}
-
-#[test]
-#[ignore = "needs Node, rp2040js and the Pico image: firmware/ci.sh runs it"]
-fn pico_stuck_sensor_bus_hangs_the_loop_and_the_watchdog_resets_it() {
-    let mut e = Emu::start(&image(USER_IMAGE));
-    // a wedged device holds the I2C bus: the main loop never completes another period; while
-    // it stays wedged the chip keeps resetting with the heater off, then it lets go
-    let wedged = |e: &mut Emu| {
-        let at = e.t_us;
-        e.run_ms(3000);
-        assert!(
-            !e.pin_high_since(ENABLE_PIN, at),
-            "the heater stayed off while wedged"
-        );
-        assert!(!e.pin_high_since(HEATER_PIN, at), "its output too");
-        e.tell("I 0");
-    };
-    safe_after(
-        &mut e,
-        |e| e.tell("I 1"),
-        wedged,
-        ResetCause::Watchdog,
-        // the loop blocks at its next sample's conversion (within one 100 ms period)
-        Deadline {
-            edges_ms: 150,
-            off_ms: 250,
-        },
-    );
-}
-
-/// The failure a drills build carries out on command.
-fn command_drill(drill: Drill) -> impl FnOnce(&mut Emu) {
-    move |e: &mut Emu| {
-        e.send(Command::Drill(drill));
-    }
-}
-
-#[test]
-#[ignore = "needs Node, rp2040js and the Pico drills image: firmware/ci.sh runs it"]
-fn pico_panic_drops_the_heater_within_100_ms_and_resets_the_chip() {
-    let mut e = Emu::start(&image(DRILLS_IMAGE));
-    let drill = command_drill(Drill::Panic);
-    let deadline = Deadline {
-        edges_ms: 10,
-        off_ms: 115,
-    };
-    safe_after(&mut e, drill, |_| {}, ResetCause::Panic, deadline);
-}
-
-#[test]
-#[ignore = "needs Node, rp2040js and the Pico drills image: firmware/ci.sh runs it"]
-fn pico_hung_loop_is_reset_by_the_watchdog_and_the_heater_stays_off() {
-    let mut e = Emu::start(&image(DRILLS_IMAGE));
-    let drill = command_drill(Drill::Hang);
-    // the loop spins with interrupts still serviced: no edges, so the relay drops long before
-    // the watchdog resets the chip
-    let deadline = Deadline {
-        edges_ms: 10,
-        off_ms: 115,
-    };
-    safe_after(&mut e, drill, |_| {}, ResetCause::Watchdog, deadline);
 }
 
 #[test]

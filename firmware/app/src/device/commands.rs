@@ -213,21 +213,32 @@ where
     }
 
     fn clear_fault(&mut self, now_ms: u32) -> Result<(), RefuseReason> {
-        let fault = match self.mode {
-            Mode::Faulted(f) => f,
-            _ => return Err(RefuseReason::NoFaultLatched),
+        let latched = match self.mode {
+            Mode::Faulted(f) => Some(f),
+            _ => None,
         };
-        if self.trips.is_locked() {
-            return Err(RefuseReason::LockedOut {
-                trips: self.trips.trips(),
-            });
+        let trips = self.trips.trips();
+        if self.trips.is_locked() && !self.trips.releasable() {
+            return Err(RefuseReason::LockedOut { trips });
         }
         let word = self.tc.read_word().ok();
         let off_ms = self.heater_off_ms(now_ms);
         let limit = self.interlocks.run_limit_tenth_c();
-        latch::may_clear(&self.cfg, fault, word, off_ms, limit)?;
+        if self.trips.is_locked() {
+            // a lock that came through a power cycle: released under the strictest rule
+            latch::may_unlock(&self.cfg, word, off_ms, limit, trips)?;
+        }
+        if let Some(fault) = latched {
+            latch::may_clear(&self.cfg, fault, word, off_ms, limit)?;
+            fw_info!("cleared {}", fault);
+        } else if !self.trips.is_locked() {
+            return Err(RefuseReason::NoFaultLatched);
+        }
+        if self.trips.is_locked() {
+            fw_info!("lock released after a power cycle");
+            self.trips.release();
+        }
         self.reported = 0;
-        fw_info!("cleared {}", fault);
         self.interlocks.restart_detectors();
         self.interlocks.set_run_limit(self.cfg.ceiling_tenth_c());
         self.enter(now_ms, Mode::Idle);

@@ -75,12 +75,13 @@ pub struct BoardInfo {
     pub drills: bool,
 }
 
-/// What the board keeps across a reset (watchdog scratch registers, uninitialised RAM).
+/// What the board keeps across a reset (watchdog scratch registers, uninitialised RAM) and a
+/// power cycle (flash, [`crate::fault_log`]).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub struct Persisted {
     /// The fault latched now.
     pub fault: Option<Fault>,
-    /// Heating is locked until the power is cycled.
+    /// Heating is locked (released only by an explicit clear after a power cycle).
     pub locked: bool,
 }
 
@@ -153,7 +154,7 @@ where
             None => Mode::Idle,
         };
         let mut trips = if boot.locked {
-            TripLog::locked()
+            TripLog::locked(boot.reset == ResetCause::PowerOn)
         } else {
             TripLog::default()
         };

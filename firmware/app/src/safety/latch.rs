@@ -7,7 +7,9 @@
 //! as long as the identified block needs to cool from the run limit, evidence the suspect
 //! sensor does not provide; a fault the host caused clears at once. The worst fault is kept
 //! latched ([`severity`]). Trips within the lockout window are counted: reaching the
-//! configured number locks heating until the power is cycled.
+//! configured number locks heating. The lock survives resets and power cycles (the board keeps
+//! it in flash, [`crate::fault_log`]); only after a power cycle may an explicit clear release
+//! it, and then under the strictest heating rule ([`may_unlock`]).
 
 use remanent_protocol::{Fault, RefuseReason, ThermoWord};
 
@@ -114,6 +116,28 @@ pub fn may_clear(
     Ok(())
 }
 
+/// May a lock be released (after a power cycle, on an explicit clear)? Under the strictest
+/// heating rule: the fixture near ambient by a plausible word, and the heater off for the
+/// identified block's cooling time from the run limit, as after a suspect thermocouple.
+pub fn may_unlock(
+    cfg: &FirmwareConfig,
+    word: Option<ThermoWord>,
+    heater_off_ms: u32,
+    limit_tenth_c: i16,
+    trips: u8,
+) -> Result<(), RefuseReason> {
+    match may_clear(
+        cfg,
+        Fault::NoHeatingResponse,
+        word,
+        heater_off_ms,
+        limit_tenth_c,
+    ) {
+        Err(RefuseReason::FaultLatched(_)) => Err(RefuseReason::LockedOut { trips }),
+        other => other,
+    }
+}
+
 /// Most trips remembered (the lockout count is at most this).
 const TRIP_MEMORY: usize = 8;
 
@@ -122,15 +146,29 @@ const TRIP_MEMORY: usize = 8;
 pub struct TripLog {
     times_ms: heapless::Deque<u32, TRIP_MEMORY>,
     locked: bool,
+    /// The lock came through a power cycle: an explicit clear may release it.
+    releasable: bool,
 }
 
 impl TripLog {
-    /// A log that starts locked (the lock survived a reset).
-    pub fn locked() -> Self {
+    /// A log that starts locked (the lock survived a reset); `power_cycled`: it came through
+    /// a power cycle, so an explicit clear may release it.
+    pub fn locked(power_cycled: bool) -> Self {
         TripLog {
             locked: true,
+            releasable: power_cycled,
             ..TripLog::default()
         }
+    }
+
+    /// May an explicit clear release the lock (it came through a power cycle)?
+    pub fn releasable(&self) -> bool {
+        self.locked && self.releasable
+    }
+
+    /// Release the lock and forget the trips (an explicit clear after a power cycle).
+    pub fn release(&mut self) {
+        *self = TripLog::default();
     }
 
     /// Count a trip of `fault` at `now_ms`; true if heating is now locked.
@@ -155,7 +193,7 @@ impl TripLog {
         self.locked
     }
 
-    /// Heating is locked until the power is cycled.
+    /// Heating is locked.
     pub fn is_locked(&self) -> bool {
         self.locked
     }

@@ -1,11 +1,14 @@
 //! Latches that mean it, boot records, refusals of what a board cannot do, and the heater's
 //! time-proportioning output, through the real device.
 
-use remanent_firmware::device::Mode;
+use remanent_firmware::boot;
+use remanent_firmware::device::{Mode, Persisted};
+use remanent_firmware::fault_log::FaultLog;
 use remanent_firmware::heater::{window_on_ms, Heater};
 use remanent_firmware::safety::latch::cooling_wait_ms;
 use remanent_protocol::*;
 
+use crate::flash::MockFlash;
 use crate::safety_scenarios::{assert_latched, assert_latched_then, heating_bench};
 use crate::util::{bench_config, Bench, FakePin, FakePwm, Plant, Shared};
 
@@ -61,6 +64,82 @@ fn the_third_heating_trip_within_an_hour_locks_heating_until_power_is_cycled() {
     assert!(b.heater_off());
     // the lock is what the board keeps across a reset
     assert!(b.device.persisted().locked);
+    // a reset (not a power cycle) brings it back, and no clear releases it
+    let mut words = boot::record(b.device.persisted());
+    words[1] = boot::cause_code(ResetCause::Watchdog);
+    let mut b = Bench::with(
+        bench_config(),
+        boot::on_start(words, None),
+        HeaterDrive::Pwm { frequency_hz: 500 },
+    );
+    b.run_for(1_000_000);
+    let id = b.send(Command::ClearFault);
+    assert!(matches!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::LockedOut { .. }))
+    ));
+}
+
+#[test]
+fn a_power_cycle_keeps_the_latch_and_the_lock_and_only_a_clear_near_ambient_releases_them() {
+    let mut b = Bench::new();
+    let mut log = FaultLog::open(MockFlash::<256>::new(), 0).expect("log");
+    for _ in 0..2 {
+        assert_eq!(trip_and_recover(&mut b), None);
+        log.store(b.device.persisted()).expect("kept");
+    }
+    assert_eq!(
+        trip_and_recover(&mut b),
+        Some(RefuseReason::LockedOut { trips: 3 })
+    );
+    log.store(b.device.persisted()).expect("kept");
+    // the power goes: the reset record with it, the flash not
+    let log = FaultLog::open(log.release(), 0).expect("reopens");
+    let boot = boot::on_start([0; 4], log.last());
+    assert_eq!(
+        boot,
+        BootReport {
+            reset: ResetCause::PowerOn,
+            last_fault: Some(Fault::NoHeatingResponse),
+            locked: true
+        }
+    );
+    let mut b = Bench::with(bench_config(), boot, HeaterDrive::Pwm { frequency_hz: 500 });
+    assert!(matches!(
+        b.device.mode(),
+        Mode::Faulted(Fault::NoHeatingResponse)
+    ));
+    let id = b.start_manual(40.0, 100.0);
+    assert!(matches!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::LockedOut { .. }))
+    ));
+    // a clear while the block is warm, or before it has had its own time to cool: refused
+    b.plant.borrow_mut().temp_c = 90.0;
+    b.run_for(1_000);
+    let id = b.send(Command::ClearFault);
+    assert!(matches!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::TooHotToClear { .. }))
+    ));
+    b.plant.borrow_mut().temp_c = 24.0;
+    b.run_for(1_000);
+    let id = b.send(Command::ClearFault);
+    assert!(matches!(
+        b.reply_to(id),
+        Some(Err(RefuseReason::LockedOut { .. }))
+    ));
+    let ceiling = bench_config().ceiling_tenth_c();
+    b.run_for(cooling_wait_ms(&bench_config(), ceiling, 250));
+    let id = b.send(Command::ClearFault);
+    assert_eq!(
+        b.reply_to(id),
+        Some(Ok(())),
+        "released after its cooling time"
+    );
+    assert_eq!(b.device.persisted(), Persisted::default());
+    let id = b.start_manual(40.0, 100.0);
+    assert_eq!(b.reply_to(id), Some(Ok(())));
 }
 
 #[test]

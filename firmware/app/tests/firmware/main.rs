@@ -2,6 +2,7 @@
 //! run through the real control loop with fake sensors, a fake plant and a fake clock.
 
 mod drivers;
+mod flash;
 mod identify;
 mod latches;
 mod link;

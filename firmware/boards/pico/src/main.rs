@@ -13,6 +13,7 @@
 #![no_std]
 #![no_main]
 
+mod flash;
 mod safe;
 mod usb;
 
@@ -23,6 +24,7 @@ use embedded_hal_bus::spi::ExclusiveDevice;
 use fugit::RateExtU32;
 use remanent_firmware::device::{BoardInfo, Device};
 use remanent_firmware::drivers::{ads1115, max31855};
+use remanent_firmware::fault_log::FaultLog;
 use remanent_firmware::heater::Heater;
 use remanent_firmware::{Clock, FirmwareConfig};
 use remanent_protocol::{HeaterDrive, MAX_DEVICE_FRAME};
@@ -69,7 +71,9 @@ impl Clock for TimerClock {
 fn main() -> ! {
     // the heater outputs go low before anything else can fail, by register
     safe::outputs_off();
-    let boot = safe::take_boot_report();
+    // the latch and the lock that a power cycle keeps, then why this start happened
+    let mut log = FaultLog::open(flash::LogFlash, flash::LOG_BASE).ok();
+    let boot = safe::take_boot_report(log.as_ref().and_then(FaultLog::last));
     let _ = remanent_board_support::guard_stack();
     let Some(mut pac) = pac::Peripherals::take() else {
         panic!("peripherals taken twice")
@@ -187,7 +191,22 @@ fn main() -> ! {
         if device.periods_completed() != periods {
             watchdog.feed(); // only a whole control period feeds it
         }
-        safe::persist(device.persisted());
+        let kept = device.persisted();
+        safe::persist(kept);
+        // the flash only when what is kept changed, and only with the heater off: the ROM's
+        // routines run with interrupts off (a page in about a millisecond, a sector's erase,
+        // once in 16 changes, in up to 400 ms on this flash, inside the watchdog's 500)
+        if device.heater_duty() == 0.0
+            && log
+                .as_ref()
+                .is_some_and(|l| l.last().unwrap_or_default() != kept)
+        {
+            watchdog.feed();
+            if let Some(Err(e)) = log.as_mut().map(|l| l.store(kept)) {
+                defmt::error!("fault log: {} (the latch is kept across resets only)", e);
+                log = None;
+            }
+        }
         // move frames into the buffer while whole frames fit; never block on the host
         while tx.capacity() - tx.len() >= MAX_DEVICE_FRAME {
             match device.next_frame(&mut frame) {

@@ -7,7 +7,8 @@
 //!   a hung loop (or a lock-up after a double fault) resets the chip, after which every GPIO
 //!   is an input and the board's pull-downs hold the heater off (hardware-notes/safety.md).
 //! - The record (`remanent_firmware::boot`) lives in SCRATCH0–3, which survive a watchdog
-//!   reset but not a power-on (SCRATCH4–7 belong to the boot ROM).
+//!   reset but not a power-on (SCRATCH4–7 belong to the boot ROM); the latch and the lock also
+//!   go to the fault log in flash ([`crate::flash`]) when they change, which a power-on keeps.
 
 use core::ptr::{read_volatile, write_volatile};
 
@@ -61,11 +62,12 @@ fn write_scratch(words: [u32; 4]) {
     }
 }
 
-/// Why this start happened, from the reset reason and the record; then a fresh record.
-pub fn take_boot_report() -> BootReport {
+/// Why this start happened, from the reset reason, the record a reset keeps and the one a power
+/// cycle keeps (`stored`, from the fault log in flash); then a fresh record.
+pub fn take_boot_report(stored: Option<Persisted>) -> BootReport {
     // SAFETY: read of the watchdog's reset-reason register.
     let reason = unsafe { read_volatile(WATCHDOG_REASON) };
-    let mut report = boot::read(scratch());
+    let mut report = boot::on_start(scratch(), stored);
     if reason & REASON_TIMER != 0 {
         report.reset = ResetCause::Watchdog;
     }
