@@ -80,6 +80,13 @@ pub struct FixtureCalibration {
     pub thermocouple_lag_s: f64,
     /// Its standard uncertainty, s.
     pub thermocouple_lag_u_s: f64,
+    /// How the heating rate falls as the block warms: the fraction lost per kelvin above
+    /// 20 °C (0 when the identification had no hot pass).
+    #[serde(rename = "rate_fall_per_K", default)]
+    pub rate_fall_per_k: f64,
+    /// Its standard uncertainty, per kelvin.
+    #[serde(rename = "rate_fall_u_per_K", default)]
+    pub rate_fall_u_per_k: f64,
 }
 
 impl FixtureCalibration {
@@ -90,6 +97,8 @@ impl FixtureCalibration {
             rate_mk_per_s: whole(self.rate_k_per_s * 1000.0),
             cooling_tau_s: whole(self.cooling_tau_s),
             lag_ms: whole(self.thermocouple_lag_s * 1000.0),
+            // a heater whose effect grows as it warms is taken as one that does not fall
+            rate_fall_ppm_per_k: whole(self.rate_fall_per_k * 1e6),
         }
     }
 }

@@ -158,6 +158,7 @@ pub fn host() -> [(&'static str, HostMsg); 11] {
                     rate_mk_per_s: 4000,
                     cooling_tau_s: 125,
                     lag_ms: 500,
+                    rate_fall_ppm_per_k: 800,
                 }),
             ),
         ),

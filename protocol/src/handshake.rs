@@ -56,7 +56,7 @@ pub fn check_compatible(host: Version, device: Version) -> Result<(), HandshakeE
 impl core::error::Error for HandshakeError {}
 
 /// Protocol version: bump on any change a peer of the previous version could not read.
-pub const PROTOCOL_VERSION: u16 = 3;
+pub const PROTOCOL_VERSION: u16 = 4;
 
 /// This build's version pair, sent in both hellos.
 pub const VERSION: Version = Version {

@@ -71,6 +71,9 @@ pub struct FixtureModel {
     pub cooling_tau_s: u32,
     /// How far the thermocouple lags the block, ms.
     pub lag_ms: u32,
+    /// How the heating rate falls as the block warms: its fraction lost per kelvin above
+    /// 20 °C, parts per million (a heater's resistance rising, the block's heat capacity too).
+    pub rate_fall_ppm_per_k: u32,
 }
 
 /// A failure of the firmware itself, for drills on test builds.

@@ -23,7 +23,7 @@ Ack{id:u16}
 Refusal{id:u16,reason:RefuseReason{VersionMismatch(Version),HandshakeRequired,AboveCeiling{i16},AboveRunLimit{i16},FaultLatched(Fault),TooHotToClear{i16,i16},NoFaultLatched,Invalid,Busy,LockedOut{u8},TooFastForBoard{u16},Unsupported}}
 HostMsg{id:u16,command:Command}
 Command{Hello(Version),Start(Profile),Stop,Manual{i16,i16},Heartbeat,Configure(SamplingConfig),ClearFault,InjectFault,Drill(Drill{Panic,Hang,StackOverflow}),Fixture(FixtureModel),Duty{u8,i16}}
-FixtureModel{rate_mk_per_s:u32,cooling_tau_s:u32,lag_ms:u32}
+FixtureModel{rate_mk_per_s:u32,cooling_tau_s:u32,lag_ms:u32,rate_fall_ppm_per_k:u32}
 SamplingConfig{period_ms:u16,oversample:u8}
 Profile{limit_tenth_c:i16,segments:[Segment;..16]}
 Segment{target_tenth_c:i16,ramp_tenth_c_per_min:u16,hold_s:u32}

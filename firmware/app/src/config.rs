@@ -78,6 +78,8 @@ pub struct Identified {
     pub cooling_tau_s: f32,
     /// Thermocouple lag, s.
     pub lag_s: f32,
+    /// The heating rate's fall per kelvin above 20 °C, fraction.
+    pub rate_fall_per_k: f32,
 }
 
 /// The heat capacity the device takes for an identified fixture, J/K: a temperature record
@@ -86,11 +88,13 @@ const NOMINAL_CAPACITY_J_PER_K: f32 = 1000.0;
 
 impl Identified {
     /// Bounds an identification must lie within: 5 mK/s … 50 K/s at full duty, a cooling
-    /// time constant of 20 s … 6 h, a lag of at most 5 s.
+    /// time constant of 20 s … 6 h, a lag of at most 5 s, a heating rate falling by at most
+    /// 0.2 % per kelvin.
     pub fn checked(self) -> Option<Identified> {
         let ok = (0.005..=50.0).contains(&self.rate_k_per_s)
             && (20.0..=21_600.0).contains(&self.cooling_tau_s)
-            && (0.0..=5.0).contains(&self.lag_s);
+            && (0.0..=5.0).contains(&self.lag_s)
+            && (0.0..=0.002).contains(&self.rate_fall_per_k);
         ok.then_some(self)
     }
 
@@ -101,6 +105,7 @@ impl Identified {
             heat_capacity_j_per_k: NOMINAL_CAPACITY_J_PER_K,
             loss_w_per_k: NOMINAL_CAPACITY_J_PER_K / self.cooling_tau_s,
             max_lag_s: 1.5 * self.lag_s + 0.5,
+            heater_fall_per_k: self.rate_fall_per_k,
             ..base
         }
     }
@@ -118,8 +123,10 @@ impl Identified {
 /// measured temperature every period, so the prediction follows the measurement.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PlantModel {
-    /// Heater power at full duty and nominal mains, W.
+    /// Heater power at full duty and nominal mains, with the block at 20 °C, W.
     pub heater_w: f32,
+    /// How that falls as the block warms: the fraction lost per kelvin above 20 °C.
+    pub heater_fall_per_k: f32,
     /// Heat capacity of the block the thermocouple sits on, J/K.
     pub heat_capacity_j_per_k: f32,
     /// Loss of that block to ambient, W/K.
@@ -143,6 +150,7 @@ impl PlantModel {
     /// The reference fixture (hardware-notes/fixture.md): 600 W into a 150 J/K plate.
     pub const REFERENCE: PlantModel = PlantModel {
         heater_w: 600.0,
+        heater_fall_per_k: 0.0,
         heat_capacity_j_per_k: 150.0,
         loss_w_per_k: 1.2,
         gain_min: 0.55,
@@ -156,7 +164,14 @@ impl PlantModel {
         min_fraction: 0.5,
     };
 
-    /// Full-power rise rate of the identified block, K/s.
+    /// Heater power at full duty with the block at `temp_c`, W: the identified fall, never
+    /// below a quarter of the power at 20 °C nor above it.
+    pub fn heater_w_at(&self, temp_c: f32) -> f32 {
+        let fall = self.heater_fall_per_k * (temp_c - 20.0);
+        self.heater_w * (1.0 - fall).clamp(0.25, 1.0)
+    }
+
+    /// Full-power rise rate of the identified block at 20 °C, K/s (the fastest it heats).
     pub fn full_rate_k_per_s(&self) -> f32 {
         self.heater_w / self.heat_capacity_j_per_k.max(1.0)
     }

@@ -27,6 +27,10 @@ pub struct ThermalParams {
     /// How far the thermocouple's junction lags the plate, s (0: clamped in it).
     #[serde(default)]
     pub thermocouple_lag_s: f64,
+    /// How the heater's power falls as the plate warms: the fraction lost per kelvin above
+    /// 20 °C (a heater's resistance rising with its temperature).
+    #[serde(default)]
+    pub heater_fall_per_k: f64,
 }
 
 impl ThermalParams {
@@ -42,6 +46,7 @@ impl ThermalParams {
         ambient_drift_k: 0.4,
         ambient_period_s: 5400.0,
         thermocouple_lag_s: 0.0,
+        heater_fall_per_k: 0.0,
     };
 }
 
@@ -69,8 +74,9 @@ impl ThermalState {
         }
     }
 
-    /// Advance by `dt_s` (keep it ≤ 0.1 s) with `power_w` into the plate.
+    /// Advance by `dt_s` (keep it ≤ 0.1 s) with `power_w` (at 20 °C) into the plate.
     pub fn advance(&mut self, p: &ThermalParams, ambient_c: f64, power_w: f64, dt_s: f64) {
+        let power_w = power_w * (1.0 - p.heater_fall_per_k * (self.plate_c - 20.0)).max(0.0);
         let loss = p.plate_loss_w_per_k * (self.plate_c - ambient_c);
         self.plate_c += (power_w - loss) / p.plate_j_per_k * dt_s;
         self.magnet_c += (self.plate_c - self.magnet_c) / p.magnet_tau_s * dt_s;

@@ -3,8 +3,10 @@
 //! look, then a step sized to take minutes) until the block has risen `rise_k` (or the time
 //! is up), then cools on its own; the host fits the
 //! heating rate at full duty, the cooling time constant and the thermocouple's lag
-//! ([`super::fixture_fit`]), each with its uncertainty, and keeps them dated in the
-//! calibration, which is sent to the device at every connection from then on.
+//! ([`super::fixture_fit`]). Then a hot pass: with that first identification in force the
+//! device heats the block toward the plan's hot temperature and lets it cool again, and the
+//! whole record gives the rate's fall with temperature too. Each value comes with its
+//! uncertainty, dated in the calibration, which is sent to the device at every connection.
 
 use std::io::{Read, Write};
 use std::time::Duration;
@@ -57,6 +59,11 @@ fn main_duty(plan: &Plan, rate: f64, relay: Option<(f64, f64)>, first: u8) -> f6
     (d * 100.0).ceil().clamp(1.0, f64::from(first))
 }
 
+/// The hot pass's top by default, °C: the highest built-in profile's peak.
+pub const HOT_C: f64 = 150.0;
+/// A hot pass that cannot heat this far above the first step's top is not run, K.
+const HOT_SPAN_MIN_K: f64 = 30.0;
+
 /// A relay step known worse than this (relative) is refused.
 const MAX_RELAY_ERROR: f64 = 0.08;
 
@@ -81,6 +88,8 @@ pub struct Plan {
     pub cool_s: f64,
     /// Baseline before heating, s.
     pub baseline_s: f64,
+    /// The hot pass's top, °C (none: no hot pass, and no fall with temperature measured).
+    pub hot_c: Option<f64>,
 }
 
 impl Default for Plan {
@@ -92,6 +101,7 @@ impl Default for Plan {
             max_heat_s: 1800.0,
             cool_s: 600.0,
             baseline_s: 30.0,
+            hot_c: Some(HOT_C),
         }
     }
 }
@@ -161,6 +171,47 @@ impl<P: Read + Write> Run<P> {
                 }
             }
         }
+    }
+}
+
+impl<P: Read + Write> Run<P> {
+    /// The hot pass: the first step's identification given to the device (which then heats
+    /// under it, not under the model-free limits), a duty whose equilibrium lies a third above
+    /// the top, heating until the top, then cooling on its own. False when the fixture cannot
+    /// get [`HOT_SPAN_MIN_K`] above the first step's top within the device's duty cap.
+    fn hot_pass(
+        &mut self,
+        hot_c: f64,
+        low: &Fitted,
+        plan: &Plan,
+        progress: &mut dyn Progress,
+    ) -> Result<bool, CalibrateError> {
+        self.acq
+            .send(Command::Fixture(calibration_of(low).model()))?;
+        let hello = self.acq.rehandshake(Duration::from_secs(10))?;
+        let cap = f64::from(hello.limits.duty_cap_pct) / 100.0;
+        let ceiling_c = f64::from(hello.limits.ceiling_tenth_c) / 10.0;
+        let (a, tau, ambient_c) = (low.rate_k_per_s.0, low.cooling_tau_s.0, low.ambient_c);
+        let first_top_c = self.trace.temp_c.iter().copied().fold(f64::MIN, f64::max);
+        let wanted_c = hot_c.min(ceiling_c - 20.0);
+        let duty = ((wanted_c - ambient_c) * 4.0 / 3.0 / (a * tau)).min(cap);
+        // a quarter of the way short of what that duty could reach, for a heater that falls
+        let top_c = wanted_c.min(ambient_c + 0.75 * duty * a * tau);
+        if top_c - first_top_c < HOT_SPAN_MIN_K || duty < 0.01 {
+            return Ok(false);
+        }
+        self.acq.send(Command::Duty {
+            duty_pct: (duty * 100.0).floor() as u8,
+            limit_tenth_c: ((top_c + 15.0) * 10.0) as i16,
+        })?;
+        let (started, _) = last(&self.trace);
+        self.read_until(Phase::Heating, progress, |t, temp| {
+            temp >= top_c || t - started >= plan.max_heat_s
+        })?;
+        self.acq.send(Command::Stop)?;
+        let (stopped, _) = last(&self.trace);
+        self.read_until(Phase::Cooling, progress, |t, _| t - stopped >= plan.cool_s)?;
+        Ok(true)
     }
 }
 
@@ -242,7 +293,16 @@ pub fn identify<P: Read + Write>(
     run.read_until(Phase::Cooling, progress, |t, _| t - stopped >= plan.cool_s)?;
     // a relay on time-proportioning: heat enters up to half a window early
     let timing_s = relay.map_or(0.0, |(window_s, _)| window_s / 2.0);
-    let mut fitted = fit(&run.trace, timing_s).map_err(CalibrateError::Unusable)?;
+    let low = fit(&run.trace, timing_s, false).map_err(CalibrateError::Unusable)?;
+    let hot = match plan.hot_c {
+        Some(hot_c) => run.hot_pass(hot_c, &low, plan, progress)?,
+        None => false,
+    };
+    let mut fitted = if hot {
+        fit(&run.trace, timing_s, true).map_err(CalibrateError::Unusable)?
+    } else {
+        low
+    };
     if let Some((window_s, half_s)) = relay {
         // what the relay delivered is known as well as its half-cycles allow (rectangular)
         let (a, u) = fitted.rate_k_per_s;
@@ -269,6 +329,8 @@ pub fn calibration_of(f: &Fitted) -> FixtureCalibration {
         cooling_tau_u_s: f.cooling_tau_s.1,
         thermocouple_lag_s: f.lag_s.0,
         thermocouple_lag_u_s: f.lag_s.1,
+        rate_fall_per_k: f.rate_fall_per_k.0,
+        rate_fall_u_per_k: f.rate_fall_per_k.1,
     }
 }
 

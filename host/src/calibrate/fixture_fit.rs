@@ -1,9 +1,12 @@
 //! The fixture's thermal model fitted to an identification's record: a block heated at `a`
-//! K/s per unit duty and cooling toward ambient with time constant `τ`, read by a
-//! thermocouple that follows it with lag `λ`,
+//! K/s per unit duty at 20 °C, an effect that falls by the fraction `κ` per kelvin as the block
+//! warms, cooling toward ambient with time constant `τ`, read by a thermocouple that follows
+//! it with lag `λ`,
 //!
-//!   dT/dt = a·u(t) − (T − T_amb)/τ,   dy/dt = (T − y)/λ,
+//!   dT/dt = a·(1 − κ·(T − 20 °C))·u(t) − (T − T_amb)/τ,   dy/dt = (T − y)/λ,
 //!
+//! (κ only from a record that heats well above the first step: a low step alone cannot tell
+//! it from the loss, and it is then held at zero)
 //! fitted to the readings y by Levenberg–Marquardt least squares (each step integrated
 //! exactly for the duty held over it), with the standard uncertainties from the Jacobian
 //! (s²·(JᵀJ)⁻¹, inflated for correlated residuals as the α fit's are).
@@ -30,6 +33,9 @@ pub struct Fitted {
     pub cooling_tau_s: (f64, f64),
     /// Thermocouple lag, s, and its standard uncertainty.
     pub lag_s: (f64, f64),
+    /// The heating rate's fall per kelvin above 20 °C, fraction, and its standard uncertainty
+    /// (zero and zero when the record could not show it).
+    pub rate_fall_per_k: (f64, f64),
     /// Ambient, °C (fitted, starting from the mean before heating).
     pub ambient_c: f64,
     /// Residual standard deviation, K.
@@ -43,14 +49,17 @@ pub const MODEL_FORM_REL: f64 = 0.03;
 /// …and for the lag, s.
 pub const MODEL_FORM_LAG_S: f64 = 0.3;
 
-/// Parameters: heating rate a (K/s), loss rate b = 1/τ (1/s), lag λ (s), ambient (°C).
+/// Parameters: heating rate a (K/s), loss rate b = 1/τ (1/s), lag λ (s), ambient (°C), the
+/// heating rate's fall κ (1/K).
 type Theta = [f64; N];
 /// How many.
-const N: usize = 4;
+const N: usize = 5;
+/// Which are held where they are in a minimisation.
+type Held = [bool; N];
 
 /// The readings the model gives for `theta` over the trace, from its first reading.
 fn simulate(t: &Trace, theta: &Theta) -> Vec<f64> {
-    let [a, b, lag, ambient_c] = *theta;
+    let [a, b, lag, ambient_c, fall] = *theta;
     let mut block = t.temp_c[0];
     let mut junction = block;
     let mut out = Vec::with_capacity(t.time_s.len());
@@ -59,9 +68,11 @@ fn simulate(t: &Trace, theta: &Theta) -> Vec<f64> {
         let dt = t.time_s[k] - t.time_s[k - 1];
         // a sample reports the duty its period decided, which the heater gets until the next
         let u = t.duty[k - 1];
-        // exact for the duty held over the step
-        let eq = ambient_c + a * u / b.max(1e-9);
-        let decay = (-b * dt).exp();
+        // exact for the duty held over the step: dT/dt = c − d·T, linear in T
+        let d = (b + a * u * fall).max(1e-9);
+        let c = a * u * (1.0 + 20.0 * fall) + b * ambient_c;
+        let eq = c / d;
+        let decay = (-d * dt).exp();
         let start = block;
         block = eq + (block - eq) * decay;
         junction = if lag > 1e-6 {
@@ -96,6 +107,7 @@ fn jacobian(t: &Trace, theta: &Theta) -> Vec<[f64; N]> {
         let h = match i {
             2 => (0.1 * theta[2]).max(0.25),
             3 => 0.01,
+            4 => 2e-5,
             _ => (theta[i].abs() * 1e-4).max(1e-9),
         };
         let (mut up, mut down) = (*theta, *theta);
@@ -177,11 +189,12 @@ fn first_guess(t: &Trace) -> Result<Theta, String> {
         1.0 / 600.0,
         1.0,
         ambient_c,
+        0.0,
     ])
 }
 
-/// Levenberg–Marquardt from `theta`; the lag held where it is when `hold_lag`.
-fn minimise(t: &Trace, mut theta: Theta, hold_lag: bool) -> Theta {
+/// Levenberg–Marquardt from `theta`, the parameters `held` kept where they are.
+fn minimise(t: &Trace, mut theta: Theta, held: Held) -> Theta {
     let mut lambda = 1e-3;
     let mut cost = sse(&residuals(t, &theta));
     for _ in 0..200 {
@@ -194,12 +207,13 @@ fn minimise(t: &Trace, mut theta: Theta, hold_lag: bool) -> Theta {
                 g[a] -= row[a] * ri;
             }
         }
-        if hold_lag {
+        for i in (0..N).filter(|i| held[*i]) {
+            // row and column i of the identity: the step leaves parameter i where it is
             for (k, row) in m.iter_mut().enumerate() {
-                row[2] = if k == 2 { 1.0 } else { 0.0 };
+                row[i] = if k == i { 1.0 } else { 0.0 };
             }
-            m[2] = [0.0, 0.0, 1.0, 0.0];
-            g[2] = 0.0;
+            m[i] = std::array::from_fn(|k| if k == i { 1.0 } else { 0.0 });
+            g[i] = 0.0;
         }
         for (a, row) in m.iter_mut().enumerate() {
             row[a] *= 1.0 + lambda;
@@ -210,6 +224,7 @@ fn minimise(t: &Trace, mut theta: Theta, hold_lag: bool) -> Theta {
             (theta[1] + step[1]).max(1e-7),
             (theta[2] + step[2]).clamp(0.0, 60.0),
             theta[3] + step[3],
+            (theta[4] + step[4]).clamp(-0.003, 0.005),
         ];
         let c = sse(&residuals(t, &trial));
         if c < cost {
@@ -236,10 +251,12 @@ fn minimise(t: &Trace, mut theta: Theta, hold_lag: bool) -> Theta {
 /// puts a window's half-cycles in at its start, so heat arrives up to half a window earlier
 /// than the mean duty says, which the fit reads as less lag. The lag's uncertainty carries
 /// that (rectangular, ±`timing_s`), and the rate's and τ's carry how far they move when the
-/// lag is held at either end of it.
-pub fn fit(t: &Trace, timing_s: f64) -> Result<Fitted, String> {
+/// lag is held at either end of it. `with_fall`: fit κ too (the record heats far above its
+/// first step); otherwise κ is zero.
+pub fn fit(t: &Trace, timing_s: f64, with_fall: bool) -> Result<Fitted, String> {
     let n = t.time_s.len();
-    let theta = minimise(t, first_guess(t)?, false);
+    let free = [false, false, false, false, !with_fall];
+    let theta = minimise(t, first_guess(t)?, free);
     let r = residuals(t, &theta);
     let s2 = sse(&r) / (n - N) as f64;
     let inflation = autocorrelation_inflation(&r);
@@ -254,6 +271,7 @@ pub fn fit(t: &Trace, timing_s: f64) -> Result<Fitted, String> {
         return Err("the fit did not converge".into());
     }
     let (mut ua, mut ub, mut ul) = (stat(0), stat(1), stat(2));
+    let mut uf = if with_fall { stat(4) } else { 0.0 };
     // the model's own form: a first-order block leaves out the heater's lag behind the block,
     // the ambient's drift and the board's warming; its fits of the rig model's fixtures fell
     // within 3 % of their rate and τ and 0.3 s of their lag (rectangular)
@@ -261,12 +279,20 @@ pub fn fit(t: &Trace, timing_s: f64) -> Result<Fitted, String> {
     ua = ua.hypot(form(MODEL_FORM_REL * a));
     ub = ub.hypot(form(MODEL_FORM_REL * b));
     ul = ul.hypot(form(MODEL_FORM_LAG_S));
+    if with_fall {
+        // the same 3 % of the rate, spread over the record's span above 20 °C (a loss that
+        // grows faster than linearly reads as a falling heater)
+        let top_c = t.temp_c.iter().copied().fold(f64::MIN, f64::max);
+        uf = uf.hypot(form(MODEL_FORM_REL / (top_c - 20.0).max(10.0)));
+    }
     if timing_s > 0.0 {
-        let held = |l: f64| minimise(t, [a, b, l.max(0.0), theta[3]], true);
+        let lag_held = [false, false, true, false, !with_fall];
+        let held = |l: f64| minimise(t, [a, b, l.max(0.0), theta[3], theta[4]], lag_held);
         let (hi, lo) = (held(lag + timing_s), held(lag - timing_s));
         let rect = |d: f64| d.abs() / 2.0 / 3f64.sqrt();
         ua = ua.hypot(rect(hi[0] - lo[0]));
         ub = ub.hypot(rect(hi[1] - lo[1]));
+        uf = uf.hypot(rect(hi[4] - lo[4]));
         ul = ul.hypot(timing_s / 3f64.sqrt());
     }
     Ok(Fitted {
@@ -274,6 +300,7 @@ pub fn fit(t: &Trace, timing_s: f64) -> Result<Fitted, String> {
         // τ = 1/b: u(τ) = u(b)/b²
         cooling_tau_s: (1.0 / b, ub / (b * b)),
         lag_s: (lag, ul),
+        rate_fall_per_k: (theta[4], uf),
         ambient_c: theta[3],
         residual_k: s2.sqrt(),
         points: n,
@@ -288,7 +315,7 @@ mod tests {
     /// must give it back within a few of its stated uncertainties.
     #[test]
     fn the_model_fitted_to_its_own_record_gives_its_parameters_back() {
-        let truth: Theta = [0.8, 1.0 / 300.0, 2.0, 22.0];
+        let truth: Theta = [0.8, 1.0 / 300.0, 2.0, 22.0, 0.0];
         let mut t = Trace::default();
         for k in 0..2400 {
             let s = f64::from(k) * 0.5;
@@ -304,7 +331,7 @@ mod tests {
             .enumerate()
             .map(|(k, v)| ((v + 0.05 * ((k as f64) * 0.7).sin()) * 4.0).round() / 4.0)
             .collect();
-        let f = fit(&t, 0.0).expect("fit");
+        let f = fit(&t, 0.0, false).expect("fit");
         let (a, ua) = f.rate_k_per_s;
         let (tau, ut) = f.cooling_tau_s;
         let (lag, ul) = f.lag_s;

@@ -92,6 +92,14 @@ pub struct Args {
     /// Fixture step: heat until the block has risen this much, K.
     #[arg(long, default_value_t = 20.0, value_parser = parse_finite)]
     pub(super) rise_k: f64,
+    /// Fixture step: the hot pass's top, °C — with the first step's identification in force
+    /// the block is heated toward it and left to cool, which shows how the heater's effect
+    /// falls as it warms (use your hottest profile's peak).
+    #[arg(long, default_value_t = remanent::calibrate::fixture::HOT_C, value_parser = parse_finite, conflicts_with = "no_hot_pass")]
+    pub(super) hot_c: f64,
+    /// Fixture step: no hot pass (the fall with temperature is then taken as none).
+    #[arg(long)]
+    pub(super) no_hot_pass: bool,
     /// Fixture step on the virtual rig: a fixture file of your own (as `virtual-rig --fixture`).
     #[arg(long, requires = "virtual_rig")]
     pub(super) fixture: Option<PathBuf>,

@@ -44,14 +44,23 @@ pub fn run(a: &Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let plan = Plan {
         duty_pct: a.duty_pct,
         rise_k: a.rise_k,
+        hot_c: (!a.no_hot_pass).then_some(a.hot_c),
         ..Plan::default()
     };
     let mut live = Live {
         last: Instant::now(),
         units: *u,
     };
+    let hot = if a.no_hot_pass {
+        String::new()
+    } else {
+        format!(
+            "; then, under that first identification, heating toward {} and 10 min more of cooling",
+            temp_q(a.hot_c, 0).render(u)
+        )
+    };
     eprintln!(
-        "identifying the fixture: a {} % duty step until the block has risen {:.0} K, then 10 min of cooling; the heater comes on — keep clear of the fixture",
+        "identifying the fixture: a {} % duty step until the block has risen {:.0} K, then 10 min of cooling{hot}; the heater comes on — keep clear of the fixture",
         a.duty_pct, a.rise_k
     );
     let (_, f) = if a.virtual_rig {
@@ -75,6 +84,18 @@ pub fn run(a: &Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         f.cooling_tau_s.0, f.cooling_tau_s.1
     );
     println!("  thermocouple lag: {:.2} ± {:.2} s", f.lag_s.0, f.lag_s.1);
+    let (fall, u_fall) = f.rate_fall_per_k;
+    if u_fall > 0.0 {
+        println!(
+            "  heating effect falls {:.1} ± {:.1} % per 100 K as the block warms",
+            fall * 1e4,
+            u_fall * 1e4
+        );
+    } else {
+        println!(
+            "  heating effect's fall with temperature: not measured (no hot pass, or the block could not be heated 30 K past the first step)"
+        );
+    }
     println!(
         "  from {} readings, residual {:.3} K (standard uncertainties)",
         f.points, f.residual_k

@@ -25,6 +25,10 @@ pub struct FixtureFile {
     pub mains_hz: f64,
     /// Mains voltage off nominal, % (the heater's power goes with its square).
     pub mains_deviation_pct: f64,
+    /// How the heater's power falls as the block warms, % per 100 K above 20 °C (a heater's
+    /// resistance rising; none if left out).
+    #[serde(default)]
+    pub heater_fall_pct_per_100k: f64,
 }
 
 /// A fixture file could not be used.
@@ -63,6 +67,12 @@ impl FixtureFile {
             ("loss_w_per_k", self.loss_w_per_k, 0.01, 100.0),
             ("thermocouple_lag_s", self.thermocouple_lag_s, 0.0, 30.0),
             ("mains_deviation_pct", self.mains_deviation_pct, -20.0, 20.0),
+            (
+                "heater_fall_pct_per_100k",
+                self.heater_fall_pct_per_100k,
+                0.0,
+                20.0,
+            ),
         ];
         for (key, v, lo, hi) in ranges {
             if !(v.is_finite() && (lo..=hi).contains(&v)) {
@@ -87,6 +97,7 @@ impl FixtureFile {
         t.plate_j_per_k = self.heat_capacity_j_per_k;
         t.plate_loss_w_per_k = self.loss_w_per_k;
         t.thermocouple_lag_s = self.thermocouple_lag_s;
+        t.heater_fall_per_k = self.heater_fall_pct_per_100k / 1e4;
         opts.params.switch = HeaterSwitch::ZeroCross {
             half_cycle_s: 0.5 / self.mains_hz,
         };

@@ -25,6 +25,7 @@ const REFERENCE_FIXTURE: FixtureModel = FixtureModel {
     rate_mk_per_s: 4000,
     cooling_tau_s: 125,
     lag_ms: 0,
+    rate_fall_ppm_per_k: 0,
 };
 const DRILLS_IMAGE: &str = "REMANENT_PICO_DRILLS_IMAGE";
 /// USB serviced within this, µs (the bound: one control period's worth of slack).

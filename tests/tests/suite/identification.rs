@@ -2,7 +2,8 @@
 //! builder's fixture file, its board unidentified as a new bench's is): each identification
 //! recovers the fixture's truth — its heating rate at full duty (heater power at the day's
 //! mains over the block's heat capacity), its cooling time constant (capacity over loss) and
-//! its thermocouple lag — within the expanded uncertainty it states (k = 2); the device then
+//! its thermocouple lag, and how its heater's effect falls as it warms (from the hot pass) —
+//! within the expanded uncertainty it states (k = 2); the device then
 //! takes it and lifts its model-free limits.
 
 use remanent::calibrate::fixture::{Phase, Plan, Progress};
@@ -22,6 +23,15 @@ fn fixture(w: f64, c: f64, loss: f64, lag: f64, hz: f64, dev: f64) -> FixtureFil
         thermocouple_lag_s: lag,
         mains_hz: hz,
         mains_deviation_pct: dev,
+        heater_fall_pct_per_100k: 0.0,
+    }
+}
+
+/// `f` with a heater whose power falls `pct` % per 100 K as the block warms.
+fn falling(f: FixtureFile, pct: f64) -> FixtureFile {
+    FixtureFile {
+        heater_fall_pct_per_100k: pct,
+        ..f
     }
 }
 
@@ -39,6 +49,10 @@ fn the_identification_recovers_each_fixture_within_its_stated_uncertainty() {
             fixture(450.0, 150.0, 1.2, 1.0, 50.0, 0.0),
         ),
         (
+            "bill of materials, heater falls 12 % per 100 K",
+            falling(fixture(450.0, 150.0, 1.2, 1.0, 50.0, 0.0), 12.0),
+        ),
+        (
             "20 W cartridge, 60 g",
             fixture(20.0, 54.0, 0.12, 0.5, 60.0, -5.0),
         ),
@@ -52,20 +66,23 @@ fn the_identification_recovers_each_fixture_within_its_stated_uncertainty() {
             fixture(300.0, 270.0, 1.5, 5.0, 50.0, -10.0),
         ),
         (
-            "100 W into 100 g",
-            fixture(100.0, 90.0, 0.5, 2.0, 60.0, 0.0),
+            "100 W into 100 g, heater falls 6 % per 100 K",
+            falling(fixture(100.0, 90.0, 0.5, 2.0, 60.0, 0.0), 6.0),
         ),
     ];
     let dir = tempfile::tempdir().unwrap();
     let mut failures = Vec::new();
     println!(
-        "{:<34} {:>18} {:>16} {:>14}",
-        "fixture", "rate_K_per_s", "tau_s", "lag_s"
+        "{:<44} {:>18} {:>16} {:>14} {:>16}",
+        "fixture", "rate_K_per_s", "tau_s", "lag_s", "fall_pct_per_100K"
     );
     for (name, f) in zoo {
         let files = Files {
             from: None,
-            out: dir.path().join(format!("{}.toml", name.replace(' ', "-"))),
+            out: dir.path().join(format!(
+                "{}.toml",
+                name.replace(|c: char| !c.is_ascii_alphanumeric(), "-")
+            )),
             force: true,
         };
         let result = identify_fixture(
@@ -91,14 +108,25 @@ fn the_identification_recovers_each_fixture_within_its_stated_uncertainty() {
             f.heater_power_w() / f.heat_capacity_j_per_k,
             f.heat_capacity_j_per_k / f.loss_w_per_k,
             f.thermocouple_lag_s,
+            f.heater_fall_pct_per_100k / 1e4,
         ];
-        let got = [fit.rate_k_per_s, fit.cooling_tau_s, fit.lag_s];
+        let got = [
+            fit.rate_k_per_s,
+            fit.cooling_tau_s,
+            fit.lag_s,
+            fit.rate_fall_per_k,
+        ];
         println!(
-            "{name:<34} {:>8.3} ± {:<7.3} {:>7.1} ± {:<6.1} {:>5.2} ± {:<5.2}  (truth {:.3}, {:.0}, {:.1})",
+            "{name:<44} {:>8.3} ± {:<7.3} {:>7.1} ± {:<6.1} {:>5.2} ± {:<5.2} {:>7.2} ± {:<5.2}  (truth {:.3}, {:.0}, {:.1}, {:.1})",
             got[0].0, 2.0 * got[0].1, got[1].0, 2.0 * got[1].1, got[2].0, 2.0 * got[2].1,
-            truth[0], truth[1], truth[2]
+            got[3].0 * 1e4, 2.0 * got[3].1 * 1e4,
+            truth[0], truth[1], truth[2], truth[3] * 1e4
         );
-        for (k, what) in ["rate", "τ", "lag"].iter().enumerate() {
+        assert!(
+            got[3].1 > 0.0,
+            "{name}: the hot pass ran and measured the fall"
+        );
+        for (k, what) in ["rate", "τ", "lag", "fall"].iter().enumerate() {
             let (v, u) = got[k];
             if (v - truth[k]).abs() > 2.0 * u {
                 failures.push(format!(

@@ -258,6 +258,7 @@ where
             rate_k_per_s: model.rate_mk_per_s as f32 / 1000.0,
             cooling_tau_s: model.cooling_tau_s as f32,
             lag_s: model.lag_ms as f32 / 1000.0,
+            rate_fall_per_k: model.rate_fall_ppm_per_k as f32 * 1e-6,
         }
         .checked()
         .ok_or(RefuseReason::Invalid)?;

@@ -139,7 +139,7 @@ where
         };
         let m = &self.cfg.plant;
         let need_w = m.loss_w_per_k * (sp - ambient_c) + m.heat_capacity_j_per_k * rate;
-        let ff = (need_w / m.heater_w.max(1.0)).clamp(0.0, cap);
+        let ff = (need_w / m.heater_w_at(sp).max(1.0)).clamp(0.0, cap);
         let dt = f32::from(self.sampler.period_ms()) / 1000.0;
         self.pi.update_with(ff, sp, temp_c, dt, cap)
     }

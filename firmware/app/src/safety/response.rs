@@ -55,7 +55,7 @@ fn warm_part_placed(
 pub fn window_ms(cfg: &FirmwareConfig, limit_c: f32, ambient_c: f32) -> u32 {
     let m = &cfg.plant;
     let cap = cfg.duty_cap().max(0.01);
-    let gross_w = m.gain_min * cap * m.heater_w;
+    let gross_w = m.gain_min * cap * m.heater_w_at(limit_c);
     let loss_w = m.loss_max_factor * m.loss_w_per_k * (limit_c - ambient_c).max(0.0);
     let net_w = (gross_w - loss_w).max(0.1 * gross_w);
     let rate = (net_w / m.heat_capacity_j_per_k).max(1e-4);
@@ -97,7 +97,7 @@ impl ResponseCheck {
             seen_k: 0.0,
         });
         let loss_w = m.loss_max_factor * m.loss_w_per_k * (temp_c - ambient_c).max(0.0);
-        let power_w = m.gain_min * duty * m.heater_w - loss_w;
+        let power_w = m.gain_min * duty * m.heater_w_at(temp_c) - loss_w;
         w.predicted_k += power_w / m.heat_capacity_j_per_k * dt_s;
         if w.predicted_k <= 0.0 {
             // the weakest fixture would not be warming (a hold, a cool-down): no evidence
@@ -280,11 +280,13 @@ impl ExcessWatch {
             return Ok(());
         }
         let m = &cfg.plant;
-        let duty_s: f32 = self.long.iter().map(|b| b.duty_s).sum();
+        // the open bucket too: the rise is judged up to now, so is the heat put in
+        let open = self.long_open.map(|(_, b)| b).unwrap_or_default();
+        let duty_s = self.long.iter().map(|b| b.duty_s).sum::<f32>() + open.duty_s;
         if !cfg.identified && duty_s > 0.0 {
             return Ok(()); // no model: only a rise with no duty at all is judged
         }
-        let above_k_s: f32 = self.long.iter().map(|b| b.above_k_s).sum();
+        let above_k_s = self.long.iter().map(|b| b.above_k_s).sum::<f32>() + open.above_k_s;
         let heat_k = m.gain_max * m.full_rate_k_per_s() * duty_s;
         let loss_k = if cfg.identified {
             m.loss_w_per_k / m.loss_max_factor / m.heat_capacity_j_per_k * above_k_s
@@ -324,6 +326,28 @@ mod tests {
             }
         }
         None
+    }
+
+    #[test]
+    fn a_fast_block_heating_after_minutes_idle_is_within_the_long_balance() {
+        // the reference plate idles at ambient for five minutes, then heats at half duty
+        // (2 K/s): the heat of the bucket still open explains the rise it shows
+        let m = CFG.plant;
+        let (mut t, amb) = (22.0f32, 22.0f32);
+        let mut watch = ExcessWatch::default();
+        for k in 0..(300 + 40) * 10 {
+            let now = k * 100;
+            let duty = if k >= 3000 { 0.5 } else { 0.0 };
+            t += (duty * m.heater_w - m.loss_w_per_k * (t - amb)) / m.heat_capacity_j_per_k * 0.1;
+            let r = watch.update(&CFG, now, (t * 10.0) as i16, (amb * 10.0) as i16, duty);
+            assert_eq!(
+                r,
+                Ok(()),
+                "tripped at {:.1} s, {t:.1} °C",
+                now as f32 / 1000.0
+            );
+        }
+        assert!(t > 90.0, "it heated: {t:.1} °C");
     }
 
     #[test]

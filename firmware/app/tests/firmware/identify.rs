@@ -24,6 +24,7 @@ const BENCH_MODEL: FixtureModel = FixtureModel {
     rate_mk_per_s: 1000,
     cooling_tau_s: 300,
     lag_ms: 0,
+    rate_fall_ppm_per_k: 0,
 };
 
 #[test]
@@ -82,6 +83,10 @@ fn the_identification_is_checked_and_then_judged_against() {
         },
         FixtureModel {
             lag_ms: 6_000,
+            ..BENCH_MODEL
+        },
+        FixtureModel {
+            rate_fall_ppm_per_k: 2_500,
             ..BENCH_MODEL
         },
     ] {

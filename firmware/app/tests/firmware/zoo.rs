@@ -2,7 +2,8 @@
 //! lagging 0–5 s, 50 and 60 Hz mains from −10 % to +10 %, heaters 25 % off what their
 //! identification says, each driven the way its board drives its switch (a DC switch by PWM,
 //! a zero-crossing relay by whole mains half-cycles). The plant here is its own: a block with
-//! a loss to ambient, a heater whose power goes with the square of the mains voltage, a
+//! a loss to ambient, a heater whose power goes with the square of the mains voltage and falls
+//! as the block warms (three of them, by 10–15 % per 100 K, one of those unidentified), a
 //! thermocouple that follows the block through its own lag and reads in 0.25 °C counts.
 //! The firmware is configured with each fixture's *identified* values (what
 //! `remanent calibrate fixture` measures), never with the truth.
@@ -26,6 +27,10 @@ pub struct Fixture {
     /// Mains frequency, Hz (0: a DC switch driven by PWM), and its voltage off nominal.
     pub mains_hz: u32,
     pub mains_dev: f64,
+    /// How the heater's power truly falls per kelvin above 20 °C, fraction, and what the
+    /// identification said of it.
+    pub fall_per_k: f64,
+    pub fall_identified_per_k: f64,
 }
 
 /// The zoo: the bill of materials' fixture, a cartridge in a small block, a band heater on a
@@ -52,7 +57,7 @@ pub const ZOO: [Fixture; 8] = [
         -0.10,
     ),
     fx(
-        "200 W band heater on a 500 g aluminium block",
+        "200 W band heater on a 500 g aluminium block, falling 12 %/100 K",
         200.0,
         1.1,
         450.0,
@@ -60,7 +65,8 @@ pub const ZOO: [Fixture; 8] = [
         3.0,
         50,
         0.10,
-    ),
+    )
+    .falling(0.0012, 0.0012),
     fx(
         "600 W into a 50 g block",
         600.0,
@@ -72,7 +78,7 @@ pub const ZOO: [Fixture; 8] = [
         0.05,
     ),
     fx(
-        "300 W into 300 g, slow junction",
+        "300 W into 300 g, slow junction, falling 10 %/100 K unidentified",
         300.0,
         1.0,
         270.0,
@@ -80,9 +86,10 @@ pub const ZOO: [Fixture; 8] = [
         5.0,
         50,
         -0.10,
-    ),
+    )
+    .falling(0.0010, 0.0),
     fx(
-        "100 W into 100 g, heater 25 % weak",
+        "100 W into 100 g, heater 25 % weak, falling 15 %/100 K",
         100.0,
         0.75,
         90.0,
@@ -90,7 +97,8 @@ pub const ZOO: [Fixture; 8] = [
         2.0,
         60,
         0.0,
-    ),
+    )
+    .falling(0.0015, 0.0015),
     fx(
         "600 W into 500 g, heater 25 % strong",
         600.0,
@@ -133,15 +141,34 @@ const fn fx(
         tc_lag_s,
         mains_hz,
         mains_dev,
+        fall_per_k: 0.0,
+        fall_identified_per_k: 0.0,
+    }
+}
+
+impl Fixture {
+    /// This fixture with a heater whose power falls `per_k` per kelvin above 20 °C, of which
+    /// the identification found `identified_per_k`.
+    const fn falling(self, per_k: f64, identified_per_k: f64) -> Fixture {
+        Fixture {
+            fall_per_k: per_k,
+            fall_identified_per_k: identified_per_k,
+            ..self
+        }
     }
 }
 
 pub const AMBIENT_C: f64 = 22.0;
 
 impl Fixture {
-    /// True heater power at full output, W.
+    /// True heater power at full output with the block at 20 °C, W.
     pub fn true_w(&self) -> f64 {
         self.heater_w * self.heater_factor * (1.0 + self.mains_dev).powi(2)
+    }
+
+    /// True heater power at full output with the block at `block_c`, W.
+    pub fn true_w_at(&self, block_c: f64) -> f64 {
+        self.true_w() * (1.0 - self.fall_per_k * (block_c - 20.0)).max(0.0)
     }
 
     /// The firmware's settings from this fixture's identification.
@@ -151,6 +178,7 @@ impl Fixture {
         cfg.plant.heat_capacity_j_per_k = self.c_j_per_k as f32;
         cfg.plant.loss_w_per_k = self.loss_w_per_k as f32;
         cfg.plant.max_lag_s = (1.5 * self.tc_lag_s + 0.5) as f32;
+        cfg.plant.heater_fall_per_k = self.fall_identified_per_k as f32;
         cfg
     }
 

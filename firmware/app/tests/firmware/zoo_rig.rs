@@ -167,15 +167,14 @@ impl Rig {
                 0.0
             } else if p.faults.relay_shorted {
                 1.0
-            } else if false {
-                0.0
             } else if f.mains_hz == 0 {
                 p.duty
             } else {
                 f64::from(u8::from(p.output_on))
             };
             let dt = f64::from(self.step_ms) / 1000.0;
-            let power = on_fraction * f.true_w() - f.loss_w_per_k * (p.block_c - AMBIENT_C);
+            let power =
+                on_fraction * f.true_w_at(p.block_c) - f.loss_w_per_k * (p.block_c - AMBIENT_C);
             p.block_c += power / f.c_j_per_k * dt;
             p.tc_c = if f.tc_lag_s > 0.0 {
                 p.tc_c + (p.block_c - p.tc_c) * dt / (f.tc_lag_s + dt)

@@ -50,7 +50,10 @@ const PLATEAU_K: f64 = 2.0;
 fn reachable_c(rig: &Rig) -> f64 {
     let f = rig.fixture;
     let cap = f.config().duty_cap();
-    AMBIENT_C + f64::from(cap) * f.true_w() / f.loss_w_per_k
+    // the equilibrium of cap·P(T) = loss·(T − ambient), P falling linearly from 20 °C
+    let p = f64::from(cap) * f.true_w();
+    (p * (1.0 + 20.0 * f.fall_per_k) + f.loss_w_per_k * AMBIENT_C)
+        / (f.loss_w_per_k + p * f.fall_per_k)
 }
 
 #[test]
