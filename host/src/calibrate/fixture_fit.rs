@@ -339,5 +339,32 @@ mod tests {
         assert!((tau - 300.0).abs() < 4.0 * ut.max(3.0), "τ {tau} ± {ut}");
         assert!((lag - 2.0).abs() < 4.0 * ul.max(0.1), "lag {lag} ± {ul}");
         assert!(ua > 0.0 && ut > 0.0 && ul > 0.0);
+        assert_eq!(f.rate_fall_per_k, (0.0, 0.0), "held at zero without a hot pass");
+    }
+
+    /// A low step, then a hot one to 150 °C: the fall of the heating rate comes back.
+    #[test]
+    fn a_record_with_a_hot_pass_gives_the_heating_rates_fall_back() {
+        let truth: Theta = [0.8, 1.0 / 300.0, 1.0, 22.0, 0.0012];
+        let mut t = Trace::default();
+        for k in 0..6000 {
+            let s = f64::from(k) * 0.5;
+            t.time_s.push(s);
+            let u = match s {
+                s if (30.0..160.0).contains(&s) => 0.2,
+                s if (1200.0..2000.0).contains(&s) => 0.6,
+                _ => 0.0,
+            };
+            t.duty.push(u);
+            t.temp_c.push(22.0);
+        }
+        let y = simulate(&t, &truth);
+        assert!(y.iter().copied().fold(f64::MIN, f64::max) > 120.0, "it got hot");
+        t.temp_c = y.iter().map(|v| (v * 4.0).round() / 4.0).collect();
+        let f = fit(&t, 0.0, true).expect("fit");
+        let (fall, u) = f.rate_fall_per_k;
+        assert!(u > 0.0, "{u}");
+        assert!((fall - 0.0012).abs() < 2.0 * u, "fall {fall} ± {u}");
+        assert!((f.rate_k_per_s.0 - 0.8).abs() < 2.0 * f.rate_k_per_s.1);
     }
 }
