@@ -131,6 +131,8 @@ const CALIBRATION_OPTIONAL_KEYS: &[&str] = &[
     "fixture.cooling_tau_u_s",
     "fixture.thermocouple_lag_s",
     "fixture.thermocouple_lag_u_s",
+    "fixture.rate_fall_per_K",
+    "fixture.rate_fall_u_per_K",
 ];
 
 /// Every key of a parsed table, as dotted paths (`segment[].hold_s` for arrays of tables).
@@ -194,6 +196,7 @@ fn rules(kind: Kind) -> &'static [(&'static str, Rule)] {
             ("fixture.cooling_tau_u_s", NonNeg),
             ("fixture.thermocouple_lag_s", NonNeg),
             ("fixture.thermocouple_lag_u_s", NonNeg),
+            ("fixture.rate_fall_u_per_K", NonNeg),
         ],
         Kind::Magnet => &[
             ("shape.cylinder.diameter_mm", Pos),

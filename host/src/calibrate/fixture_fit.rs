@@ -339,7 +339,11 @@ mod tests {
         assert!((tau - 300.0).abs() < 4.0 * ut.max(3.0), "τ {tau} ± {ut}");
         assert!((lag - 2.0).abs() < 4.0 * ul.max(0.1), "lag {lag} ± {ul}");
         assert!(ua > 0.0 && ut > 0.0 && ul > 0.0);
-        assert_eq!(f.rate_fall_per_k, (0.0, 0.0), "held at zero without a hot pass");
+        assert_eq!(
+            f.rate_fall_per_k,
+            (0.0, 0.0),
+            "held at zero without a hot pass"
+        );
     }
 
     /// A low step, then a hot one to 150 °C: the fall of the heating rate comes back.
@@ -359,7 +363,10 @@ mod tests {
             t.temp_c.push(22.0);
         }
         let y = simulate(&t, &truth);
-        assert!(y.iter().copied().fold(f64::MIN, f64::max) > 120.0, "it got hot");
+        assert!(
+            y.iter().copied().fold(f64::MIN, f64::max) > 120.0,
+            "it got hot"
+        );
         t.temp_c = y.iter().map(|v| (v * 4.0).round() / 4.0).collect();
         let f = fit(&t, 0.0, true).expect("fit");
         let (fall, u) = f.rate_fall_per_k;

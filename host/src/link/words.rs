@@ -25,7 +25,7 @@ pub fn describe_refusal(r: &RefuseReason) -> String {
             c(*limit_tenth_c)
         ),
         RefuseReason::FaultLatched(f) => format!(
-            "a fault is latched ({}); clear it first (`remanent self-test` clears it once safe)",
+            "a fault is latched ({}); clear it first (`remanent clear-fault`, once the fixture is near ambient)",
             describe_fault(*f)
         ),
         RefuseReason::TooHotToClear {
@@ -40,8 +40,9 @@ pub fn describe_refusal(r: &RefuseReason) -> String {
         RefuseReason::Invalid => "invalid settings".into(),
         RefuseReason::Busy => "the device is busy with a run".into(),
         RefuseReason::LockedOut { trips } => format!(
-            "heating is locked after {trips} trips within an hour: find the cause, then \
-             switch the bench off and on again"
+            "heating is locked after {trips} trips within an hour: find the cause, switch the \
+             bench off and on again, then clear it (`remanent clear-fault`) once the fixture \
+             has cooled"
         ),
         RefuseReason::TooFastForBoard { min_period_ms } => format!(
             "the board cannot convert that much in one period (shortest period for this \
@@ -97,7 +98,10 @@ pub fn describe_boot(boot: &BootReport) -> Option<String> {
         ));
     }
     if boot.locked {
-        s.push_str("; heating is locked until the power is cycled");
+        s.push_str(
+            "; heating is locked (kept through power cycles): after one, `remanent clear-fault` \
+             releases it once the fixture has cooled",
+        );
     } else if boot.reset != ResetCause::PowerOn {
         s.push_str("; it stays latched until cleared near ambient");
     }

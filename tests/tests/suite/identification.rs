@@ -141,6 +141,10 @@ fn the_identification_recovers_each_fixture_within_its_stated_uncertainty() {
             cal.fixture.is_some() && cal.dates.fixture.is_some(),
             "{name}"
         );
+        // the file the tool wrote is one it reads back
+        let back = remanent::calibration::Calibration::load(&files.out)
+            .unwrap_or_else(|e| panic!("{name}: {e}"));
+        assert_eq!(back.fixture, cal.fixture, "{name}");
         let text = std::fs::read_to_string(&files.out).unwrap();
         assert!(
             text.contains("[fixture]") && text.contains("rate_K_per_s"),
