@@ -4,33 +4,34 @@
 //! gaps, state changes, faults and rejected frames become events and counts. Deciding what an
 //! event *means* for a running record (started, finished, faulted) stays with the recorder.
 
-use remanent_protocol::{FaultReport, FrameError};
+use remanent_protocol::FrameError;
 
+use crate::event::{Rejection, RunEvent};
 use crate::link::acquisition::Event;
-use crate::link::words::{describe_fault, describe_state};
 use crate::link::Timeline;
 use crate::run_dir::{RunDirError, RunWriter};
-
-/// Words for a fault report.
-pub fn fault_detail(f: &FaultReport) -> String {
-    format!(
-        "{} at {:.1} °C",
-        describe_fault(f.fault),
-        f64::from(f.temp_tenth_c) / 10.0
-    )
-}
 
 /// Write one event; `t` is the device time of the latest sample, for events that carry none
 /// of their own.
 pub fn log(w: &mut RunWriter, e: &Event, t: Option<f64>) -> Result<(), RunDirError> {
     match e {
         Event::Rejected(err) => {
-            match err {
-                FrameError::BadCrc { .. } => w.meta.counts.frames_bad_crc += 1,
-                FrameError::BadCobs => w.meta.counts.frames_bad_cobs += 1,
-                _ => w.meta.counts.frames_other += 1,
-            }
-            w.event(t, "frame_rejected", &err.to_string())
+            let rejection = match err {
+                FrameError::BadCrc { .. } => {
+                    w.meta.counts.frames_bad_crc += 1;
+                    Rejection::BadCrc
+                }
+                FrameError::BadCobs => {
+                    w.meta.counts.frames_bad_cobs += 1;
+                    Rejection::BadCobs
+                }
+                _ => {
+                    w.meta.counts.frames_other += 1;
+                    Rejection::Other
+                }
+            };
+            let detail = err.to_string();
+            w.event(t, &RunEvent::FrameRejected { rejection, detail })
         }
         Event::Sample {
             placed,
@@ -39,26 +40,25 @@ pub fn log(w: &mut RunWriter, e: &Event, t: Option<f64>) -> Result<(), RunDirErr
             setpoint_c,
         } => {
             if *missing_before > 0 {
-                w.event(
-                    Some(placed.device_time_s),
-                    "gap",
-                    &format!("{missing_before} samples missing before seq {}", placed.seq),
-                )?;
+                let gap = RunEvent::Gap {
+                    missing: *missing_before,
+                    before_seq: placed.seq,
+                };
+                w.event(Some(placed.device_time_s), &gap)?;
             }
             w.sample(placed, values, *setpoint_c)
         }
-        Event::State(st) => w.event(
-            Some(f64::from(st.time_ms) / 1000.0),
-            "state",
-            &format!("{} (segment {})", describe_state(st.state), st.segment),
-        ),
+        Event::State(st) => {
+            let state = RunEvent::State {
+                state: st.state,
+                segment: st.segment,
+                from_beacon: false,
+            };
+            w.event(Some(f64::from(st.time_ms) / 1000.0), &state)
+        }
         Event::Fault(f) => {
             w.meta.counts.faults += 1;
-            w.event(
-                Some(f64::from(f.time_ms) / 1000.0),
-                "fault",
-                &fault_detail(f),
-            )
+            w.event(Some(f64::from(f.time_ms) / 1000.0), &RunEvent::fault(f))
         }
         _ => Ok(()),
     }

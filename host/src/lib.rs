@@ -12,6 +12,7 @@ pub mod clear_fault;
 pub mod clock;
 pub mod conversion;
 pub mod drill;
+pub mod event;
 pub mod fixture_ref;
 pub mod formats;
 pub mod frame_log;

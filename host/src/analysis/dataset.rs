@@ -69,18 +69,6 @@ impl std::fmt::Display for Skip {
     }
 }
 
-/// The faults listed in a run's events file (missing or unreadable: none).
-fn read_faults(path: &Path) -> Vec<(f64, String)> {
-    let Ok(mut rdr) = csv::Reader::from_path(path) else {
-        return Vec::new();
-    };
-    rdr.records()
-        .flatten()
-        .filter(|r| r.get(1) == Some("fault"))
-        .filter_map(|r| Some((r.get(0)?.parse().ok()?, r.get(2)?.to_string())))
-        .collect()
-}
-
 /// Load a run directory, converting the raw codes again with `calibration` (default: the one
 /// recorded with the run).
 pub fn load_run(
@@ -176,7 +164,7 @@ pub fn load_run(
     s.probe_c = Some(probe);
     s.duty_pct = Some(duty);
     s.setpoint_c = Some(setpoint);
-    s.faults = read_faults(&dir.join(run_dir::EVENTS_FILE));
+    s.faults = crate::event::file::faults(&dir.join(run_dir::EVENTS_FILE));
     super::clean::despike(&mut s);
     if s.time_s.len() < MIN_ROWS {
         return Err(InputError::TooFew {

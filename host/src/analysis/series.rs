@@ -20,7 +20,7 @@ pub struct Series {
     /// Setpoint, °C, when the heater was following one (NaN while off; for plots).
     pub setpoint_c: Option<Vec<f64>>,
     /// Faults the device reported: device time, s, and what (for plots).
-    pub faults: Vec<(f64, String)>,
+    pub faults: Vec<(f64, crate::event::FaultMark)>,
     /// Rows left out (thermocouple faults, saturated Hall readings, blank cells), with their
     /// line and why.
     pub skipped: Vec<(usize, String)>,

@@ -3,6 +3,7 @@
 use std::time::Duration;
 
 use indicatif::{ProgressBar, ProgressStyle};
+use remanent::event::{words, Notice};
 use remanent::record::{LiveStatus, Progress};
 use remanent::units::DisplayUnits;
 
@@ -64,11 +65,7 @@ impl Progress for Bar {
         ));
     }
 
-    fn note(&mut self, message: &str) {
-        self.bar.println(message);
-    }
-
-    fn note_phrase(&mut self, message: &remanent::units::Phrase) {
-        self.bar.println(message.render(&self.units));
+    fn notice(&mut self, n: &Notice) {
+        self.bar.println(words::notice(n).render(&self.units));
     }
 }

@@ -11,6 +11,7 @@ use super::style::{
     HEATING, REFERENCE,
 };
 use crate::analysis::dataset::Series;
+use crate::event::words::fault_mark;
 use crate::units::DisplayUnits;
 
 /// Points per trace drawn (each bin's extremes).
@@ -49,18 +50,19 @@ pub fn drawn_stretches(time_s: &[f64]) -> Vec<std::ops::Range<usize>> {
 }
 
 /// What the three panels share: the time axis, where the record is whole, and the marks.
-struct Axis<'s> {
+struct Axis {
     t_min: Vec<f64>,
     x: std::ops::Range<f64>,
-    faults: Vec<(f64, &'s str)>,
+    /// Each fault's time, min, and its words in the display units.
+    faults: Vec<(f64, String)>,
     /// Where each gap starts and ends, min.
     gaps: Vec<(f64, f64)>,
     /// The stretches between gaps, as index ranges.
     pieces: Vec<std::ops::Range<usize>>,
 }
 
-impl<'s> Axis<'s> {
-    fn new(s: &'s Series) -> Axis<'s> {
+impl Axis {
+    fn new(s: &Series, u: &DisplayUnits) -> Axis {
         let t0 = s.time_s[0];
         let t_min: Vec<f64> = s.time_s.iter().map(|t| (t - t0) / 60.0).collect();
         let x1 = t_min.last().copied().unwrap_or(1.0).max(1e-3);
@@ -76,7 +78,7 @@ impl<'s> Axis<'s> {
             faults: s
                 .faults
                 .iter()
-                .map(|(t, w)| ((t - t0) / 60.0, w.as_str()))
+                .map(|(t, m)| ((t - t0) / 60.0, fault_mark(m).render(u)))
                 .collect(),
             gaps: breaks.iter().map(|&i| (t_min[i - 1], t_min[i])).collect(),
             pieces,
@@ -136,7 +138,7 @@ pub fn draw_timeline<DB: DrawingBackend>(
         .titled(&format!("Time series — {title}"), ("sans-serif", 20))
         .map_err(e)?;
     let panels = root.split_evenly((3, 1));
-    let axis = Axis::new(s);
+    let axis = Axis::new(s, u);
     temperature_panel(&panels[0], &axis, s, magnet_c, u)?;
     flux_panel(&panels[1], &axis, s, u)?;
     duty_panel(&panels[2], &axis, s)?;

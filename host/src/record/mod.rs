@@ -16,9 +16,10 @@ use std::io::{Read, Write};
 
 use remanent_protocol::Command;
 
+use crate::event::{Notice, RunEvent};
 use crate::frame_log;
 use crate::link::acquisition::Acquisition;
-use crate::link::words::{describe_boot, describe_heater};
+use crate::link::words::describe_boot;
 use crate::link::LinkError;
 use crate::run_dir::{utc_now, Counts, DeviceInfo, RunDirError, RunMeta, RunWriter};
 use recorder::Recorder;
@@ -35,34 +36,31 @@ pub fn record<P: Read + Write>(
     if opts.out.exists() {
         return Err(RunDirError::Exists(opts.out.display().to_string()).into());
     }
-    progress.note("connecting…");
+    progress.notice(&Notice::Connecting);
     let (mut acq, hello, early) =
         Acquisition::connect(port, opts.calibration, opts.silence_timeout)?;
-    progress.note(&format!(
-        "connected: board `{}`, firmware {}.{}.{}, ceiling {:.0} °C",
-        hello.board.as_str(),
-        hello.firmware[0],
-        hello.firmware[1],
-        hello.firmware[2],
-        f64::from(hello.limits.ceiling_tenth_c) / 10.0
-    ));
-    progress.note(&format!("heater drive: {}", describe_heater(&hello.heater)));
+    let ceiling_c = f64::from(hello.limits.ceiling_tenth_c) / 10.0;
+    progress.notice(&Notice::Connected {
+        board: hello.board.as_str().to_string(),
+        firmware: hello.firmware,
+        ceiling_c,
+    });
+    progress.notice(&Notice::HeaterDrive(hello.heater));
     if opts.calibration.fixture.is_none() && hello.limits.duty_cap_pct <= MODEL_FREE_CAP_PCT {
-        progress.note(&format!(
-            "this bench's fixture is not identified: the device heats at most {} % and to {:.0} °C until `remanent calibrate fixture` has run (hardware-notes/fixtures.md)",
-            hello.limits.duty_cap_pct,
-            f64::from(hello.limits.ceiling_tenth_c) / 10.0
-        ));
+        progress.notice(&Notice::FixtureUnidentified {
+            duty_cap_pct: hello.limits.duty_cap_pct,
+            ceiling_c,
+        });
     }
-    if let Some(why) = describe_boot(&hello.boot) {
-        progress.note(&why);
+    if describe_boot(&hello.boot).is_some() {
+        progress.notice(&Notice::Boot(hello.boot));
     }
     let basis = opts
         .policy
         .accept(&hello, &opts.calibration, crate::calibration::Stamp::now())?;
     match basis {
-        Basis::Uncalibrated => progress.note("UNCALIBRATED: measuring without a valid calibration, as asked; every output of this run says so"),
-        Basis::VirtualRig => progress.note("virtual rig: converting with its own constants"),
+        Basis::Uncalibrated => progress.notice(&Notice::Uncalibrated),
+        Basis::VirtualRig => progress.notice(&Notice::VirtualRigConstants),
         Basis::Calibrated => {}
     }
     let meta = RunMeta {
@@ -107,7 +105,7 @@ pub fn record<P: Read + Write>(
         && acq.send(Command::Stop).is_ok()
     {
         let t = acq.device_now_s();
-        let _ = w.event(Some(t), "stop", "heater off requested as the record ends");
+        let _ = w.event(Some(t), &RunEvent::StopRequested);
     }
     if let RecordEnd::WriteFailed(_) = &end {
         frame_log::close(&mut acq.ingest.timeline, &mut w);
@@ -118,7 +116,7 @@ pub fn record<P: Read + Write>(
     if !matches!(end, RecordEnd::LinkLost(_)) {
         // the samples since the last beacon wait for the next one to settle their numbers
         if let Err(e) = rec.settle(&mut acq, &mut w) {
-            let _ = w.event(None, "settle", &format!("after the end: {e}"));
+            let _ = w.event(None, &RunEvent::SettleFailed(e.to_string()));
         }
     }
     frame_log::close(&mut acq.ingest.timeline, &mut w);

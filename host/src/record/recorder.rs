@@ -11,9 +11,9 @@ use std::time::{Duration, Instant};
 use remanent_protocol::{Command, RefuseReason, RunState};
 
 use super::types::{LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions};
-use crate::frame_log::{self, fault_detail};
+use crate::event::{Notice, RunEvent, StartSeen};
+use crate::frame_log;
 use crate::link::acquisition::{Acquisition, Event};
-use crate::link::words::describe_refusal;
 use crate::link::LinkError;
 use crate::run_dir::RunWriter;
 
@@ -103,16 +103,15 @@ impl Recorder {
         progress: &mut dyn Progress,
     ) -> Result<RecordEnd, RecordError> {
         if opts.preroll_s > 0.0 {
-            progress.note(&format!(
-                "recording {:.0} s at rest before heating (room-temperature reference)…",
-                opts.preroll_s
-            ));
+            progress.notice(&Notice::Preroll {
+                seconds: opts.preroll_s,
+            });
         }
         let mut last_update = Instant::now();
         let mut last_update_device_s = acq.device_now_s();
         loop {
             if self.stop.load(Ordering::Relaxed) {
-                progress.note("stopping: heater off…");
+                progress.notice(&Notice::Stopping);
                 return self.stop_device(acq, w);
             }
             let batch = acq.poll()?;
@@ -129,14 +128,14 @@ impl Recorder {
                 return Ok(end);
             }
             if let Some(words) = self.complete() {
-                progress.note_phrase(&words);
+                progress.notice(&Notice::Complete(words.clone()));
                 self.stop_device(acq, w)?;
-                w.event(None, "complete", &words.to_string())?;
+                w.event(None, &RunEvent::Complete(words.clone()))?;
                 return Ok(RecordEnd::Complete(words));
             }
             if self.resend {
                 self.resend = false;
-                w.event(None, "resent", "no answer to the profile: sent again")?;
+                w.event(None, &RunEvent::Resent)?;
                 self.send_start(acq, opts)?;
             }
             if self.start == Start::Resting && self.rest_s() >= opts.preroll_s {
@@ -197,7 +196,7 @@ impl Recorder {
             }
             Event::Fault(f) => {
                 self.status.fault = Some(f.fault);
-                progress.note(&format!("device fault: {}; heater off", fault_detail(f)));
+                progress.notice(&Notice::DeviceFault(*f));
                 return Ok(Some(RecordEnd::Fault(f.fault)));
             }
             Event::Reply { id, result } => return self.on_reply(*id, result, t, w),
@@ -221,12 +220,12 @@ impl Recorder {
             match state {
                 RunState::Profile => {
                     self.start = Start::Running;
-                    let detail = if from_beacon {
-                        "profile running (acknowledgement lost on the link)"
+                    let how = if from_beacon {
+                        StartSeen::Beacon
                     } else {
-                        "profile accepted: the device reports it running"
+                        StartSeen::Reported
                     };
-                    w.event(t, "started", detail)?;
+                    w.event(t, &RunEvent::Started(how))?;
                 }
                 RunState::Idle if from_beacon => {
                     *idle_beacons += 1;
@@ -245,15 +244,18 @@ impl Recorder {
         match state {
             RunState::Idle => {
                 if from_beacon {
-                    w.event(t, "state", "Idle (from the beacon)")?;
+                    let idle = RunEvent::State {
+                        state,
+                        segment: 0,
+                        from_beacon,
+                    };
+                    w.event(t, &idle)?;
                 }
-                progress.note("profile finished; heater off");
+                progress.notice(&Notice::ProfileFinished);
                 Ok(Some(RecordEnd::Finished))
             }
             RunState::Faulted if from_beacon => {
-                progress.note(
-                    "the device reports a latched fault (its fault report was lost); heater off",
-                );
+                progress.notice(&Notice::FaultReportLost);
                 Ok(Some(RecordEnd::DeviceFaulted))
             }
             _ => Ok(None),
@@ -271,19 +273,19 @@ impl Recorder {
         match result {
             Ok(()) if ours => {
                 self.start = Start::Running;
-                w.event(t, "started", "profile accepted")?;
+                w.event(t, &RunEvent::Started(StartSeen::Acknowledged))?;
             }
             // a resent start found the first one running
             Err(RefuseReason::Busy) if ours => self.start = Start::Running,
             Err(r) if ours => {
-                w.event(t, "refused", &describe_refusal(r))?;
+                w.event(t, &RunEvent::Refused(*r))?;
                 return Err(LinkError::Refused {
                     command: "the profile",
                     reason: *r,
                 }
                 .into());
             }
-            Err(r) => w.event(t, "refused", &describe_refusal(r))?,
+            Err(r) => w.event(t, &RunEvent::Refused(*r))?,
             Ok(()) => {}
         }
         Ok(None)
@@ -371,7 +373,7 @@ impl Recorder {
             for e in &batch.events {
                 if matches!(e, Event::Reply { id: a, result: Ok(()) } if *a == id) {
                     acked = true;
-                    w.event(None, "stopped", "stop acknowledged; heater off")?;
+                    w.event(None, &RunEvent::Stopped)?;
                 }
                 let _ = self.handle(e, w, &mut Quiet)?;
             }

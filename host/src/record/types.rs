@@ -8,6 +8,7 @@ use std::time::Duration;
 use remanent_protocol::{Fault, RunState};
 
 use crate::calibration::Calibration;
+use crate::event::Notice;
 use crate::link::words::describe_fault;
 use crate::link::LinkError;
 use crate::magnets::MagnetInfo;
@@ -70,24 +71,20 @@ pub struct LiveStatus {
     pub bad_frames: u64,
 }
 
-/// Receives progress while recording.
+/// Receives progress while recording: the live figures, and typed notices (words for them
+/// from [`crate::event::words::notice`], in the receiver's display units).
 pub trait Progress {
     /// The figures changed.
     fn update(&mut self, status: &LiveStatus);
     /// Something worth telling the user.
-    fn note(&mut self, message: &str);
-    /// Words with quantities worth telling the user (in SI-based units unless the receiver
-    /// shows them in its own).
-    fn note_phrase(&mut self, message: &crate::units::Phrase) {
-        self.note(&message.to_string());
-    }
+    fn notice(&mut self, notice: &Notice);
 }
 
 /// Progress that goes nowhere.
 pub struct Quiet;
 impl Progress for Quiet {
     fn update(&mut self, _: &LiveStatus) {}
-    fn note(&mut self, _: &str) {}
+    fn notice(&mut self, _: &Notice) {}
 }
 
 /// How a record ended.

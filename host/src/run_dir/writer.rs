@@ -12,6 +12,8 @@ use super::meta::{
 };
 use super::row::SampleRow;
 use crate::conversion::{thermo_fault_name, Converted};
+use crate::event::file::{to_row, EventRow, HEADER as EVENTS_HEADER};
+use crate::event::RunEvent;
 use crate::link::PlacedSample;
 
 /// Writes a run as it arrives.
@@ -19,9 +21,9 @@ pub struct RunWriter {
     dir: PathBuf,
     raw: BufWriter<File>,
     samples: csv::Writer<StopAfterError<File>>,
-    events: BufWriter<File>,
+    events: csv::Writer<File>,
     /// Events not yet written, kept in device-time order.
-    pending_events: Vec<(f64, String)>,
+    pending_events: Vec<(f64, EventRow)>,
     /// Device time of the latest sample written, s.
     latest_s: f64,
     /// Space set aside so the end of the record can still be written on a full disk.
@@ -82,8 +84,18 @@ impl RunWriter {
         samples
             .write_record(SAMPLES_HEADER.split(','))
             .map_err(|e| csv_err(dir, e))?;
-        let mut events = open(EVENTS_FILE)?;
-        writeln!(events, "device_time_s,kind,detail").map_err(io_err(dir))?;
+        let events_file = open(EVENTS_FILE)?
+            .into_inner()
+            .map_err(|e| RunDirError::Io {
+                path: dir.join(EVENTS_FILE).display().to_string(),
+                source: e.into_error(),
+            })?;
+        let mut events = csv::WriterBuilder::new()
+            .has_headers(false)
+            .from_writer(events_file);
+        events
+            .write_record(EVENTS_HEADER)
+            .map_err(|e| csv_err(dir, e))?;
         let reserve = dir.join(RESERVE_FILE);
         fs::write(&reserve, vec![0u8; RESERVE_BYTES]).map_err(io_err(&reserve))?;
         let w = RunWriter {
@@ -176,21 +188,15 @@ impl RunWriter {
 
     /// An event, at its device time (or, without one, the latest sample's); written in time
     /// order once the samples have passed it.
-    pub fn event(
-        &mut self,
-        device_time_s: Option<f64>,
-        kind: &str,
-        detail: &str,
-    ) -> Result<(), RunDirError> {
+    pub fn event(&mut self, device_time_s: Option<f64>, e: &RunEvent) -> Result<(), RunDirError> {
         let t = device_time_s.unwrap_or(self.latest_s);
-        let detail = detail.replace(['"', '\n'], " ");
-        let line = format!("{t:.3},{kind},\"{detail}\"");
+        let row = to_row(t, e);
         // events come nearly in order: append, or insert where an earlier one belongs
         if self.pending_events.last().is_none_or(|(u, _)| *u <= t) {
-            self.pending_events.push((t, line));
+            self.pending_events.push((t, row));
         } else {
             let at = self.pending_events.partition_point(|(u, _)| *u <= t);
-            self.pending_events.insert(at, (t, line));
+            self.pending_events.insert(at, (t, row));
         }
         Ok(())
     }
@@ -198,8 +204,10 @@ impl RunWriter {
     /// Write the pending events up to `until_s`, in order.
     fn write_events(&mut self, until_s: f64) -> Result<(), RunDirError> {
         let n = self.pending_events.partition_point(|(u, _)| *u <= until_s);
-        for (_, line) in self.pending_events.drain(..n) {
-            writeln!(self.events, "{line}").map_err(io_err(&self.dir))?;
+        for (_, row) in self.pending_events.drain(..n) {
+            self.events
+                .serialize(row)
+                .map_err(|e| csv_err(&self.dir, e))?;
         }
         Ok(())
     }

@@ -320,7 +320,7 @@ fn stopping_a_record_turns_the_heater_off_and_closes_cleanly() {
                 self.0.store(true, std::sync::atomic::Ordering::Relaxed);
             }
         }
-        fn note(&mut self, _: &str) {}
+        fn notice(&mut self, _: &remanent::event::Notice) {}
     }
     let rec = RecordOptions {
         inspection: Default::default(),

@@ -229,16 +229,17 @@ fn an_unidentified_bench_refuses_to_heat_past_its_model_free_ceiling_until_it_is
 
 #[test]
 fn a_record_on_an_unidentified_bench_says_so_and_stays_under_the_model_free_limits() {
+    use remanent::event::{words, Notice};
     use remanent::record::{
         record, LiveStatus, Progress as RecordProgress, RecordEnd, RecordOptions,
     };
     use std::sync::atomic::AtomicBool;
     use std::sync::Arc;
-    struct Notes(Vec<String>);
+    struct Notes(Vec<Notice>);
     impl RecordProgress for Notes {
         fn update(&mut self, _: &LiveStatus) {}
-        fn note(&mut self, m: &str) {
-            self.0.push(m.to_string());
+        fn notice(&mut self, n: &Notice) {
+            self.0.push(n.clone());
         }
     }
     let f = fixture(200.0, 450.0, 1.0, 3.0, 50.0, 0.0);
@@ -271,14 +272,21 @@ fn a_record_on_an_unidentified_bench_says_so_and_stays_under_the_model_free_limi
     let mut notes = Notes(Vec::new());
     let summary = record(&mut SimulatedPort::new(opts), rec, &mut notes).unwrap();
     assert_eq!(summary.end, RecordEnd::Finished);
+    let unidentified = Notice::FixtureUnidentified {
+        duty_cap_pct: 20,
+        ceiling_c: 80.0,
+    };
+    assert!(notes.0.contains(&unidentified), "{:#?}", notes.0);
+    // and in words, in the user's units
+    let f = remanent::units::DisplayUnits {
+        temp: remanent::units::TempUnit::Fahrenheit,
+        ..Default::default()
+    };
+    let text = words::notice(&unidentified).render(&f);
     assert!(
-        notes
-            .0
-            .iter()
-            .any(|n| n.contains("fixture is not identified")
-                && n.contains("20 %")
-                && n.contains("80 °C")),
-        "{:#?}",
-        notes.0
+        text.contains("fixture is not identified")
+            && text.contains("20 %")
+            && text.contains("176 °F"),
+        "{text}"
     );
 }
