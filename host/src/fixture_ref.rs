@@ -69,18 +69,43 @@ impl FixtureReference {
         };
         let text = std::fs::read_to_string(path).map_err(|e| err(e.to_string()))?;
         let r: FixtureReference = toml::from_str(&text).map_err(|e| err(e.to_string()))?;
-        let numbers = [
-            r.br_t,
-            r.br_u_t,
-            r.b20_mt,
-            r.b20_u_mt,
-            r.repeatability_pct,
-            r.gap_mm,
-        ];
-        if numbers.iter().any(|v| !v.is_finite()) || r.br_t <= 0.0 || r.b20_mt <= 0.0 {
-            return Err(err("a value is not a finite positive number".into()));
-        }
+        r.check().map_err(err)?;
         Ok(r)
+    }
+
+    /// Every value a finite number in its range, every size of the shape a length: what a
+    /// verdict may be computed from. Names the first that is not.
+    pub fn check(&self) -> Result<(), String> {
+        let positive = [
+            ("br_T", self.br_t),
+            ("b20_mT", self.b20_mt),
+            ("gap_mm", self.gap_mm),
+        ];
+        let non_negative = [
+            ("br_u_T", self.br_u_t),
+            ("b20_u_mT", self.b20_u_mt),
+            ("repeatability_pct", self.repeatability_pct),
+            ("gap_u_mm", self.gap_u_mm),
+        ];
+        for (key, v) in positive {
+            if !(v.is_finite() && v > 0.0) {
+                return Err(format!("{key} = {v} is not a finite positive number"));
+            }
+        }
+        for (key, v) in non_negative {
+            if !(v.is_finite() && v >= 0.0) {
+                return Err(format!("{key} = {v} is not a finite number ≥ 0"));
+            }
+        }
+        if let Some((key, v)) = self.shape.bad_dimension() {
+            return Err(format!(
+                "shape {key} = {v} is not a length (a finite number of millimetres above 0)"
+            ));
+        }
+        if self.placements == 0 {
+            return Err("placements = 0: a reference is read at least once".into());
+        }
+        Ok(())
     }
 
     /// Measured field over the field the reference's Br gives at the nominal gap: the
@@ -190,5 +215,44 @@ mod tests {
         // reference 0.2 %, repeatability 0.15 %: about ±0.65 % at k = 2, not the gap's ±3 %
         assert!(est.br_u95_t / est.br_t < 0.007, "{}", est.br_u95_t);
         assert!(budget.iter().all(|b| !b.0.contains("another shape")));
+    }
+
+    #[test]
+    fn a_reference_file_with_a_size_or_value_no_verdict_can_use_is_refused_naming_it() {
+        let good = reference(219.0);
+        assert_eq!(good.check(), Ok(()));
+        let disc = |d: f64| FixtureReference {
+            shape: Shape::Cylinder {
+                diameter_mm: d,
+                length_mm: 5.0,
+            },
+            ..good.clone()
+        };
+        for d in [f64::INFINITY, 0.0, -10.0, f64::NAN] {
+            let e = disc(d).check().unwrap_err();
+            assert!(e.contains("diameter_mm"), "{d}: {e}");
+        }
+        let gap_u = FixtureReference {
+            gap_u_mm: f64::NAN,
+            ..good.clone()
+        };
+        assert!(gap_u.check().unwrap_err().contains("gap_u_mm"));
+        let none = FixtureReference {
+            placements: 0,
+            ..good.clone()
+        };
+        assert!(none.check().unwrap_err().contains("placements"));
+        // through the file, as `--reference` reads it
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("r.toml");
+        let text = toml::to_string(&good)
+            .unwrap()
+            .replace("diameter_mm = 10.0", "diameter_mm = inf");
+        std::fs::write(&path, text).unwrap();
+        let e = FixtureReference::load(&path).unwrap_err().to_string();
+        assert!(
+            e.contains("diameter_mm = inf") && e.contains("r.toml"),
+            "{e}"
+        );
     }
 }

@@ -27,6 +27,27 @@ pub enum Shape {
 }
 
 impl Shape {
+    /// The first dimension that is not a finite positive length (0.001 … 10 000 mm), by name.
+    pub fn bad_dimension(&self) -> Option<(&'static str, f64)> {
+        let bad = |v: f64| !(v.is_finite() && (0.001..=10_000.0).contains(&v));
+        let sizes: [(&'static str, f64); 3] = match *self {
+            Shape::Cylinder {
+                diameter_mm,
+                length_mm,
+            } => [
+                ("diameter_mm", diameter_mm),
+                ("length_mm", length_mm),
+                ("length_mm", length_mm),
+            ],
+            Shape::Block {
+                a_mm,
+                b_mm,
+                length_mm,
+            } => [("a_mm", a_mm), ("b_mm", b_mm), ("length_mm", length_mm)],
+        };
+        sizes.into_iter().find(|(_, v)| bad(*v))
+    }
+
     /// Bz on the axis at `gap_mm` from the pole face, per tesla of Br.
     pub fn bz_per_br(&self, gap_mm: f64) -> f64 {
         match *self {
