@@ -2,6 +2,7 @@
 //! when the user confirms placement or when a stable reading is detected, then ranked against
 //! the set's median to find the damaged ones (a rotor set, a bin of salvaged parts).
 
+use crate::event::Notice;
 use std::io::{Read, Write};
 use std::sync::mpsc::Receiver;
 use std::time::{Duration, Instant};
@@ -76,8 +77,8 @@ const SILENCE_MARGIN: Duration = Duration::from_secs(10);
 pub trait SurveyProgress {
     /// A magnet was read.
     fn reading(&mut self, r: &Reading);
-    /// A message.
-    fn note(&mut self, message: &str);
+    /// Something worth telling the user (words from [`crate::event::words::notice`]).
+    fn notice(&mut self, notice: &Notice);
 }
 
 #[derive(Debug, PartialEq)]
@@ -101,21 +102,19 @@ pub fn run<P: Read + Write>(
             .accept(&hello, &opts.calibration, crate::calibration::Stamp::now())?
             == crate::calibration_policy::Basis::Uncalibrated;
     if uncalibrated {
-        progress.note("UNCALIBRATED: readings from a bench without a valid calibration, as asked");
+        progress.notice(&Notice::SurveyUncalibrated);
     }
     let mut window: Vec<(f64, f64, f64)> = Vec::new();
     let mut state = State::Empty;
     let mut readings = Vec::new();
     let mut last_progress = Instant::now();
     let mut pending_confirm: Option<f64> = None;
-    progress.note(if confirm.is_some() {
-        "place a magnet and press Enter to read it"
-    } else {
-        "place the magnets one after another; each is read once its field is stable"
+    progress.notice(&Notice::PlaceMagnets {
+        confirm: confirm.is_some(),
     });
     while readings.len() < opts.count {
         if last_progress.elapsed() > opts.idle_timeout {
-            progress.note("no new magnet for a while: ending the survey");
+            progress.notice(&Notice::SurveyIdle);
             break;
         }
         for e in acq.poll()?.events {

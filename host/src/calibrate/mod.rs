@@ -11,6 +11,7 @@ pub mod reading;
 pub mod setup;
 pub mod steps;
 
+use crate::event::Notice;
 use std::io::{Read, Write};
 use std::time::Duration;
 
@@ -57,12 +58,12 @@ pub enum CalibrateError {
     Unusable(String),
 }
 
-/// Progress of a step: live readings and notes.
+/// Progress of a step: live readings and notices.
 pub trait Progress {
     /// A reading, as it arrives.
     fn reading(&mut self, raw: &Raw);
-    /// A message.
-    fn note(&mut self, message: &str);
+    /// Something worth telling the user (words from [`crate::event::words::notice`]).
+    fn notice(&mut self, notice: &Notice);
 }
 
 /// Run `step` on the device at `port`, updating `cal` (which also converts the probe's
@@ -77,9 +78,9 @@ pub fn run<P: Read + Write>(
 ) -> Result<Found, CalibrateError> {
     let silence = Duration::from_secs(30);
     let (mut acq, _, _) = Acquisition::connect(port, *cal, silence)?;
-    progress.note(step.instructions());
+    progress.notice(&Notice::StepInstructions(step.kind()));
     setup
-        .arrange(step, &mut |m| progress.note(m))
+        .arrange(step, &mut |n| progress.notice(n))
         .map_err(|e| CalibrateError::Setup(e.to_string()))?;
     // the device's clock now, and what it read before the set-up was in place, are learnt
     // from the next samples

@@ -1,6 +1,7 @@
 //! Getting a step's set-up in place: a person told what to do who confirms with Enter, or the
 //! virtual rig's scene moved to match (which is how each step is played against known truth).
 
+use crate::event::Notice;
 use std::sync::mpsc::Receiver;
 
 use remanent_physics::boiling;
@@ -12,7 +13,7 @@ use crate::virtual_rig::SceneControl;
 /// Puts the sensors where a step needs them.
 pub trait Setup {
     /// Arrange `step`'s set-up; `note` speaks to the user.
-    fn arrange(&mut self, step: &Step, note: &mut dyn FnMut(&str)) -> Result<(), String>;
+    fn arrange(&mut self, step: &Step, note: &mut dyn FnMut(&Notice)) -> Result<(), String>;
     /// The step has read what it needs.
     fn release(&mut self);
 }
@@ -24,8 +25,8 @@ pub struct Person {
 }
 
 impl Setup for Person {
-    fn arrange(&mut self, _: &Step, note: &mut dyn FnMut(&str)) -> Result<(), String> {
-        note("press Enter when it is in place");
+    fn arrange(&mut self, _: &Step, note: &mut dyn FnMut(&Notice)) -> Result<(), String> {
+        note(&Notice::PressEnterWhenPlaced);
         self.confirm
             .recv()
             .map_err(|_| "the terminal closed before Enter was pressed".to_string())
@@ -63,7 +64,7 @@ impl VirtualSetup {
 pub const WARMING_K: f64 = 25.0;
 
 impl Setup for VirtualSetup {
-    fn arrange(&mut self, step: &Step, note: &mut dyn FnMut(&str)) -> Result<(), String> {
+    fn arrange(&mut self, step: &Step, note: &mut dyn FnMut(&Notice)) -> Result<(), String> {
         let warm_to = self.control.ambient_c() + WARMING_K;
         let scene = match step {
             Step::Zero => Scene::ZeroField,
@@ -99,7 +100,7 @@ impl Setup for VirtualSetup {
                 Scene::Fixture
             }
         };
-        note("virtual rig: set-up in place");
+        note(&Notice::VirtualSetUp);
         self.control.set(scene);
         Ok(())
     }

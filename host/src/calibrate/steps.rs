@@ -8,6 +8,9 @@ use remanent_physics::{adc, boiling, coil, standoff, Shape};
 use super::reading::{Raw, Stats};
 use crate::analysis::lsq;
 use crate::calibration::Calibration;
+use crate::event::CalStep;
+use crate::phrase;
+use crate::units::{span, temp_q, Kind, Phrase, Qty};
 
 /// A coil's dimensions and current, with their standard uncertainties.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -32,13 +35,14 @@ impl Coil {
     }
 }
 
-/// A step's result: what changed and how well it is known.
+/// A step's result: what changed and how well it is known, as words with quantities (shown
+/// in the user's display units).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Found {
-    /// The constant, in words with its value and standard uncertainty.
-    pub summary: String,
+    /// The constant, with its value and standard uncertainty.
+    pub summary: Phrase,
     /// A check that failed (the boiling point off by more than the wire's tolerance).
-    pub warning: Option<String>,
+    pub warning: Option<Phrase>,
 }
 
 /// One LSB of the Hall channel as a standard uncertainty (rectangular), mV.
@@ -55,9 +59,12 @@ pub fn zero(cal: &mut Calibration, w: &[Raw]) -> Found {
     h.sensor.offset_mv = mv.mean - h.sensor.offset_tc_mv_per_c * (tp - 25.0);
     h.offset_u_mv = (mv.u_mean().powi(2) + lsb.powi(2)).sqrt();
     Found {
-        summary: format!(
-            "offset {:.4} mV at 25 °C (u = {:.4} mV; read at {tp:.1} °C)",
-            cal.hall.sensor.offset_mv, cal.hall.offset_u_mv
+        summary: phrase!(
+            format!("offset {:.4} mV at ", cal.hall.sensor.offset_mv),
+            temp_q(25.0, 0),
+            format!(" (u = {:.4} mV; read at ", cal.hall.offset_u_mv),
+            temp_q(tp, 1),
+            ")"
         ),
         warning: None,
     }
@@ -83,10 +90,14 @@ pub fn offset_drift(cal: &mut Calibration, w: &[Raw]) -> Option<Found> {
     h.sensor.offset_mv = at_tp - s * (tp - 25.0);
     h.offset_tc_u_mv_per_c = u;
     Some(Found {
-        summary: format!(
-            "offset drift {s:.5} mV/°C (u = {u:.5} mV/°C) over {:.1} … {:.1} °C",
-            x.iter().copied().fold(f64::INFINITY, f64::min),
-            x.iter().copied().fold(f64::NEG_INFINITY, f64::max)
+        summary: phrase!(
+            format!("offset drift {s:.5} mV/K (u = {u:.5} mV/K) over "),
+            Qty::range(
+                Kind::Temp,
+                x.iter().copied().fold(f64::INFINITY, f64::min),
+                x.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+                1
+            )
         ),
         warning: None,
     })
@@ -107,11 +118,17 @@ pub fn sensitivity(cal: &mut Calibration, w: &[Raw], coil: &Coil) -> Found {
         (mv.u_mean().powi(2) + h.offset_u_mv.powi(2) + lsb * lsb).sqrt() / signal.abs();
     h.sensitivity_u_pct = (b_rel_u.powi(2) + signal_rel_u.powi(2)).sqrt() * 100.0;
     Found {
-        summary: format!(
-            "sensitivity {:.4} mV/mT at 25 °C (u = {:.3} %; coil field {b:.4} mT, u = {:.3} %)",
-            h.sensor.sensitivity_mv_per_mt,
-            h.sensitivity_u_pct,
-            b_rel_u * 100.0
+        summary: phrase!(
+            format!(
+                "sensitivity {:.4} mV/mT at ",
+                h.sensor.sensitivity_mv_per_mt
+            ),
+            temp_q(25.0, 0),
+            format!(
+                " (u = {:.3} %; coil field {b:.4} mT, u = {:.3} %)",
+                h.sensitivity_u_pct,
+                b_rel_u * 100.0
+            )
         ),
         warning: None,
     }
@@ -134,7 +151,13 @@ pub fn probe_tc(cal: &mut Calibration, w: &[Raw], coil: &Coil) -> Option<Found> 
     h.sensor.sensitivity_tc_pct_per_c = per_c;
     h.sensitivity_tc_u_pct_per_c = u_pct;
     Some(Found {
-        summary: format!("probe coefficient {per_c:.4} %/°C (u = {u_pct:.4} %/°C)"),
+        summary: phrase!(
+            "probe coefficient ",
+            Qty::one(Kind::Alpha, per_c, 4),
+            " (u = ",
+            Qty::one(Kind::Alpha, u_pct, 4),
+            ")"
+        ),
         warning: None,
     })
 }
@@ -153,9 +176,12 @@ pub fn ice_point(cal: &mut Calibration, w: &[Raw]) -> Found {
     tc.offset_u_c =
         (t.u_mean().powi(2) + ICE_POINT_U_C.powi(2) + (TC_STEP_U_C.powi(2) / t.n as f64)).sqrt();
     Found {
-        summary: format!(
-            "thermocouple offset {:+.3} °C (u = {:.3} °C)",
-            tc.offset_c, tc.offset_u_c
+        summary: phrase!(
+            "thermocouple offset ",
+            span(tc.offset_c, 3).signed(),
+            " (u = ",
+            span(tc.offset_u_c, 3),
+            ")"
         ),
         warning: None,
     }
@@ -186,11 +212,28 @@ pub fn boiling_point(cal: &Calibration, w: &[Raw], p: Pressure) -> Found {
         ((dts_dp * p_u).powi(2) + t.u_mean().powi(2) + cal.thermocouple.offset_u_c.powi(2)).sqrt();
     let allowed = cal.thermocouple.gain_tolerance_pct / 100.0 * ts + 2.0 * u;
     Found {
-        summary: format!(
-            "boiling point {ts:.2} °C at {p_kpa:.2} kPa; the thermocouple reads {reads:.2} °C ({miss:+.2} K, u = {u:.2} K)"
+        summary: phrase!(
+            "boiling point ",
+            temp_q(ts, 2),
+            format!(" at {p_kpa:.2} kPa; the thermocouple reads "),
+            temp_q(reads, 2),
+            " (",
+            span(miss, 2).signed(),
+            ", u = ",
+            span(u, 2),
+            ")"
         ),
         warning: (miss.abs() > allowed).then(|| {
-            format!("the thermocouple is {miss:+.2} K off at the boiling point, more than the wire's ±{} % tolerance and the check's uncertainty allow ({allowed:.2} K): a damaged or wrong-type thermocouple", cal.thermocouple.gain_tolerance_pct)
+            phrase!(
+                "the thermocouple is ",
+                span(miss, 2).signed(),
+                format!(
+                    " off at the boiling point, more than the wire's ±{} % tolerance and the check's uncertainty allow (",
+                    cal.thermocouple.gain_tolerance_pct
+                ),
+                span(allowed, 2),
+                "): a damaged or wrong-type thermocouple"
+            )
         }),
     }
 }
@@ -254,7 +297,12 @@ pub fn gap(cal: &mut Calibration, w: &[Raw], r: &Reference) -> Option<Found> {
     cal.gap.standoff.gap_mm = g;
     cal.gap.gap_u_mm = u;
     Some(Found {
-        summary: format!("gap {g:.3} mm (u = {u:.3} mm) from the reference's {b20:.2} mT at 20 °C"),
+        summary: phrase!(
+            format!("gap {g:.3} mm (u = {u:.3} mm) from the reference's "),
+            crate::units::flux(b20, 2),
+            " at ",
+            temp_q(20.0, 0)
+        ),
         warning: None,
     })
 }
@@ -279,16 +327,16 @@ pub enum Step {
 }
 
 impl Step {
-    /// What the person at the bench does before the step reads.
-    pub fn instructions(&self) -> &'static str {
+    /// What it calibrates (its words come from [`crate::event::words`]).
+    pub fn kind(&self) -> CalStep {
         match self {
-            Step::Zero => "put the Hall probe in the closed zero-field (mu-metal) can, away from steel and magnets",
-            Step::OffsetDrift => "keep the probe in the zero-field can and warm the probe alone (the resistor on its standoff) by 20–30 K; the step reads for the whole warming",
-            Step::Sensitivity(_) => "put the probe at the centre of the coil pair, its axis along the coils', and drive the measured current",
-            Step::ProbeTc(_) => "keep the probe at the coil's centre with the same current and warm the probe alone by 20–30 K; the step reads for the whole warming",
-            Step::IcePoint => "put the thermocouple at least 10 cm deep in a stirred slush of crushed ice and clean water",
-            Step::BoilingPoint(_) => "put the thermocouple in rolling-boiling water, not touching the pot (boiling water and steam scald: use a stable pot and keep hands clear)",
-            Step::Gap(_) => "clamp the reference magnet in the fixture at room temperature with the heater off",
+            Step::Zero => CalStep::Zero,
+            Step::OffsetDrift => CalStep::OffsetDrift,
+            Step::Sensitivity(_) => CalStep::Sensitivity,
+            Step::ProbeTc(_) => CalStep::ProbeTc,
+            Step::IcePoint => CalStep::IcePoint,
+            Step::BoilingPoint(_) => CalStep::BoilingPoint,
+            Step::Gap(_) => CalStep::Gap,
         }
     }
 

@@ -123,8 +123,8 @@ impl Progress for Live {
             );
         }
     }
-    fn note(&mut self, m: &str) {
-        eprintln!("{m}");
+    fn notice(&mut self, n: &remanent::event::Notice) {
+        eprintln!("{}", remanent::event::words::notice(n).render(&self.units));
     }
 }
 

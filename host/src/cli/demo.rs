@@ -90,7 +90,7 @@ const REFERENCE_PART: &str = "RM-REF-N42SH-D10x5";
 struct Quiet;
 impl SurveyProgress for Quiet {
     fn reading(&mut self, _: &Reading) {}
-    fn note(&mut self, _: &str) {}
+    fn notice(&mut self, _: &remanent::event::Notice) {}
 }
 
 pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {

@@ -46,8 +46,8 @@ impl SurveyProgress for Print {
             r.rel_sd * 100.0
         );
     }
-    fn note(&mut self, m: &str) {
-        eprintln!("{m}");
+    fn notice(&mut self, n: &remanent::event::Notice) {
+        eprintln!("{}", remanent::event::words::notice(n).render(&self.0));
     }
 }
 

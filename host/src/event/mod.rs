@@ -110,6 +110,25 @@ pub struct FaultMark {
     pub detail: String,
 }
 
+/// A calibration step, by what it calibrates (for its words).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum CalStep {
+    /// The Hall probe's zero.
+    Zero,
+    /// The zero's drift with the probe's temperature.
+    OffsetDrift,
+    /// The probe's sensitivity.
+    Sensitivity,
+    /// The sensitivity's temperature coefficient.
+    ProbeTc,
+    /// The thermocouple at the ice point.
+    IcePoint,
+    /// The thermocouple at the boiling point.
+    BoilingPoint,
+    /// The fixture's gap.
+    Gap,
+}
+
 /// What a workflow tells its user while it runs.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Notice {
@@ -154,4 +173,27 @@ pub enum Notice {
     FaultReportLost,
     /// The analysis could state what the record is for: it ends here.
     Complete(Phrase),
+    /// A survey reads from a bench without a valid calibration, as the user asked.
+    SurveyUncalibrated,
+    /// A survey waits for magnets: `confirm`, each read when the user presses Enter;
+    /// otherwise each once its field is stable.
+    PlaceMagnets {
+        /// The user confirms each placement.
+        confirm: bool,
+    },
+    /// No new magnet came for a while: the survey ends.
+    SurveyIdle,
+    /// What the person at the bench does before a calibration step reads.
+    StepInstructions(CalStep),
+    /// The step waits for Enter once its set-up is in place.
+    PressEnterWhenPlaced,
+    /// The virtual rig put the step's set-up in place.
+    VirtualSetUp,
+    /// A step found its constant.
+    StepFound {
+        /// The constant, with its value and standard uncertainty.
+        summary: Phrase,
+        /// A check that failed.
+        warning: Option<Phrase>,
+    },
 }

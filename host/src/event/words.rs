@@ -5,7 +5,7 @@
 
 use remanent_protocol::RunState;
 
-use super::{FaultMark, Notice, RunEvent, StartSeen};
+use super::{CalStep, FaultMark, Notice, RunEvent, StartSeen};
 use crate::link::words::{
     describe_boot, describe_fault, describe_heater, describe_refusal, describe_state,
 };
@@ -111,5 +111,52 @@ pub fn notice(n: &Notice) -> Phrase {
             "the device reports a latched fault (its fault report was lost); heater off"
         ),
         Notice::Complete(why) => why.clone(),
+        Notice::SurveyUncalibrated => phrase!(
+            "UNCALIBRATED: readings from a bench without a valid calibration, as asked"
+        ),
+        Notice::PlaceMagnets { confirm: true } => {
+            phrase!("place a magnet and press Enter to read it")
+        }
+        Notice::PlaceMagnets { confirm: false } => phrase!(
+            "place the magnets one after another; each is read once its field is stable"
+        ),
+        Notice::SurveyIdle => phrase!("no new magnet for a while: ending the survey"),
+        Notice::StepInstructions(step) => phrase!(instructions(*step)),
+        Notice::PressEnterWhenPlaced => phrase!("press Enter when it is in place"),
+        Notice::VirtualSetUp => phrase!("virtual rig: set-up in place"),
+        Notice::StepFound { summary, warning } => {
+            let mut p = summary.clone();
+            if let Some(w) = warning {
+                p.push("\nwarning: ");
+                p.extend(w.clone());
+            }
+            p
+        }
+    }
+}
+
+/// A calibration step's name.
+pub fn step_name(step: CalStep) -> &'static str {
+    match step {
+        CalStep::Zero => "the probe's zero",
+        CalStep::OffsetDrift => "the zero's drift",
+        CalStep::Sensitivity => "the probe's sensitivity",
+        CalStep::ProbeTc => "the sensitivity's temperature coefficient",
+        CalStep::IcePoint => "the ice point",
+        CalStep::BoilingPoint => "the boiling point",
+        CalStep::Gap => "the fixture's gap",
+    }
+}
+
+/// What the person at the bench does before a calibration step reads.
+fn instructions(step: CalStep) -> &'static str {
+    match step {
+        CalStep::Zero => "put the Hall probe in the closed zero-field (mu-metal) can, away from steel and magnets",
+        CalStep::OffsetDrift => "keep the probe in the zero-field can and warm the probe alone (the resistor on its standoff) by 20–30 K; the step reads for the whole warming",
+        CalStep::Sensitivity => "put the probe at the centre of the coil pair, its axis along the coils', and drive the measured current",
+        CalStep::ProbeTc => "keep the probe at the coil's centre with the same current and warm the probe alone by 20–30 K; the step reads for the whole warming",
+        CalStep::IcePoint => "put the thermocouple at least 10 cm deep in a stirred slush of crushed ice and clean water",
+        CalStep::BoilingPoint => "put the thermocouple in rolling-boiling water, not touching the pot (boiling water and steam scald: use a stable pot and keep hands clear)",
+        CalStep::Gap => "clamp the reference magnet in the fixture at room temperature with the heater off",
     }
 }

@@ -74,14 +74,14 @@ pub fn run<P: Read + Write>(
         let f =
             calibrate::run(&mut port, &mut cal, step, setup, opts, progress).map_err(|source| {
                 CalibrateJobError::Step {
-                    step: format!("{step:?}"),
+                    step: crate::event::words::step_name(step.kind()).to_string(),
                     source,
                 }
             })?;
-        progress.note(&f.summary);
-        if let Some(w) = &f.warning {
-            progress.note(&format!("warning: {w}"));
-        }
+        progress.notice(&crate::event::Notice::StepFound {
+            summary: f.summary.clone(),
+            warning: f.warning.clone(),
+        });
         // after the first step the file is ours to update
         save(&cal, &files.out, files.force || !found.is_empty())?;
         found.push(f);

@@ -15,7 +15,7 @@ use remanent_rig_model::RigParams;
 struct Quiet;
 impl Progress for Quiet {
     fn reading(&mut self, _: &Raw) {}
-    fn note(&mut self, _: &str) {}
+    fn notice(&mut self, _: &remanent::event::Notice) {}
 }
 
 /// A rig whose probe, thermocouple and gap are not what the nominal calibration says.
@@ -160,6 +160,7 @@ fn a_thermocouple_off_at_the_boiling_point_is_flagged() {
     )
     .unwrap();
     let w = found.warning.expect("a 6.6 K miss is flagged");
+    let w = w.to_string();
     assert!(w.contains("off at the boiling point"), "{w}");
 }
 

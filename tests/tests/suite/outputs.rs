@@ -227,7 +227,7 @@ fn a_survey_of_a_rotor_set_flags_the_damaged_magnets() {
     struct Silent;
     impl survey::SurveyProgress for Silent {
         fn reading(&mut self, _: &survey::Reading) {}
-        fn note(&mut self, _: &str) {}
+        fn notice(&mut self, _: &remanent::event::Notice) {}
     }
     let m = magnets::resolve("RM-N42-D10x5").unwrap();
     let mut opts = VirtualRigOptions::new(m.model.unwrap());

@@ -18,7 +18,7 @@ use remanent_rig_model::{Magnet, RigParams};
 struct Silent;
 impl SurveyProgress for Silent {
     fn reading(&mut self, _: &Reading) {}
-    fn note(&mut self, _: &str) {}
+    fn notice(&mut self, _: &remanent::event::Notice) {}
 }
 
 /// A fixture whose gap and probe are off the nominal calibration.
