@@ -4,7 +4,6 @@
 use remanent::units::{flux, temp_q, DisplayUnits, Kind, Qty};
 use std::path::PathBuf;
 use std::process::ExitCode;
-use std::time::Duration;
 
 use remanent::calibration::Calibration;
 use remanent::fixture_ref::FixtureReference;
@@ -119,14 +118,13 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         inspection: demo_inspection(a.inspection.inspection()),
         auto_end: Some(Default::default()),
         port_label: format!("virtual rig ({})", rig.path()),
-        magnet: m.info.clone(),
-        profile,
-        calibration: Calibration::virtual_rig(&params),
-        policy: Default::default(),
-        out: out.clone(),
-        silence_timeout: Duration::from_secs(3),
-        preroll_s: 60.0,
         stop: super::record::stop_flag()?,
+        ..RecordOptions::new(
+            m.info.clone(),
+            profile,
+            Calibration::virtual_rig(&params),
+            out.clone(),
+        )
     };
     let summary = super::record::record_with_bar(port, rec, u)?;
     let truth = rig.stop()?;

@@ -5,7 +5,6 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
-use std::time::Duration;
 
 use anyhow::Context;
 use remanent::record::{record, RecordEnd, RecordOptions, RecordSummary};
@@ -67,14 +66,9 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         inspection: a.inspection.inspection(),
         auto_end: (!a.full_profile).then(Default::default),
         port_label: a.port.clone(),
-        magnet: magnet.info,
-        profile,
-        calibration,
         policy,
-        out: a.out,
-        silence_timeout: Duration::from_secs(3),
-        preroll_s: 60.0,
         stop: stop_flag()?,
+        ..RecordOptions::new(magnet.info, profile, calibration, a.out)
     };
     let summary = record_with_bar(port, opts, u)?;
     let code = report_end(&summary, u);

@@ -3,8 +3,6 @@
 //! throughput benchmark tabulates and the accuracy tests hold to the goal.
 
 use std::path::Path;
-use std::sync::atomic::AtomicBool;
-use std::sync::Arc;
 use std::time::Duration;
 
 use super::analyze_input::{load_and_analyze, InputRequest, JobError};
@@ -95,16 +93,15 @@ pub fn run(spec: &TrialSpec, out: &Path) -> Result<Trial, TrialError> {
     let mut port = SimulatedPort::new(rig);
     let rec = RecordOptions {
         port_label: "simulated".into(),
-        magnet: part.info,
-        profile: spec.profile.clone(),
-        calibration: Calibration::virtual_rig(&params),
-        policy: Default::default(),
-        out: out.to_path_buf(),
         silence_timeout: Duration::from_secs(5),
         preroll_s: spec.preroll_s,
-        inspection: Default::default(),
         auto_end: spec.auto_end,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            part.info,
+            spec.profile.clone(),
+            Calibration::virtual_rig(&params),
+            out.to_path_buf(),
+        )
     };
     let summary = record(&mut port, rec, &mut Quiet)?;
     let truth = port.bench().truth();

@@ -44,6 +44,33 @@ pub struct RecordOptions {
     pub stop: Arc<AtomicBool>,
 }
 
+impl RecordOptions {
+    /// A record of `magnet` under `profile` into `out`, converting with `calibration`, with
+    /// the defaults: the calibration policy's default, a link lost after 3 s of silence, a
+    /// minute at rest before heating, the profile run to its end, no inspection details and a
+    /// stop flag of its own.
+    pub fn new(
+        magnet: MagnetInfo,
+        profile: ProfileSpec,
+        calibration: Calibration,
+        out: PathBuf,
+    ) -> RecordOptions {
+        RecordOptions {
+            port_label: String::new(),
+            magnet,
+            profile,
+            calibration,
+            policy: Default::default(),
+            out,
+            silence_timeout: Duration::from_secs(3),
+            preroll_s: 60.0,
+            inspection: Default::default(),
+            auto_end: None,
+            stop: Arc::new(AtomicBool::new(false)),
+        }
+    }
+}
+
 /// Live figures for a progress display.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct LiveStatus {

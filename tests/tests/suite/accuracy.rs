@@ -2,8 +2,6 @@
 //! lags: α within ±0.003 %/°C, loss within ±0.1 % absolute, and U95 covering the truth.
 //! The rig runs in-process (`SimulatedPort`), through the real firmware, recorder and analysis.
 
-use std::sync::atomic::AtomicBool;
-use std::sync::Arc;
 use std::time::Duration;
 
 use remanent::analysis::dataset;
@@ -57,17 +55,14 @@ fn measure(
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("run");
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: "simulated".into(),
-        magnet: m.info,
-        profile,
-        calibration: Calibration::virtual_rig(&params),
-        policy: Default::default(),
-        out: out.clone(),
         silence_timeout: Duration::from_secs(5),
-        preroll_s: 60.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            m.info,
+            profile,
+            Calibration::virtual_rig(&params),
+            out.clone(),
+        )
     };
     let mut port = port;
     let summary = record(&mut port, rec, &mut Quiet).unwrap();

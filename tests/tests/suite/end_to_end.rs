@@ -54,17 +54,13 @@ fn run(
     let rig = VirtualRig::start(opts).unwrap();
     let port = remanent::link::port::open(rig.path()).unwrap();
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: rig.path().into(),
-        magnet: m.info,
-        profile,
-        calibration: Calibration::virtual_rig(&params),
-        policy: Default::default(),
-        out: out.to_path_buf(),
-        silence_timeout: Duration::from_secs(3),
-        preroll_s: 60.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            m.info,
+            profile,
+            Calibration::virtual_rig(&params),
+            out.to_path_buf(),
+        )
     };
     (record(port, rec, &mut Quiet).unwrap(), rig)
 }
@@ -161,17 +157,14 @@ fn a_rig_that_dies_mid_run_leaves_a_valid_partial_record() {
         rig.stop().unwrap()
     });
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: "virtual".into(),
-        magnet: m.info,
-        profile: short_profile(),
-        calibration: Calibration::virtual_rig(&params),
-        policy: Default::default(),
-        out: out.clone(),
         silence_timeout: Duration::from_secs(2),
-        preroll_s: 60.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            m.info,
+            short_profile(),
+            Calibration::virtual_rig(&params),
+            out.clone(),
+        )
     };
     let summary = record(port, rec, &mut Quiet).unwrap();
     killer.join().unwrap();
@@ -323,17 +316,15 @@ fn stopping_a_record_turns_the_heater_off_and_closes_cleanly() {
         fn notice(&mut self, _: &remanent::event::Notice) {}
     }
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: "simulated".into(),
-        magnet: m.info,
-        profile: short_profile(),
-        calibration: Calibration::virtual_rig(&remanent_rig_model::RigParams::REFERENCE),
-        policy: Default::default(),
-        out: out.clone(),
-        silence_timeout: Duration::from_secs(3),
         preroll_s: 10.0,
         stop,
+        ..RecordOptions::new(
+            m.info,
+            short_profile(),
+            Calibration::virtual_rig(&remanent_rig_model::RigParams::REFERENCE),
+            out.clone(),
+        )
     };
     let summary = record(&mut port, rec, &mut StopWhenHot(s2)).unwrap();
     assert_eq!(summary.end, RecordEnd::Stopped);
@@ -417,17 +408,14 @@ fn a_noisy_link_never_leaves_a_record_hanging() {
             opts.keep_sent = true;
             let out = dir.path().join(format!("run{seed}"));
             let rec = RecordOptions {
-                inspection: Default::default(),
-                auto_end: None,
                 port_label: "noisy".into(),
-                magnet: m.info.clone(),
-                profile: short_profile(),
-                calibration: Calibration::virtual_rig(&opts.params),
-                policy: Default::default(),
-                out: out.clone(),
-                silence_timeout: Duration::from_secs(3),
                 preroll_s: 10.0,
-                stop: Arc::new(AtomicBool::new(false)),
+                ..RecordOptions::new(
+                    m.info.clone(),
+                    short_profile(),
+                    Calibration::virtual_rig(&opts.params),
+                    out.clone(),
+                )
             };
             let mut port = SimulatedPort::new(opts);
             let r = record(&mut port, rec, &mut Quiet);

@@ -233,8 +233,6 @@ fn a_record_on_an_unidentified_bench_says_so_and_stays_under_the_model_free_limi
     use remanent::record::{
         record, LiveStatus, Progress as RecordProgress, RecordEnd, RecordOptions,
     };
-    use std::sync::atomic::AtomicBool;
-    use std::sync::Arc;
     struct Notes(Vec<Notice>);
     impl RecordProgress for Notes {
         fn update(&mut self, _: &LiveStatus) {}
@@ -252,22 +250,20 @@ fn a_record_on_an_unidentified_bench_says_so_and_stays_under_the_model_free_limi
         hold_s,
     };
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: "unidentified".into(),
-        magnet: m.info.clone(),
-        profile: remanent::profiles::ProfileSpec {
-            name: "warm".into(),
-            description: "a short warm hold".into(),
-            limit_c: 60.0,
-            segments: vec![seg(40.0, 10.0, 60.0), seg(30.0, 10.0, 10.0)],
-        },
-        calibration: remanent::calibration::Calibration::virtual_rig(&opts.params),
-        policy: Default::default(),
-        out: dir.path().join("run"),
         silence_timeout: std::time::Duration::from_secs(10),
         preroll_s: 10.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            m.info.clone(),
+            remanent::profiles::ProfileSpec {
+                name: "warm".into(),
+                description: "a short warm hold".into(),
+                limit_c: 60.0,
+                segments: vec![seg(40.0, 10.0, 60.0), seg(30.0, 10.0, 10.0)],
+            },
+            remanent::calibration::Calibration::virtual_rig(&opts.params),
+            dir.path().join("run"),
+        )
     };
     let mut notes = Notes(Vec::new());
     let summary = record(&mut SimulatedPort::new(opts), rec, &mut notes).unwrap();

@@ -2,8 +2,6 @@
 //! the simulated device itself sent (its undamaged stream), through an outage longer than the
 //! low sequence byte can span, and after an earlier session on the same port.
 
-use std::sync::atomic::AtomicBool;
-use std::sync::Arc;
 use std::time::Duration;
 
 use remanent::calibration::Calibration;
@@ -53,17 +51,15 @@ fn through_an_outage_longer_than_the_sequence_byte_every_row_is_what_the_device_
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("run");
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: "outage".into(),
-        magnet: m.info.clone(),
-        profile: profile(200.0),
-        calibration: Calibration::virtual_rig(&opts.params),
-        policy: Default::default(),
-        out: out.clone(),
         silence_timeout: Duration::from_secs(30),
         preroll_s: 30.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            m.info.clone(),
+            profile(200.0),
+            Calibration::virtual_rig(&opts.params),
+            out.clone(),
+        )
     };
     let mut port = SimulatedPort::new(opts);
     let summary = record(&mut port, rec, &mut Quiet).unwrap();
@@ -107,17 +103,10 @@ fn a_record_after_a_self_test_on_the_same_port_holds_only_its_own_samples() {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("run");
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: rig.path().into(),
-        magnet: m.info.clone(),
-        profile: profile(60.0),
-        calibration: cal,
-        policy: Default::default(),
-        out: out.clone(),
         silence_timeout: Duration::from_secs(5),
         preroll_s: 20.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(m.info.clone(), profile(60.0), cal, out.clone())
     };
     let port = remanent::link::port::open(rig.path()).unwrap();
     let summary = record(port, rec, &mut Quiet).unwrap();
@@ -169,17 +158,15 @@ fn simulated_record(
     let m = magnets::resolve("RM-N42SH-D10x5").unwrap();
     let opts = VirtualRigOptions::new(m.model.unwrap());
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: "simulated".into(),
-        magnet: m.info.clone(),
-        profile,
-        calibration: Calibration::virtual_rig(&opts.params),
-        policy: Default::default(),
-        out: out.to_path_buf(),
         silence_timeout: Duration::from_secs(5),
         preroll_s: 20.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            m.info.clone(),
+            profile,
+            Calibration::virtual_rig(&opts.params),
+            out.to_path_buf(),
+        )
     };
     record(&mut SimulatedPort::new(opts), rec, &mut Quiet)
 }
@@ -287,17 +274,13 @@ fn link_corruption_is_detected_and_counted_and_never_written() {
     opts.link_drop_probability = 0.001;
     opts.keep_sent = true;
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: "noisy".into(),
-        magnet: m.info.clone(),
-        profile: crate::end_to_end::short_profile(),
-        calibration: Calibration::virtual_rig(&opts.params),
-        policy: Default::default(),
-        out: out.clone(),
-        silence_timeout: Duration::from_secs(3),
-        preroll_s: 60.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            m.info.clone(),
+            crate::end_to_end::short_profile(),
+            Calibration::virtual_rig(&opts.params),
+            out.clone(),
+        )
     };
     let mut port = SimulatedPort::new(opts);
     let summary = record(&mut port, rec, &mut Quiet).unwrap();

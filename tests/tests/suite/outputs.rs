@@ -1,8 +1,6 @@
 //! Every output for a run and for a lot of virtual-rig runs, checked for content; and the
 //! sampling plan against a textbook worked example.
 
-use std::sync::atomic::AtomicBool;
-use std::sync::Arc;
 use std::time::Duration;
 
 use remanent::analysis::dataset;
@@ -32,17 +30,14 @@ fn simulated_run(
     opts.seed = seed;
     let out = dir.join(id);
     let rec = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: "simulated".into(),
-        magnet: info,
-        profile: ProfileSpec::resolve("quick-alpha").unwrap(),
-        calibration: Calibration::virtual_rig(&opts.params),
-        policy: Default::default(),
-        out: out.clone(),
         silence_timeout: Duration::from_secs(5),
-        preroll_s: 60.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            info,
+            ProfileSpec::resolve("quick-alpha").unwrap(),
+            Calibration::virtual_rig(&opts.params),
+            out.clone(),
+        )
     };
     let mut port = SimulatedPort::new(opts);
     record(&mut port, rec, &mut Quiet).unwrap();

@@ -73,32 +73,30 @@ impl VirtualRecord {
     ) -> Result<remanent::record::RecordSummary, remanent::record::RecordError> {
         use remanent::profiles::{ProfileSpec, SegmentSpec};
         use remanent::record::{record, Quiet, RecordOptions};
-        use std::sync::{atomic::AtomicBool, Arc};
         let rec = RecordOptions {
-            inspection: Default::default(),
-            auto_end: None,
             port_label: "simulated".into(),
-            magnet: self.info,
-            profile: ProfileSpec {
-                name: "short".into(),
-                description: "a short cycle".into(),
-                limit_c: self.limit_c,
-                segments: self
-                    .segments
-                    .iter()
-                    .map(|&(target_c, ramp_c_per_min, hold_s)| SegmentSpec {
-                        target_c,
-                        ramp_c_per_min,
-                        hold_s,
-                    })
-                    .collect(),
-            },
-            calibration: self.calibration,
             policy: self.policy,
-            out: out.to_path_buf(),
             silence_timeout: std::time::Duration::from_secs(5),
             preroll_s: self.preroll_s,
-            stop: Arc::new(AtomicBool::new(false)),
+            ..RecordOptions::new(
+                self.info,
+                ProfileSpec {
+                    name: "short".into(),
+                    description: "a short cycle".into(),
+                    limit_c: self.limit_c,
+                    segments: self
+                        .segments
+                        .iter()
+                        .map(|&(target_c, ramp_c_per_min, hold_s)| SegmentSpec {
+                            target_c,
+                            ramp_c_per_min,
+                            hold_s,
+                        })
+                        .collect(),
+                },
+                self.calibration,
+                out.to_path_buf(),
+            )
         };
         let mut port = remanent::virtual_rig::SimulatedPort::new(self.rig);
         record(&mut port, rec, &mut Quiet)
