@@ -128,7 +128,7 @@ pub fn run<P: Read + Write>(
                 continue;
             };
             if let Some(a) = opts.alpha_pct_per_c {
-                b /= 1.0 + a / 100.0 * (t - 20.0);
+                b = remanent_physics::reversible::refer_to_20c(b, t, a);
             }
             let now = p.device_time_s;
             if confirm.as_ref().is_some_and(|rx| rx.try_recv().is_ok()) {

@@ -266,7 +266,7 @@ pub fn gap(cal: &mut Calibration, w: &[Raw], r: &Reference) -> Option<Found> {
         .collect();
     let bs = Stats::of(b.iter().copied());
     let t = Stats::of(w.iter().filter_map(|x| x.tc_c)).mean - cal.thermocouple.offset_c;
-    let b20 = bs.mean / (1.0 + r.alpha_pct_per_c / 100.0 * (t - 20.0));
+    let b20 = remanent_physics::reversible::refer_to_20c(bs.mean, t, r.alpha_pct_per_c);
     let want = b20 / 1000.0 / r.br_t.0;
     // the field falls with distance: bisect
     let (mut lo, mut hi) = (0.0f64, 50.0f64);

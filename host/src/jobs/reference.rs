@@ -62,7 +62,7 @@ pub fn measure<P: Read + Write>(
     let (alpha, alpha_u) = alpha_for(magnet, &SpecTable::builtin());
     let b20: Vec<f64> = readings
         .iter()
-        .map(|r| r.flux_mt / (1.0 + alpha / 100.0 * (r.temp_c - 20.0)))
+        .map(|r| remanent_physics::reversible::refer_to_20c(r.flux_mt, r.temp_c, alpha))
         .collect();
     let n = b20.len() as f64;
     let mean = b20.iter().sum::<f64>() / n;
