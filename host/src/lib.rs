@@ -13,7 +13,7 @@ pub mod clock;
 pub mod conversion;
 pub mod drill;
 pub mod event;
-pub mod fixture_ref;
+pub mod families;
 pub mod formats;
 pub mod frame_log;
 pub mod history;

@@ -5,9 +5,9 @@
 
 use serde::Serialize;
 
+use crate::analysis::fixture_ref::DEFAULT_REPEATABILITY_PCT;
 use crate::analysis::verdict::{judge, overall, Check, Outcome};
 use crate::analysis::Analysis;
-use crate::fixture_ref::DEFAULT_REPEATABILITY_PCT;
 use crate::magnets::MagnetInfo;
 use crate::specs::GradeSpec;
 

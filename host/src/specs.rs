@@ -80,13 +80,13 @@ impl SpecTable {
         match self
             .grades
             .iter()
-            .find(|g| crate::analysis::families::find(&g.family).is_none())
+            .find(|g| crate::families::find(&g.family).is_none())
         {
             Some(g) => Err(format!(
                 "grade {} names the family `{}`, which is not one of: {}",
                 g.grade,
                 g.family,
-                crate::analysis::families::FAMILIES
+                crate::families::FAMILIES
                     .iter()
                     .map(|f| f.name)
                     .collect::<Vec<_>>()

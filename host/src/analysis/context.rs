@@ -22,7 +22,7 @@ pub struct Context {
     /// Thermocouple gain tolerance to assume without a calibration, %.
     pub default_tc_gain_pct: f64,
     /// The fixture's reference magnet, when Br is to be referred to it.
-    pub reference: Option<crate::fixture_ref::FixtureReference>,
+    pub reference: Option<crate::analysis::fixture_ref::FixtureReference>,
 }
 
 /// The analysis could not produce α.

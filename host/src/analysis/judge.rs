@@ -2,10 +2,10 @@
 //! against the spec table and the heat-damage flag, with plain notes where a caveat applies.
 
 use super::context::Context;
-use super::families;
 use super::geometry::{self, BrEstimate};
 use super::result::BudgetLine;
 use super::verdict::{self, Check, Outcome};
+use crate::families;
 use crate::units::{self, Kind, Phrase, Qty};
 
 /// A loss above this (and above its own U95) flags heat damage, %.

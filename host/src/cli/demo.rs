@@ -5,8 +5,8 @@ use remanent::units::{flux, temp_q, DisplayUnits, Kind, Qty};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
+use remanent::analysis::fixture_ref::FixtureReference;
 use remanent::calibration::Calibration;
-use remanent::fixture_ref::FixtureReference;
 use remanent::record::RecordOptions;
 use remanent::survey::{Reading, SurveyProgress};
 use remanent::virtual_rig::{VirtualRig, VirtualRigOptions};

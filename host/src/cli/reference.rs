@@ -5,7 +5,7 @@ use remanent::units::{flux, temp_q, DisplayUnits};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use remanent::fixture_ref::FixtureReference;
+use remanent::analysis::fixture_ref::FixtureReference;
 use remanent::survey::{Reading, SurveyProgress};
 
 use super::options::{CalibrationOpts, ForceOpts};

@@ -28,7 +28,7 @@ pub enum JobError {
     Magnet(#[from] MagnetError),
     /// A fixture reference could not be read.
     #[error(transparent)]
-    Reference(#[from] crate::fixture_ref::ReferenceError),
+    Reference(#[from] crate::analysis::fixture_ref::ReferenceError),
     /// The analysis could not produce α.
     #[error("analysing {path}: {source}")]
     Analysis {
@@ -153,7 +153,7 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
     let reference = req
         .reference
         .as_deref()
-        .map(crate::fixture_ref::FixtureReference::load)
+        .map(crate::analysis::fixture_ref::FixtureReference::load)
         .transpose()?;
     let context = Context {
         calibration,

@@ -5,9 +5,9 @@
 use std::io::{Read, Write};
 use std::sync::mpsc::Receiver;
 
+use crate::analysis::fixture_ref::{FixtureReference, DEFAULT_REPEATABILITY_PCT};
 use crate::calibration::{Calibration, Stamp};
 use crate::calibration_policy::Policy;
-use crate::fixture_ref::{FixtureReference, DEFAULT_REPEATABILITY_PCT};
 use crate::link::LinkError;
 use crate::magnets::MagnetFile;
 use crate::specs::SpecTable;

@@ -11,8 +11,8 @@
 //! here, so a budget too small (coverage low) or too large (coverage near 100 %) fails.
 
 use remanent::analysis::coverage::COVERAGE_PROBABILITY;
+use remanent::analysis::fixture_ref::{FixtureReference, DEFAULT_REPEATABILITY_PCT};
 use remanent::calibration::Stamp;
-use remanent::fixture_ref::{FixtureReference, DEFAULT_REPEATABILITY_PCT};
 use remanent_physics::Shape;
 
 use crate::bench_model::{self as bm, Bench, TrueMagnet};

@@ -5,10 +5,10 @@
 //! non-conforming FAIL). Field ratios: the closed-form cylinder field checked against
 //! Magpylib in `reference_field.rs`.
 
+use remanent::analysis::fixture_ref::FixtureReference;
 use remanent::analysis::verdict::Outcome;
 use remanent::analysis::Analysis;
 use remanent::calibration::Calibration;
-use remanent::fixture_ref::FixtureReference;
 use remanent::jobs::{load_and_analyze, InputRequest};
 use remanent::magnets;
 use remanent::survey::{Reading, SurveyProgress};
