@@ -64,35 +64,21 @@ impl RunWriter {
         })?;
         let open = |name: &str| {
             let p = dir.join(name);
-            File::create_new(&p)
-                .map(BufWriter::new)
-                .map_err(|source| RunDirError::Io {
-                    path: p.display().to_string(),
-                    source,
-                })
+            File::create_new(&p).map_err(|source| RunDirError::Io {
+                path: p.display().to_string(),
+                source,
+            })
         };
-        let raw = open(RAW_FILE)?;
-        let samples_file = open(SAMPLES_FILE)?
-            .into_inner()
-            .map_err(|e| RunDirError::Io {
-                path: dir.join(SAMPLES_FILE).display().to_string(),
-                source: e.into_error(),
-            })?;
+        let raw = BufWriter::new(open(RAW_FILE)?);
         let mut samples = csv::WriterBuilder::new()
             .has_headers(false)
-            .from_writer(StopAfterError::new(samples_file));
+            .from_writer(StopAfterError::new(open(SAMPLES_FILE)?));
         samples
             .write_record(SAMPLES_HEADER.split(','))
             .map_err(|e| csv_err(dir, e))?;
-        let events_file = open(EVENTS_FILE)?
-            .into_inner()
-            .map_err(|e| RunDirError::Io {
-                path: dir.join(EVENTS_FILE).display().to_string(),
-                source: e.into_error(),
-            })?;
         let mut events = csv::WriterBuilder::new()
             .has_headers(false)
-            .from_writer(events_file);
+            .from_writer(open(EVENTS_FILE)?);
         events
             .write_record(EVENTS_HEADER)
             .map_err(|e| csv_err(dir, e))?;
