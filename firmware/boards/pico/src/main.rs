@@ -72,7 +72,7 @@ fn main() -> ! {
     // the heater outputs go low before anything else can fail, by register
     safe::outputs_off();
     // the latch and the lock that a power cycle keeps, then why this start happened
-    let mut log = FaultLog::open(flash::LogFlash, flash::LOG_BASE).ok();
+    let log = FaultLog::open(flash::LogFlash, flash::LOG_BASE).ok();
     let boot = safe::take_boot_report(log.as_ref().and_then(FaultLog::last));
     let _ = remanent_board_support::guard_stack();
     let Some(mut pac) = pac::Peripherals::take() else {
@@ -159,7 +159,7 @@ fn main() -> ! {
     };
     usb::start(bus, serial_number);
 
-    let mut led = pins.gpio25.into_push_pull_output();
+    let led = pins.gpio25.into_push_pull_output();
     let mut clock = TimerClock(timer);
     let board = BoardInfo {
         name: "pico",
@@ -168,7 +168,7 @@ fn main() -> ! {
         conversion_us: CONVERSION_US,
         drills: cfg!(feature = "drills"),
     };
-    let mut device = Device::new(cfg, board, adc, tc, heater, clock.now_ms(), boot);
+    let device = Device::new(cfg, board, adc, tc, heater, clock.now_ms(), boot);
     defmt::info!(
         "Remanent firmware {} on the Pico, serial {}",
         remanent_firmware::device::FIRMWARE_VERSION,
@@ -177,6 +177,24 @@ fn main() -> ! {
 
     watchdog.pause_on_debug(true);
     watchdog.start(fugit::MicrosDurationU32::millis(WATCHDOG_MS));
+    serve(device, clock, watchdog, led, log)
+}
+
+/// The main loop: bytes from the host in, the control period, the latch kept, frames out. Only
+/// a whole control period feeds the watchdog.
+fn serve<A, T, P, O>(
+    mut device: Device<A, T, P, O>,
+    mut clock: TimerClock,
+    mut watchdog: hal::Watchdog,
+    mut led: impl OutputPin,
+    mut log: Option<FaultLog<flash::LogFlash>>,
+) -> !
+where
+    A: remanent_firmware::Adc,
+    T: remanent_firmware::Thermocouple,
+    P: embedded_hal::pwm::SetDutyCycle,
+    O: OutputPin,
+{
     let mut rx = [0u8; 64];
     let mut tx = TxBuffer::new();
     let mut frame = [0u8; MAX_DEVICE_FRAME];
@@ -193,19 +211,8 @@ fn main() -> ! {
         }
         let kept = device.persisted();
         safe::persist(kept);
-        // the flash only when what is kept changed, and only with the heater off: the ROM's
-        // routines run with interrupts off (a page in about a millisecond, a sector's erase,
-        // once in 16 changes, in up to 400 ms on this flash, inside the watchdog's 500)
-        if device.heater_duty() == 0.0
-            && log
-                .as_ref()
-                .is_some_and(|l| l.last().unwrap_or_default() != kept)
-        {
-            watchdog.feed();
-            if let Some(Err(e)) = log.as_mut().map(|l| l.store(kept)) {
-                defmt::error!("fault log: {} (the latch is kept across resets only)", e);
-                log = None;
-            }
+        if device.heater_duty() == 0.0 {
+            keep_in_flash(&mut log, kept, &mut watchdog);
         }
         // move frames into the buffer while whole frames fit; never block on the host
         while tx.capacity() - tx.len() >= MAX_DEVICE_FRAME {
@@ -227,5 +234,27 @@ fn main() -> ! {
         } else {
             led.set_low()
         };
+    }
+}
+
+/// The latch and the lock to the fault log when they changed (call with the heater off: the
+/// ROM's routines run with interrupts off — a page in about a millisecond, a sector's erase,
+/// once in 16 changes, in up to 400 ms on this flash, inside the watchdog's 500). A log that
+/// fails is given up: the latch is then kept across resets only.
+fn keep_in_flash(
+    log: &mut Option<FaultLog<flash::LogFlash>>,
+    kept: remanent_firmware::device::Persisted,
+    watchdog: &mut hal::Watchdog,
+) {
+    if !log
+        .as_ref()
+        .is_some_and(|l| l.last().unwrap_or_default() != kept)
+    {
+        return;
+    }
+    watchdog.feed();
+    if let Some(Err(e)) = log.as_mut().map(|l| l.store(kept)) {
+        defmt::error!("fault log: {} (the latch is kept across resets only)", e);
+        *log = None;
     }
 }
