@@ -240,13 +240,13 @@ impl ProfileSpec {
         let mut segments = Segments::default();
         for s in &self.segments {
             let _ = segments.0.push(Segment {
-                target_tenth_c: (s.target_c * 10.0).round() as i16,
+                target_tenth_c: remanent_physics::wire::tenths_from_c(s.target_c),
                 ramp_tenth_c_per_min: (s.ramp_c_per_min * 10.0).round() as u16,
                 hold_s: s.hold_s.round() as u32,
             });
         }
         Profile {
-            limit_tenth_c: (self.limit_c * 10.0).round() as i16,
+            limit_tenth_c: remanent_physics::wire::tenths_from_c(self.limit_c),
             segments,
         }
     }

@@ -220,8 +220,8 @@ fn heats<P: Read + Write>(p: &mut Probe<P>, t0: f64) -> Result<(Step, f64), Link
     let target = t0 + HEAT_BY_K;
     let started_s = p.acq.device_now_s();
     let id = p.acq.send(Command::Manual {
-        setpoint_tenth_c: (target * 10.0) as i16,
-        limit_tenth_c: ((target + LIMIT_ABOVE_TARGET_K) * 10.0) as i16,
+        setpoint_tenth_c: remanent_physics::wire::tenths_from_c(target),
+        limit_tenth_c: remanent_physics::wire::tenths_from_c(target + LIMIT_ABOVE_TARGET_K),
     })?;
     if let Some(Err(r)) = p.reply(id, 50)? {
         // a latched fault (or another refusal) is named, not mistaken for a weak heater
@@ -293,8 +293,8 @@ fn fault_trips<P: Read + Write>(p: &mut Probe<P>, period_s: f64) -> Result<Step,
 /// Step 6: the fault stays latched (a new setpoint is refused) until cleared.
 fn latches<P: Read + Write>(p: &mut Probe<P>, target: f64) -> Result<Step, LinkError> {
     let id_refused = p.acq.send(Command::Manual {
-        setpoint_tenth_c: (target * 10.0) as i16,
-        limit_tenth_c: ((target + LIMIT_ABOVE_TARGET_K) * 10.0) as i16,
+        setpoint_tenth_c: remanent_physics::wire::tenths_from_c(target),
+        limit_tenth_c: remanent_physics::wire::tenths_from_c(target + LIMIT_ABOVE_TARGET_K),
     })?;
     // wait for the device's answer itself: samples already on their way may come first
     let latched = matches!(p.reply(id_refused, 50)?, Some(Err(_)));

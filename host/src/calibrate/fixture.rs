@@ -190,7 +190,7 @@ impl<P: Read + Write> Run<P> {
             .send(Command::Fixture(calibration_of(low).model()))?;
         let hello = self.acq.rehandshake(Duration::from_secs(10))?;
         let cap = f64::from(hello.limits.duty_cap_pct) / 100.0;
-        let ceiling_c = f64::from(hello.limits.ceiling_tenth_c) / 10.0;
+        let ceiling_c = remanent_physics::wire::c_from_tenths(hello.limits.ceiling_tenth_c);
         let (a, tau, ambient_c) = (low.rate_k_per_s.0, low.cooling_tau_s.0, low.ambient_c);
         let first_top_c = self.trace.temp_c.iter().copied().fold(f64::MIN, f64::max);
         let wanted_c = hot_c.min(ceiling_c - 20.0);
@@ -202,7 +202,7 @@ impl<P: Read + Write> Run<P> {
         }
         self.acq.send(Command::Duty {
             duty_pct: (duty * 100.0).floor() as u8,
-            limit_tenth_c: ((top_c + 15.0) * 10.0) as i16,
+            limit_tenth_c: remanent_physics::wire::tenths_from_c(top_c + 15.0),
         })?;
         let (started, _) = last(&self.trace);
         self.read_until(Phase::Heating, progress, |t, temp| {
@@ -248,7 +248,7 @@ pub fn identify<P: Read + Write>(
     let (duty, limit_c) = step(&hello, plan, ambient);
     run.acq.send(Command::Duty {
         duty_pct: duty,
-        limit_tenth_c: (limit_c * 10.0) as i16,
+        limit_tenth_c: remanent_physics::wire::tenths_from_c(limit_c),
     })?;
     let started = run.trace.time_s.last().copied().unwrap_or(0.0);
     let target = (ambient + plan.rise_k).min(limit_c - 3.0);
@@ -274,7 +274,7 @@ pub fn identify<P: Read + Write>(
     if (main as u8) < duty {
         run.acq.send(Command::Duty {
             duty_pct: main as u8,
-            limit_tenth_c: (limit_c * 10.0) as i16,
+            limit_tenth_c: remanent_physics::wire::tenths_from_c(limit_c),
         })?;
     }
     run.read_until(Phase::Heating, progress, |t, temp| {
@@ -316,7 +316,7 @@ pub fn identify<P: Read + Write>(
 /// under the device's ceiling.
 fn step(hello: &DeviceHello, plan: &Plan, ambient_c: f64) -> (u8, f64) {
     let duty = plan.duty_pct.min(hello.limits.duty_cap_pct).max(1);
-    let ceiling_c = f64::from(hello.limits.ceiling_tenth_c) / 10.0;
+    let ceiling_c = remanent_physics::wire::c_from_tenths(hello.limits.ceiling_tenth_c);
     (duty, (ambient_c + plan.rise_k + 10.0).min(ceiling_c - 1.0))
 }
 

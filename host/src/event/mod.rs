@@ -93,7 +93,7 @@ impl RunEvent {
     pub fn fault(f: &FaultReport) -> RunEvent {
         RunEvent::Fault {
             fault: f.fault,
-            temp_c: f64::from(f.temp_tenth_c) / 10.0,
+            temp_c: remanent_physics::wire::c_from_tenths(f.temp_tenth_c),
         }
     }
 }

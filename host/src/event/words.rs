@@ -100,7 +100,7 @@ pub fn notice(n: &Notice) -> Phrase {
         )),
         Notice::Stopping => phrase!("stopping: heater off…"),
         Notice::DeviceFault(f) => {
-            let at = f64::from(f.temp_tenth_c) / 10.0;
+            let at = remanent_physics::wire::c_from_tenths(f.temp_tenth_c);
             let mut p = phrase!("device fault: ");
             p.extend(fault_words(Some(f.fault), Some(at), ""));
             p.push("; heater off");

@@ -139,7 +139,7 @@ impl Ingest {
             values: conversion::convert(s.hall_code, s.probe_code, s.thermo, &self.calibration),
             missing_before: placed.missing_before,
             setpoint_c: (placed.setpoint_tenth_c != 0)
-                .then(|| f64::from(placed.setpoint_tenth_c) / 10.0),
+                .then(|| remanent_physics::wire::c_from_tenths(placed.setpoint_tenth_c)),
             placed,
         }
     }

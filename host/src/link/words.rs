@@ -6,7 +6,7 @@ use remanent_protocol::{
 };
 
 fn c(tenth_c: i16) -> f64 {
-    f64::from(tenth_c) / 10.0
+    remanent_physics::wire::c_from_tenths(tenth_c)
 }
 
 /// Words for a refusal.

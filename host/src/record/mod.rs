@@ -39,7 +39,7 @@ pub fn record<P: Read + Write>(
     progress.notice(&Notice::Connecting);
     let (mut acq, hello, early) =
         Acquisition::connect(port, opts.calibration, opts.silence_timeout)?;
-    let ceiling_c = f64::from(hello.limits.ceiling_tenth_c) / 10.0;
+    let ceiling_c = remanent_physics::wire::c_from_tenths(hello.limits.ceiling_tenth_c);
     progress.notice(&Notice::Connected {
         board: hello.board.as_str().to_string(),
         firmware: hello.firmware,

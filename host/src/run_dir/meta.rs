@@ -94,7 +94,7 @@ impl DeviceInfo {
             schema: format!("{:08x}", h.version.schema),
             period_ms: h.sensors.period_ms,
             oversample: h.sensors.oversample,
-            ceiling_c: f64::from(ceiling_tenth_c) / 10.0,
+            ceiling_c: remanent_physics::wire::c_from_tenths(ceiling_tenth_c),
             heartbeat_timeout_ms,
             duty_cap_pct,
         }
