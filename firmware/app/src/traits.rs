@@ -1,7 +1,7 @@
 //! Hardware traits of our own where embedded-hal 1.0 has none: an ADC and a millisecond clock,
 //! and the thermocouple converter seen as a source of raw words.
 
-use remanent_protocol::ThermoWord;
+use remanent_protocol::{ThermoKind, ThermoWord};
 
 /// Which input of the front end to convert.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -19,6 +19,9 @@ pub trait Adc {
     type Error: core::fmt::Debug;
     /// One conversion of `input`.
     fn convert(&mut self, input: AdcInput) -> Result<i16, Self::Error>;
+    /// The input voltage a full-scale code of `input` stands for, µV (the host scales codes
+    /// by it).
+    fn full_scale_uv(&self, input: AdcInput) -> u32;
 }
 
 /// A thermocouple converter that returns its raw output word.
@@ -27,6 +30,9 @@ pub trait Thermocouple {
     type Error: core::fmt::Debug;
     /// Read the latest conversion word (thermocouple, cold junction, fault bits).
     fn read_word(&mut self) -> Result<ThermoWord, Self::Error>;
+    /// How the converter turns the junction's voltage into its temperature word (the host
+    /// undoes it).
+    fn kind(&self) -> ThermoKind;
 }
 
 /// A monotonic millisecond clock (wraps after 49 days; all arithmetic is wrapping).

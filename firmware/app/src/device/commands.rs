@@ -5,17 +5,16 @@ use embedded_hal::digital::OutputPin;
 use embedded_hal::pwm::SetDutyCycle;
 use remanent_protocol::{
     Ack, Command, DeviceHello, DeviceMsg, Drill, FixtureModel, HostMsg, Label, Profile, Refusal,
-    RefuseReason, SafetyLimits, SamplingConfig, SensorSetup, ThermoKind, VERSION,
+    RefuseReason, SafetyLimits, SamplingConfig, SensorSetup, VERSION,
 };
 
 use super::{Device, Mode, FIRMWARE_VERSION};
 use crate::config::Identified;
-use crate::drivers::ads1115::{HALL_FULL_SCALE_UV, PROBE_FULL_SCALE_UV};
 use crate::log::{fw_info, fw_warn};
 use crate::profile::ProfileRunner;
 use crate::safety::{judge_word, latch};
 use crate::sampler::{OVERSAMPLE_RANGE, PERIOD_RANGE_MS};
-use crate::traits::{Adc, Thermocouple};
+use crate::traits::{Adc, AdcInput, Thermocouple};
 
 /// Time one sample needs beyond its conversions (the thermocouple read, the loop), µs.
 const SAMPLE_OVERHEAD_US: u32 = 1_000;
@@ -33,11 +32,11 @@ where
             firmware: FIRMWARE_VERSION,
             board: Label::new(self.board.name),
             sensors: SensorSetup {
-                hall_full_scale_uv: HALL_FULL_SCALE_UV,
-                probe_full_scale_uv: PROBE_FULL_SCALE_UV,
+                hall_full_scale_uv: self.adc.full_scale_uv(AdcInput::Hall),
+                probe_full_scale_uv: self.adc.full_scale_uv(AdcInput::ProbeThermistor),
                 supply_mv: self.board.supply_mv,
                 ntc_series_ohm: self.board.ntc_series_ohm,
-                thermo: ThermoKind::TypeKLinear,
+                thermo: self.tc.kind(),
                 period_ms: self.sampler.period_ms(),
                 oversample: self.sampler.oversample(),
             },

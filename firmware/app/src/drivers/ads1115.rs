@@ -114,4 +114,10 @@ impl<I2C: I2c, D: DelayNs> Adc for Ads1115<I2C, D> {
     fn convert(&mut self, input: AdcInput) -> Result<i16, Self::Error> {
         self.convert_once(input)
     }
+    fn full_scale_uv(&self, input: AdcInput) -> u32 {
+        match input {
+            AdcInput::Hall => HALL_FULL_SCALE_UV,
+            AdcInput::ProbeThermistor => PROBE_FULL_SCALE_UV,
+        }
+    }
 }

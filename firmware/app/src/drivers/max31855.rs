@@ -46,4 +46,8 @@ impl<SPI: SpiDevice> Thermocouple for Max31855<SPI> {
         }
         Ok(ThermoWord(word))
     }
+    /// The MAX31855 reports a temperature linear in the junction's voltage (41.276 µV/K).
+    fn kind(&self) -> remanent_protocol::ThermoKind {
+        remanent_protocol::ThermoKind::TypeKLinear
+    }
 }

@@ -167,7 +167,13 @@ fn a_board_reset_by_its_watchdog_comes_up_latched_and_says_why() {
         locked: false,
     };
     let mut b = Bench::with(bench_config(), boot, HeaterDrive::Pwm { frequency_hz: 500 });
-    assert_eq!(b.link.hello().expect("hello").boot, boot);
+    let hello = b.link.hello().expect("hello");
+    assert_eq!(hello.boot, boot);
+    // the converter says its own full scale: the device names no chip
+    assert_eq!(
+        hello.sensors.hall_full_scale_uv,
+        crate::util::FAKE_HALL_FULL_SCALE_UV
+    );
     assert!(matches!(b.device.mode(), Mode::Faulted(Fault::Watchdog)));
     let id = b.start_manual(40.0, 100.0);
     assert_eq!(

@@ -55,6 +55,10 @@ pub fn bench_config() -> FirmwareConfig {
 
 pub type Shared = Rc<RefCell<Plant>>;
 
+/// The fake converter's full scale on the Hall input, µV: not the ADS1115's, so a hello that
+/// carries it shows the device asks its converter rather than naming a chip.
+pub const FAKE_HALL_FULL_SCALE_UV: u32 = 1_024_000;
+
 pub struct FakeAdc;
 impl Adc for FakeAdc {
     type Error = Infallible;
@@ -63,6 +67,12 @@ impl Adc for FakeAdc {
             AdcInput::Hall => 12_000,
             AdcInput::ProbeThermistor => 16_000,
         })
+    }
+    fn full_scale_uv(&self, input: AdcInput) -> u32 {
+        match input {
+            AdcInput::Hall => FAKE_HALL_FULL_SCALE_UV,
+            AdcInput::ProbeThermistor => 4_096_000,
+        }
     }
 }
 
@@ -79,6 +89,9 @@ impl embedded_hal::pwm::Error for Broken {
 pub struct FakeTc(pub Shared);
 impl Thermocouple for FakeTc {
     type Error = Broken;
+    fn kind(&self) -> remanent_protocol::ThermoKind {
+        remanent_protocol::ThermoKind::TypeKLinear
+    }
     fn read_word(&mut self) -> Result<ThermoWord, Broken> {
         let p = self.0.borrow();
         if p.bus_error {

@@ -45,6 +45,9 @@ type Shared = Rc<RefCell<Plant>>;
 pub struct Tc(Shared);
 impl Thermocouple for Tc {
     type Error = Infallible;
+    fn kind(&self) -> remanent_protocol::ThermoKind {
+        remanent_protocol::ThermoKind::TypeKLinear
+    }
     fn read_word(&mut self) -> Result<ThermoWord, Infallible> {
         self.0.borrow_mut().reads += 1;
         let p = self.0.borrow();
