@@ -5,7 +5,7 @@
 use std::path::Path;
 
 use remanent_protocol::decoder::DeviceDecoder;
-use remanent_protocol::{DeviceMsg, FrameError};
+use remanent_protocol::{DeviceMsg, FrameError, PROTOCOL_VERSION};
 
 use crate::calibration::Calibration;
 use crate::frame_log;
@@ -19,6 +19,20 @@ pub fn replay(
     calibration: Option<Calibration>,
 ) -> Result<Counts, RunDirError> {
     let mut meta = run_dir::read_meta(from)?;
+    let refuse = |reason: String| RunDirError::Replay {
+        path: from.display().to_string(),
+        reason,
+    };
+    if let Some(d) = meta
+        .device
+        .as_ref()
+        .filter(|d| d.protocol != PROTOCOL_VERSION)
+    {
+        return Err(refuse(format!(
+            "its raw stream was recorded in protocol {} (firmware {}); this build decodes protocol {PROTOCOL_VERSION}: replay it with a remanent of that protocol",
+            d.protocol, d.firmware
+        )));
+    }
     if let Some(c) = calibration {
         meta.calibration = c;
     }
@@ -49,6 +63,12 @@ pub fn replay(
     }
     frame_log::close(&mut ingest.timeline, &mut w);
     let counts = w.meta.counts.clone();
+    if counts.samples == 0 {
+        w.discard();
+        return Err(refuse(
+            "no sample could be rebuilt from its raw stream (nothing written)".into(),
+        ));
+    }
     w.finish(&format!("replayed from {}", from.display()))?;
     Ok(counts)
 }

@@ -157,6 +157,14 @@ pub enum RunDirError {
         /// Why.
         reason: String,
     },
+    /// A raw stream this build cannot decode, or that held no sample.
+    #[error("{path}: {reason}")]
+    Replay {
+        /// The run replayed.
+        path: String,
+        /// Why nothing can be rebuilt from it.
+        reason: String,
+    },
 }
 
 pub(crate) fn io_err(path: &Path) -> impl FnOnce(io::Error) -> RunDirError + '_ {

@@ -44,7 +44,9 @@ pub const RESERVE_BYTES: usize = 64 * 1024;
 const RESERVE_FILE: &str = ".space-reserve";
 
 impl RunWriter {
-    /// Create `dir` (its parent must exist or is created; `dir` itself must not exist).
+    /// Create `dir` (its parent must exist or is created; `dir` itself must not exist). A run
+    /// that cannot be set up (a disk already full) leaves no directory behind: the name stays
+    /// free for the next try.
     pub fn create(dir: &Path, meta: RunMeta) -> Result<RunWriter, RunDirError> {
         if dir.exists() {
             return Err(RunDirError::Exists(dir.display().to_string()));
@@ -62,6 +64,13 @@ impl RunWriter {
                 }
             }
         })?;
+        Self::set_up(dir, meta).inspect_err(|_| {
+            let _ = fs::remove_dir_all(dir);
+        })
+    }
+
+    /// The files of a new run in the empty directory `dir`, and its metadata written.
+    fn set_up(dir: &Path, meta: RunMeta) -> Result<RunWriter, RunDirError> {
         let open = |name: &str| {
             let p = dir.join(name);
             File::create_new(&p).map_err(|source| RunDirError::Io {

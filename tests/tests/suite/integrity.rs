@@ -263,6 +263,32 @@ fn on_a_full_disk_every_complete_row_is_kept_and_the_run_says_why() {
 }
 
 #[test]
+#[ignore = "mounts a tmpfs: needs root (.ci/run runs it)"]
+fn on_a_full_disk_from_the_start_no_run_folder_is_left_and_the_name_stays_free() {
+    // smaller than the space a record sets aside for its end: setting up fails
+    let mnt = tempfile::tempdir().unwrap();
+    let ok = std::process::Command::new("mount")
+        .args(["-t", "tmpfs", "-o", "size=32k", "tmpfs"])
+        .arg(mnt.path())
+        .status()
+        .unwrap()
+        .success();
+    assert!(ok, "mount a tmpfs (root needed)");
+    let out = mnt.path().join("run");
+    let result = simulated_record(&out, profile(600.0));
+    let left = out.exists();
+    let _ = std::process::Command::new("umount")
+        .arg(mnt.path())
+        .status();
+    let e = result.expect_err("a run that cannot be set up is an error");
+    assert!(
+        e.to_string().contains("run") || e.to_string().contains("No space"),
+        "says where: {e}"
+    );
+    assert!(!left, "no half-made run folder blocks the name");
+}
+
+#[test]
 fn link_corruption_is_detected_and_counted_and_never_written() {
     use remanent::virtual_rig::SimulatedPort;
     let dir = tempfile::tempdir().unwrap();
@@ -315,4 +341,34 @@ fn link_corruption_is_detected_and_counted_and_never_written() {
     let (first, last) = (recorded[0].seq, recorded.last().unwrap().seq);
     let missing = (first..=last).filter(|q| sent.contains_key(q)).count() - recorded.len();
     assert_eq!(missing as u64, c.gap_samples);
+}
+
+#[test]
+fn a_raw_stream_this_build_cannot_rebuild_is_refused_saying_why_and_leaves_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("run");
+    simulated_record(&out, profile(20.0)).unwrap();
+    // recorded by a device of an older protocol (as its run.toml says)
+    let meta_path = out.join("run.toml");
+    let text = std::fs::read_to_string(&meta_path).unwrap();
+    let older = text.replace(
+        &format!("protocol = {}", remanent_protocol::PROTOCOL_VERSION),
+        "protocol = 3",
+    );
+    assert_ne!(older, text, "run.toml names the protocol");
+    std::fs::write(&meta_path, &older).unwrap();
+    let to = dir.path().join("again");
+    let e = remanent::replay::replay(&out, &to, None)
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("protocol 3") && e.contains("run"), "{e}");
+    assert!(!to.exists(), "nothing written");
+    // the right protocol, but a raw stream with nothing in it
+    std::fs::write(&meta_path, &text).unwrap();
+    std::fs::write(out.join("raw.bin"), b"").unwrap();
+    let e = remanent::replay::replay(&out, &to, None)
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("no sample"), "{e}");
+    assert!(!to.exists(), "nothing left to block the name");
 }
