@@ -207,6 +207,19 @@ fn signatures(f: &mut Flow) {
     }
 }
 
+/// When the certificate's record ended (or began), seconds since 1970; a certificate of a
+/// logger's file, which names no time, is dated when it is made.
+fn issue_time_s(meta: Option<&RunMeta>) -> i64 {
+    meta.and_then(|m| m.finished_utc.as_deref().or(Some(m.started_utc.as_str())))
+        .and_then(crate::clock::parse_utc)
+        .map(|s| s as i64)
+        .unwrap_or_else(|| {
+            std::time::SystemTime::now()
+                .duration_since(std::time::UNIX_EPOCH)
+                .map_or(0, |d| d.as_secs() as i64)
+        })
+}
+
 /// The certificate of `a` as PDF bytes, on `look`'s paper in its units; `plot_png` is the
 /// B–T plot.
 pub fn certificate(
@@ -216,7 +229,11 @@ pub fn certificate(
     look: &Look,
 ) -> Result<Vec<u8>, String> {
     let u = &look.units;
-    let mut f = Flow::new("Remanent inspection certificate", look.paper)?;
+    let mut f = Flow::new(
+        "Remanent inspection certificate",
+        look.paper,
+        issue_time_s(meta),
+    )?;
     f.text_at(
         0.0,
         14.0,

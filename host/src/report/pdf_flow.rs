@@ -45,9 +45,16 @@ pub struct Flow {
 }
 
 impl Flow {
-    /// A new document titled `title` on `paper`.
-    pub fn new(title: &str, paper: Paper) -> Result<Flow, String> {
+    /// A new document titled `title` on `paper`, dated `created_unix_s` (seconds since 1970,
+    /// UTC: the record it reports, so the same record gives the same bytes).
+    pub fn new(title: &str, paper: Paper, created_unix_s: i64) -> Result<Flow, String> {
         let mut doc = PdfDocument::new(title);
+        let date = printpdf::OffsetDateTime::from_unix_timestamp(created_unix_s)
+            .map_err(|e| format!("the certificate's date: {e}"))?;
+        let info = &mut doc.metadata.info;
+        info.creation_date = date;
+        info.modification_date = date;
+        info.metadata_date = date;
         let mut warnings = Vec::new();
         let regular = ParsedFont::from_bytes(dejavu::sans::regular(), 0, &mut warnings)
             .ok_or("the bundled font could not be read")?;

@@ -52,6 +52,13 @@ fn the_certificate_is_a_pdf_of_a_page_or_two() {
     assert!(pdf.starts_with(b"%PDF-"));
     let n = pages_in(&pdf);
     assert!((1..=3).contains(&n), "{n} pages");
+    // dated when its record ended (PDF date form D:YYYYMMDDHHmmSS), not 1970
+    let meta = read_meta(&dir.path().join("run")).unwrap();
+    let ended = meta.finished_utc.expect("the record ended");
+    let stamp = format!("D:{}", &ended[..19].replace(['-', 'T', ':'], ""));
+    let text = String::from_utf8_lossy(&pdf);
+    assert!(text.contains(&stamp), "no {stamp} in the PDF's info");
+    assert!(!text.contains("D:1970"), "dated 1970");
 }
 
 fn tool(cmd: &str, args: &[&str]) -> String {
