@@ -119,7 +119,14 @@ fn rows(f: &mut Flow, rows: &[(&str, String)], size: f32) {
 
 fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
     let size = 9.5;
-    let reason_x = 58.0;
+    // the reasons start clear of the widest outcome word (INDETERMINATE is the longest)
+    let outcome_x = 36.0;
+    let widest = a
+        .checks
+        .iter()
+        .map(|c| Flow::bold_caps_width_mm(&c.outcome.to_string(), size))
+        .fold(0.0f32, f32::max);
+    let reason_x = (outcome_x + widest + 3.0).max(58.0);
     let wrapped: Vec<Vec<String>> = a
         .checks
         .iter()
@@ -141,7 +148,7 @@ fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
     f.skip(9.0);
     for (c, lines) in a.checks.iter().zip(wrapped) {
         f.text_at(0.0, size, true, &c.what);
-        f.text_at(36.0, size, true, &c.outcome.to_string());
+        f.text_at(outcome_x, size, true, &c.outcome.to_string());
         for l in lines {
             f.text_at(reason_x, size, false, &l);
             f.skip(Flow::lines_mm(1, size));

@@ -133,6 +133,13 @@ impl Flow {
         crate::units::wrap_words(text, per_line)
     }
 
+    /// At most how wide `text` in bold capitals at `size` pt is, mm (the bundled DejaVu Sans
+    /// Bold's capitals advance at most about 0.8 em, W and M the widest; from the font's
+    /// metrics as remembered, with room to spare).
+    pub fn bold_caps_width_mm(text: &str, size: f32) -> f32 {
+        text.chars().count() as f32 * size * 0.8 / PT_PER_MM
+    }
+
     /// The height `lines` lines of `size` pt take, mm.
     pub fn lines_mm(lines: usize, size: f32) -> f32 {
         lines as f32 * size * 1.35 / PT_PER_MM

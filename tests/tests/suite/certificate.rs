@@ -227,3 +227,73 @@ fn certificate_pages_in_gauss_and_fahrenheit_say_so_and_convert_alpha() {
     assert!(text.contains("%/°F (95 %) over"), "{text}");
     assert!(!text.contains("%/°C (95 %)"), "{text}");
 }
+
+/// Words of a PDF page with their boxes, as poppler's `pdftotext -bbox` finds them:
+/// (xMin, yMin, xMax, word).
+fn word_boxes(pdf: &Path) -> Vec<(f64, f64, f64, String)> {
+    let html = tool(
+        "pdftotext",
+        &["-bbox", "-f", "1", "-l", "1", pdf.to_str().unwrap(), "-"],
+    );
+    let attr = |line: &str, name: &str| -> f64 {
+        let at = line.find(&format!("{name}=\"")).expect(name) + name.len() + 2;
+        line[at..].split('"').next().unwrap().parse().unwrap()
+    };
+    html.lines()
+        .filter(|l| l.trim_start().starts_with("<word "))
+        .map(|l| {
+            let word = l.split('>').nth(1).unwrap().split('<').next().unwrap();
+            (
+                attr(l, "xMin"),
+                attr(l, "yMin"),
+                attr(l, "xMax"),
+                word.to_string(),
+            )
+        })
+        .collect()
+}
+
+#[test]
+#[ignore = "needs poppler-utils (pdftotext): .ci/run installs it"]
+fn certificate_pages_never_print_a_checks_outcome_over_its_reason() {
+    // a logger's file with no geometry: Br is INDETERMINATE, the longest outcome word
+    let dir = tempfile::tempdir().unwrap();
+    let run = dir.path().join("run");
+    crate::util::rapid_run(&run, 8);
+    let (s, _) = remanent::analysis::dataset::load_run(&run, None).unwrap();
+    let mut text = String::from("time_s,temp_C,flux_mT\n");
+    for i in 0..s.time_s.len() {
+        text.push_str(&format!(
+            "{},{},{}\n",
+            s.time_s[i], s.temp_c[i], s.flux_mt[i]
+        ));
+    }
+    let log = dir.path().join("log.csv");
+    std::fs::write(&log, text).unwrap();
+    let req = remanent::jobs::InputRequest {
+        input: log.clone(),
+        magnet: Some("RM-N42SH-D10x5".into()),
+        ..Default::default()
+    };
+    let out = dir.path().join("report");
+    remanent::jobs::report::run_input(&req, &out, false, &Default::default()).unwrap();
+    let words = word_boxes(&out.join("certificate.pdf"));
+    let outcomes: Vec<_> = words
+        .iter()
+        .filter(|w| w.3 == "INDETERMINATE" || w.3 == "PASS" || w.3 == "FAIL")
+        .collect();
+    assert!(
+        outcomes.iter().any(|w| w.3 == "INDETERMINATE"),
+        "an indeterminate check: {:?}",
+        words.iter().map(|w| &w.3).collect::<Vec<_>>()
+    );
+    for o in outcomes {
+        // any word on the same line that starts inside the outcome word overprints it
+        for w in words
+            .iter()
+            .filter(|w| (w.1 - o.1).abs() < 1.0 && w.0 > o.0)
+        {
+            assert!(w.0 >= o.2, "`{}` printed over `{}`", w.3, o.3);
+        }
+    }
+}
