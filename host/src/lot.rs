@@ -34,6 +34,9 @@ pub struct LotRow {
     pub b20_mt: f64,
     /// The magnet's verdict.
     pub verdict: Outcome,
+    /// The verdict found heat damage (a loss above the threshold by more than its U95).
+    #[serde(skip)]
+    pub heat_damaged: bool,
     /// Robust outlier in α, loss or room-temperature flux.
     pub outlier: Vec<String>,
 }
@@ -50,6 +53,7 @@ impl LotRow {
             loss_u95_pct: a.irreversible_loss_u95_pct,
             b20_mt: a.b20_mt,
             verdict: a.verdict,
+            heat_damaged: a.heat_damaged,
             outlier: Vec::new(),
         }
     }
@@ -107,11 +111,20 @@ pub fn spread(v: &[f64]) -> Spread {
 
 /// Modified z-scores (Iglewicz and Hoaglin): 0.6745·(x − median)/MAD (0 when MAD is 0).
 pub fn modified_z(v: &[f64]) -> Vec<f64> {
+    modified_z_resolved(v, 0.0)
+}
+
+/// Modified z-scores whose MAD is never taken below what the measurement resolves: a small
+/// lot whose values agree more closely than their standard uncertainty `u` (two parts alike to
+/// the last digit) would otherwise give a score of thousands for a difference of a few `u`.
+/// The floor is the MAD a normal scatter of `u` has, 0.6745·u.
+pub fn modified_z_resolved(v: &[f64], u: f64) -> Vec<f64> {
     let s = spread(v);
+    let mad = s.mad.max(0.6745 * u.max(0.0));
     v.iter()
         .map(|x| {
-            if s.mad > 0.0 {
-                0.6745 * (x - s.median) / s.mad
+            if mad > 0.0 {
+                0.6745 * (x - s.median) / mad
             } else {
                 0.0
             }
@@ -149,13 +162,19 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
     let alphas: Vec<f64> = rows.iter().map(|r| r.alpha).collect();
     let b20: Vec<f64> = rows.iter().map(|r| r.b20_mt).collect();
     let alpha_med = median(&alphas);
-    for (i, z) in modified_z(&alphas).into_iter().enumerate() {
+    // each quantity's scores against what the measurement resolves (half its typical U95)
+    let alpha_u = median(&rows.iter().map(|r| r.alpha_u95).collect::<Vec<_>>()) / 2.0;
+    for (i, z) in modified_z_resolved(&alphas, alpha_u)
+        .into_iter()
+        .enumerate()
+    {
         if z.abs() > OUTLIER_Z && (rows[i].alpha - alpha_med).abs() > rows[i].alpha_u95 {
             rows[i].outlier.push(format!("α (M = {z:+.1})"));
         }
     }
     let b20_med = median(&b20);
-    for (i, z) in modified_z(&b20).into_iter().enumerate() {
+    let b20_u = FLUX_RESOLUTION * b20_med.abs() / 2.0;
+    for (i, z) in modified_z_resolved(&b20, b20_u).into_iter().enumerate() {
         let real = (rows[i].b20_mt - b20_med).abs() > FLUX_RESOLUTION * b20_med.abs();
         if z.abs() > OUTLIER_Z && real {
             rows[i]
@@ -170,7 +189,13 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
         .collect();
     let losses: Vec<f64> = with_loss.iter().map(|x| x.1).collect();
     let loss_med = median(&losses);
-    for ((i, l), z) in with_loss.iter().zip(modified_z(&losses)) {
+    let loss_u = median(
+        &with_loss
+            .iter()
+            .map(|(i, _)| rows[*i].loss_u95_pct.unwrap_or(0.0))
+            .collect::<Vec<_>>(),
+    ) / 2.0;
+    for ((i, l), z) in with_loss.iter().zip(modified_z_resolved(&losses, loss_u)) {
         if z.abs() > OUTLIER_Z && (l - loss_med).abs() > rows[*i].loss_u95_pct.unwrap_or(0.0) {
             rows[*i].outlier.push(format!("loss (M = {z:+.1})"));
         }
@@ -309,6 +334,7 @@ mod tests {
             loss_u95_pct: None,
             b20_mt: 200.0,
             verdict: Outcome::Pass,
+            heat_damaged: false,
             outlier: vec!["flux".into(), "α".into()],
         };
         let csv = to_csv(&summarise(vec![row]));
@@ -316,6 +342,40 @@ mod tests {
         let rec = r.records().next().unwrap().unwrap();
         assert_eq!(&rec[0], "RM,7");
         assert_eq!(rec.len(), 9);
+    }
+
+    #[test]
+    fn a_lot_of_three_scores_a_real_difference_in_units_of_its_uncertainty_not_thousands() {
+        // two parts alike to the last digit and one 0.005 %/°C away, each known to ±0.0016
+        let row = |id: &str, alpha: f64| LotRow {
+            id: id.into(),
+            grade: "N42".into(),
+            alpha,
+            alpha_u95: 0.0016,
+            loss_pct: None,
+            loss_u95_pct: None,
+            b20_mt: 200.0,
+            verdict: Outcome::Pass,
+            heat_damaged: false,
+            outlier: Vec::new(),
+        };
+        let s = summarise(vec![
+            row("a", -0.1200),
+            row("b", -0.1200),
+            row("c", -0.1150),
+        ]);
+        let c = s.rows.iter().find(|r| r.id == "c").unwrap();
+        // the MAD is 0: without a floor there is no score at all (and a digit apart, a score
+        // of thousands); with it, 0.6745·0.005/(0.6745·0.0008) = 6.25
+        assert_eq!(
+            c.outlier,
+            vec!["α (M = +6.2)".to_string()],
+            "{:?}",
+            c.outlier
+        );
+        // the textbook case is untouched when the scatter exceeds the floor
+        let v = [2.0, 2.5, 3.0, 2.5, 2.0, 3.0, 9.0];
+        assert_eq!(modified_z_resolved(&v, 0.1), modified_z(&v));
     }
 
     #[test]

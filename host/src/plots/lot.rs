@@ -175,15 +175,20 @@ fn loss_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary)
     let n = s.rows.len();
     let id_of = id_labeller(s);
     // irreversible loss per magnet with its U95, against the heat-damage threshold
-    let losses: Vec<(usize, f64, f64)> = s
+    let losses: Vec<(usize, f64, f64, bool)> = s
         .rows
         .iter()
         .enumerate()
-        .filter_map(|(i, r)| Some((i, r.loss_pct?, r.loss_u95_pct.unwrap_or(0.0))))
+        .filter_map(|(i, r)| {
+            let l = r.loss_pct?;
+            Some((i, l, r.loss_u95_pct.unwrap_or(0.0), r.heat_damaged))
+        })
         .collect();
     let lmax = losses.iter().map(|l| l.1 + l.2).fold(0.5f64, f64::max) * 1.15;
     let lmin = losses.iter().map(|l| l.1 - l.2).fold(-0.1f64, f64::min) * 1.15;
-    let caption = format!("Loss with U95 bars; red: heat damage above {HEAT_DAMAGE_PCT} %");
+    let caption = format!(
+        "Loss with U95 bars; red: heat damage (above {HEAT_DAMAGE_PCT} % by more than its U95)"
+    );
     let axes = Axes {
         caption: &caption,
         caption_size: 20,
@@ -191,13 +196,10 @@ fn loss_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary)
         y_desc: "loss, %",
     };
     let mut c = magnet_chart(area, n, lmin..lmax, &axes, &id_of)?;
-    for (i, l, u) in &losses {
+    for (i, l, u, damaged) in &losses {
         let x = *i as f64;
-        let col = if *l > u.max(HEAT_DAMAGE_PCT) {
-            HEATING
-        } else {
-            COOLING
-        };
+        // red exactly when the verdict says heat damage
+        let col = if *damaged { HEATING } else { COOLING };
         u95_bar(&mut c, x, *l, *u, col)?;
     }
     let thr = HEAT_DAMAGE_PCT;
@@ -262,15 +264,19 @@ fn counts_panel<DB: DrawingBackend>(
             u.flux(s.b20.sd),
             d = u.flux_decimals(2)
         ),
-        format!(
-            "outliers: {}",
-            s.rows
+        {
+            let ids: Vec<&str> = s
+                .rows
                 .iter()
                 .filter(|r| !r.outlier.is_empty())
                 .map(|r| r.id.as_str())
-                .collect::<Vec<_>>()
-                .join(", ")
-        ),
+                .collect();
+            if ids.is_empty() {
+                "outliers: none".to_string()
+            } else {
+                format!("outliers: {}", ids.join(", "))
+            }
+        },
     ];
     for (k, line) in lines.iter().enumerate() {
         area.draw(&Text::new(
