@@ -47,7 +47,7 @@ fn demo_inspection(given: remanent::inspection::Inspection) -> remanent::inspect
 }
 
 /// The demo's fixture reference, in the run directory.
-pub const REFERENCE_FILE: &str = "fixture-reference.toml";
+pub use remanent::run_dir::REFERENCE_FILE;
 
 /// The demo reference part read on its own virtual rig: the fixture's reference.
 fn measure_reference(speed: f64, seed: u64, u: &DisplayUnits) -> anyhow::Result<FixtureReference> {

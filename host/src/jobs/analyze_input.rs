@@ -150,8 +150,13 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
             .unwrap_or_else(|| file_name(&req.input));
         (s, calibration, m, title)
     };
+    // the reference asked for, or the one the run was judged with, kept beside it
+    let kept = Some(req.input.join(crate::run_dir::REFERENCE_FILE))
+        .filter(|p| req.input.is_dir() && p.is_file());
     let reference = req
         .reference
+        .clone()
+        .or(kept)
         .as_deref()
         .map(crate::analysis::fixture_ref::FixtureReference::load)
         .transpose()?;

@@ -57,6 +57,30 @@ pub fn default_out(input: &Path) -> PathBuf {
     input.with_file_name(format!("{stem}-report"))
 }
 
+/// A run directory reported against a fixture reference keeps a copy of it, so every later
+/// analysis of the run (an import into the history) judges it the same way. A different one
+/// already kept is replaced only with `force` (otherwise refused, before anything is written).
+fn keep_reference(req: &InputRequest, force: bool) -> Result<(), RunReportError> {
+    let Some(given) = req.reference.as_deref().filter(|_| req.input.is_dir()) else {
+        return Ok(());
+    };
+    let kept = req.input.join(crate::run_dir::REFERENCE_FILE);
+    let read = |p: &Path| {
+        std::fs::read(p).map_err(|source| {
+            ReportError::Output(crate::output::OutputError::Io {
+                path: p.display().to_string(),
+                source,
+            })
+        })
+    };
+    let bytes = read(given)?;
+    if kept.is_file() && read(&kept)? == bytes {
+        return Ok(());
+    }
+    crate::output::write(&kept, &bytes, force).map_err(ReportError::Output)?;
+    Ok(())
+}
+
 /// Report any input — a run directory or a logger's CSV file — into `out`.
 pub fn run_input(
     req: &InputRequest,
@@ -65,6 +89,7 @@ pub fn run_input(
     look: &Look,
 ) -> Result<RunReport, RunReportError> {
     let loaded = load(req)?;
+    keep_reference(req, force)?;
     std::fs::create_dir_all(out).map_err(|source| {
         ReportError::Output(crate::output::OutputError::Io {
             path: out.display().to_string(),

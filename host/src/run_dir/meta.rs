@@ -22,6 +22,9 @@ pub const SAMPLES_FILE: &str = "samples.csv";
 pub const EVENTS_FILE: &str = "events.csv";
 /// Metadata.
 pub const META_FILE: &str = "run.toml";
+/// The fixture reference a run was judged with, kept beside it: every later analysis of the
+/// run (a report, an import into the history) uses it unless told another.
+pub const REFERENCE_FILE: &str = "fixture-reference.toml";
 
 /// The CSV header of the samples file.
 pub const SAMPLES_HEADER: &str = "seq,device_time_s,hall_code,probe_code,thermo_word,heater_duty_pct,heater_on,fault_latched,tc_fault,temp_C,cold_junction_C,probe_temp_C,flux_mT,setpoint_C";

@@ -13,6 +13,7 @@ mod identification;
 mod imperfect_records;
 mod impossible_values;
 mod integrity;
+mod judged_with;
 mod messy_files;
 mod operator;
 mod outputs;
