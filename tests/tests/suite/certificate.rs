@@ -154,12 +154,11 @@ fn certificate_pages_render_and_carry_the_inspection_read_back_by_poppler() {
     }
 }
 
-#[test]
-fn a_loggers_csv_file_gets_the_whole_report_beside_it() {
-    let dir = tempfile::tempdir().unwrap();
-    let run = dir.path().join("run");
+/// A short run of the demo part in `dir`, written again as another logger would write it (time,
+/// temperature, flux) into `dir/name`.
+fn logged_run(dir: &Path, name: &str) -> std::path::PathBuf {
+    let run = dir.join("run");
     crate::util::rapid_run(&run, 8);
-    // the same record as another logger would write it: time, temperature, flux
     let (s, _) = remanent::analysis::dataset::load_run(&run, None).unwrap();
     let mut text = String::from("time_s,temp_C,flux_mT\n");
     for i in 0..s.time_s.len() {
@@ -168,8 +167,15 @@ fn a_loggers_csv_file_gets_the_whole_report_beside_it() {
             s.time_s[i], s.temp_c[i], s.flux_mt[i]
         ));
     }
-    let log = dir.path().join("bench-log.csv");
+    let log = dir.join(name);
     std::fs::write(&log, text).unwrap();
+    log
+}
+
+#[test]
+fn a_loggers_csv_file_gets_the_whole_report_beside_it() {
+    let dir = tempfile::tempdir().unwrap();
+    let log = logged_run(dir.path(), "bench-log.csv");
     let req = remanent::jobs::InputRequest {
         input: log.clone(),
         magnet: Some("RM-N42SH-D10x5".into()),
@@ -258,18 +264,7 @@ fn word_boxes(pdf: &Path) -> Vec<(f64, f64, f64, String)> {
 fn certificate_pages_never_print_a_checks_outcome_over_its_reason() {
     // a logger's file with no geometry: Br is INDETERMINATE, the longest outcome word
     let dir = tempfile::tempdir().unwrap();
-    let run = dir.path().join("run");
-    crate::util::rapid_run(&run, 8);
-    let (s, _) = remanent::analysis::dataset::load_run(&run, None).unwrap();
-    let mut text = String::from("time_s,temp_C,flux_mT\n");
-    for i in 0..s.time_s.len() {
-        text.push_str(&format!(
-            "{},{},{}\n",
-            s.time_s[i], s.temp_c[i], s.flux_mt[i]
-        ));
-    }
-    let log = dir.path().join("log.csv");
-    std::fs::write(&log, text).unwrap();
+    let log = logged_run(dir.path(), "log.csv");
     let req = remanent::jobs::InputRequest {
         input: log.clone(),
         magnet: Some("RM-N42SH-D10x5".into()),

@@ -215,18 +215,24 @@ fn a_refused_record_leaves_no_directory_behind() {
     assert!(!out.exists(), "the name stays free");
 }
 
-/// A full disk: run by `.ci/run` as root (it mounts a small tmpfs).
-#[test]
-#[ignore = "needs root to mount a small tmpfs; .ci/run runs it"]
-fn on_a_full_disk_every_complete_row_is_kept_and_the_run_says_why() {
+/// A tmpfs of `size` mounted on a new temporary folder (root needed; unmount it when done).
+fn small_disk(size: &str) -> tempfile::TempDir {
     let mnt = tempfile::tempdir().unwrap();
     let ok = std::process::Command::new("mount")
-        .args(["-t", "tmpfs", "-o", "size=192k", "tmpfs"])
+        .args(["-t", "tmpfs", "-o", &format!("size={size}"), "tmpfs"])
         .arg(mnt.path())
         .status()
         .unwrap()
         .success();
     assert!(ok, "mount a tmpfs (root needed)");
+    mnt
+}
+
+/// A full disk: run by `.ci/run` as root (it mounts a small tmpfs).
+#[test]
+#[ignore = "needs root to mount a small tmpfs; .ci/run runs it"]
+fn on_a_full_disk_every_complete_row_is_kept_and_the_run_says_why() {
+    let mnt = small_disk("192k");
     let out = mnt.path().join("run");
     let result = simulated_record(&out, profile(600.0));
     let listing: Vec<(String, u64)> = std::fs::read_dir(&out)
@@ -266,14 +272,7 @@ fn on_a_full_disk_every_complete_row_is_kept_and_the_run_says_why() {
 #[ignore = "mounts a tmpfs: needs root (.ci/run runs it)"]
 fn on_a_full_disk_from_the_start_no_run_folder_is_left_and_the_name_stays_free() {
     // smaller than the space a record sets aside for its end: setting up fails
-    let mnt = tempfile::tempdir().unwrap();
-    let ok = std::process::Command::new("mount")
-        .args(["-t", "tmpfs", "-o", "size=32k", "tmpfs"])
-        .arg(mnt.path())
-        .status()
-        .unwrap()
-        .success();
-    assert!(ok, "mount a tmpfs (root needed)");
+    let mnt = small_disk("32k");
     let out = mnt.path().join("run");
     let result = simulated_record(&out, profile(600.0));
     let left = out.exists();

@@ -3,18 +3,9 @@
 //! certificate did. Before, `history import` re-analysed such runs from the geometry alone and
 //! filed INDETERMINATE for parts whose certificates said PASS.
 
-use remanent::calibration::Calibration;
 use remanent::history::{Filter, Location, Store};
 use remanent::jobs::{history::import, report, Judging};
-use remanent::survey::{Reading, SurveyProgress};
-use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 use remanent_rig_model::RigParams;
-
-struct Silent;
-impl SurveyProgress for Silent {
-    fn reading(&mut self, _: &Reading) {}
-    fn notice(&mut self, _: &remanent::event::Notice) {}
-}
 
 #[test]
 fn an_import_judges_a_run_with_the_reference_its_certificate_was_issued_with() {
@@ -22,19 +13,7 @@ fn an_import_judges_a_run_with_the_reference_its_certificate_was_issued_with() {
     let run = dir.path().join("run");
     crate::util::rapid_run(&run, 5);
     // the reference magnet read in the same (reference) fixture
-    let part = remanent::magnets::resolve("RM-REF-N42SH-D10x5").unwrap();
-    let opts = VirtualRigOptions::new(part.model.unwrap());
-    let cal = Calibration::virtual_rig(&RigParams::REFERENCE);
-    let reference = remanent::jobs::reference::measure(
-        SimulatedPort::new(opts),
-        &part,
-        cal,
-        Default::default(),
-        1,
-        None,
-        &mut Silent,
-    )
-    .unwrap();
+    let reference = crate::reference_path::reference_in(RigParams::REFERENCE);
     let ref_file = dir.path().join("fixture.toml");
     std::fs::write(&ref_file, toml::to_string(&reference).unwrap()).unwrap();
     // the certificate: judged against the reference

@@ -29,7 +29,8 @@ fn fixture(gap_mm: f64, sensitivity: f64) -> RigParams {
     p
 }
 
-fn reference_in(params: RigParams) -> FixtureReference {
+/// The reference magnet read in a fixture of `params`.
+pub fn reference_in(params: RigParams) -> FixtureReference {
     let part = magnets::resolve("RM-REF-N42SH-D10x5").unwrap();
     let mut opts = VirtualRigOptions::new(part.model.unwrap());
     opts.params = params;
