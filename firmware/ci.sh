@@ -41,11 +41,14 @@ echo "-- building the emulated board (thumbv7m-none-eabi)"
 EMU=firmware/boards/emulated/target/thumbv7m-none-eabi/release/remanent-board-emulated
 echo "-- building the Pico board (thumbv6m-none-eabi), the image users flash"
 (cd firmware/boards/pico && cargo build --release -q)
-PICO=firmware/boards/pico/target/thumbv6m-none-eabi/release/remanent-board-pico
+PICO=target/remanent-pico.elf
+cp firmware/boards/pico/target/thumbv6m-none-eabi/release/remanent-board-pico "$PICO"
 
 echo "-- the Pico board with its fault drills (a test build: panic and hung loop on command)"
-(cd firmware/boards/pico && cargo build --release -q --features drills --target-dir target/drills)
-PICO_DRILLS=firmware/boards/pico/target/drills/thumbv6m-none-eabi/release/remanent-board-pico
+# the same target folder: only the crates the feature reaches are built again (disk and time)
+(cd firmware/boards/pico && cargo build --release -q --features drills)
+PICO_DRILLS=target/remanent-pico-drills.elf
+cp firmware/boards/pico/target/thumbv6m-none-eabi/release/remanent-board-pico "$PICO_DRILLS"
 
 echo "-- image sizes"
 llvm-size-22 "$EMU" "$PICO"
