@@ -35,6 +35,9 @@ for line in "${lines[@]}"; do
 done
 test -s runs/demo/report.html && test -s runs/n42/report.md && test -s runs/n42/flux_vs_temp.png
 test -s runs/n42/certificate.pdf && head -c 5 runs/n42/certificate.pdf | grep -q "%PDF-"
+test -s runs/b2/certificate.pdf && grep -q "FAIL" runs/b2/report.md || { echo "the tour's second-lot part did not FAIL"; exit 1; }
+grep -qi "coercivity below grade" runs/b2/report.md || { echo "the FAIL does not say why"; exit 1; }
+grep -q "PASS" runs/n42/report.md || { echo "the tour's N42 did not PASS"; exit 1; }
 test -s runs/lot/lot.csv && test -s runs/oc.png && test -s runs/trend.png
 test "$(wc -l < runs/history.csv)" -ge 3 || { cat runs/history.csv; echo "the history lacks the tour's runs"; exit 1; }
 grep -q "magnet   3 .*LOW" out.txt || { cat out.txt; echo "the survey did not flag magnet 3"; exit 1; }

@@ -57,7 +57,7 @@ fn keys(kind: Kind) -> Keys {
             required: PROFILE_KEYS,
         },
         Kind::Specs => Keys {
-            allowed: SPEC_KEYS,
+            allowed: SPEC_OPTIONAL_KEYS,
             required: SPEC_KEYS,
         },
         Kind::Calibration => Keys {
@@ -87,6 +87,22 @@ const SPEC_KEYS: &[&str] = &[
     "grade[].alpha_max_pct_per_C",
     "grade[].max_working_C",
     "grade[].source",
+];
+
+/// Optional spec keys: the coercivity the safe test temperature is worked out from.
+const SPEC_OPTIONAL_KEYS: &[&str] = &[
+    "grade",
+    "grade[].grade",
+    "grade[].family",
+    "grade[].br_min_T",
+    "grade[].br_max_T",
+    "grade[].alpha_min_pct_per_C",
+    "grade[].alpha_max_pct_per_C",
+    "grade[].max_working_C",
+    "grade[].source",
+    "grade[].hcj_min_kA_per_m",
+    "grade[].beta_hcj_pct_per_C",
+    "grade[].recoil_permeability",
 ];
 
 const CALIBRATION_KEYS: &[&str] = &[

@@ -29,6 +29,23 @@ pub struct GradeSpec {
     pub max_working_c: f64,
     /// Where the numbers come from.
     pub source: String,
+    /// Lowest HcJ at 20 °C, kA/m (none: no knee model for this material, e.g. AlNiCo).
+    #[serde(
+        rename = "hcj_min_kA_per_m",
+        default,
+        skip_serializing_if = "Option::is_none"
+    )]
+    pub hcj_min_ka_per_m: Option<f64>,
+    /// Typical temperature coefficient of HcJ, %/°C (positive for ferrite).
+    #[serde(
+        rename = "beta_hcj_pct_per_C",
+        default,
+        skip_serializing_if = "Option::is_none"
+    )]
+    pub beta_hcj_pct_per_c: Option<f64>,
+    /// Recoil permeability (1.05 for sintered NdFeB and SmCo when not given).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub recoil_permeability: Option<f64>,
 }
 
 /// A spec table.

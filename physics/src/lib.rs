@@ -4,7 +4,7 @@
 //!
 //! Owns ITS-90 Type K and the converter's linear approximation, the on-axis field of simple
 //! magnet shapes, the Hall sensor, the thermistor divider, the probe's standoff gap, ADC code
-//! scaling and the firmware's tenth-of-a-degree wire values, the referral of a reading to 20 °C; and for calibration the fields of
+//! scaling and the firmware's tenth-of-a-degree wire values, the referral of a reading to 20 °C, the load line's knee limit; and for calibration the fields of
 //! reference coils and the boiling point of water at a pressure. `no_std`, no allocation.
 #![no_std]
 #![forbid(unsafe_code)]
@@ -14,6 +14,7 @@ pub mod boiling;
 pub mod coil;
 pub mod field;
 pub mod hall;
+pub mod load_line;
 pub mod ntc;
 pub mod reversible;
 pub mod shape;

@@ -1,7 +1,7 @@
 //! Invented demo magnets for the virtual rig. Typical material values follow the published
 //! ranges in the project's domain notes; part numbers and names are our own.
 
-use crate::magnet::{Magnet, Shape};
+use crate::magnet::{Knee, Magnet, Shape};
 
 /// A catalogue entry.
 #[derive(Debug, Clone, Copy)]
@@ -21,8 +21,22 @@ const DISC_10X5: Shape = Shape::Cylinder {
     length_mm: 5.0,
 };
 
+/// A conforming N42's own curve: its HcJ above the grade's 955 kA/m minimum.
+const N42_KNEE: Knee = Knee {
+    hcj_20_ka_per_m: 1030.0,
+    beta_pct_per_c: -0.58,
+    squareness: 0.95,
+};
+
+/// A conforming N42SH's own curve (the grade's minimum is 1592 kA/m).
+const N42SH_KNEE: Knee = Knee {
+    hcj_20_ka_per_m: 1680.0,
+    beta_pct_per_c: -0.53,
+    squareness: 0.95,
+};
+
 /// The built-in demo parts.
-pub const PARTS: [DemoPart; 7] = [
+pub const PARTS: [DemoPart; 9] = [
     DemoPart {
         id: "RM-N42-D10x5",
         description: "sintered NdFeB disc, grade N42, Ø10 × 5 mm",
@@ -35,6 +49,7 @@ pub const PARTS: [DemoPart; 7] = [
             irreversible_onset_c: 85.0,
             irreversible_pct_per_c: 0.08,
             curie_c: 320.0,
+            knee: Some(N42_KNEE),
             max_working_c: 80.0,
         },
     },
@@ -50,6 +65,7 @@ pub const PARTS: [DemoPart; 7] = [
             irreversible_onset_c: 160.0,
             irreversible_pct_per_c: 0.06,
             curie_c: 340.0,
+            knee: Some(N42SH_KNEE),
             max_working_c: 150.0,
         },
     },
@@ -68,6 +84,11 @@ pub const PARTS: [DemoPart; 7] = [
             irreversible_onset_c: 85.0,
             irreversible_pct_per_c: 0.10,
             curie_c: 315.0,
+            knee: Some(Knee {
+                hcj_20_ka_per_m: 1010.0,
+                beta_pct_per_c: -0.58,
+                squareness: 0.95,
+            }),
             max_working_c: 80.0,
         },
     },
@@ -83,6 +104,11 @@ pub const PARTS: [DemoPart; 7] = [
             irreversible_onset_c: 300.0,
             irreversible_pct_per_c: 0.03,
             curie_c: 820.0,
+            knee: Some(Knee {
+                hcj_20_ka_per_m: 1600.0,
+                beta_pct_per_c: -0.19,
+                squareness: 0.93,
+            }),
             max_working_c: 320.0,
         },
     },
@@ -102,6 +128,7 @@ pub const PARTS: [DemoPart; 7] = [
             irreversible_onset_c: 250.0,
             irreversible_pct_per_c: 0.02,
             curie_c: 450.0,
+            knee: None,
             max_working_c: 250.0,
         },
     },
@@ -120,6 +147,7 @@ pub const PARTS: [DemoPart; 7] = [
             irreversible_onset_c: 500.0,
             irreversible_pct_per_c: 0.01,
             curie_c: 850.0,
+            knee: None,
             max_working_c: 520.0,
         },
     },
@@ -136,7 +164,44 @@ pub const PARTS: [DemoPart; 7] = [
             irreversible_onset_c: 160.0,
             irreversible_pct_per_c: 0.05,
             curie_c: 330.0,
+            knee: Some(N42SH_KNEE),
             max_working_c: 150.0,
+        },
+    },
+    DemoPart {
+        id: "RM-N42SH-D10x5-B2",
+        description: "disc sold as N42SH, Ø10 × 5 mm, from a second supplier's lot: its coercivity is an N42's, so it loses flux at the SH grade's safe test temperature",
+        grade: "N42SH",
+        magnet: Magnet {
+            shape: DISC_10X5,
+            br_20_t: 1.30,
+            alpha_pct_per_c: -0.106,
+            gamma_pct_per_c2: -0.00010,
+            irreversible_onset_c: 85.0,
+            irreversible_pct_per_c: 0.08,
+            curie_c: 320.0,
+            knee: Some(Knee {
+                hcj_20_ka_per_m: 1000.0,
+                beta_pct_per_c: -0.60,
+                squareness: 0.95,
+            }),
+            max_working_c: 150.0,
+        },
+    },
+    DemoPart {
+        id: "RM-N42-D10x5-RTR",
+        description: "rotor magnet, grade N42, Ø10 × 5 mm, from an overheated motor: it lost about 5 % of its flux in service",
+        grade: "N42",
+        magnet: Magnet {
+            shape: DISC_10X5,
+            br_20_t: 1.235,
+            alpha_pct_per_c: -0.105,
+            gamma_pct_per_c2: -0.00010,
+            irreversible_onset_c: 85.0,
+            irreversible_pct_per_c: 0.08,
+            curie_c: 320.0,
+            knee: Some(N42_KNEE),
+            max_working_c: 80.0,
         },
     },
 ];

@@ -1,10 +1,14 @@
 //! The magnet under test: shape, remanence and how it changes with temperature.
 //!
 //! Reversible: Br(T) = Br20·(1 + α(T − 20) + γ(T − 20)²), with α and γ in %/°C and %/°C².
-//! Irreversible: a loss that grows with the highest temperature reached above an onset set by
-//! the grade and shifted by the permeance (thin magnets lose first), approached with a time
-//! constant since most of it happens soon after the exposure begins. Near the Curie point the
-//! magnetization collapses, and heating past it demagnetizes the magnet completely.
+//! Irreversible, for a magnet with a square intrinsic curve (NdFeB, SmCo): the magnet's own
+//! coercivity and squareness set a knee; slices of the magnet along its axis, each at its own
+//! demagnetizing factor, lose part of their polarization once the working field there passes
+//! the knee, so a thin part or a weak one loses first and more. For the others (ferrite,
+//! AlNiCo): a loss that grows with the highest temperature reached above an onset shifted by
+//! the permeance. Either is approached with a time constant, since most of it happens soon
+//! after the exposure begins. Near the Curie point the magnetization collapses, and heating
+//! past it demagnetizes the magnet completely.
 
 use serde::{Deserialize, Serialize};
 
@@ -29,7 +33,27 @@ pub struct Magnet {
     pub curie_c: f64,
     /// Rated maximum working temperature, °C.
     pub max_working_c: f64,
+    /// The part's own intrinsic curve, for a square-loop material (the onset rule otherwise).
+    #[serde(default)]
+    pub knee: Option<Knee>,
 }
+
+/// A square intrinsic curve: the part's own coercivity, not its grade's minimum.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct Knee {
+    /// HcJ at 20 °C, kA/m.
+    pub hcj_20_ka_per_m: f64,
+    /// Temperature coefficient of HcJ, %/°C.
+    pub beta_pct_per_c: f64,
+    /// Where the curve bends, as a fraction of HcJ.
+    pub squareness: f64,
+}
+
+/// Slices along the axis, centre to pole face, for the knee model.
+const SLICES: usize = 12;
+/// Of the polarization a slice would have to give up to sit back on its knee, the part it
+/// does give up (reversal by nucleation is partial: model assumption).
+const SLICE_LOSS_SHARE: f64 = 0.12;
 
 /// Onset shift per unit of L/D away from 0.7, °C (model assumption: a thin disc at L/D 0.2
 /// starts losing about 25 °C earlier than the rating suggests).
@@ -61,8 +85,32 @@ impl Magnet {
         if max_c >= self.curie_c - 2.0 {
             return 1.0;
         }
+        if let Some(knee) = self.knee {
+            return self.knee_loss(&knee, max_c).min(0.9);
+        }
         let over = (max_c - self.effective_onset_c()).max(0.0);
         (self.irreversible_pct_per_c / 100.0 * over).min(0.9)
+    }
+
+    /// The fraction lost through the knee after exposure to `max_c`: each slice's polarization
+    /// falls part of the way to where its working field sits on the knee.
+    fn knee_loss(&self, knee: &Knee, max_c: f64) -> f64 {
+        let d = max_c - 20.0;
+        let knee_ka_per_m =
+            knee.squareness * knee.hcj_20_ka_per_m * (1.0 + knee.beta_pct_per_c / 100.0 * d);
+        let br = self.br_20_t * self.reversible_factor(max_c);
+        let polarization_ka_per_m = br / (4.0e-7 * core::f64::consts::PI) / 1000.0;
+        let mut lost = 0.0;
+        for i in 0..SLICES {
+            // slice i at height z from the centre, as a fraction of the half length
+            let z = (i as f64 + 0.5) / SLICES as f64;
+            let n = axial_demag_factor(&self.shape, z);
+            let field = n * polarization_ka_per_m;
+            if field > knee_ka_per_m {
+                lost += SLICE_LOSS_SHARE * (1.0 - knee_ka_per_m.max(0.0) / field);
+            }
+        }
+        lost / SLICES as f64
     }
 }
 
@@ -97,5 +145,36 @@ impl MagnetState {
     /// Br now, T.
     pub fn br_t(&self, magnet: &Magnet, t_c: f64) -> f64 {
         magnet.br_20_t * (1.0 - self.irreversible) * magnet.reversible_factor(t_c)
+    }
+}
+
+/// The axial demagnetizing factor on the axis at `z_frac` of the half length from the centre:
+/// the two pole faces' charge sheets, each by the solid angle it subtends there.
+fn axial_demag_factor(shape: &Shape, z_frac: f64) -> f64 {
+    let four_pi = 4.0 * core::f64::consts::PI;
+    match *shape {
+        Shape::Cylinder {
+            diameter_mm,
+            length_mm,
+        } => {
+            let r = diameter_mm / 2.0;
+            let h = length_mm / 2.0;
+            let omega =
+                |dist: f64| 2.0 * core::f64::consts::PI * (1.0 - dist / libm::hypot(dist, r));
+            (omega(h * (1.0 - z_frac)) + omega(h * (1.0 + z_frac))) / four_pi
+        }
+        Shape::Block {
+            a_mm,
+            b_mm,
+            length_mm,
+        } => {
+            let h = length_mm / 2.0;
+            let (a, b) = (a_mm / 2.0, b_mm / 2.0);
+            // a rectangle 2a × 2b seen on its axis from `dist`
+            let omega = |dist: f64| {
+                4.0 * libm::atan(a * b / (dist * libm::sqrt(dist * dist + a * a + b * b)))
+            };
+            (omega(h * (1.0 - z_frac).max(1e-9)) + omega(h * (1.0 + z_frac))) / four_pi
+        }
     }
 }

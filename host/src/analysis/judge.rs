@@ -6,12 +6,11 @@ use super::geometry::{self, BrEstimate};
 use super::result::BudgetLine;
 use super::verdict::{self, Check, Outcome};
 use crate::families;
+use crate::safe_peak::{self, SafePeak};
 use crate::units::{self, Kind, Phrase, Qty};
 
 /// A loss above this (and above its own U95) flags heat damage, %.
 pub const HEAT_DAMAGE_PCT: f64 = 0.3;
-/// A test whose magnet went more than this above its rating was run above the rating, K.
-pub const RATING_MARGIN_K: f64 = 2.0;
 /// The families' table gives α between 20 °C and this, °C.
 pub const TABLE_TOP_C: f64 = 100.0;
 /// α is usually quoted for 20…100 °C or 20…150 °C: a fit that stops short of 20 + this is
@@ -28,8 +27,12 @@ pub struct Judged {
     pub grade: Option<String>,
     /// The checks.
     pub checks: Vec<Check>,
-    /// The magnet lost flux in this test.
+    /// The magnet lost flux in this test, at or below its safe peak.
     pub heat_damaged: bool,
+    /// The part's safe test peak.
+    pub safe_peak: Option<SafePeak>,
+    /// The test went beyond the safe peak: the quarantine statement.
+    pub quarantine: Option<Phrase>,
     /// How Br was found, and its budget (relative standard uncertainties, %).
     pub br_budget: Vec<BudgetLine>,
 }
@@ -137,18 +140,28 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<Phrase>) -> Judged {
         }],
     };
     let lost = matches!(m.loss, Some((l, u)) if l > u.max(HEAT_DAMAGE_PCT));
-    let rating = ctx.magnet.as_ref().map(|mag| mag.max_working_c);
-    let above_rating = rating.is_some_and(|r| m.peak_c > r + RATING_MARGIN_K);
-    if let (true, true, Some((l, u)), Some(r)) = (lost, above_rating, m.loss, rating) {
-        notes.push(crate::phrase![
-            format!("exposure loss: {l:.2} ± {u:.2} % after "),
+    let safe = ctx
+        .magnet
+        .as_ref()
+        .map(|mag| safe_peak::for_part(mag, mag_spec(ctx, mag)));
+    let beyond = safe.as_ref().is_some_and(|s| s.exceeded_by(m.peak_c));
+    let quarantine = safe.as_ref().filter(|_| beyond).map(|s| {
+        let mut p = crate::phrase![
+            "QUARANTINE: the test took this part to ",
             units::temp_q(m.peak_c, 0),
-            ", above the part's ",
-            units::temp_q(r, 0),
-            " rating — the test was run above the rating on purpose, so this is the grade's loss at that temperature, not damage found in the part",
-        ]);
+            ", beyond its safe test peak of ",
+            units::temp_q(s.peak_c, 0),
+            ": it may have lost flux for good; do not return it to stock",
+        ];
+        if let (true, Some((l, u))) = (lost, m.loss) {
+            p.push(format!(" (it lost {l:.2} ± {u:.2} %: the grade's loss at that temperature, not a defect found in the part)"));
+        }
+        p
+    });
+    let heat_damaged = lost && !beyond;
+    if let (true, Some((l, u)), Some(s)) = (heat_damaged, m.loss, safe.as_ref()) {
+        checks.push(coercivity_check(l, u, m.peak_c, s));
     }
-    let heat_damaged = lost && !above_rating;
     if ctx.reference.is_none() {
         for c in checks
             .iter_mut()
@@ -157,7 +170,7 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<Phrase>) -> Judged {
             c.reason.push(" — from geometry the gap's uncertainty dominates: refer the run to a reference magnet (`remanent reference`, then --reference)");
         }
     }
-    if let (true, Some((l, u))) = (heat_damaged, m.loss) {
+    if let (true, Some((l, u)), None) = (heat_damaged, m.loss, safe.as_ref()) {
         checks.push(Check {
             what: "irreversible loss".into(),
             outcome: Outcome::Fail,
@@ -170,6 +183,42 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<Phrase>) -> Judged {
         grade,
         checks,
         heat_damaged,
+        safe_peak: safe,
+        quarantine,
         br_budget,
+    }
+}
+
+/// The stated magnet's grade row.
+fn mag_spec<'a>(
+    ctx: &'a Context,
+    mag: &crate::magnets::MagnetInfo,
+) -> Option<&'a crate::specs::GradeSpec> {
+    ctx.specs.find(&mag.grade)
+}
+
+/// A loss at or below the safe peak: a conforming part of the grade loses none there, so the
+/// part's coercivity is below its grade's (or, with no HcJ in the table, it is heat-damaged).
+fn coercivity_check(l: f64, u: f64, peak_c: f64, s: &SafePeak) -> Check {
+    let judged_by_knee = s.bound != safe_peak::Bound::NoCoercivity;
+    let mut reason = crate::phrase![
+        format!("lost {l:.2} ± {u:.2} % at "),
+        units::temp_q(peak_c, 0),
+        format!(", where a conforming {} of this shape loses none", s.grade),
+    ];
+    reason.push(if judged_by_knee {
+        " (its safe test peak): coercivity below grade"
+    } else {
+        " (within its rating): heat damage or a coercivity below grade"
+    });
+    Check {
+        what: if judged_by_knee {
+            "coercivity"
+        } else {
+            "irreversible loss"
+        }
+        .into(),
+        outcome: Outcome::Fail,
+        reason,
     }
 }

@@ -185,6 +185,8 @@ fn analyze_cycle(
         grade: judged.grade,
         checks: judged.checks,
         heat_damaged: judged.heat_damaged,
+        safe_peak: judged.safe_peak,
+        quarantine: judged.quarantine,
         br_budget: judged.br_budget,
         br_referred: ctx.reference.is_some() && judged.br.is_some(),
         alpha_budget: a.budget,
@@ -231,7 +233,7 @@ fn table_alpha(
 fn fit_notes(lossy: bool, top_c: f64, notes: &mut Vec<Phrase>) {
     if lossy {
         notes.push(
-            "the magnet lost flux during the excursion: α is fitted on the cooling branch alone (the heating branch mixes reversible and irreversible change); for a datasheet value measure a fresh magnet below its onset".into(),
+            "the magnet lost flux during the excursion: α is fitted on the cooling branch alone (the heating branch mixes reversible and irreversible change); for a datasheet value measure a fresh magnet at or below its safe test peak".into(),
         );
     }
     if top_c - model::REFERENCE_C < judge::QUOTED_SPAN_K {

@@ -164,7 +164,8 @@ pub struct Analysis {
     pub fit_method_code: String,
     /// Thermal lag time constant of the magnet behind the thermocouple, s (None: not estimated).
     pub lag_time_constant_s: Option<f64>,
-    /// Irreversible loss at room temperature, % (None: the record does not return).
+    /// Irreversible loss between the references before and after the excursion (at
+    /// `reference_C`, referred to one temperature with the fitted curve), % (None: no return).
     pub irreversible_loss_pct: Option<f64>,
     /// Its expanded uncertainty, k = 2, %.
     pub irreversible_loss_u95_pct: Option<f64>,
@@ -194,8 +195,12 @@ pub struct Analysis {
     pub grade: Option<String>,
     /// Individual checks.
     pub checks: Vec<Check>,
-    /// The magnet lost flux in this test.
+    /// The magnet lost flux in this test, at or below its safe test peak.
     pub heat_damaged: bool,
+    /// The part's safe test peak and how it was found (none: no magnet stated).
+    pub safe_peak: Option<crate::safe_peak::SafePeak>,
+    /// The test took the part beyond its safe peak: quarantine it (words for the verdict block).
+    pub quarantine: Option<crate::units::Phrase>,
     /// Uncertainty budget of α, %/°C.
     pub alpha_budget: Vec<BudgetLine>,
     /// Uncertainty budget of the loss, %.

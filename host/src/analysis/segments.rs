@@ -36,7 +36,7 @@ impl Segments {
 }
 
 /// The temperature span below which α is not worth reporting, K.
-pub const MIN_SPAN_K: f64 = 15.0;
+pub const MIN_SPAN_K: f64 = 10.0;
 
 /// The record's final temperature is the median of this many last readings.
 pub const END_SAMPLES: usize = 21;

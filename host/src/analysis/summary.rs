@@ -40,17 +40,9 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
             let _ = writeln!(s, "  thermal lag:          not estimated");
         }
     }
-    match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
-        (Some(l), Some(lu)) => {
-            let _ = writeln!(
-                s,
-                "  irreversible loss:    {l:.3} % ± {lu:.3} % (95 %), peak {}",
-                units::temp(u, a.max_magnet_temp_c)
-            );
-        }
-        _ => {
-            let _ = writeln!(s, "  irreversible loss:    not computed");
-        }
+    let _ = writeln!(s, "  irreversible loss:    {}", loss_words(a, u));
+    if let Some(p) = &a.safe_peak {
+        let _ = writeln!(s, "  {}", p.explain().render(u));
     }
     if let Some(b) = a.br {
         if a.br_referred {
@@ -102,8 +94,34 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
             c.reason.render(u)
         );
     }
+    if let Some(q) = &a.quarantine {
+        let _ = writeln!(s, "  {}", q.render(u));
+    }
     for n in &a.notes {
         let _ = writeln!(s, "  note: {}", n.render(u));
     }
     s
+}
+
+/// The loss in words, with the temperatures its references were taken at (the same words in
+/// every format).
+pub fn loss_words(a: &Analysis, u: &DisplayUnits) -> String {
+    match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
+        (Some(l), Some(lu)) => {
+            let at = match a.reference_c {
+                Some([t0, t1]) if a.loss_method_code.as_deref() == Some("references") => format!(
+                    " between the references at {} and {}, referred to one temperature with the fitted curve,",
+                    units::temp(u, t0),
+                    units::temp(u, t1)
+                ),
+                _ => " from the heating and cooling branches,".into(),
+            };
+            format!(
+                "{}{at} after a peak of {}",
+                units::loss_with_u95(l, lu),
+                units::temp(u, a.max_magnet_temp_c)
+            )
+        }
+        _ => "not computed (the notes say why)".into(),
+    }
 }

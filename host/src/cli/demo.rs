@@ -10,15 +10,16 @@ use remanent::calibration::Calibration;
 use remanent::record::RecordOptions;
 use remanent::survey::{Reading, SurveyProgress};
 use remanent::virtual_rig::{VirtualRig, VirtualRigOptions};
-use remanent::{magnets, profiles::ProfileSpec, run_dir};
+use remanent::{magnets, run_dir};
 
 #[derive(clap::Args)]
 pub struct Args {
     /// Demo magnet (`remanent magnets` lists them).
     #[arg(long, default_value = "RM-N42SH-D10x5")]
     magnet: String,
-    /// Profile (`rapid`: 11–14 minutes of fixture time, ended by the analysis).
-    #[arg(long, default_value = "rapid")]
+    /// Profile (`inspect`: at most 15 minutes of fixture time, held to the part's safe test
+    /// peak, ended by the analysis).
+    #[arg(long, default_value = "inspect")]
     profile: String,
     /// Simulated seconds per wall-clock second.
     #[arg(long, default_value_t = 100.0, value_parser = super::options::parse_speed)]
@@ -97,8 +98,13 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let model = m
         .model
         .ok_or_else(|| anyhow::anyhow!("{} has no model for the virtual rig", m.info.id))?;
-    let profile = ProfileSpec::resolve(&a.profile)?;
-    profile.check_rating(&m.info.id, m.info.max_working_c, true)?;
+    let plan = remanent::test_plan::plan(
+        &a.profile,
+        &m.info,
+        &remanent::specs::SpecTable::builtin(),
+        false,
+    )?;
+    let profile = plan.profile.clone();
     let out = a.out.unwrap_or_else(|| {
         let stamp = run_dir::utc_now().replace([':', '-'], "");
         PathBuf::from("remanent-runs").join(format!("demo-{}-{stamp}", m.info.id))
@@ -107,6 +113,7 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         "Remanent demo: {} ({}) on the virtual rig, profile `{}`, {}× real time",
         m.info.id, m.info.description, profile.name, a.speed
     );
+    super::record::announce(&plan, &m.info.id, u);
     let reference = measure_reference(a.speed, a.seed, u)?;
     let mut opts = VirtualRigOptions::new(model);
     opts.speed = a.speed;

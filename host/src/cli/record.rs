@@ -7,8 +7,10 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 
 use anyhow::Context;
+use remanent::magnets;
 use remanent::record::{record, RecordEnd, RecordOptions, RecordSummary};
-use remanent::{magnets, profiles::ProfileSpec};
+use remanent::specs::SpecTable;
+use remanent::test_plan::{plan, TestPlan};
 
 use super::progress::Bar;
 
@@ -17,9 +19,10 @@ pub struct Args {
     /// Serial port of the bench (or the path `remanent virtual-rig` printed).
     #[arg(long)]
     port: String,
-    /// Profile: a built-in name (rapid, quick-alpha, exposure, curie-sweep; `remanent
-    /// profiles` shows them) or a TOML file.
-    #[arg(long, default_value = "rapid")]
+    /// Profile: a built-in name (inspect, rapid, quick-alpha, exposure, curie-sweep;
+    /// `remanent profiles` shows them; a built-in one is held to the part's safe test peak)
+    /// or a TOML file.
+    #[arg(long, default_value = "inspect")]
     profile: String,
     /// Magnet: a demo part id (`remanent magnets`) or a magnet TOML file.
     #[arg(long)]
@@ -29,7 +32,10 @@ pub struct Args {
     out: PathBuf,
     #[command(flatten)]
     calibration: super::options::CalibrationOpts,
-    /// Run a profile that exceeds the magnet's rated maximum temperature.
+    /// Grade spec table for the part's safe test peak (default: the built-in one).
+    #[arg(long)]
+    specs: Option<PathBuf>,
+    /// Let the profile go beyond the part's safe test peak (the part must then be quarantined).
     #[arg(long)]
     allow_over_rating: bool,
     /// Run the profile to its end even once the analysis can already state α and the loss
@@ -53,12 +59,17 @@ pub fn stop_flag() -> anyhow::Result<Arc<AtomicBool>> {
 
 pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let magnet = magnets::resolve(&a.magnet)?;
-    let profile = ProfileSpec::resolve(&a.profile)?;
-    profile.check_rating(
-        &magnet.info.id,
-        magnet.info.max_working_c,
+    let plan = plan(
+        &a.profile,
+        &magnet.info,
+        &match &a.specs {
+            Some(p) => SpecTable::load(p)?,
+            None => SpecTable::builtin(),
+        },
         a.allow_over_rating,
     )?;
+    announce(&plan, &magnet.info.id, u);
+    let profile = plan.profile;
     let policy = a.calibration.policy();
     let calibration = policy.provisional()?;
     let port = remanent::link::port::open(&a.port)?;
@@ -76,6 +87,13 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         remanent::jobs::history::store_record(at, &summary.dir)
     });
     Ok(code)
+}
+
+/// The safe peak, the clamp and any warning, before the record starts.
+pub fn announce(plan: &TestPlan, magnet_id: &str, u: &DisplayUnits) {
+    for line in plan.announce(magnet_id) {
+        println!("{}", line.render(u));
+    }
 }
 
 pub fn record_with_bar(

@@ -75,16 +75,12 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(&'static str, String)> {
         ),
         (
             "Irreversible loss",
-            match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
-                (Some(l), Some(lu)) => format!(
-                    "{} at room temperature, after a peak of {}",
-                    units::loss_with_u95(l, lu),
-                    units::temp(u, a.max_magnet_temp_c)
-                ),
-                _ => "not computed (the notes say why)".into(),
-            },
+            crate::analysis::summary::loss_words(a, u),
         ),
     ];
+    if let Some(p) = &a.safe_peak {
+        r.push(("Safe test peak", p.explain().render(u)));
+    }
     if let Some(b) = &a.br {
         let how = if a.br_referred {
             "referred to the fixture's reference magnet"
@@ -134,6 +130,7 @@ fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
         .collect();
     // the outcome lines, then the decision rule's paragraph (four lines at most)
     let height = 30.0
+        + if a.quarantine.is_some() { 14.0 } else { 0.0 }
         + wrapped
             .iter()
             .map(|w| Flow::lines_mm(w.len(), size) + 1.0)
@@ -154,6 +151,10 @@ fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
             f.skip(Flow::lines_mm(1, size));
         }
         f.skip(1.0);
+    }
+    if let Some(q) = &a.quarantine {
+        f.paragraph(0.0, size, true, &q.render(u));
+        f.skip(2.0);
     }
     f.paragraph(0.0, 8.0, false, crate::analysis::verdict::DECISION_RULE);
     f.rule(0.0, f.width_mm());

@@ -45,16 +45,12 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(String, String)> {
         ),
         (
             "irreversible loss".into(),
-            match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
-                (Some(l), Some(lu)) => format!(
-                    "{} after {}",
-                    units::loss_with_u95(l, lu),
-                    units::temp(u, a.max_magnet_temp_c)
-                ),
-                _ => "not computed".into(),
-            },
+            crate::analysis::summary::loss_words(a, u),
         ),
     ];
+    if let Some(p) = &a.safe_peak {
+        rows.push(("safe test peak".into(), p.explain().render(u)));
+    }
     if let Some(b) = a.br {
         rows.push(if a.br_referred {
             (
@@ -121,6 +117,9 @@ pub fn html(
     page.raw("<div class=\"keep\">")
         .raw(&checks)
         .raw("</table></div>");
+    if let Some(q) = &a.quarantine {
+        page.raw(&format!("<p class=\"v fail\">{}</p>", esc(&q.render(u))));
+    }
     for n in &a.notes {
         page.p(&format!("Note: {}", n.render(u)));
     }

@@ -23,5 +23,6 @@ mod reference_lsq;
 mod reference_path;
 mod reference_type_k;
 mod rig_safety;
+mod safe_peak;
 mod throughput;
 mod util;

@@ -196,26 +196,28 @@ fn loss_from_a_test_run_above_the_rating_is_exposure_loss_not_damage() {
     })
     .unwrap();
     let loss = a.irreversible_loss_pct.unwrap();
-    assert!(loss > 0.3, "it lost {loss} %");
+    assert!(loss > 0.1, "it lost {loss} %");
     assert!(!a.heat_damaged);
     assert!(
-        a.checks.iter().all(|c| c.what != "irreversible loss"),
+        a.checks
+            .iter()
+            .all(|c| c.what != "irreversible loss" && c.what != "coercivity"),
         "{:#?}",
         a.checks
     );
-    assert!(
-        a.notes
-            .iter()
-            .any(|n| n.to_string().starts_with("exposure loss")),
-        "{:#?}",
-        a.notes
-    );
+    // beyond its safe peak (59 °C for this shape): the part is to be quarantined
+    let q = a.quarantine.as_ref().expect("quarantine").to_string();
+    assert!(q.contains("do not return it to stock"), "{q}");
 }
 
 #[test]
 fn a_part_that_loses_flux_within_its_rating_fails_as_heat_damaged() {
-    // sold as N42SH (rated 150 °C) but behaving like N42 (loses flux above about 85 °C)
-    let n42 = magnets::resolve("RM-N42-D10x5").unwrap().model.unwrap();
+    // sold as N42SH (safe to 120 °C in this shape) but with an N42's coercivity: it loses
+    // flux at 95 °C, where a conforming N42SH loses none
+    let n42 = magnets::resolve("RM-N42SH-D10x5-B2")
+        .unwrap()
+        .model
+        .unwrap();
     let dir = tempfile::tempdir().unwrap();
     let run = record_as(
         dir.path(),
@@ -234,5 +236,9 @@ fn a_part_that_loses_flux_within_its_rating_fails_as_heat_damaged() {
     assert!(a
         .checks
         .iter()
-        .any(|c| c.what == "irreversible loss" && c.outcome == Outcome::Fail));
+        .any(|c| c.what == "coercivity" && c.outcome == Outcome::Fail));
+    assert!(
+        a.quarantine.is_none(),
+        "95 °C is within an N42SH's safe peak"
+    );
 }
