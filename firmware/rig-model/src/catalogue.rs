@@ -141,7 +141,7 @@ pub const PARTS: [DemoPart; 9] = [
                 diameter_mm: 10.0,
                 length_mm: 10.0,
             },
-            br_20_t: 1.25,
+            br_20_t: 1.27,
             alpha_pct_per_c: -0.020,
             gamma_pct_per_c2: 0.0,
             irreversible_onset_c: 500.0,

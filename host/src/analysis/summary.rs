@@ -110,9 +110,10 @@ pub fn loss_words(a: &Analysis, u: &DisplayUnits) -> String {
         (Some(l), Some(lu)) => {
             let at = match a.reference_c {
                 Some([t0, t1]) if a.loss_method_code.as_deref() == Some("references") => format!(
-                    " between the references at {} and {}, referred to one temperature with the fitted curve,",
+                    " between the references at {} and {}, each referred to {} with the fitted curve,",
                     units::temp(u, t0),
-                    units::temp(u, t1)
+                    units::temp(u, t1),
+                    units::temp(u, 20.0)
                 ),
                 _ => " from the heating and cooling branches,".into(),
             };
