@@ -1,13 +1,15 @@
 //! Other loggers' CSV files as an analysis input: comma, semicolon or tab separated, decimal
 //! commas, units in the column names (°C/°F/K; mT/T/G/kG; seconds or clock timestamps), blank
-//! cells skipped and counted, a torn last line (no line end) left out and said, and headers that
-//! differ from ours only in case answered with the `--column` that fixes them.
+//! cells skipped and counted, a torn last line (no line end) left out and said; columns found by
+//! our names, by `--column`, or by the names people write ([`column_names`]), every missing one
+//! reported at once.
 
 use std::collections::HashMap;
 use std::fs::File;
 use std::io::{BufRead, BufReader};
 use std::path::Path;
 
+use super::column_names::{self, Quantity, Unit, FLUX, PROBE, TEMP, TIME};
 use super::csv_cells::{parse_cell, spans, Cell};
 use super::series::{InputError, Series, MIN_ROWS};
 use crate::clock;
@@ -20,39 +22,6 @@ pub struct CsvOptions {
     /// Probe sensitivity coefficient, %/°C, to correct flux with `probe_temp_C`.
     pub probe_tc_pct_per_c: Option<f64>,
 }
-
-/// How a column's numbers become ours.
-#[derive(Debug, Clone, Copy, PartialEq)]
-enum Unit {
-    /// value · factor + offset.
-    Linear(f64, f64),
-    /// A clock timestamp, made seconds from the first row.
-    Clock,
-}
-
-/// Our names for each quantity, with the conversion to s, °C or mT.
-const TIME: &[(&str, Unit)] = &[
-    ("time_s", Unit::Linear(1.0, 0.0)),
-    ("time_ms", Unit::Linear(0.001, 0.0)),
-    ("time_min", Unit::Linear(60.0, 0.0)),
-    ("clock", Unit::Clock),
-];
-const TEMP: &[(&str, Unit)] = &[
-    ("temp_C", Unit::Linear(1.0, 0.0)),
-    ("temp_F", Unit::Linear(5.0 / 9.0, -32.0 * 5.0 / 9.0)),
-    ("temp_K", Unit::Linear(1.0, -273.15)),
-];
-const FLUX: &[(&str, Unit)] = &[
-    ("flux_mT", Unit::Linear(1.0, 0.0)),
-    ("flux_T", Unit::Linear(1000.0, 0.0)),
-    ("flux_G", Unit::Linear(0.1, 0.0)),
-    ("flux_kG", Unit::Linear(100.0, 0.0)),
-];
-const PROBE: &[(&str, Unit)] = &[
-    ("probe_temp_C", Unit::Linear(1.0, 0.0)),
-    ("probe_temp_F", Unit::Linear(5.0 / 9.0, -32.0 * 5.0 / 9.0)),
-    ("probe_temp_K", Unit::Linear(1.0, -273.15)),
-];
 
 /// A column found in the header.
 #[derive(Debug, Clone, Copy)]
@@ -94,9 +63,44 @@ impl Header {
         self.names.join(", ")
     }
 
-    /// The column for one quantity: the first of `ours` present (under its `--column` name),
-    /// or an error that says which names were looked for and, for a near miss in case only,
-    /// the `--column` that would fix it.
+    /// The first column whose name's words say it holds `q`, with a note when its unit was
+    /// assumed or another column would also have fitted.
+    fn understood(&self, q: Quantity) -> Option<(Col, Option<crate::units::Phrase>)> {
+        let hits: Vec<(usize, column_names::Understood)> = self
+            .names
+            .iter()
+            .enumerate()
+            .filter_map(|(i, n)| column_names::understand(n).map(|u| (i, u)))
+            .filter(|(_, u)| u.quantity == q)
+            .collect();
+        let (index, u) = *hits.first()?;
+        let name = &self.names[index];
+        let mut said = Vec::new();
+        if let Some(unit) = u.assumed {
+            said.push(format!("`{name}` names no unit: taken as {unit}"));
+        }
+        if hits.len() > 1 {
+            let others: Vec<String> = hits[1..]
+                .iter()
+                .map(|(i, _)| format!("`{}`", self.names[*i]))
+                .collect();
+            said.push(format!(
+                "`{name}` is used rather than {} (choose with `--column`)",
+                others.join(", ")
+            ));
+        }
+        let note = (!said.is_empty()).then(|| said.join("; ").into());
+        Some((
+            Col {
+                index,
+                unit: u.unit,
+            },
+            note,
+        ))
+    }
+
+    /// The column for one quantity: the first of `ours` present (under its `--column` name,
+    /// else in any case), or an error when a `--column` name is not there.
     fn resolve(
         &self,
         path: &str,
@@ -117,19 +121,58 @@ impl Header {
                 None => {}
             }
         }
-        for (name, _) in ours {
-            if let Some(h) = self.names.iter().find(|h| h.eq_ignore_ascii_case(name)) {
-                return Err(InputError::MissingColumn {
-                    path: path.into(),
-                    column: format!(
-                        "`{name}` column (`{h}` differs only in case: add `--column {name}={h}`)"
-                    ),
-                    found: self.found(),
-                });
+        // our names in any case (`Temp_c`, `TIME_S`)
+        for (name, unit) in ours {
+            if let Some(index) = self.names.iter().position(|h| h.eq_ignore_ascii_case(name)) {
+                return Ok(Some(Col { index, unit: *unit }));
             }
         }
         Ok(None)
     }
+}
+
+/// The time, temperature and flux columns: by our names or `--column` first, else by the names
+/// people write; every one that cannot be found is reported at once. Notes say which columns
+/// were taken by their names' words, with an assumed unit or over another candidate.
+fn pick_columns(
+    header: &Header,
+    p: &str,
+    rename: &HashMap<String, String>,
+) -> Result<([Col; 3], Vec<crate::units::Phrase>), InputError> {
+    let wanted = [
+        (TIME, Quantity::Time, "time"),
+        (TEMP, Quantity::Temp, "temperature"),
+        (FLUX, Quantity::Flux, "flux"),
+    ];
+    let (mut cols, mut missing, mut notes) = (Vec::new(), Vec::new(), Vec::new());
+    for (ours, q, what) in wanted {
+        if let Some(c) = header.resolve(p, ours, rename)? {
+            cols.push(c);
+            continue;
+        }
+        match header.understood(q) {
+            Some((c, note)) => {
+                cols.push(c);
+                notes.extend(note);
+            }
+            None => missing.push(format!(
+                "{what} column ({}; name yours with `--column {}=<its name>`)",
+                ours.iter()
+                    .map(|c| format!("`{}`", c.0))
+                    .collect::<Vec<_>>()
+                    .join(", "),
+                ours[0].0
+            )),
+        }
+    }
+    if !missing.is_empty() {
+        return Err(InputError::MissingColumn {
+            path: p.into(),
+            column: missing.join("; no "),
+            found: header.found(),
+        });
+    }
+    Ok(([cols[0], cols[1], cols[2]], notes))
 }
 
 /// Load a CSV log with a time, a temperature and a flux column (and optionally the probe's
@@ -173,27 +216,7 @@ pub fn load_csv(path: &Path, opts: &CsvOptions) -> Result<Series, InputError> {
             ),
         });
     }
-    let need = |q: &[(&str, Unit)], what: &str| -> Result<Col, InputError> {
-        header
-            .resolve(&p, q, &opts.rename)?
-            .ok_or_else(|| InputError::MissingColumn {
-                path: p.clone(),
-                column: format!(
-                    "{what} column ({}; name yours with `--column {}=<its name>`)",
-                    q.iter()
-                        .map(|c| format!("`{}`", c.0))
-                        .collect::<Vec<_>>()
-                        .join(", "),
-                    q[0].0
-                ),
-                found: header.found(),
-            })
-    };
-    let cols = [
-        need(TIME, "time")?,
-        need(TEMP, "temperature")?,
-        need(FLUX, "flux")?,
-    ];
+    let (cols, notes) = pick_columns(&header, &p, &opts.rename)?;
     let probe = header.resolve(&p, PROBE, &opts.rename)?;
     if opts.probe_tc_pct_per_c.is_some() && probe.is_none() {
         return Err(InputError::MissingColumn {
@@ -202,7 +225,12 @@ pub fn load_csv(path: &Path, opts: &CsvOptions) -> Result<Series, InputError> {
             found: header.found(),
         });
     }
+    let probe = match probe {
+        Some(c) => Some(c),
+        None => header.understood(Quantity::Probe).map(|(c, _)| c),
+    };
     let mut rows = Rows::new(p.clone(), header, cols, probe, opts.probe_tc_pct_per_c);
+    rows.s.notes.extend(notes);
     loop {
         buf.clear();
         if rdr.read_until(b'\n', &mut buf).map_err(io)? == 0 {

@@ -14,6 +14,7 @@ pub mod blocks;
 pub mod branch_loss;
 pub mod branch_ratio;
 pub mod clean;
+pub mod column_names;
 pub mod csv_cells;
 pub mod csv_log;
 pub mod curie;

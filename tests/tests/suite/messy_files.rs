@@ -151,11 +151,67 @@ fn thermocouple_spikes_are_rejected_and_counted() {
 }
 
 #[test]
-fn a_header_that_differs_only_in_case_gets_the_column_option_that_fixes_it() {
-    let (_d, p) = write(&bm::csv(&rows()).replacen("temp_C", "Temp_c", 1));
+fn column_names_as_people_write_them_are_understood_in_any_case() {
+    // the same bench-model record under headers other loggers and spreadsheets write
+    let clean = clean_alpha();
+    let text = bm::csv(&rows());
+    for header in [
+        "Temp_c",
+        "TIME_S,TEMP_C,FLUX_MT",
+        "Time,Temperature (°C),B (mT)",
+        "elapsed [s],temperature_C,Field_mT",
+        "t_s,T [°C],flux density (mT)",
+    ] {
+        let t = if header.contains(',') {
+            text.replacen("time_s,temp_C,flux_mT", header, 1)
+        } else {
+            text.replacen("temp_C", header, 1)
+        };
+        let (a, an) = alpha_of(&t, &CsvOptions::default());
+        assert!((a - clean).abs() < 1e-12, "{header}: α {a} against {clean}");
+        if header.starts_with("Time,") {
+            crate::util::assert_noted(&an, "`Time` names no unit: taken as s");
+        }
+    }
+    // two candidates: the first is used, and the note says which and how to choose
+    let t = text.replacen(
+        "time_s,temp_C,flux_mT",
+        "time_s,Temperature (C),flux_mT,Sample temp (C)",
+        1,
+    );
+    let t: String = t
+        .lines()
+        .enumerate()
+        .map(|(i, l)| {
+            if i == 0 {
+                format!("{l}\n")
+            } else {
+                format!("{l},99\n")
+            }
+        })
+        .collect();
+    let (_, an) = alpha_of(&t, &CsvOptions::default());
+    assert!((an.alpha_pct_per_c - clean).abs() < 1e-12);
+    crate::util::assert_noted(
+        &an,
+        "`Temperature (C)` is used rather than `Sample temp (C)` (choose with `--column`)",
+    );
+}
+
+#[test]
+fn every_missing_column_is_reported_at_once() {
+    let (_d, p) = write(&bm::csv(&rows()).replacen("time_s,temp_C,flux_mT", "when,heat,pull", 1));
     let e = dataset::load_csv(&p, &CsvOptions::default()).unwrap_err();
     assert!(matches!(e, InputError::MissingColumn { .. }));
-    assert!(e.to_string().contains("--column temp_C=Temp_c"), "{e}");
+    let e = e.to_string();
+    for what in [
+        "no time column",
+        "no temperature column",
+        "no flux column",
+        "when, heat, pull",
+    ] {
+        assert!(e.contains(what), "{what}: {e}");
+    }
 }
 
 #[test]
