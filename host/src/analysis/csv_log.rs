@@ -11,6 +11,7 @@ use std::path::Path;
 
 use super::column_names::{self, Quantity, Unit, FLUX, PROBE, TEMP, TIME};
 use super::csv_cells::{parse_cell, spans, Cell};
+use super::repair::Verdict;
 use super::series::{InputError, Series, MIN_ROWS};
 use crate::clock;
 
@@ -21,6 +22,8 @@ pub struct CsvOptions {
     pub rename: HashMap<String, String>,
     /// Probe sensitivity coefficient, %/°C, to correct flux with `probe_temp_C`.
     pub probe_tc_pct_per_c: Option<f64>,
+    /// Refuse duplicate rows and a restarting time column rather than repair them.
+    pub strict: bool,
 }
 
 /// A column found in the header.
@@ -230,6 +233,7 @@ pub fn load_csv(path: &Path, opts: &CsvOptions) -> Result<Series, InputError> {
         None => header.understood(Quantity::Probe).map(|(c, _)| c),
     };
     let mut rows = Rows::new(p.clone(), header, cols, probe, opts.probe_tc_pct_per_c);
+    rows.strict = opts.strict;
     rows.s.notes.extend(notes);
     loop {
         buf.clear();
@@ -254,6 +258,7 @@ struct Rows {
     clock: clock::Clock,
     scratch: String,
     cells: Vec<std::ops::Range<usize>>,
+    strict: bool,
 }
 
 impl Rows {
@@ -275,6 +280,7 @@ impl Rows {
             clock: clock::Clock::default(),
             scratch: String::new(),
             cells: Vec::new(),
+            strict: false,
         }
     }
 
@@ -310,18 +316,32 @@ impl Rows {
             }
         }
         let [t, temp, mut flux, probe] = values;
-        if let Some(&prev) = self.s.time_s.last() {
-            if t <= prev {
-                return Err(InputError::TimeOrder {
-                    path: self.path.clone(),
-                    line,
-                    value: t,
-                    previous: prev,
-                });
-            }
-        }
         if let (Some(tc), Some(_)) = (self.probe_tc, self.probe) {
             flux /= 1.0 + tc / 100.0 * (probe - 25.0);
+        }
+        let mut t = t + self.s.repairs.offset_s;
+        if let Some(&prev) = self.s.time_s.last() {
+            if t <= prev {
+                let order = |why: String| InputError::Row {
+                    path: self.path.clone(),
+                    line,
+                    reason: format!(
+                        "column `{}`: time {t} s does not increase (previous {prev} s){why}",
+                        self.header.names[self.cols[0].index]
+                    ),
+                };
+                if self.strict {
+                    return Err(order(" (--strict: no repairs)".into()));
+                }
+                let mut repairs = std::mem::take(&mut self.s.repairs);
+                let verdict = repairs.judge(&self.s, t, temp, flux, line);
+                self.s.repairs = repairs;
+                match verdict {
+                    Verdict::Duplicate => return Ok(()),
+                    Verdict::Continue(at) => t = at,
+                    Verdict::Refuse(why) => return Err(order(format!(": {why}"))),
+                }
+            }
         }
         self.s.time_s.push(t);
         self.s.temp_c.push(temp);
@@ -392,6 +412,8 @@ impl Rows {
         if self.probe.is_some() {
             self.s.probe_c = Some(self.probe_c);
         }
+        let repaired = self.s.repairs.notes();
+        self.s.notes.extend(repaired);
         super::clean::despike(&mut self.s);
         if self.s.time_s.len() < MIN_ROWS {
             return Err(InputError::TooFew {

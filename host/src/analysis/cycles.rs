@@ -72,6 +72,7 @@ pub fn slice(s: &Series, r: Range<usize>) -> Series {
         temp_c: cut(&s.temp_c),
         flux_mt: cut(&s.flux_mt),
         probe_c: s.probe_c.as_ref().map(cut),
+        repairs: Default::default(),
         duty_pct: s.duty_pct.as_ref().map(cut),
         setpoint_c: s.setpoint_c.as_ref().map(cut),
         faults: s

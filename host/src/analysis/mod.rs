@@ -30,6 +30,7 @@ pub mod loss;
 pub mod lsq;
 pub mod model;
 pub mod prepare;
+pub mod repair;
 pub mod result;
 pub mod segments;
 pub mod series;

@@ -21,6 +21,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     if ranges.len() < 2 {
         let mut a = analyze_cycle(s, ctx, clean::notes(s))?;
         a.cycles = vec![cycle_of(&a, s)];
+        a.repairs = s.repairs.clone();
         return Ok(a);
     }
     let parts: Vec<Series> = ranges.iter().map(|r| cycles::slice(s, r.clone())).collect();
@@ -93,6 +94,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     a.samples = s.time_s.len();
     a.rows_left_out = s.skipped.len();
     a.spikes_rejected = s.spikes.len();
+    a.repairs = s.repairs.clone();
     a.traces.magnet_temp_c = traces_tm;
     a.traces.flux_corrected_mt = traces_flux;
     a.traces.segments = a.traces.segments.map(|g| g.shifted(offset));
@@ -186,6 +188,7 @@ fn analyze_cycle(
         checks: judged.checks,
         heat_damaged: judged.heat_damaged,
         safe_peak: judged.safe_peak,
+        repairs: Default::default(),
         quarantine: judged.quarantine,
         br_budget: judged.br_budget,
         br_referred: ctx.reference.is_some() && judged.br.is_some(),

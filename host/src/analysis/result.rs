@@ -217,6 +217,8 @@ pub struct Analysis {
     pub rows_left_out: usize,
     /// Thermocouple spikes rejected.
     pub spikes_rejected: usize,
+    /// What was repaired in a logger's file (duplicate rows, a restarting time column).
+    pub repairs: super::repair::Repairs,
     /// How Br was found: its budget, relative standard uncertainties, %.
     pub br_budget: Vec<BudgetLine>,
     /// Br was referred to the fixture's reference magnet (else: geometry at the calibrated gap).

@@ -28,6 +28,8 @@ pub struct Series {
     pub spikes: Vec<(f64, f64)>,
     /// What the loader did that the report should say.
     pub notes: Vec<crate::units::Phrase>,
+    /// What the loader repaired.
+    pub repairs: super::repair::Repairs,
 }
 
 /// Input problems, naming the file, line and column.

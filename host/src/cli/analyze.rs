@@ -39,6 +39,7 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
         magnet: a.csv.magnet,
         columns: a.csv.columns,
         probe_tc_pct_per_c: a.csv.probe_tc_pct_per_c,
+        strict: a.csv.strict,
         reference: a.specs.reference,
         inspection: a.inspection.inspection(),
     };

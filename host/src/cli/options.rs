@@ -209,6 +209,10 @@ pub struct CsvOpts {
     /// probe_temp_C column).
     #[arg(long, allow_negative_numbers = true, value_parser = parse_finite)]
     pub probe_tc_pct_per_c: Option<f64>,
+    /// For CSV input: refuse rows pasted twice and a restarting time column rather than
+    /// repair them.
+    #[arg(long)]
+    pub strict: bool,
 }
 
 /// `OURS=THEIRS`.

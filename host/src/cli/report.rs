@@ -55,6 +55,7 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
         magnet: a.csv.magnet.clone(),
         columns: a.csv.columns.clone(),
         probe_tc_pct_per_c: a.csv.probe_tc_pct_per_c,
+        strict: a.csv.strict,
         inspection: a.inspection.inspection(),
         ..Default::default()
     };

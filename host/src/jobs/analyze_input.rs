@@ -54,6 +54,8 @@ pub struct InputRequest {
     pub columns: Vec<(String, String)>,
     /// For CSV input: the probe's sensitivity coefficient, %/°C.
     pub probe_tc_pct_per_c: Option<f64>,
+    /// For CSV input: no repairs (`--strict`).
+    pub strict: bool,
     /// Refer Br to this fixture reference (`remanent reference`).
     pub reference: Option<PathBuf>,
     /// Lot, order, supplier, operator: for a CSV log, or where a run's `run.toml` has none.
@@ -136,6 +138,7 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         let opts = CsvOptions {
             rename: req.columns.iter().cloned().collect(),
             probe_tc_pct_per_c: req.probe_tc_pct_per_c,
+            strict: req.strict,
         };
         let s = dataset::load_csv(&req.input, &opts)?;
         let m = req

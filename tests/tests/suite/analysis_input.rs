@@ -33,7 +33,7 @@ fn soak_points_alone_give_alpha_and_say_so() {
         rename: [("time_s".to_string(), "seconds".to_string())]
             .into_iter()
             .collect(),
-        probe_tc_pct_per_c: None,
+        ..Default::default()
     };
     let s = dataset::load_csv(&p, &opts).unwrap();
     assert!(

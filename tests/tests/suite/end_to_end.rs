@@ -208,11 +208,11 @@ fn bad_csv_input_names_the_file_line_and_column() {
             && e.contains("abc"),
         "{e}"
     );
-    std::fs::write(&p, "time_s,temperature,flux_mT\n1,2,3\n").unwrap();
+    std::fs::write(&p, "time_s,heat,flux_mT\n1,2,3\n").unwrap();
     let e = dataset::load_csv(&p, &CsvOptions::default())
         .unwrap_err()
         .to_string();
-    assert!(e.contains("temp_C") && e.contains("temperature"), "{e}");
+    assert!(e.contains("temp_C") && e.contains("heat"), "{e}");
     let mut t = String::from("time_s,temp_C,flux_T\n");
     for i in 0..30 {
         t.push_str(&format!("{},{},0.2\n", if i == 10 { 9 } else { i }, 20 + i));

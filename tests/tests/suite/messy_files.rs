@@ -250,3 +250,73 @@ fn nan_and_infinity_in_a_file_are_refused_with_line_and_column() {
         "{e}"
     );
 }
+
+/// The bench model's CSV as lines (the header is line 1 of the file, data row i is line i + 2).
+fn csv_lines() -> Vec<String> {
+    bm::csv(&rows()).lines().map(str::to_string).collect()
+}
+
+#[test]
+fn a_block_pasted_twice_is_dropped_and_named_by_its_lines() {
+    let lines = csv_lines();
+    // data rows 1000–1049 (file lines 1002–1051) pasted again right after themselves
+    let mut out = lines[..1052].to_vec();
+    out.extend_from_slice(&lines[1002..1052]);
+    out.extend_from_slice(&lines[1052..]);
+    let text = out.join("\n") + "\n";
+    let (a, an) = alpha_of(&text, &CsvOptions::default());
+    assert!((a - clean_alpha()).abs() < 1e-12, "α {a}");
+    assert_eq!(an.repairs.duplicate_rows, 50);
+    assert_eq!(an.repairs.duplicate_lines, vec![[1053, 1102]]);
+    crate::util::assert_noted(
+        &an,
+        "50 exact copies of rows already read dropped (lines 1053–1102",
+    );
+    // --strict refuses instead, at the first copied line
+    let (_d, p) = write(&text);
+    let strict = CsvOptions {
+        strict: true,
+        ..Default::default()
+    };
+    let e = dataset::load_csv(&p, &strict).unwrap_err().to_string();
+    assert!(e.contains("line 1053") && e.contains("--strict"), "{e}");
+}
+
+/// The lines with the time column restarting at 0 from data row `k` on.
+fn restarted_at(k: usize, temp_jump_k: f64) -> String {
+    let lines = csv_lines();
+    let t_k: f64 = lines[k + 1].split(',').next().unwrap().parse().unwrap();
+    let mut out = vec![lines[0].clone()];
+    for (i, l) in lines[1..].iter().enumerate() {
+        if i < k {
+            out.push(l.clone());
+            continue;
+        }
+        let f: Vec<&str> = l.split(',').collect();
+        let t: f64 = f[0].parse().unwrap();
+        let temp: f64 = f[1].parse().unwrap();
+        out.push(format!("{:.2},{:.2},{}", t - t_k, temp + temp_jump_k, f[2]));
+    }
+    out.join("\n") + "\n"
+}
+
+#[test]
+fn a_time_column_that_restarts_continues_where_it_stopped_when_the_rows_join_up() {
+    let (a, an) = alpha_of(&restarted_at(2000, 0.0), &CsvOptions::default());
+    assert!(
+        (a - clean_alpha()).abs() < 1e-9,
+        "α {a} against {}",
+        clean_alpha()
+    );
+    assert_eq!(an.repairs.restart_lines, vec![2002]);
+    crate::util::assert_noted(&an, "the time column restarts at line 2002");
+    // rows that do not join up (the temperature jumps 5 K across the restart): refused there
+    let (_d, p) = write(&restarted_at(2000, 5.0));
+    let e = dataset::load_csv(&p, &CsvOptions::default())
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.contains("line 2002") && e.contains("do not join up"),
+        "{e}"
+    );
+}
