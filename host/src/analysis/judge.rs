@@ -3,14 +3,14 @@
 
 use super::context::Context;
 use super::geometry::{self, BrEstimate};
+use super::loss_verdict;
 use super::result::BudgetLine;
 use super::verdict::{self, Check, Outcome};
 use crate::families;
 use crate::safe_peak::{self, SafePeak};
-use crate::units::{self, Kind, Phrase, Qty};
+use crate::units::{Kind, Phrase, Qty};
 
-/// A loss above this (and above its own U95) flags heat damage, %.
-pub const HEAT_DAMAGE_PCT: f64 = 0.3;
+pub use super::loss_verdict::HEAT_DAMAGE_PCT;
 /// The families' table gives α between 20 °C and this, °C.
 pub const TABLE_TOP_C: f64 = 100.0;
 /// α is usually quoted for 20…100 °C or 20…150 °C: a fit that stops short of 20 + this is
@@ -139,29 +139,13 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<Phrase>) -> Judged {
             },
         }],
     };
-    let lost = matches!(m.loss, Some((l, u)) if l > u.max(HEAT_DAMAGE_PCT));
     let safe = ctx
         .magnet
         .as_ref()
         .map(|mag| safe_peak::for_part(mag, mag_spec(ctx, mag)));
-    let beyond = safe.as_ref().is_some_and(|s| s.exceeded_by(m.peak_c));
-    let quarantine = safe.as_ref().filter(|_| beyond).map(|s| {
-        let mut p = crate::phrase![
-            "QUARANTINE: the test took this part to ",
-            units::temp_q(m.peak_c, 0),
-            ", beyond its safe test peak of ",
-            units::temp_q(s.peak_c, 0),
-            ": it may have lost flux for good; do not return it to stock",
-        ];
-        if let (true, Some((l, u))) = (lost, m.loss) {
-            p.push(format!(" (it lost {l:.2} ± {u:.2} %: the grade's loss at that temperature, not a defect found in the part)"));
-        }
-        p
-    });
-    let heat_damaged = lost && !beyond;
-    if let (true, Some((l, u)), Some(s)) = (heat_damaged, m.loss, safe.as_ref()) {
-        checks.push(coercivity_check(l, u, m.peak_c, s));
-    }
+    let lv = loss_verdict::judge_loss(m.loss, m.peak_c, m.peak_c, safe.as_ref());
+    checks.extend(lv.check);
+    let (heat_damaged, quarantine) = (lv.heat_damaged, lv.quarantine);
     if ctx.reference.is_none() {
         for c in checks
             .iter_mut()
@@ -169,13 +153,6 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<Phrase>) -> Judged {
         {
             c.reason.push(" — from geometry the gap's uncertainty dominates: refer the run to a reference magnet (`remanent reference`, then --reference)");
         }
-    }
-    if let (true, Some((l, u)), None) = (heat_damaged, m.loss, safe.as_ref()) {
-        checks.push(Check {
-            what: "irreversible loss".into(),
-            outcome: Outcome::Fail,
-            reason: format!("lost {l:.2} ± {u:.2} % of its flux in this test").into(),
-        });
     }
     Judged {
         br,
@@ -195,30 +172,4 @@ fn mag_spec<'a>(
     mag: &crate::magnets::MagnetInfo,
 ) -> Option<&'a crate::specs::GradeSpec> {
     ctx.specs.find(&mag.grade)
-}
-
-/// A loss at or below the safe peak: a conforming part of the grade loses none there, so the
-/// part's coercivity is below its grade's (or, with no HcJ in the table, it is heat-damaged).
-fn coercivity_check(l: f64, u: f64, peak_c: f64, s: &SafePeak) -> Check {
-    let judged_by_knee = s.bound != safe_peak::Bound::NoCoercivity;
-    let mut reason = crate::phrase![
-        format!("lost {l:.2} ± {u:.2} % at "),
-        units::temp_q(peak_c, 0),
-        format!(", where a conforming {} of this shape loses none", s.grade),
-    ];
-    reason.push(if judged_by_knee {
-        " (its safe test peak): coercivity below grade"
-    } else {
-        " (within its rating): heat damage or a coercivity below grade"
-    });
-    Check {
-        what: if judged_by_knee {
-            "coercivity"
-        } else {
-            "irreversible loss"
-        }
-        .into(),
-        outcome: Outcome::Fail,
-        reason,
-    }
 }

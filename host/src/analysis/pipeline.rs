@@ -53,7 +53,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
             )),
         }
     }
-    note.push("); α and the verdict come from the last, stabilised cycle");
+    note.push("); α comes from the last, stabilised cycle, the loss is the total over them all");
     notes.push(note);
     let cycle_list: Vec<CycleResult> = results
         .iter()
@@ -98,6 +98,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     a.traces.magnet_temp_c = traces_tm;
     a.traces.flux_corrected_mt = traces_flux;
     a.traces.segments = a.traces.segments.map(|g| g.shifted(offset));
+    super::cycle_total::judge_total(&mut a);
     Ok(a)
 }
 

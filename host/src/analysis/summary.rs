@@ -115,6 +115,23 @@ pub fn loss_words(a: &Analysis, u: &DisplayUnits) -> String {
                     units::temp(u, t1),
                     units::temp(u, 20.0)
                 ),
+                _ if a.loss_method_code.as_deref() == Some("cycles") => format!(
+                    " in total over {} heat cycles, from the first reference to the last ({}),",
+                    a.cycles.len(),
+                    a.cycles
+                        .iter()
+                        .enumerate()
+                        .map(|(k, c)| format!(
+                            "cycle {} to {}: {}",
+                            k + 1,
+                            units::temp(u, c.peak_c),
+                            c.irreversible_loss_pct
+                                .zip(c.irreversible_loss_u95_pct)
+                                .map_or("—".into(), |(l, lu)| units::loss_with_u95(l, lu))
+                        ))
+                        .collect::<Vec<_>>()
+                        .join("; ")
+                ),
                 _ => " from the heating and cooling branches,".into(),
             };
             format!(

@@ -164,6 +164,51 @@ fn two_cycles_are_found_and_reported_each() {
 }
 
 #[test]
+fn the_headline_loss_of_several_cycles_is_the_total_and_a_first_cycle_loss_is_judged() {
+    // a magnet that loses flux in its first cycle to 150 °C and nothing more in a second to
+    // 140 °C (the model's loss follows the hottest exposure): the headline is the total
+    let b = Bench::default();
+    let mut program = bm::cycle(b.ambient_c, 150.0, b.ambient_c, 4.0);
+    program.extend_from_slice(&bm::cycle(b.ambient_c, 140.0, b.ambient_c, 4.0)[1..]);
+    let (rows, truth) = bm::run(&b, &LOSSY, &program);
+    let a = analyse_rows(&rows);
+    assert_eq!(a.cycles.len(), 2, "{:#?}", a.cycles);
+    let total = *truth.loss_after_step_pct.last().unwrap();
+    assert!(total > 0.5, "the model lost {total} %");
+    check_loss(loss_of(&a), total, "total over two cycles", &a);
+    assert_eq!(a.loss_method_code.as_deref(), Some("cycles"));
+    // the second cycle alone lost nothing: the old headline would have hidden the damage
+    let last = &a.cycles[1];
+    assert!(
+        last.irreversible_loss_pct.unwrap().abs() < 0.1,
+        "{:#?}",
+        a.cycles
+    );
+    assert!(a.heat_damaged);
+    assert!(a.checks.iter().any(|c| c.what == "irreversible loss"
+        && c.outcome == remanent::analysis::verdict::Outcome::Fail));
+}
+
+#[test]
+fn three_cycles_with_rising_peaks_total_their_losses() {
+    let b = Bench::default();
+    let mut program = bm::cycle(b.ambient_c, 110.0, b.ambient_c, 4.0);
+    for top in [125.0, 140.0] {
+        program.extend_from_slice(&bm::cycle(b.ambient_c, top, b.ambient_c, 4.0)[1..]);
+    }
+    let (rows, truth) = bm::run(&b, &LOSSY, &program);
+    let a = analyse_rows(&rows);
+    assert_eq!(a.cycles.len(), 3, "{:#?}", a.cycles);
+    check_loss(
+        loss_of(&a),
+        *truth.loss_after_step_pct.last().unwrap(),
+        "total over three cycles",
+        &a,
+    );
+    check_alpha(&a, &LOSSY, "three cycles");
+}
+
+#[test]
 fn a_sm2co17_part_fitted_to_200c_is_called_sm2co17() {
     let sm2co17 = TrueMagnet {
         b20_mt: 180.0,
