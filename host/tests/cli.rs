@@ -280,3 +280,50 @@ fn display_units_come_from_the_config_file_unless_given_and_a_bad_file_is_named(
     assert_eq!(code, 2, "{text}");
     assert!(text.contains("mT, G or T"), "{text}");
 }
+
+#[test]
+fn the_same_demo_twice_gives_the_same_samples_and_the_same_analysis() {
+    // the thin N35 gave two different α from two runs of the same demo before the rig ran in
+    // lockstep with the recorder
+    let dir = tempfile::tempdir().unwrap();
+    let runs: Vec<std::path::PathBuf> = ["one", "two"].iter().map(|n| dir.path().join(n)).collect();
+    for r in &runs {
+        let (code, text) = run(&[
+            "demo",
+            "--magnet",
+            "RM-N35-D10x2",
+            "--out",
+            r.to_str().unwrap(),
+        ]);
+        assert_eq!(code, 0, "{text}");
+    }
+    let read = |r: &std::path::Path, f: &str| std::fs::read(r.join(f)).unwrap();
+    assert_eq!(read(&runs[0], "samples.csv"), read(&runs[1], "samples.csv"));
+    // byte for byte, but for the run's own name and the wall-clock times it was made at
+    let json = |r: &std::path::Path| {
+        String::from_utf8(read(r, "analysis.json"))
+            .unwrap()
+            .lines()
+            .filter(|l| !l.contains("_utc\""))
+            .collect::<Vec<_>>()
+            .join("\n")
+            .replace(
+                &format!("\"run\": \"{}\"", r.file_name().unwrap().to_str().unwrap()),
+                "\"run\": \"·\"",
+            )
+    };
+    assert_eq!(json(&runs[0]), json(&runs[1]));
+    // and another seed gives other noise
+    let other = dir.path().join("three");
+    let (code, _) = run(&[
+        "demo",
+        "--magnet",
+        "RM-N35-D10x2",
+        "--seed",
+        "8",
+        "--out",
+        other.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0);
+    assert_ne!(read(&runs[0], "samples.csv"), read(&other, "samples.csv"));
+}

@@ -80,7 +80,7 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
             .map(|g| format!(" against grade {g}"))
             .unwrap_or_default(),
         if a.heat_damaged {
-            "  — HEAT DAMAGE: flux lost in this test"
+            "  — FLUX LOST in this test, within its safe test peak"
         } else {
             ""
         }

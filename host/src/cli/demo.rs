@@ -9,7 +9,7 @@ use remanent::analysis::fixture_ref::FixtureReference;
 use remanent::calibration::Calibration;
 use remanent::record::RecordOptions;
 use remanent::survey::{Reading, SurveyProgress};
-use remanent::virtual_rig::{VirtualRig, VirtualRigOptions};
+use remanent::virtual_rig::{SimulatedPort, VirtualRig, VirtualRigOptions};
 use remanent::{magnets, run_dir};
 
 #[derive(clap::Args)]
@@ -21,9 +21,12 @@ pub struct Args {
     /// peak, ended by the analysis).
     #[arg(long, default_value = "inspect")]
     profile: String,
-    /// Simulated seconds per wall-clock second.
-    #[arg(long, default_value_t = 100.0, value_parser = super::options::parse_speed)]
-    speed: f64,
+    /// Run the virtual rig behind a pseudo-terminal at this many simulated seconds per
+    /// wall-clock second (the serial path as a bench uses it; results then depend on the
+    /// machine's timing). By default the rig runs in lockstep with the recorder, in-process:
+    /// the same seed gives the same samples and results on any machine.
+    #[arg(long, value_parser = super::options::parse_speed)]
+    speed: Option<f64>,
     /// Where to put the run (default: a new folder under `remanent-runs/`).
     #[arg(long)]
     out: Option<PathBuf>,
@@ -51,29 +54,41 @@ fn demo_inspection(given: remanent::inspection::Inspection) -> remanent::inspect
 pub use remanent::run_dir::REFERENCE_FILE;
 
 /// The demo reference part read on its own virtual rig: the fixture's reference.
-fn measure_reference(speed: f64, seed: u64, u: &DisplayUnits) -> anyhow::Result<FixtureReference> {
+fn measure_reference(
+    speed: Option<f64>,
+    seed: u64,
+    u: &DisplayUnits,
+) -> anyhow::Result<FixtureReference> {
     let part = magnets::resolve(REFERENCE_PART)?;
     let mut opts = VirtualRigOptions::new(part.model.expect("a demo part has a model"));
-    opts.speed = speed;
     opts.seed = seed ^ 0x5eed;
-    let rig = VirtualRig::start(opts)?;
     println!(
         "first the fixture's reference: {} ({})",
         part.info.id, part.info.description
     );
-    let port = remanent::link::port::open(rig.path())?;
     // the reference is read on a rig of the same design as the part's: the same constants
     let cal = Calibration::virtual_rig(&remanent_rig_model::RigParams::REFERENCE);
-    let r = remanent::jobs::reference::measure(
-        port,
-        &part,
-        cal,
-        Default::default(),
-        1,
-        None,
-        &mut Quiet,
-    )?;
-    rig.stop()?;
+    let measure = |port: &mut dyn ReadWrite| {
+        remanent::jobs::reference::measure(
+            port,
+            &part,
+            cal,
+            Default::default(),
+            1,
+            None,
+            &mut Quiet,
+        )
+    };
+    let r = match speed {
+        None => measure(&mut SimulatedPort::new(opts))?,
+        Some(speed) => {
+            opts.speed = speed;
+            let rig = VirtualRig::start(opts)?;
+            let r = measure(&mut remanent::link::port::open(rig.path())?)?;
+            rig.stop()?;
+            r
+        }
+    };
     println!(
         "  it reads {} at {} for a certified {}: fixture factor {:.4}",
         flux(r.b20_mt, 2).render(u),
@@ -83,6 +98,10 @@ fn measure_reference(speed: f64, seed: u64, u: &DisplayUnits) -> anyhow::Result<
     );
     Ok(r)
 }
+
+/// A port either rig offers.
+trait ReadWrite: std::io::Read + std::io::Write {}
+impl<T: std::io::Read + std::io::Write + ?Sized> ReadWrite for T {}
 
 /// The demo's reference magnet.
 const REFERENCE_PART: &str = "RM-REF-N42SH-D10x5";
@@ -109,32 +128,53 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         let stamp = run_dir::utc_now().replace([':', '-'], "");
         PathBuf::from("remanent-runs").join(format!("demo-{}-{stamp}", m.info.id))
     });
+    let pace = match a.speed {
+        Some(x) => format!("{x}× real time behind a pseudo-terminal"),
+        None => format!("in lockstep, seed {}", a.seed),
+    };
     println!(
-        "Remanent demo: {} ({}) on the virtual rig, profile `{}`, {}× real time",
-        m.info.id, m.info.description, profile.name, a.speed
+        "Remanent demo: {} ({}) on the virtual rig, profile `{}`, {pace}",
+        m.info.id, m.info.description, profile.name
     );
     super::record::announce(&plan, &m.info.id, u);
     let reference = measure_reference(a.speed, a.seed, u)?;
     let mut opts = VirtualRigOptions::new(model);
-    opts.speed = a.speed;
     opts.seed = a.seed;
     let params = opts.params;
-    let rig = VirtualRig::start(opts)?;
-    let port = remanent::link::port::open(rig.path())?;
-    let rec = RecordOptions {
-        inspection: demo_inspection(a.inspection.inspection()),
-        auto_end: Some(Default::default()),
-        port_label: format!("virtual rig ({})", rig.path()),
-        stop: super::record::stop_flag()?,
-        ..RecordOptions::new(
-            m.info.clone(),
-            profile,
-            Calibration::virtual_rig(&params),
-            out.clone(),
-        )
+    let rec = |port_label: String| -> anyhow::Result<RecordOptions> {
+        Ok(RecordOptions {
+            inspection: demo_inspection(a.inspection.inspection()),
+            auto_end: Some(Default::default()),
+            port_label,
+            stop: super::record::stop_flag()?,
+            ..RecordOptions::new(
+                m.info.clone(),
+                profile.clone(),
+                Calibration::virtual_rig(&params),
+                out.clone(),
+            )
+        })
     };
-    let summary = super::record::record_with_bar(port, rec, u)?;
-    let truth = rig.stop()?;
+    let (summary, truth) = match a.speed {
+        None => {
+            let mut port = SimulatedPort::new(opts);
+            let rec = RecordOptions {
+                // lockstep: a silent link is a broken simulation, not a slow machine
+                silence_timeout: std::time::Duration::from_secs(5),
+                ..rec("virtual rig (in-process, lockstep)".into())?
+            };
+            let summary = super::record::record_with_bar(&mut port, rec, u)?;
+            (summary, port.bench().truth())
+        }
+        Some(speed) => {
+            opts.speed = speed;
+            let rig = VirtualRig::start(opts)?;
+            let port = remanent::link::port::open(rig.path())?;
+            let label = format!("virtual rig ({})", rig.path());
+            let summary = super::record::record_with_bar(port, rec(label)?, u)?;
+            (summary, rig.stop()?)
+        }
+    };
     let code = super::record::report_end(&summary, u);
     a.store.keep("the record", |at| {
         remanent::jobs::history::store_record(at, &summary.dir)

@@ -96,8 +96,8 @@ pub fn announce(plan: &TestPlan, magnet_id: &str, u: &DisplayUnits) {
     }
 }
 
-pub fn record_with_bar(
-    port: Box<dyn serialport::SerialPort>,
+pub fn record_with_bar<P: std::io::Read + std::io::Write>(
+    port: P,
     opts: RecordOptions,
     u: &DisplayUnits,
 ) -> anyhow::Result<RecordSummary> {
