@@ -120,6 +120,20 @@ pub fn estimate(
             spread / 3f64.sqrt(),
         ));
     }
+    if data.code == "single_ramp" {
+        let (lo, hi) = super::fit_data::SINGLE_RAMP_TAU_S;
+        let a_at = |tau: f64| -> f64 {
+            super::fit_data::single_ramp(p, &lagged.seg, tau)
+                .and_then(|(tt, bb)| Quadratic::fit(&tt, &bb).ok())
+                .map_or(alpha, |(m, _)| m.mean_alpha_pct_per_c(t_hi))
+        };
+        let spread = (a_at(hi) - a_at(lo)).abs() / 2.0;
+        budget.push(BudgetLine::rectangular(
+            format!("lag not estimable from one ramp (τ {lo:.0} … {hi:.0} s, rectangular)"),
+            spread / 3f64.sqrt(),
+        ));
+        notes.push(format!("one ramp only: α from it with the magnet's lag taken as {:.0} s, anywhere in {lo:.0} … {hi:.0} s in the budget (a return, or a second ramp, would measure it)", 0.5 * (lo + hi)).into());
+    }
     Ok(AlphaResult {
         model,
         fit,

@@ -1,14 +1,52 @@
 //! Step 3: which points the reversible curve is fitted to — the heating branch well below a
 //! Curie collapse, the lag-corrected ramps (the cooling branch alone after a loss), or, with
-//! no lag estimate, the settled soak points.
+//! no lag estimate, the settled soak points, or a record's one ramp.
 
 use super::context::AnalysisError;
 use super::curie::CURIE_MARGIN_K;
+use super::lag;
 use super::lag_estimate::Lagged;
+use super::lag_estimate::MIN_BRANCH_SAMPLES;
 use super::prepare::{mean, Prepared, LOSSY};
+use super::segments::{Segments, MIN_SPAN_K};
 
 /// Fewest soak points that make a quadratic worth fitting.
 pub const MIN_SOAKS: usize = 4;
+/// One ramp alone cannot tell the lag (that takes the other branch): its τ is taken anywhere
+/// in this band, s, the fit made at its middle and the band's effect put in the budget.
+pub const SINGLE_RAMP_TAU_S: (f64, f64) = (0.0, 120.0);
+
+/// The points of a record's one usable ramp (the heating or the cooling branch, whichever
+/// spans more), its temperatures lag-corrected with `tau_s`; `None` when neither spans
+/// [`MIN_SPAN_K`] over enough samples.
+pub fn single_ramp(p: &Prepared, seg: &Segments, tau_s: f64) -> Option<(Vec<f64>, Vec<f64>)> {
+    let span = |r: &std::ops::Range<usize>| {
+        if r.len() <= MIN_BRANCH_SAMPLES {
+            return 0.0;
+        }
+        let t = &p.s.temp_c[r.clone()];
+        let (lo, hi) = t
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &x| {
+                (l.min(x), h.max(x))
+            });
+        hi - lo
+    };
+    let r = if span(&seg.heating) >= span(&seg.cooling) {
+        &seg.heating
+    } else {
+        &seg.cooling
+    };
+    if span(r) < MIN_SPAN_K {
+        return None;
+    }
+    let tm = lag::lagged(&p.s.time_s, &p.s.temp_c, tau_s);
+    let idx: Vec<usize> = r.clone().step_by(p.stride).collect();
+    Some((
+        idx.iter().map(|&i| tm[i]).collect(),
+        idx.iter().map(|&i| p.flux[i]).collect(),
+    ))
+}
 
 /// The points to fit and how they were chosen.
 pub struct FitData {
@@ -19,7 +57,7 @@ pub struct FitData {
     /// How they were chosen, in words for the report.
     pub method: &'static str,
     /// The same as a stable code for machines: `heating_below_collapse`, `cooling_branch`,
-    /// `ramps` or `soak_points`.
+    /// `ramps`, `soak_points` or `single_ramp`.
     pub code: &'static str,
 }
 
@@ -65,6 +103,15 @@ pub fn select(
         b.push(mean(tail.map(|i| p.flux[i])).0);
     }
     if t.len() < MIN_SOAKS {
+        let mid = 0.5 * (SINGLE_RAMP_TAU_S.0 + SINGLE_RAMP_TAU_S.1);
+        if let Some((t_c, b_mt)) = single_ramp(p, &lagged.seg, mid) {
+            return Ok(FitData {
+                t_c,
+                b_mt,
+                method: "one ramp alone (no return: the lag taken from a band, not estimated)",
+                code: "single_ramp",
+            });
+        }
         return Err(AnalysisError::CannotFit(format!(
             "only {} soaks and no usable heating and cooling branches; at least {MIN_SOAKS} soaks are needed",
             t.len()

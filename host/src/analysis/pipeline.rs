@@ -120,10 +120,18 @@ fn analyze_cycle(
 ) -> Result<Analysis, AnalysisError> {
     let prep = Prepared::new(s, ctx, &mut notes);
     let seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
-    let span = s.temp_c[seg.peak] - s.temp_c[seg.before.start];
+    // the excursion judged: up from the reference before it, or down from the peak
+    let rise = s.temp_c[seg.peak] - s.temp_c[seg.before.start];
+    let low_after = s.temp_c[seg.peak..]
+        .iter()
+        .copied()
+        .fold(f64::INFINITY, f64::min);
+    let fall = s.temp_c[seg.peak] - low_after;
+    let span = rise.max(fall);
     if span < MIN_SPAN_K {
         return Err(AnalysisError::CannotFit(format!(
-            "the temperature rose only {span:.1} K; at least {MIN_SPAN_K:.0} K is needed"
+            "the temperature changed only {span:.1} K (up {rise:.1} K from {:.1} °C before the peak at {:.1} °C, down {fall:.1} K after it); at least {MIN_SPAN_K:.0} K is needed",
+            s.temp_c[seg.before.start], s.temp_c[seg.peak]
         )));
     }
     let collapse = curie::collapse(&prep);

@@ -73,7 +73,10 @@ fn a_record_that_never_heats_gets_a_plain_answer() {
     std::fs::write(&p, text).unwrap();
     let s = dataset::load_csv(&p, &CsvOptions::default()).unwrap();
     let e = analyze(&s, &ctx()).unwrap_err().to_string();
-    assert!(e.contains("rose only") && e.contains("10 K"), "{e}");
+    assert!(
+        e.contains("changed only 0.0 K") && e.contains("10 K"),
+        "{e}"
+    );
 }
 
 #[test]

@@ -285,3 +285,38 @@ fn the_machine_readable_result_is_documented_key_by_key() {
     assert_eq!(json["schema_version"], 1);
     assert_eq!(json["fit_method_code"], "ramps");
 }
+
+#[test]
+fn a_heating_only_record_gives_alpha_and_refuses_the_loss_for_want_of_a_return() {
+    let b = Bench::default();
+    let (rows, _) = bm::run(
+        &b,
+        &NDFEB,
+        &bm::program(&[(b.ambient_c, 0.0, 400.0), (110.0, 5.0, 120.0)]),
+    );
+    let a = crate::messy_files::analyse_text(&bm::csv(&rows), &CsvOptions::default());
+    check_alpha(&a, &NDFEB, "heating only");
+    assert!(a.irreversible_loss_pct.is_none());
+    crate::util::assert_noted(&a, "does not return");
+}
+
+#[test]
+fn a_cooling_only_record_gives_alpha() {
+    let b = Bench::default();
+    let (rows, _) = bm::run(
+        &b,
+        &NDFEB,
+        &bm::program(&[
+            (b.ambient_c, 0.0, 60.0),
+            (110.0, 30.0, 900.0),
+            (b.ambient_c, 3.0, 300.0),
+        ]),
+    );
+    // the file starts once the part is hot and settled: only the way down is in it
+    let hot = rows
+        .iter()
+        .position(|r| r.time_s > 60.0 + 200.0 + 850.0)
+        .unwrap();
+    let a = crate::messy_files::analyse_text(&bm::csv(&rows[hot..]), &CsvOptions::default());
+    check_alpha(&a, &NDFEB, "cooling only");
+}
