@@ -5,10 +5,8 @@ use super::dataset::Series;
 use super::prepare::{Prepared, LOSSY};
 use super::result::{Analysis, CycleResult, Traces};
 use super::segments::MIN_SPAN_K;
-use super::{
-    alpha, branch_loss, branch_ratio, clean, curie, cycles, fit_data, judge, lag_estimate, loss,
-    model, segments, verdict,
-};
+use super::{alpha, clean, curie, cycles, fit_data, judge, lag_estimate, model, segments, verdict};
+use super::{drift, loss_verdict};
 use crate::units::{self, Kind, Phrase, Qty};
 
 /// A probe that came back more than this far from where it started is noted, K.
@@ -113,11 +111,18 @@ fn cycle_of(a: &Analysis, s: &Series) -> CycleResult {
 }
 
 /// Analyse one heat cycle; `notes` so far.
-fn analyze_cycle(
+fn analyze_cycle(s: &Series, ctx: &Context, notes: Vec<Phrase>) -> Result<Analysis, AnalysisError> {
+    analyze_cycle_with(s, ctx, notes, None)
+}
+
+/// Analyse one heat cycle; `drift`: the series is already corrected for this probe drift.
+fn analyze_cycle_with(
     s: &Series,
     ctx: &Context,
     mut notes: Vec<Phrase>,
+    drift: Option<drift::Drift>,
 ) -> Result<Analysis, AnalysisError> {
+    let entry_notes = notes.clone();
     let prep = Prepared::new(s, ctx, &mut notes);
     let seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
     // the excursion judged: up from the reference before it, or down from the peak
@@ -137,9 +142,36 @@ fn analyze_cycle(
     let collapse = curie::collapse(&prep);
     let lagged = lag_estimate::estimate(&prep, seg, span, collapse, &mut notes);
     let data = fit_data::select(&prep, &lagged, collapse)?;
-    let a = alpha::estimate(&prep, &lagged, &data, ctx, &mut notes)?;
+    let mut a = alpha::estimate(&prep, &lagged, &data, ctx, &mut notes)?;
+    let corrected = drift.is_some();
+    let drift = drift.or_else(|| drift::estimate(&prep, &lagged, &a.model));
+    if let (false, Some(d)) = (corrected, drift) {
+        if d.matters() {
+            let mut n = entry_notes;
+            n.push(d.note());
+            return analyze_cycle_with(&d.corrected(s), ctx, n, Some(d));
+        }
+    }
+    if let (true, Some(d)) = (corrected, &drift) {
+        let ramp_s = s.time_s[lagged.seg.peak] - s.time_s[lagged.seg.heating.start];
+        drift::budget_alpha(&mut a, d, ramp_s);
+    }
     let u_c = a.u_c();
-    let (loss, by_references) = cycle_loss(&prep, &lagged, ctx, &a, &mut notes);
+    let (mut loss, by_references) =
+        super::cycle_loss::cycle_loss(&prep, &lagged, ctx, &a, &mut notes);
+    if let (Some(l), Some(d), true) = (loss.as_mut(), &drift, corrected) {
+        drift::budget_loss(l, d);
+    }
+    // a drift too small to correct still bounds the loss that can be claimed as damage
+    let undecided = match (&drift, corrected) {
+        (Some(d), false) => drift::undecided_pct(d),
+        _ => 0.0,
+    };
+    if let Some(l) = loss.as_ref().filter(|l| {
+        l.loss_pct > l.u95_pct.max(loss_verdict::HEAT_DAMAGE_PCT) && l.loss_pct <= undecided
+    }) {
+        notes.push(format!("the flat stretches before and after are too short to tell a drift of the probe's zero from a loss below {undecided:.2} %: the loss of {:.2} % is not claimed as damage", l.loss_pct).into());
+    }
     if !(a.alpha.is_finite() && u_c.is_finite() && a.model.b0_mt.is_finite()) {
         return Err(AnalysisError::NotFinite(format!(
             "the fit gave α = {} ± {} %/°C; nothing is judged from it",
@@ -156,7 +188,9 @@ fn analyze_cycle(
         peak_c: lagged.tm[lagged.seg.peak],
         fit_top_c: a.range_c[1],
         curie_c: lagged.curie_c,
-        loss: loss.as_ref().map(|l| (l.loss_pct, l.u95_pct)),
+        loss: loss
+            .as_ref()
+            .map(|l| (l.loss_pct, l.u95_pct.max(undecided))),
     };
     let judged = judge::judge(&measured, ctx, &mut notes);
     fit_notes(lagged.loss > LOSSY, a.range_c[1], &mut notes);
@@ -198,6 +232,7 @@ fn analyze_cycle(
         heat_damaged: judged.heat_damaged,
         safe_peak: judged.safe_peak,
         repairs: Default::default(),
+        probe_drift: drift.map(|d| d.result(corrected)),
         quarantine: judged.quarantine,
         br_budget: judged.br_budget,
         br_referred: ctx.reference.is_some() && judged.br.is_some(),
@@ -260,72 +295,6 @@ fn fit_notes(lossy: bool, top_c: f64, notes: &mut Vec<Phrase>) {
     }
 }
 
-/// The cycle's loss (from the references, else from the branches) and whether it came from
-/// the references.
-fn cycle_loss(
-    prep: &Prepared,
-    lagged: &lag_estimate::Lagged,
-    ctx: &Context,
-    a: &alpha::AlphaResult,
-    notes: &mut Vec<Phrase>,
-) -> (Option<loss::LossResult>, bool) {
-    let loss = loss::full(
-        prep,
-        &lagged.seg,
-        &lagged.tm,
-        ctx,
-        &a.model,
-        (a.alpha, a.u_c()),
-        lag_relative_u(lagged),
-    );
-    let by_references = loss.is_ok();
-    let loss = with_branch_loss(loss, prep, lagged, notes);
-    note_loss(&loss, notes);
-    let loss = loss
-        .ok()
-        .filter(|l| l.loss_pct.is_finite() && l.u95_pct.is_finite());
-    (loss, by_references)
-}
-
-/// How well the lag is known, relative to itself: the α budget's band (±20 %, or every τ the
-/// branches leave possible); 1 (the whole correction) when no lag was estimated.
-fn lag_relative_u(lagged: &lag_estimate::Lagged) -> f64 {
-    match (lagged.tau_s, lagged.tau_range_s) {
-        (Some(tau), range) if tau > 0.0 => {
-            let (lo, hi) = range.unwrap_or((tau, tau));
-            ((tau - lo).max(hi - tau) / tau).max(alpha::LAG_TOLERANCE)
-        }
-        _ => 1.0,
-    }
-}
-
-/// A record with no return whose branches show a loss: the loss between the branches.
-fn with_branch_loss(
-    loss: Result<loss::LossResult, loss::NoLoss>,
-    prep: &Prepared,
-    lagged: &lag_estimate::Lagged,
-    notes: &mut Vec<Phrase>,
-) -> Result<loss::LossResult, loss::NoLoss> {
-    match (loss, lagged.tau_s) {
-        // no return, but the branches show the magnet lost flux: the loss between them
-        (Err(loss::NoLoss::NoReturn), Some(tau)) if lagged.loss > LOSSY => {
-            let l = branch_loss::full(prep, &lagged.seg, &lagged.tm, tau, alpha::LAG_TOLERANCE);
-            if let Some(l) = &l {
-                let below_c = l.ref_c[0]
-                    + branch_ratio::LOSSY_COMPARE_FRACTION
-                        * (lagged.tm[lagged.seg.peak] - l.ref_c[0]);
-                notes.push(crate::phrase![
-                    format!("the record does not return to a settled temperature, but the heating and cooling branches disagree at the same magnet temperature: the loss is seen between the branches ({:.2} % at the same temperature below ", l.loss_pct),
-                    units::temp_q(below_c, 0),
-                    ")",
-                ]);
-            }
-            l.ok_or(loss::NoLoss::NoReturn)
-        }
-        (l, _) => l,
-    }
-}
-
 /// Refuse a series with a value that is not a finite number, naming the sample and the field.
 fn check_finite(s: &Series) -> Result<(), AnalysisError> {
     let mut fields: Vec<(&str, &[f64])> = vec![
@@ -347,25 +316,4 @@ fn check_finite(s: &Series) -> Result<(), AnalysisError> {
         }
     }
     Ok(())
-}
-
-/// Notes about the loss: not computed, or a probe that had not cooled back.
-fn note_loss(loss: &Result<loss::LossResult, loss::NoLoss>, notes: &mut Vec<Phrase>) {
-    match loss {
-        Err(why) => notes.push(why.explain()),
-        Ok(l) => {
-            if let Some(p) = l
-                .ref_probe_c
-                .filter(|p| (p[1] - p[0]).abs() > PROBE_RETURN_K)
-            {
-                notes.push(crate::phrase![
-                    "the probe had not cooled back (",
-                    units::temp_q(p[0], 1),
-                    " before, ",
-                    units::temp_q(p[1], 1),
-                    format!(" after): its own drift is corrected by calibration and counted in the loss budget ({:.3} %)", l.probe_term_pct),
-                ]);
-            }
-        }
-    }
 }

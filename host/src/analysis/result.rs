@@ -217,6 +217,9 @@ pub struct Analysis {
     pub rows_left_out: usize,
     /// Thermocouple spikes rejected.
     pub spikes_rejected: usize,
+    /// The probe's zero drift the flat stretches before and after showed (none: no stretch
+    /// after the excursion).
+    pub probe_drift: Option<super::drift::DriftResult>,
     /// What was repaired in a logger's file (duplicate rows, a restarting time column).
     pub repairs: super::repair::Repairs,
     /// How Br was found: its budget, relative standard uncertainties, %.

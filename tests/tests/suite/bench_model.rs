@@ -69,6 +69,8 @@ pub struct Bench {
     /// The thermocouple's gain error, % of its reading in °C (Type K's tolerance is a
     /// percentage of the reading, IEC 60584-1; 0: a perfect thermocouple).
     pub tc_gain_pct: f64,
+    /// The probe's zero drifting linearly in time (a sensor or amplifier warming up), mT/h.
+    pub zero_drift_mt_per_h: f64,
     pub seed: u64,
 }
 
@@ -84,6 +86,7 @@ impl Default for Bench {
             flux_noise_mt: 0.015,
             flux_step_mt: 0.01,
             tc_gain_pct: 0.0,
+            zero_drift_mt_per_h: 0.0,
             seed: 0x5eed_1234,
         }
     }
@@ -187,7 +190,8 @@ pub fn run(bench: &Bench, magnet: &TrueMagnet, program: &[Step]) -> (Vec<Row>, T
                     read_c + bench.temp_noise_k * rng.normal(),
                     bench.temp_step_k,
                 );
-                let b = magnet.reversible_mt(st[2]) * (1.0 - st[3]);
+                let b = magnet.reversible_mt(st[2]) * (1.0 - st[3])
+                    + bench.zero_drift_mt_per_h * next_log / 3600.0;
                 let flux = q(b + bench.flux_noise_mt * rng.normal(), bench.flux_step_mt);
                 rows.push(Row {
                     time_s: next_log,

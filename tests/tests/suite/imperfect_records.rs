@@ -320,3 +320,39 @@ fn a_cooling_only_record_gives_alpha() {
     let a = crate::messy_files::analyse_text(&bm::csv(&rows[hot..]), &CsvOptions::default());
     check_alpha(&a, &NDFEB, "cooling only");
 }
+
+/// A probe whose zero drifts by −0.35 % of the reading over the whole test (a cheap linear Hall
+/// sensor warming up), on the bench model.
+fn drifting() -> Bench {
+    let b = Bench::default();
+    let (rows, _) = bm::run(&b, &NDFEB, &bm::cycle(b.ambient_c, 110.0, b.ambient_c, 5.0));
+    let hours = rows.last().unwrap().time_s / 3600.0;
+    Bench {
+        zero_drift_mt_per_h: -0.0035 * NDFEB.b20_mt / hours,
+        ..b
+    }
+}
+
+#[test]
+fn a_drifting_probe_zero_is_not_called_damage_and_alpha_stays_right() {
+    let b = drifting();
+    let (rows, _) = bm::run(&b, &NDFEB, &bm::cycle(b.ambient_c, 110.0, b.ambient_c, 5.0));
+    let a = analyse_rows(&rows);
+    check_alpha(&a, &NDFEB, "drifting zero");
+    check_loss(loss_of(&a), 0.0, "drifting zero, no loss", &a);
+    assert!(!a.heat_damaged, "{:#?}", a.notes);
+    assert!(a.checks.iter().all(|c| c.what != "irreversible loss"));
+    crate::util::assert_noted(&a, "the probe's zero drifted");
+}
+
+#[test]
+fn a_real_loss_is_still_found_under_a_drifting_probe_zero() {
+    let b = drifting();
+    let (rows, truth) = bm::run(&b, &LOSSY, &bm::cycle(b.ambient_c, 130.0, b.ambient_c, 4.0));
+    let a = analyse_rows(&rows);
+    let want = *truth.loss_after_step_pct.last().unwrap();
+    assert!(want > 0.5, "the model lost {want} %");
+    check_loss(loss_of(&a), want, "drifting zero with a loss", &a);
+    check_alpha(&a, &LOSSY, "drifting zero with a loss");
+    assert!(a.heat_damaged, "{:#?}", a.notes);
+}
