@@ -339,6 +339,10 @@ impl Rows {
                 match verdict {
                     Verdict::Duplicate => return Ok(()),
                     Verdict::Continue(at) => t = at,
+                    Verdict::Split(at) => {
+                        t = at;
+                        self.s.breaks.push(self.s.time_s.len());
+                    }
                     Verdict::Refuse(why) => return Err(order(format!(": {why}"))),
                 }
             }

@@ -73,6 +73,7 @@ pub fn slice(s: &Series, r: Range<usize>) -> Series {
         flux_mt: cut(&s.flux_mt),
         probe_c: s.probe_c.as_ref().map(cut),
         repairs: Default::default(),
+        breaks: Vec::new(),
         duty_pct: s.duty_pct.as_ref().map(cut),
         setpoint_c: s.setpoint_c.as_ref().map(cut),
         faults: s

@@ -15,7 +15,16 @@ pub const PROBE_RETURN_K: f64 = 2.0;
 /// Analyse a series.
 pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     check_finite(s)?;
-    let ranges = cycles::find(&s.temp_c);
+    // a file that holds several records is split where they meet; else the heat cycles
+    let split = !s.breaks.is_empty();
+    let ranges = if split {
+        let mut b = vec![0];
+        b.extend(s.breaks.iter().copied());
+        b.push(s.time_s.len());
+        b.windows(2).map(|w| w[0]..w[1]).collect()
+    } else {
+        cycles::find(&s.temp_c)
+    };
     if ranges.len() < 2 {
         let mut a = analyze_cycle(s, ctx, clean::notes(s))?;
         a.cycles = vec![cycle_of(&a, s)];
@@ -28,14 +37,19 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         .map(|part| analyze_cycle(part, ctx, Vec::new()))
         .collect();
     let mut notes = clean::notes(s);
-    let mut note = Phrase::from(format!("{} heat cycles found (", parts.len()));
+    let (what, part_word) = if split {
+        ("records in the file, analysed apart", "part")
+    } else {
+        ("heat cycles found", "cycle")
+    };
+    let mut note = Phrase::from(format!("{} {what} (", parts.len()));
     for (k, (r, part)) in results.iter().zip(&parts).enumerate() {
         if k > 0 {
             note.push("; ");
         }
         match r {
             Ok(a) => {
-                note.push(format!("cycle {} to ", k + 1));
+                note.push(format!("{part_word} {} to ", k + 1));
                 note.push(units::temp_q(a.max_magnet_temp_c, 0));
                 note.push(format!(
                     ": loss {}",
@@ -45,13 +59,17 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
                 ));
             }
             Err(e) => note.push(format!(
-                "cycle {} from t = {:.0} s: {e}",
+                "{part_word} {} from t = {:.0} s: {e}",
                 k + 1,
                 part.time_s[0]
             )),
         }
     }
-    note.push("); α comes from the last, stabilised cycle, the loss is the total over them all");
+    note.push(if split {
+        "); the results are the last part's (the parts may be different magnets)"
+    } else {
+        "); α comes from the last, stabilised cycle, the loss is the total over them all"
+    });
     notes.push(note);
     let cycle_list: Vec<CycleResult> = results
         .iter()
@@ -96,7 +114,9 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     a.traces.magnet_temp_c = traces_tm;
     a.traces.flux_corrected_mt = traces_flux;
     a.traces.segments = a.traces.segments.map(|g| g.shifted(offset));
-    super::cycle_total::judge_total(&mut a);
+    if !split {
+        super::cycle_total::judge_total(&mut a);
+    }
     Ok(a)
 }
 

@@ -1,8 +1,9 @@
 //! Repairs of a logger's file that the data itself supports: rows pasted twice (exact copies
 //! of rows already read at the same time) are dropped, and a time column that restarts (a
 //! logger rebooted, two files joined) continues from where it stopped when the rows on both
-//! sides join up in temperature and flux. Each repair is counted for the result and named in a
-//! note with its lines; `--strict` refuses instead, and what does not join up is refused.
+//! sides join up in temperature and flux, else the file is split there and the parts analysed
+//! apart. Each repair is counted for the result and named in a note with its lines; `--strict`
+//! refuses instead.
 
 use serde::Serialize;
 
@@ -23,6 +24,9 @@ pub struct Repairs {
     pub duplicate_lines: Vec<[usize; 2]>,
     /// Lines where the time restarted and was continued.
     pub restart_lines: Vec<usize>,
+    /// Lines where the time restarted and the rows did not join up: a new part begins there,
+    /// analysed apart.
+    pub split_lines: Vec<usize>,
     /// The time added from each restart on, s.
     #[serde(skip)]
     pub offset_s: f64,
@@ -34,6 +38,9 @@ pub enum Verdict {
     Duplicate,
     /// A restart that joins up: keep the row at this time.
     Continue(f64),
+    /// A restart that does not join up: a new record begins here; keep the row at this time
+    /// and analyse the parts apart.
+    Split(f64),
     /// Neither: the reason it cannot be repaired.
     Refuse(String),
 }
@@ -66,13 +73,12 @@ impl Repairs {
         }
         let joins = (temp - last_temp).abs() <= JOIN_TEMP_K
             && (flux - last_flux).abs() <= JOIN_FLUX_REL * last_flux.abs();
-        if !joins {
-            return Verdict::Refuse(format!(
-                "the rows on either side do not join up ({last_temp:.2} → {temp:.2} °C, {last_flux:.3} → {flux:.3} mT): split the file at this line and analyse the parts apart"
-            ));
-        }
         let continued = last_t + step;
         self.offset_s += continued - t;
+        if !joins {
+            self.split_lines.push(line);
+            return Verdict::Split(continued);
+        }
         self.restart_lines.push(line);
         Verdict::Continue(continued)
     }
@@ -106,6 +112,16 @@ impl Repairs {
             out.push(
                 format!(
                     "the time column restarts at line {} (a logger restarted, or files joined): continued from where it stopped, the rows on both sides joining up in temperature and flux",
+                    lines.join(", ")
+                )
+                .into(),
+            );
+        }
+        if !self.split_lines.is_empty() {
+            let lines: Vec<String> = self.split_lines.iter().map(|l| l.to_string()).collect();
+            out.push(
+                format!(
+                    "the time column restarts at line {} and the rows on either side do not join up in temperature and flux: the file holds more than one record, and each part is analysed apart",
                     lines.join(", ")
                 )
                 .into(),

@@ -30,6 +30,8 @@ pub struct Series {
     pub notes: Vec<crate::units::Phrase>,
     /// What the loader repaired.
     pub repairs: super::repair::Repairs,
+    /// Where a new record begins in a file that holds several (indices of first samples).
+    pub breaks: Vec<usize>,
 }
 
 /// Input problems, naming the file, line and column.

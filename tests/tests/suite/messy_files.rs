@@ -310,13 +310,40 @@ fn a_time_column_that_restarts_continues_where_it_stopped_when_the_rows_join_up(
     );
     assert_eq!(an.repairs.restart_lines, vec![2002]);
     crate::util::assert_noted(&an, "the time column restarts at line 2002");
-    // rows that do not join up (the temperature jumps 5 K across the restart): refused there
-    let (_d, p) = write(&restarted_at(2000, 5.0));
-    let e = dataset::load_csv(&p, &CsvOptions::default())
-        .unwrap_err()
-        .to_string();
+    // --strict refuses it at its line
+    let (_d, p) = write(&restarted_at(2000, 0.0));
+    let strict = CsvOptions {
+        strict: true,
+        ..Default::default()
+    };
+    let e = dataset::load_csv(&p, &strict).unwrap_err().to_string();
+    assert!(e.contains("line 2002") && e.contains("--strict"), "{e}");
+}
+
+#[test]
+fn two_records_joined_in_one_file_are_split_where_they_meet_and_analysed_apart() {
+    // a second magnet's record appended to the first's, its time starting again at 0: the
+    // rows on either side do not join up (another magnet's flux)
+    let other = bm::TrueMagnet {
+        b20_mt: 180.0,
+        a1_pct: -0.19,
+        a2_pct: 0.0,
+        ..bm::NDFEB
+    };
+    let b = bm::Bench::default();
+    let (second, _) = bm::run(&b, &other, &bm::cycle(b.ambient_c, 110.0, b.ambient_c, 5.0));
+    let first = bm::csv(&rows());
+    let joined = first.clone() + bm::csv(&second).split_once('\n').unwrap().1;
+    let (_, a) = alpha_of(&joined, &CsvOptions::default());
+    let line = first.lines().count() + 1;
+    assert_eq!(a.repairs.split_lines, vec![line]);
+    assert_eq!(a.cycles.len(), 2, "{:#?}", a.cycles);
+    crate::util::assert_noted(&a, "analysed apart");
+    // the results are the last part's: the ferrite-like second magnet
+    let want = other.alpha_pct(a.fit_range_c[1]);
     assert!(
-        e.contains("line 2002") && e.contains("do not join up"),
-        "{e}"
+        (a.alpha_pct_per_c - want).abs() < 0.003,
+        "α {} against {want}",
+        a.alpha_pct_per_c
     );
 }
