@@ -16,6 +16,7 @@ pub mod branch_ratio;
 pub mod clean;
 pub mod column_names;
 pub mod csv_cells;
+pub mod csv_header;
 pub mod csv_log;
 pub mod curie;
 pub mod cycle_loss;
