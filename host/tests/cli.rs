@@ -327,3 +327,25 @@ fn the_same_demo_twice_gives_the_same_samples_and_the_same_analysis() {
     assert_eq!(code, 0);
     assert_ne!(read(&runs[0], "samples.csv"), read(&other, "samples.csv"));
 }
+
+#[test]
+fn a_report_of_a_record_that_cannot_be_analysed_says_why_and_exits_3() {
+    // a log that never heats: the time series and the reason are written, but it is no result
+    let dir = tempfile::tempdir().unwrap();
+    let log = dir.path().join("flat.csv");
+    let mut text = String::from("time_s,temp_C,flux_mT\n");
+    for i in 0..100 {
+        text.push_str(&format!(
+            "{i},{:.2},200.0\n",
+            22.0 + 0.01 * f64::from(i % 3)
+        ));
+    }
+    std::fs::write(&log, text).unwrap();
+    let (code, out) = run(&["report", log.to_str().unwrap()]);
+    assert_eq!(code, 3, "{out}");
+    assert!(
+        out.contains("not analysed") && out.contains("changed only"),
+        "{out}"
+    );
+    assert!(dir.path().join("flat-report").join("report.html").is_file());
+}

@@ -10,8 +10,8 @@ use std::io::{BufRead, BufReader};
 use std::path::Path;
 
 use super::column_names::{Quantity, Unit, FLUX, PROBE, TEMP, TIME};
-use super::csv_header::{pick_columns, Col, Header};
 use super::csv_cells::{parse_cell, spans, Cell};
+use super::csv_header::{pick_columns, Col, Header};
 use super::repair::Verdict;
 use super::series::{InputError, Series, MIN_ROWS};
 use crate::clock;
@@ -26,7 +26,6 @@ pub struct CsvOptions {
     /// Refuse duplicate rows and a restarting time column rather than repair them.
     pub strict: bool,
 }
-
 
 /// Load a CSV log with a time, a temperature and a flux column (and optionally the probe's
 /// temperature). The columns' names carry their units: see [`TIME`], [`TEMP`], [`FLUX`].

@@ -207,7 +207,15 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         units: *u,
         ..Default::default()
     };
-    let mut written = remanent::report::write_all_as(&out, series, &analysis, title, false, &look)?;
+    let mut written = remanent::report::write_all_as(
+        &out,
+        series,
+        &analysis,
+        loaded.meta.as_ref(),
+        title,
+        false,
+        &look,
+    )?;
     written.insert(0, ref_file);
     println!();
     for f in written {

@@ -65,7 +65,9 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
         .unwrap_or_else(|| remanent::jobs::report::default_out(&a.run));
     let r = remanent::jobs::report::run_input(&req, &out, a.force.force, &look)?;
     if let Some(why) = &r.not_analysed {
-        eprintln!("note: {why}; wrote the time series and what could not be computed");
+        eprintln!(
+            "not analysed: {why}; wrote the time series and what could not be computed (exit 3)"
+        );
     }
     for f in &r.written {
         println!("wrote {}", f.display());
@@ -75,5 +77,10 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
             remanent::jobs::history::store_analysis(at, &a.run, analysis)
         });
     }
-    Ok(ExitCode::SUCCESS)
+    // the outputs of a record that could not be analysed are written, but it is no result
+    Ok(if r.not_analysed.is_some() {
+        ExitCode::from(3)
+    } else {
+        ExitCode::SUCCESS
+    })
 }

@@ -86,6 +86,9 @@ pub struct Analyzed {
     pub uncalibrated: bool,
     /// What is being analysed, for the machine-readable result.
     pub provenance: crate::analysis::result::Provenance,
+    /// The run's own facts (none for a logger's CSV): every report takes them from here,
+    /// never from where its outputs go.
+    pub meta: Option<crate::run_dir::RunMeta>,
 }
 
 /// The spec table asked for, or the built-in one.
@@ -116,6 +119,7 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         run: file_name(&req.input),
         ..Default::default()
     };
+    let mut meta = None;
     let (series, calibration, magnet, title) = if req.input.is_dir() {
         let recalibrated = calibration.is_some();
         let (s, src) = dataset::load_run(&req.input, calibration)?;
@@ -127,6 +131,7 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         uncalibrated = !recalibrated
             && src.meta.as_ref().and_then(|m| m.calibration_basis)
                 == Some(crate::calibration_policy::Basis::Uncalibrated);
+        meta = src.meta.clone();
         let run_name = file_name(&req.input);
         let title = src
             .magnet
@@ -179,6 +184,7 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         title,
         uncalibrated,
         provenance,
+        meta,
     })
 }
 

@@ -98,7 +98,15 @@ pub fn run_input(
     })?;
     Ok(match loaded.analyze(&req.input) {
         Ok(a) => RunReport {
-            written: report::write_all_as(out, &loaded.series, &a, &loaded.title, force, look)?,
+            written: report::write_all_as(
+                out,
+                &loaded.series,
+                &a,
+                loaded.meta.as_ref(),
+                &loaded.title,
+                force,
+                look,
+            )?,
             not_analysed: None,
             analysis: Some(a),
         },
@@ -107,6 +115,7 @@ pub fn run_input(
             RunReport {
                 written: report::write_unanalysed(
                     out,
+                    loaded.meta.as_ref(),
                     &loaded.series,
                     &loaded.title,
                     &why,

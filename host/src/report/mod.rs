@@ -61,14 +61,25 @@ pub fn write_all(
     title: &str,
     force: bool,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    write_all_as(dir, series, a, title, force, &Look::default())
+    let meta = run_dir::read_meta(dir).ok();
+    write_all_as(
+        dir,
+        series,
+        a,
+        meta.as_ref(),
+        title,
+        force,
+        &Look::default(),
+    )
 }
 
-/// [`write_all`] in `look`'s units and on its paper.
+/// [`write_all`] in `look`'s units and on its paper, into `dir`, with the run's own facts
+/// `meta` (read from the run, never from where the outputs go).
 pub fn write_all_as(
     dir: &Path,
     series: &Series,
     a: &Analysis,
+    meta: Option<&run_dir::RunMeta>,
     title: &str,
     force: bool,
     look: &Look,
@@ -77,26 +88,20 @@ pub fn write_all_as(
     let docs = [JSON_FILE, MD_FILE, HTML_FILE, certificate::CERTIFICATE_FILE].map(|f| dir.join(f));
     output::refuse_existing(docs.clone(), force)?;
     let figures = plots::run_figures(dir, series, a, title, force, u)?;
-    let meta = run_dir::read_meta(dir).ok();
     let json = serde_json::to_string_pretty(a).expect("analysis serializes");
     output::write(&docs[0], json.as_bytes(), force)?;
-    output::write(
-        &docs[1],
-        markdown(a, meta.as_ref(), title, u).as_bytes(),
-        force,
-    )?;
-    let html = run_page::html(a, meta.as_ref(), title, &figures, u);
+    output::write(&docs[1], markdown(a, meta, title, u).as_bytes(), force)?;
+    let html = run_page::html(a, meta, title, &figures, u);
     output::write(&docs[2], html.as_bytes(), force)?;
     let plot = std::fs::read(&figures[0].png).map_err(|source| OutputError::Io {
         path: figures[0].png.display().to_string(),
         source,
     })?;
-    let pdf = certificate::certificate(a, meta.as_ref(), &plot, look).map_err(|reason| {
-        OutputError::Produce {
+    let pdf =
+        certificate::certificate(a, meta, &plot, look).map_err(|reason| OutputError::Produce {
             path: docs[3].display().to_string(),
             reason,
-        }
-    })?;
+        })?;
     output::write(&docs[3], &pdf, force)?;
     let mut written: Vec<PathBuf> = figures.iter().flat_map(|f| f.files()).collect();
     written.extend(docs);
@@ -107,6 +112,7 @@ pub fn write_all_as(
 /// plainly, what could not be computed and why.
 pub fn write_unanalysed(
     dir: &Path,
+    meta: Option<&run_dir::RunMeta>,
     series: &Series,
     title: &str,
     reason: &str,
@@ -116,8 +122,7 @@ pub fn write_unanalysed(
     let (md_path, html_path) = (dir.join(MD_FILE), dir.join(HTML_FILE));
     output::refuse_existing([md_path.clone(), html_path.clone()], force)?;
     let figure = plots::timeline_figure(&dir.join("timeline"), series, title, force, u)?;
-    let meta = run_dir::read_meta(dir).ok();
-    let facts = notes::facts(meta.as_ref(), u);
+    let facts = notes::facts(meta, u);
     let safety = safety_notes(u);
     let mut md = format!("# Remanent report — {title}\n\n**Not analysed:** {reason}\n\n");
     for (k, v) in &facts {

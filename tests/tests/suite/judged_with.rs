@@ -63,3 +63,36 @@ fn an_import_judges_a_run_with_the_reference_its_certificate_was_issued_with() {
         "{e}"
     );
 }
+
+#[test]
+fn a_report_written_elsewhere_carries_the_runs_own_facts() {
+    // `report RUN --out DIR` once said "Rig: a logger's CSV file" and lost the magnet, the
+    // profile, the port and the calibration: the facts were read from where the outputs went
+    let dir = tempfile::tempdir().unwrap();
+    let run = dir.path().join("run");
+    crate::util::rapid_run(&run, 6);
+    report::run(&run, &Judging::default(), false, &Default::default()).unwrap();
+    let req = remanent::jobs::InputRequest {
+        input: run.clone(),
+        ..Default::default()
+    };
+    let out = dir.path().join("elsewhere");
+    report::run_input(&req, &out, false, &Default::default()).unwrap();
+    let facts = |d: &std::path::Path| -> Vec<String> {
+        std::fs::read_to_string(d.join("report.md"))
+            .unwrap()
+            .lines()
+            .filter(|l| l.starts_with("- **"))
+            .map(str::to_string)
+            .collect()
+    };
+    let (here, there) = (facts(&run), facts(&out));
+    assert!(here.iter().any(|l| l.contains("**magnet**")), "{here:#?}");
+    assert!(here.iter().any(|l| l.contains("**profile**")), "{here:#?}");
+    assert_eq!(here, there);
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(
+        html.contains("RM-N42SH-D10x5") && html.contains("simulated"),
+        "the run table"
+    );
+}
