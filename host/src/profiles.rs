@@ -241,6 +241,21 @@ impl ProfileSpec {
         Some(p)
     }
 
+    /// The shortest the device can take over the profile, s: every hold, and every ramp at its
+    /// rate from the previous target (the first ramp's start is unknown: not counted).
+    pub fn shortest_duration_s(&self) -> f64 {
+        let mut t = 0.0;
+        let mut from: Option<f64> = None;
+        for s in &self.segments {
+            if let (Some(f), true) = (from, s.ramp_c_per_min > 0.0) {
+                t += (s.target_c - f).abs() / s.ramp_c_per_min * 60.0;
+            }
+            t += s.hold_s;
+            from = Some(s.target_c);
+        }
+        t
+    }
+
     /// Rough duration, s, assuming ramps are followed (cooling near ambient takes longer).
     pub fn nominal_duration_s(&self, start_c: f64) -> f64 {
         let mut t = 0.0;

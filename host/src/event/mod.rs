@@ -169,6 +169,14 @@ pub enum Notice {
     DeviceFault(FaultReport),
     /// The profile ran to its end; the heater is off.
     ProfileFinished,
+    /// The device went idle before its profile could have ended: a Stop the recorder did not
+    /// send (another program on the link).
+    StoppedElsewhere {
+        /// Device time the profile ran, s.
+        ran_s: f64,
+        /// The shortest the profile can take, s.
+        shortest_s: f64,
+    },
     /// The device reports a latched fault whose report was lost on the link.
     FaultReportLost,
     /// The analysis could state what the record is for: it ends here.

@@ -107,6 +107,9 @@ pub fn notice(n: &Notice) -> Phrase {
             p
         }
         Notice::ProfileFinished => phrase!("profile finished; heater off"),
+        Notice::StoppedElsewhere { ran_s, shortest_s } => phrase!(format!(
+            "the device stopped after {ran_s:.0} s of a profile that takes at least {shortest_s:.0} s: a Stop the recorder did not send (another program on the link?); heater off"
+        )),
         Notice::FaultReportLost => phrase!(
             "the device reports a latched fault (its fault report was lost); heater off"
         ),

@@ -27,6 +27,9 @@ const PROGRESS_EVERY: Duration = Duration::from_millis(100);
 /// device time in a tenth of a second, and its live status (and a stop decided on it) must
 /// not skip them, s.
 const PROGRESS_EVERY_DEVICE_S: f64 = 1.0;
+/// A profile that goes idle more than this short of its shortest duration was stopped from
+/// elsewhere, s.
+const FOREIGN_STOP_SLACK_S: f64 = 5.0;
 /// A stop is given this long to be acknowledged.
 const STOP_TIMEOUT: Duration = Duration::from_secs(3);
 /// After the end, a beacon to settle the last samples is waited for this long (one comes every
@@ -55,6 +58,7 @@ pub(super) struct Recorder {
     start_device_s: Option<f64>,
     first_sample_s: Option<f64>,
     nominal_s: f64,
+    shortest_s: f64,
     stop: Arc<AtomicBool>,
     start: Start,
     resend: bool,
@@ -69,6 +73,7 @@ impl Recorder {
             start_device_s: None,
             first_sample_s: None,
             nominal_s: opts.profile.nominal_duration_s(22.0),
+            shortest_s: opts.profile.shortest_duration_s(),
             stop: opts.stop.clone(),
             start: Start::Resting,
             resend: false,
@@ -250,6 +255,11 @@ impl Recorder {
                         from_beacon,
                     };
                     w.event(t, &idle)?;
+                }
+                let (ran_s, shortest_s) = (self.status.elapsed_s, self.shortest_s);
+                if ran_s + FOREIGN_STOP_SLACK_S < shortest_s {
+                    progress.notice(&Notice::StoppedElsewhere { ran_s, shortest_s });
+                    return Ok(Some(RecordEnd::StoppedElsewhere { ran_s, shortest_s }));
                 }
                 progress.notice(&Notice::ProfileFinished);
                 Ok(Some(RecordEnd::Finished))

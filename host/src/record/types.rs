@@ -124,6 +124,14 @@ pub enum RecordEnd {
     Complete(crate::units::Phrase),
     /// The user stopped it; the device acknowledged the stop.
     Stopped,
+    /// The device went idle before its profile could have ended: stopped by something other
+    /// than this recorder (another program on the link).
+    StoppedElsewhere {
+        /// Device time the profile ran, s.
+        ran_s: f64,
+        /// The shortest the profile can take, s.
+        shortest_s: f64,
+    },
     /// The device tripped an interlock; its heater is off.
     Fault(Fault),
     /// The device reports a latched fault whose report did not arrive intact; heater off.
@@ -141,6 +149,9 @@ impl RecordEnd {
             RecordEnd::Finished => "profile finished".into(),
             RecordEnd::Complete(why) => why.to_string(),
             RecordEnd::Stopped => "stopped by the user; heater off (acknowledged)".into(),
+            RecordEnd::StoppedElsewhere { ran_s, shortest_s } => format!(
+                "stopped by the device after {ran_s:.0} s of a profile that takes at least {shortest_s:.0} s: a Stop from another program on the link, not from this recorder"
+            ),
             RecordEnd::Fault(f) => format!("device fault: {}; heater off", describe_fault(*f)),
             RecordEnd::DeviceFaulted => {
                 "the device reports a latched fault (report lost on the link): heater off".into()

@@ -8,6 +8,7 @@ mod certificate;
 mod coverage;
 mod display_units;
 mod end_to_end;
+mod foreign_commands;
 mod history;
 mod identification;
 mod imperfect_records;
