@@ -205,13 +205,17 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     });
     let look = remanent::report::Look {
         units: *u,
+        issuer: remanent::units::issuer()?,
         ..Default::default()
     };
     let mut written = remanent::report::write_all_as(
         &out,
         series,
         &analysis,
-        loaded.meta.as_ref(),
+        &remanent::report::Source {
+            meta: loaded.meta.as_ref(),
+            raw: Some(&out.join(remanent::run_dir::RAW_FILE)),
+        },
         title,
         false,
         &look,

@@ -23,6 +23,7 @@ mod sampling_plan;
 mod self_test;
 mod specs;
 mod survey;
+mod verify;
 mod virtual_rig;
 
 /// Remanent: temperature behaviour of permanent magnets on a heated bench fixture.
@@ -57,6 +58,8 @@ enum Cmd {
     Analyze(analyze::Args),
     /// Write plots and an HTML and Markdown report for a run.
     Report(report::Args),
+    /// Check a certificate's fingerprint: does the record still match what was certified?
+    Verify(verify::Args),
     /// Rebuild a run directory from its raw byte stream (optionally with a new calibration).
     Replay(replay::Args),
     /// Compare the runs of a shipment: table, spread, outliers, pass and fail counts.
@@ -100,6 +103,7 @@ fn dispatch(command: Cmd, u: &DisplayUnits) -> anyhow::Result<std::process::Exit
         Cmd::ClearFault(a) => clear_fault::run(a),
         Cmd::Analyze(a) => analyze::run(a, u),
         Cmd::Report(a) => report::run(a, u),
+        Cmd::Verify(a) => verify::run(a),
         Cmd::Replay(a) => replay::run(a),
         Cmd::Lot(a) => lot::run(a, u),
         Cmd::SamplingPlan(a) => sampling_plan::run(a),

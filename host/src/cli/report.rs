@@ -47,6 +47,7 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
             PaperArg::A4 => remanent::report::pdf_flow::Paper::A4,
             PaperArg::Letter => remanent::report::pdf_flow::Paper::Letter,
         },
+        issuer: remanent::units::issuer()?,
     };
     let req = remanent::jobs::InputRequest {
         input: a.run.clone(),

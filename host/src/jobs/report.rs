@@ -90,6 +90,12 @@ pub fn run_input(
 ) -> Result<RunReport, RunReportError> {
     let loaded = load(req)?;
     keep_reference(req, force)?;
+    // the record's raw bytes, which the certificate fingerprints
+    let raw = if req.input.is_dir() {
+        req.input.join(crate::run_dir::RAW_FILE)
+    } else {
+        req.input.clone()
+    };
     std::fs::create_dir_all(out).map_err(|source| {
         ReportError::Output(crate::output::OutputError::Io {
             path: out.display().to_string(),
@@ -102,7 +108,10 @@ pub fn run_input(
                 out,
                 &loaded.series,
                 &a,
-                loaded.meta.as_ref(),
+                &report::Source {
+                    meta: loaded.meta.as_ref(),
+                    raw: Some(raw.as_path()).filter(|p| p.is_file()),
+                },
                 &loaded.title,
                 force,
                 look,

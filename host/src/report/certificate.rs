@@ -4,6 +4,7 @@
 
 use super::notes::budget_rows;
 use super::pdf_flow::Flow;
+use super::seal::Seal;
 use super::Look;
 use crate::analysis::{Analysis, BudgetLine};
 use crate::run_dir::RunMeta;
@@ -196,6 +197,42 @@ fn budget(f: &mut Flow, heading: &str, lines: &[BudgetLine], unit: &str, scale: 
     f.skip(Flow::lines_mm(1, size) + 3.0);
 }
 
+/// The certificate's number and who issued it, under the title.
+fn identity(f: &mut Flow, seal: Option<&Seal>, look: &Look) {
+    let number = seal.map_or("— (no raw record to fingerprint)".into(), |s| {
+        s.number.clone()
+    });
+    let issuer = look
+        .issuer
+        .clone()
+        .unwrap_or_else(|| "— (name the lab in the config file's [lab] name and address)".into());
+    f.text_at(0.0, 10.0, true, &format!("Certificate {number}"));
+    f.skip(5.0);
+    f.paragraph(0.0, 8.5, false, &format!("Issued by {issuer}"));
+    f.skip(2.0);
+}
+
+/// What the certificate states, fingerprinted: `remanent verify` checks the record against it.
+fn fingerprint(f: &mut Flow, seal: Option<&Seal>) {
+    let Some(s) = seal else { return };
+    f.keep_together(26.0);
+    f.text_at(0.0, 10.0, true, "Fingerprint (SHA-256)");
+    f.skip(6.0);
+    for (file, sha) in [
+        (&s.raw_file, &s.raw_sha256),
+        (&s.analysis_file, &s.analysis_sha256),
+    ] {
+        f.paragraph(0.0, 7.5, false, &format!("{}: {sha}", file.display()));
+    }
+    f.paragraph(
+        0.0,
+        7.5,
+        false,
+        "`remanent verify` on the run's folder recomputes both and says whether the record still matches what this certificate states.",
+    );
+    f.skip(2.0);
+}
+
 fn signatures(f: &mut Flow) {
     f.keep_together(48.0);
     f.skip(4.0);
@@ -233,6 +270,7 @@ fn issue_time_s(meta: Option<&RunMeta>) -> i64 {
 pub fn certificate(
     a: &Analysis,
     meta: Option<&RunMeta>,
+    seal: Option<&Seal>,
     plot_png: &[u8],
     look: &Look,
 ) -> Result<Vec<u8>, String> {
@@ -259,7 +297,8 @@ pub fn certificate(
             a.provenance.analysed_utc
         ),
     );
-    f.skip(6.0);
+    f.skip(5.0);
+    identity(&mut f, seal, look);
     if a.uncalibrated {
         f.paragraph(
             0.0,
@@ -311,6 +350,7 @@ pub fn certificate(
         }
         f.skip(2.0);
     }
+    fingerprint(&mut f, seal);
     signatures(&mut f);
     let footer = format!(
         "{} · {} · Remanent certificate",

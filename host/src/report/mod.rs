@@ -10,6 +10,7 @@ pub mod notes;
 pub mod page;
 pub mod pdf_flow;
 pub mod run_page;
+pub mod seal;
 
 use std::path::{Path, PathBuf};
 
@@ -27,12 +28,14 @@ use page::Page;
 
 /// How the outputs people read are presented: display units and paper. Data files (JSON,
 /// CSV) ignore it and stay in SI-based units.
-#[derive(Debug, Clone, Copy, Default, PartialEq)]
+#[derive(Debug, Clone, Default, PartialEq)]
 pub struct Look {
     /// The units numbers are shown in.
     pub units: DisplayUnits,
     /// The certificate's paper.
     pub paper: pdf_flow::Paper,
+    /// The issuing lab, as the certificate names it (the config file's `[lab]`).
+    pub issuer: Option<String>,
 }
 
 /// Writing the report failed.
@@ -62,28 +65,36 @@ pub fn write_all(
     force: bool,
 ) -> Result<Vec<PathBuf>, ReportError> {
     let meta = run_dir::read_meta(dir).ok();
-    write_all_as(
-        dir,
-        series,
-        a,
-        meta.as_ref(),
-        title,
-        force,
-        &Look::default(),
-    )
+    let raw = Some(dir.join(run_dir::RAW_FILE)).filter(|p| p.is_file());
+    let src = Source {
+        meta: meta.as_ref(),
+        raw: raw.as_deref(),
+    };
+    write_all_as(dir, series, a, &src, title, force, &Look::default())
 }
 
-/// [`write_all`] in `look`'s units and on its paper, into `dir`, with the run's own facts
-/// `meta` (read from the run, never from where the outputs go).
+/// Where a report's record comes from: the run's own facts (read from the run, never from where
+/// the outputs go) and its raw bytes (a run's raw.bin, a logger's file), which the
+/// certificate's seal fingerprints.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct Source<'a> {
+    /// The run's metadata (none for a logger's file).
+    pub meta: Option<&'a run_dir::RunMeta>,
+    /// The record's raw bytes.
+    pub raw: Option<&'a Path>,
+}
+
+/// [`write_all`] in `look`'s units and on its paper, into `dir`, for the record `src`.
 pub fn write_all_as(
     dir: &Path,
     series: &Series,
     a: &Analysis,
-    meta: Option<&run_dir::RunMeta>,
+    src: &Source,
     title: &str,
     force: bool,
     look: &Look,
 ) -> Result<Vec<PathBuf>, ReportError> {
+    let meta = src.meta;
     let u = &look.units;
     let docs = [JSON_FILE, MD_FILE, HTML_FILE, certificate::CERTIFICATE_FILE].map(|f| dir.join(f));
     output::refuse_existing(docs.clone(), force)?;
@@ -97,14 +108,41 @@ pub fn write_all_as(
         path: figures[0].png.display().to_string(),
         source,
     })?;
+    let sealed = match src.raw {
+        Some(raw) => Some(
+            seal::seal(
+                &seal::relative_to(raw, dir),
+                Path::new(JSON_FILE),
+                &a.provenance.analysed_utc,
+                look.issuer.clone(),
+                dir,
+            )
+            .map_err(|e| OutputError::Produce {
+                path: dir.join(seal::SEAL_FILE).display().to_string(),
+                reason: e.to_string(),
+            })?,
+        ),
+        None => None,
+    };
     let pdf =
-        certificate::certificate(a, meta, &plot, look).map_err(|reason| OutputError::Produce {
-            path: docs[3].display().to_string(),
-            reason,
+        certificate::certificate(a, meta, sealed.as_ref(), &plot, look).map_err(|reason| {
+            OutputError::Produce {
+                path: docs[3].display().to_string(),
+                reason,
+            }
         })?;
     output::write(&docs[3], &pdf, force)?;
     let mut written: Vec<PathBuf> = figures.iter().flat_map(|f| f.files()).collect();
     written.extend(docs);
+    if let Some(s) = &sealed {
+        let at = dir.join(seal::SEAL_FILE);
+        output::write(
+            &at,
+            toml::to_string(s).expect("a seal serializes").as_bytes(),
+            true,
+        )?;
+        written.push(at);
+    }
     Ok(written)
 }
 

@@ -6,6 +6,10 @@
 //! [display]
 //! flux = "G"          # mT, G or T
 //! temperature = "F"   # C or F
+//!
+//! [lab]               # the issuing lab a certificate names
+//! name = "Incoming inspection, Hallam Motors (invented)"
+//! address = "12 Quay Road, Dunmore"
 //! ```
 
 use std::path::{Path, PathBuf};
@@ -53,6 +57,39 @@ pub enum ConfigError {
 struct File {
     #[serde(default)]
     display: Display,
+    #[serde(default)]
+    lab: Option<Lab>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct Lab {
+    name: String,
+    #[serde(default)]
+    address: Option<String>,
+}
+
+/// The issuing lab the config file names, as a certificate prints it ("name, address").
+pub fn issuer() -> Result<Option<String>, ConfigError> {
+    let (path, named) = config_path();
+    if !(named || path.is_file()) {
+        return Ok(None);
+    }
+    let at = path.display().to_string();
+    let text = std::fs::read_to_string(&path).map_err(|e| ConfigError::Read {
+        path: at.clone(),
+        reason: e.to_string(),
+    })?;
+    let file: File = toml::from_str(&text).map_err(|e| ConfigError::Syntax {
+        path: at,
+        reason: e.to_string().trim().to_string(),
+    })?;
+    Ok(file
+        .lab
+        .map(|l| match l.address.filter(|a| !a.trim().is_empty()) {
+            Some(a) => format!("{}, {}", l.name.trim(), a.trim()),
+            None => l.name.trim().to_string(),
+        }))
 }
 
 #[derive(Deserialize, Default)]

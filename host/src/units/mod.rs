@@ -8,7 +8,7 @@ mod config;
 mod display;
 mod phrase;
 
-pub use config::{choose, config_path, load, ConfigError, CONFIG_ENV};
+pub use config::{choose, config_path, issuer, load, ConfigError, CONFIG_ENV};
 pub use display::{DisplayUnits, FluxUnit, TempUnit, UnknownUnit};
 pub use phrase::{alpha, flux, span, temp as temp_q, Kind, Part, Phrase, Qty};
 

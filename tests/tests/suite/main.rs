@@ -25,5 +25,6 @@ mod reference_path;
 mod reference_type_k;
 mod rig_safety;
 mod safe_peak;
+mod sealed;
 mod throughput;
 mod util;
