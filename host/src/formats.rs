@@ -77,19 +77,8 @@ const PROFILE_KEYS: &[&str] = &[
     "segment[].hold_s",
 ];
 
-const SPEC_KEYS: &[&str] = &[
-    "grade",
-    "grade[].grade",
-    "grade[].family",
-    "grade[].br_min_T",
-    "grade[].br_max_T",
-    "grade[].alpha_min_pct_per_C",
-    "grade[].alpha_max_pct_per_C",
-    "grade[].max_working_C",
-    "grade[].source",
-];
-
-/// Optional spec keys: the coercivity the safe test temperature is worked out from.
+/// A spec table's keys: the required ones first, then the coercivity the safe test peak is
+/// worked out from (optional).
 const SPEC_OPTIONAL_KEYS: &[&str] = &[
     "grade",
     "grade[].grade",
@@ -104,6 +93,8 @@ const SPEC_OPTIONAL_KEYS: &[&str] = &[
     "grade[].beta_hcj_pct_per_C",
     "grade[].recoil_permeability",
 ];
+/// The spec keys every grade must give.
+const SPEC_KEYS: &[&str] = SPEC_OPTIONAL_KEYS.split_at(9).0;
 
 const CALIBRATION_KEYS: &[&str] = &[
     "hall",

@@ -28,6 +28,19 @@ const N42_KNEE: Knee = Knee {
     squareness: 0.95,
 };
 
+/// A conforming N42 disc, Ø10 × 5 mm.
+const N42_DISC: Magnet = Magnet {
+    shape: DISC_10X5,
+    br_20_t: 1.30,
+    alpha_pct_per_c: -0.105,
+    gamma_pct_per_c2: -0.00010,
+    irreversible_onset_c: 85.0,
+    irreversible_pct_per_c: 0.08,
+    curie_c: 320.0,
+    knee: Some(N42_KNEE),
+    max_working_c: 80.0,
+};
+
 /// A conforming N42SH's own curve (the grade's minimum is 1592 kA/m).
 const N42SH_KNEE: Knee = Knee {
     hcj_20_ka_per_m: 1680.0,
@@ -41,17 +54,7 @@ pub const PARTS: [DemoPart; 9] = [
         id: "RM-N42-D10x5",
         description: "sintered NdFeB disc, grade N42, Ø10 × 5 mm",
         grade: "N42",
-        magnet: Magnet {
-            shape: DISC_10X5,
-            br_20_t: 1.30,
-            alpha_pct_per_c: -0.105,
-            gamma_pct_per_c2: -0.00010,
-            irreversible_onset_c: 85.0,
-            irreversible_pct_per_c: 0.08,
-            curie_c: 320.0,
-            knee: Some(N42_KNEE),
-            max_working_c: 80.0,
-        },
+        magnet: N42_DISC,
     },
     DemoPart {
         id: "RM-N42SH-D10x5",
@@ -192,16 +195,10 @@ pub const PARTS: [DemoPart; 9] = [
         id: "RM-N42-D10x5-RTR",
         description: "rotor magnet, grade N42, Ø10 × 5 mm, from an overheated motor: it lost about 5 % of its flux in service",
         grade: "N42",
+        // what it has left after its overheating: its knee no nearer than a conforming N42's
         magnet: Magnet {
-            shape: DISC_10X5,
             br_20_t: 1.235,
-            alpha_pct_per_c: -0.105,
-            gamma_pct_per_c2: -0.00010,
-            irreversible_onset_c: 85.0,
-            irreversible_pct_per_c: 0.08,
-            curie_c: 320.0,
-            knee: Some(N42_KNEE),
-            max_working_c: 80.0,
+            ..N42_DISC
         },
     },
 ];

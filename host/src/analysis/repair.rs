@@ -107,21 +107,15 @@ impl Repairs {
                 .into(),
             );
         }
-        if !self.restart_lines.is_empty() {
-            let lines: Vec<String> = self.restart_lines.iter().map(|l| l.to_string()).collect();
+        let restarts = [
+            (&self.restart_lines, "(a logger restarted, or files joined): continued from where it stopped, the rows on both sides joining up in temperature and flux"),
+            (&self.split_lines, "and the rows on either side do not join up in temperature and flux: the file holds more than one record, and each part is analysed apart"),
+        ];
+        for (at, what) in restarts.into_iter().filter(|(at, _)| !at.is_empty()) {
+            let lines: Vec<String> = at.iter().map(|l| l.to_string()).collect();
             out.push(
                 format!(
-                    "the time column restarts at line {} (a logger restarted, or files joined): continued from where it stopped, the rows on both sides joining up in temperature and flux",
-                    lines.join(", ")
-                )
-                .into(),
-            );
-        }
-        if !self.split_lines.is_empty() {
-            let lines: Vec<String> = self.split_lines.iter().map(|l| l.to_string()).collect();
-            out.push(
-                format!(
-                    "the time column restarts at line {} and the rows on either side do not join up in temperature and flux: the file holds more than one record, and each part is analysed apart",
+                    "the time column restarts at line {} {what}",
                     lines.join(", ")
                 )
                 .into(),
