@@ -193,7 +193,7 @@ impl Store {
         grade: Option<&str>,
     ) -> Result<Vec<TrendPoint>, StoreError> {
         let mut sql = "SELECT r.started_utc, r.magnet_id, r.lot,
-            r.latest_alpha_pct_per_C, r.latest_br_T, r.latest_loss_pct
+            r.latest_alpha_pct_per_C, r.latest_br_T, r.latest_loss_pct, r.grade
             FROM runs r WHERE r.supplier = $1 AND r.latest_analysis_uid IS NOT NULL"
             .to_string();
         let mut vals = vec![Value::Text(supplier.into())];
@@ -213,6 +213,7 @@ impl Store {
                 alpha_pct_per_c: r[3].real(),
                 br_t: r[4].real(),
                 loss_pct: r[5].real(),
+                grade: r[6].text(),
             })
             .collect())
     }
@@ -233,6 +234,8 @@ pub struct TrendPoint {
     pub br_t: Option<f64>,
     /// Irreversible loss, %.
     pub loss_pct: Option<f64>,
+    /// Stated grade.
+    pub grade: Option<String>,
 }
 
 /// A lot at a glance.

@@ -11,7 +11,7 @@ pub struct Panel {
     pub quantity: String,
     /// (seconds since 1970, value, magnet id) of each run that has it, in time order.
     pub points: Vec<(f64, f64, String)>,
-    /// The baseline's limits (None: fewer than two values).
+    /// The baseline's limits (None: fewer than [`MIN_RUNS_FOR_LIMITS`] values).
     pub limits: Option<Limits>,
 }
 
@@ -38,6 +38,23 @@ pub struct TrendChart {
     pub panels: Vec<Panel>,
 }
 
+/// Control limits are drawn only from this many runs or more (a preliminary individuals chart;
+/// common practice asks 20 to 25 for a settled one): below it the points are shown alone.
+pub const MIN_RUNS_FOR_LIMITS: usize = 8;
+
+/// The grades among a trend's runs, each with its count (a run with none counts as "—").
+pub fn grades(points: &[TrendPoint]) -> Vec<(String, usize)> {
+    let mut out: Vec<(String, usize)> = Vec::new();
+    for p in points {
+        let g = p.grade.clone().unwrap_or_else(|| "—".into());
+        match out.iter_mut().find(|(h, _)| *h == g) {
+            Some(e) => e.1 += 1,
+            None => out.push((g, 1)),
+        }
+    }
+    out
+}
+
 /// Build the chart from the trend's points; limits from the first `baseline` runs of each.
 pub fn chart(
     supplier: &str,
@@ -57,7 +74,9 @@ pub fn chart(
         let values: Vec<f64> = pts.iter().map(|p| p.1).collect();
         Panel {
             quantity: quantity.into(),
-            limits: individuals(&values, baseline),
+            limits: (values.len() >= MIN_RUNS_FOR_LIMITS)
+                .then(|| individuals(&values, baseline))
+                .flatten(),
             points: pts,
         }
     };
@@ -114,6 +133,7 @@ mod tests {
                 alpha_pct_per_c: Some(-0.11 + 0.001 * f64::from(k % 5)),
                 br_t: Some(1.30 + 0.002 * f64::from(k % 3)),
                 loss_pct: Some(0.01 * f64::from(k % 4)),
+                grade: Some("N42".into()),
             })
             .collect();
         let si = chart("S", None, &points, 25);

@@ -74,12 +74,20 @@ fn draw_panel<DB: DrawingBackend>(
         .build_cartesian_2d(x.clone(), tickable(y_range(p)))
         .map_err(e)?;
     let mut mesh = c.configure_mesh();
+    // a date once per label: over a few days the labels carry the time of day as well
+    let short = x.end - x.start < 3.0;
+    let label = move |d: &f64| {
+        let s = crate::clock::format_utc((d * DAY_S).max(0.0) as u64);
+        if short {
+            s[5..16].replace('T', " ")
+        } else {
+            s[..10].to_string()
+        }
+    };
     mesh.y_desc(&p.quantity)
         .y_label_formatter(&tick)
-        .x_labels(8)
-        .x_label_formatter(&|d| {
-            crate::clock::format_utc((d * DAY_S).max(0.0) as u64)[..10].to_string()
-        })
+        .x_labels(6)
+        .x_label_formatter(&label)
         .label_style(("sans-serif", 13))
         .axis_desc_style(("sans-serif", 15));
     if last {

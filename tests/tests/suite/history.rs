@@ -463,6 +463,7 @@ fn a_suppliers_drift_shows_beyond_the_control_limits_on_the_chart() {
             ),
             br_t: Some(1.30),
             loss_pct: None,
+            grade: Some("N42SH".into()),
         })
         .collect();
     let chart = remanent::history::trend::chart("Ferrum Works", Some("N42SH"), &points, 25);
@@ -484,4 +485,36 @@ fn a_suppliers_drift_shows_beyond_the_control_limits_on_the_chart() {
         remanent::plots::write_trend_plot(&dir.path().join("trend"), &chart, false).is_err(),
         "never replaced without force"
     );
+}
+
+#[test]
+fn a_trend_of_a_few_runs_draws_no_limits_and_mixed_grades_are_counted() {
+    use remanent::history::trend::{chart, grades, MIN_RUNS_FOR_LIMITS};
+    use remanent::history::TrendPoint;
+    // three runs of two grades: the loss limits once came out as −2.0 … from mixed grades
+    let point = |k: u64, grade: &str, loss: f64| TrendPoint {
+        when_utc: remanent::clock::format_utc(1_767_225_600 + k * 3_600),
+        magnet_id: Some(format!("M{k}")),
+        lot: None,
+        alpha_pct_per_c: Some(-0.11),
+        br_t: Some(1.30),
+        loss_pct: Some(loss),
+        grade: Some(grade.into()),
+    };
+    let points = vec![
+        point(0, "N42", 0.0),
+        point(1, "N42SH", 2.0),
+        point(2, "N42", 0.0),
+    ];
+    assert_eq!(
+        grades(&points),
+        vec![("N42".to_string(), 2), ("N42SH".to_string(), 1)]
+    );
+    let c = chart("Kestrel", None, &points, 25);
+    assert!(points.len() < MIN_RUNS_FOR_LIMITS);
+    assert!(
+        c.panels.iter().all(|p| p.limits.is_none()),
+        "no limits from three runs"
+    );
+    assert_eq!(c.panels[2].points.len(), 3, "the runs are still drawn");
 }

@@ -41,6 +41,16 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
             store.describe()
         );
     }
+    let grades = remanent::history::trend::grades(&points);
+    if a.grade.is_none() && grades.len() > 1 {
+        let list: Vec<String> = grades.iter().map(|(g, n)| format!("{g}: {n}")).collect();
+        anyhow::bail!(
+            "supplier `{}`'s runs are of {} grades ({}): α and Br differ by grade, so one chart's limits would mislead — give --grade",
+            a.supplier,
+            grades.len(),
+            list.join(", ")
+        );
+    }
     let chart = remanent::history::trend::chart(
         &a.supplier,
         a.grade.as_deref(),
@@ -59,7 +69,12 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
                 l.baseline,
                 p.outside().len()
             ),
-            None => println!("{:<22} fewer than two values: no limits", p.quantity),
+            None => println!(
+                "{:<22} {} runs: control limits need at least {} (the runs are drawn without them)",
+                p.quantity,
+                p.points.len(),
+                remanent::history::trend::MIN_RUNS_FOR_LIMITS
+            ),
         }
         for (t, v, id) in p.outside() {
             println!(
