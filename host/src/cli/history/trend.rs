@@ -70,9 +70,9 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
                 p.outside().len()
             ),
             None => println!(
-                "{:<22} {} runs: control limits need at least {} (the runs are drawn without them)",
+                "{:<22} {}: control limits need at least {} (the runs are drawn without them)",
                 p.quantity,
-                p.points.len(),
+                remanent::units::count(p.points.len() as u64, "run", "runs"),
                 remanent::history::trend::MIN_RUNS_FOR_LIMITS
             ),
         }
