@@ -96,6 +96,10 @@ fn seg(target_c: f64, ramp_c_per_min: f64, hold_s: f64) -> SegmentSpec {
 /// The inspection profile's peak when the part allows more, °C: above it a 15-minute test
 /// gains little for α (tables quote 20…100 or 20…150 °C) and the cool-down costs more.
 pub const INSPECT_TOP_C: f64 = 120.0;
+/// How long the inspection profile holds its return reference at most, s (the record ends
+/// sooner once the analysis has what it needs): the whole profile stays within 15 minutes
+/// of fixture time, its rest before heating included.
+pub const INSPECT_RETURN_HOLD_S: f64 = 180.0;
 /// Where the inspection profile takes its return reference, °C: close enough to the first
 /// reference for α to bridge them within the loss's ±0.1 %, reached by free cooling.
 pub const INSPECT_RETURN_C: f64 = 32.0;
@@ -112,9 +116,9 @@ pub fn inspect(peak_c: f64) -> ProfileSpec {
         .floor();
     ProfileSpec {
         name: "inspect".into(),
-        description: format!("non-destructive inspection, α and loss in about 15 minutes: 20 s reference at 25 °C, ramp at 25 °C/min to the part's safe test peak (here {peak_c:.0} °C; at most {INSPECT_TOP_C:.0} °C), 90 s hold, heater off until {back_c:.0} °C, up to 5 min of return reference there (the record ends as soon as the analysis has what it needs)"),
+        description: format!("non-destructive inspection, α and loss in about 15 minutes: 20 s reference at 25 °C, ramp at 25 °C/min to the part's safe test peak (here {peak_c:.0} °C; at most {INSPECT_TOP_C:.0} °C), 90 s hold, heater off until {back_c:.0} °C, up to {INSPECT_RETURN_HOLD_S:.0} s of return reference there (the record ends as soon as the analysis has what it needs)"),
         limit_c: peak_c + 15.0,
-        segments: vec![seg(25.0, 0.0, 20.0), seg(peak_c, 25.0, 90.0), seg(back_c, 0.0, 300.0)],
+        segments: vec![seg(25.0, 0.0, 20.0), seg(peak_c, 25.0, 90.0), seg(back_c, 0.0, INSPECT_RETURN_HOLD_S)],
     }
 }
 
