@@ -217,58 +217,63 @@ pub struct AnalysisRow {
 /// but not its provenance (when it was made, the lot or operator given with it: those describe
 /// the run), so the same analysis stored twice is one row.
 pub fn analysis_row(run_uid: &str, a: &Analysis) -> AnalysisRow {
-    // one serialisation (the per-sample traces are not part of it); the key is the same text
-    // with the provenance taken out, exactly as it was written into it
-    let json = serde_json::to_string(a).unwrap_or_default();
-    let provenance = serde_json::to_string(&a.provenance).unwrap_or_default();
+    // one serialisation (the per-sample traces are not part of it)
+    let json = serde_json::to_value(a).expect("an analysis serializes");
+    filed_row(run_uid, &json).expect("an analysis has its own fields")
+}
+
+/// The row of an analysis as it was filed (a run's `analysis.json`, read back as JSON): the same
+/// key and columns [`analysis_row`] gives the analysis it was written from. `None` when the
+/// JSON is not an analysis (no provenance, verdict or fit method).
+pub fn filed_row(run_uid: &str, a: &serde_json::Value) -> Option<AnalysisRow> {
+    use serde_json::Value as J;
+    let obj = a.as_object()?;
+    // the text is the compact serialisation in the analysis's own field order (serde_json keeps
+    // it), and the key the same text with the provenance taken out, exactly as written into it
+    let json = a.to_string();
+    let provenance = obj.get("provenance")?;
     let key_json = json.replacen(&format!("\"provenance\":{provenance}"), "", 1);
     let uid = fingerprint(&["analysis", run_uid, &key_json]);
-    let verdict = serde_json::to_value(a.verdict)
-        .ok()
-        .and_then(|v| v.as_str().map(String::from))
-        .unwrap_or_default();
-    let finite = |v: f64| {
-        if v.is_finite() {
-            Value::Real(v)
-        } else {
-            Value::Null
-        }
+    let field = |k: &str| obj.get(k).unwrap_or(&J::Null);
+    let num = |v: &J| {
+        v.as_f64()
+            .filter(|x| x.is_finite())
+            .map_or(Value::Null, Value::Real)
     };
-    let opt = |v: Option<f64>| v.filter(|x| x.is_finite()).map_or(Value::Null, Value::Real);
-    let (alpha, br, loss) = (
-        finite(a.alpha_pct_per_c),
-        opt(a.br.as_ref().map(|b| b.br_t)),
-        opt(a.irreversible_loss_pct),
+    let text = |v: &J| v.as_str().map_or(Value::Null, |s| Value::Text(s.into()));
+    let flag = |k: &str| Value::Int(field(k).as_bool().unwrap_or(false).into());
+    let br = |k: &str| num(field("br").get(k).unwrap_or(&J::Null));
+    let range = |i: usize| num(field("fit_range_C").get(i).unwrap_or(&J::Null));
+    let verdict = Value::Text(field("verdict").as_str()?.into());
+    let method = Value::Text(field("fit_method_code").as_str()?.into());
+    let (alpha, loss) = (
+        num(field("alpha_pct_per_C")),
+        num(field("irreversible_loss_pct")),
     );
-    let latest = [
-        Value::Text(verdict.clone()),
-        alpha.clone(),
-        br.clone(),
-        loss.clone(),
-    ];
+    let latest = [verdict.clone(), alpha.clone(), br("br_t"), loss.clone()];
     let values = vec![
         uid.into(),
         run_uid.into(),
-        a.provenance.analysed_utc.as_str().into(),
+        Value::Text(provenance.get("analysed_utc")?.as_str()?.into()),
         super::error::software().into(),
-        verdict.into(),
-        a.grade.clone().into(),
-        a.material_family.as_str().into(),
+        verdict,
+        text(field("grade")),
+        Value::Text(field("material_family").as_str()?.into()),
         alpha,
-        finite(a.alpha_u95_pct_per_c),
-        finite(a.b20_mt),
-        finite(a.b20_u_mt),
-        br,
-        opt(a.br.as_ref().map(|b| b.br_u95_t)),
+        num(field("alpha_u95_pct_per_C")),
+        num(field("b20_mT")),
+        num(field("b20_u_mT")),
+        br("br_t"),
+        br("br_u95_t"),
         loss,
-        opt(a.irreversible_loss_u95_pct),
-        finite(a.fit_range_c[0]),
-        finite(a.fit_range_c[1]),
-        finite(a.max_magnet_temp_c),
-        a.fit_method_code.as_str().into(),
-        Value::Int(a.heat_damaged.into()),
-        Value::Int(a.uncalibrated.into()),
+        num(field("irreversible_loss_u95_pct")),
+        range(0),
+        range(1),
+        num(field("max_magnet_temp_C")),
+        method,
+        flag("heat_damaged"),
+        flag("uncalibrated"),
         json.into(),
     ];
-    AnalysisRow { values, latest }
+    Some(AnalysisRow { values, latest })
 }

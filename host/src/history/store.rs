@@ -73,10 +73,21 @@ impl Store {
     /// Store an analysis of `run` (storing the run first if need be); true if it was new. The
     /// same analysis stored again changes nothing; a new one becomes the run's latest.
     pub fn put_analysis(&mut self, run: &RunEntry, a: &Analysis) -> Result<bool, StoreError> {
+        let row = entry::analysis_row(&run.run_uid, a);
         self.write(|db| {
             put_run(db, run)?;
-            put_analysis(db, &run.run_uid, a)
+            put_row(db, &run.run_uid, &row)
         })
+    }
+
+    /// Store an analysis as it was filed (its row from [`entry::filed_row`]), with its run;
+    /// (run new, analysis new).
+    pub fn put_filed(
+        &mut self,
+        run: &RunEntry,
+        row: &entry::AnalysisRow,
+    ) -> Result<(bool, bool), StoreError> {
+        self.write(|db| Ok((put_run(db, run)?, put_row(db, &run.run_uid, row)?)))
     }
 
     /// Store many runs with their analyses in one transaction; how many were new (runs,
@@ -86,7 +97,8 @@ impl Store {
             let (mut runs, mut analyses) = (0, 0);
             for (run, a) in items {
                 runs += u64::from(put_run(db, run)?);
-                analyses += u64::from(put_analysis(db, &run.run_uid, a)?);
+                let row = entry::analysis_row(&run.run_uid, a);
+                analyses += u64::from(put_row(db, &run.run_uid, &row)?);
             }
             Ok((runs, analyses))
         })
@@ -128,12 +140,15 @@ fn put_run(db: &mut dyn Backend, run: &RunEntry) -> Result<bool, StoreError> {
     Ok(false)
 }
 
-fn put_analysis(db: &mut dyn Backend, run_uid: &str, a: &Analysis) -> Result<bool, StoreError> {
-    let row = entry::analysis_row(run_uid, a);
+fn put_row(
+    db: &mut dyn Backend,
+    run_uid: &str,
+    row: &entry::AnalysisRow,
+) -> Result<bool, StoreError> {
     let new = db.execute(analysis_insert(), &row.values)? > 0;
     if new {
         // the figures the searches and trends read, kept beside the run in the same transaction
-        let [verdict, alpha, br, loss] = row.latest;
+        let [verdict, alpha, br, loss] = row.latest.clone();
         db.execute(
             "UPDATE runs SET latest_analysis_uid = $2, latest_verdict = $3,
                 latest_alpha_pct_per_C = $4, latest_br_T = $5, latest_loss_pct = $6

@@ -97,8 +97,33 @@ pub struct Imported {
     pub new_runs: u64,
     /// Analyses new to the store.
     pub new_analyses: u64,
+    /// Runs whose filed `analysis.json` was stored as it was filed.
+    pub as_filed: u64,
+    /// Runs analysed here (no analysis filed with them, or `reanalyse`).
+    pub analysed: u64,
     /// Runs stored without an analysis, with why it could not be made.
     pub not_analysed: Vec<(PathBuf, String)>,
+    /// Filed analyses that could not be read (the run was analysed here instead), with why.
+    pub unreadable_filed: Vec<(PathBuf, String)>,
+}
+
+/// A run's filed analysis (its `analysis.json`, as the report wrote it), as a store row; `None`
+/// when the run has none.
+fn filed(dir: &Path, run_uid: &str) -> Option<Result<crate::history::entry::AnalysisRow, String>> {
+    let file = dir.join(crate::report::JSON_FILE);
+    let text = std::fs::read_to_string(&file).ok()?;
+    Some(
+        serde_json::from_str::<serde_json::Value>(&text)
+            .map_err(|e| format!("{}: {e}", file.display()))
+            .and_then(|json| {
+                crate::history::entry::filed_row(run_uid, &json).ok_or_else(|| {
+                    format!(
+                        "{}: not an analysis (no provenance, verdict or fit method)",
+                        file.display()
+                    )
+                })
+            }),
+    )
 }
 
 /// Every run directory at or directly under each path (sorted).
@@ -127,13 +152,17 @@ pub fn run_dirs(paths: &[PathBuf]) -> Result<Vec<PathBuf>, HistoryError> {
 }
 
 /// Import run directories: each run, with `given` filling in the lot, order, supplier or
-/// operator it lacks, and its analysis (with its own calibration, judged as `judging` says).
+/// operator it lacks, and its analysis *as filed* (the `analysis.json` its report wrote: the
+/// verdict its certificate states). A run filed with no analysis is analysed here (with its own
+/// calibration and kept reference, judged as `judging` says); `reanalyse` analyses every run
+/// again and keeps the new analysis beside the filed one (it becomes the run's latest).
 /// Importing the same runs again changes nothing.
 pub fn import(
     at: &Location,
     paths: &[PathBuf],
     given: &Inspection,
     judging: &Judging,
+    reanalyse: bool,
 ) -> Result<Imported, HistoryError> {
     let dirs = run_dirs(paths)?;
     let mut store = Store::open(at)?;
@@ -145,6 +174,21 @@ pub fn import(
         let meta = read_meta(&dir)?;
         let mut entry = RunEntry::from_run(&dir, &meta);
         entry.inspection = meta.inspection.or(given);
+        let mut have_filed = false;
+        match filed(&dir, &entry.run_uid) {
+            Some(Ok(row)) => {
+                let (r, n) = store.put_filed(&entry, &row)?;
+                done.new_runs += u64::from(r);
+                done.new_analyses += u64::from(n);
+                done.as_filed += 1;
+                have_filed = true;
+            }
+            Some(Err(why)) => done.unreadable_filed.push((dir.clone(), why)),
+            None => {}
+        }
+        if have_filed && !reanalyse {
+            continue;
+        }
         let req = InputRequest {
             input: dir.clone(),
             specs: judging.specs.clone(),
@@ -157,6 +201,7 @@ pub fn import(
                 let (r, n) = store.put_many(&[(entry, &a)])?;
                 done.new_runs += r;
                 done.new_analyses += n;
+                done.analysed += 1;
             }
             Err(e @ (JobError::Analysis { .. } | JobError::Dataset(_))) => {
                 done.new_runs += u64::from(store.put_run(&entry)?);

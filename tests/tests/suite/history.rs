@@ -58,6 +58,7 @@ fn exercise(at: &Location) {
         &runs[..2],
         &shipment("L-2611-A", "Ferrum Works"),
         &judging,
+        false,
     )
     .unwrap();
     let b = import(
@@ -65,6 +66,7 @@ fn exercise(at: &Location) {
         &runs[2..],
         &shipment("L-2611-B", "Cobalt Coast"),
         &judging,
+        false,
     )
     .unwrap();
     assert_eq!(
@@ -75,7 +77,7 @@ fn exercise(at: &Location) {
     let all = store.find(&Filter::default()).unwrap();
     assert_eq!(all.len(), 3);
     let csv_before = remanent::history::export::to_csv(&all);
-    let again = import(at, runs, &Inspection::default(), &judging).unwrap();
+    let again = import(at, runs, &Inspection::default(), &judging, false).unwrap();
     assert_eq!(
         (again.new_runs, again.new_analyses),
         (0, 0),
@@ -247,7 +249,14 @@ fn migrates_an_old_store(at: &Location) {
         remanent::history::schema::SCHEMA_VERSION
     );
     assert_eq!(new.counts().unwrap(), (1, 0));
-    let again = import(at, &[run], &Inspection::default(), &Judging::default()).unwrap();
+    let again = import(
+        at,
+        &[run],
+        &Inspection::default(),
+        &Judging::default(),
+        false,
+    )
+    .unwrap();
     assert_eq!((again.new_runs, again.new_analyses), (0, 1));
 }
 
@@ -438,6 +447,7 @@ fn pg_a_connection_dropped_mid_write_is_said_and_the_run_can_be_imported_again()
         &[run.to_path_buf()],
         &Inspection::default(),
         &Judging::default(),
+        false,
     )
     .unwrap();
     assert_eq!(

@@ -36,6 +36,7 @@ fn an_import_judges_a_run_with_the_reference_its_certificate_was_issued_with() {
         std::slice::from_ref(&run),
         &Default::default(),
         &Judging::default(),
+        false,
     )
     .unwrap();
     assert_eq!(done.new_analyses, 1);
@@ -95,4 +96,63 @@ fn a_report_written_elsewhere_carries_the_runs_own_facts() {
         html.contains("RM-N42SH-D10x5") && html.contains("simulated"),
         "the run table"
     );
+}
+
+#[test]
+fn an_import_files_the_analysis_as_filed_and_a_reanalysis_only_beside_it() {
+    // `history import` re-analysed every run with whatever it was given, so a part certified
+    // FAIL against the supplier's datasheet came into the history as the built-in table judged
+    // it. The filed analysis.json is what the certificate states: it is stored as filed.
+    let dir = tempfile::tempdir().unwrap();
+    let run = dir.path().join("run");
+    crate::util::rapid_run(&run, 8);
+    // a datasheet whose α window no N42SH meets (the built-in table's is −0.13…−0.09 %/°C)
+    let sheet = dir.path().join("datasheet.toml");
+    let row = "[[grade]]\ngrade = \"N42SH\"\nfamily = \"sintered NdFeB\"\nbr_min_T = 1.27\n\
+               br_max_T = 1.33\nalpha_min_pct_per_C = -0.05\nalpha_max_pct_per_C = -0.01\n\
+               max_working_C = 150\nhcj_min_kA_per_m = 1592\nbeta_hcj_pct_per_C = -0.55\n\
+               source = \"the supplier's datasheet (invented for this test)\"\n";
+    std::fs::write(&sheet, row).unwrap();
+    let judging = Judging {
+        specs: Some(sheet),
+        ..Default::default()
+    };
+    let filed = report::run(&run, &judging, false, &Default::default())
+        .unwrap()
+        .analysis
+        .expect("analysed");
+    assert_eq!(filed.verdict.to_string(), "FAIL", "{:?}", filed.checks);
+    let at = Location::Sqlite(dir.path().join("h.sqlite"));
+    let verdicts = || {
+        let mut s = Store::open(&at).unwrap();
+        let latest = s.find(&Filter::default()).unwrap()[0].verdict.clone();
+        (latest, s.counts().unwrap())
+    };
+    let plain = Judging::default();
+    let done = import(
+        &at,
+        std::slice::from_ref(&run),
+        &Default::default(),
+        &plain,
+        false,
+    );
+    let done = done.unwrap();
+    assert_eq!((done.as_filed, done.analysed), (1, 0));
+    assert_eq!(verdicts(), (Some("fail".into()), (1, 1)), "stored as filed");
+    // re-analysing is an explicit act, and the filed analysis stays beside the new one
+    let again = import(
+        &at,
+        std::slice::from_ref(&run),
+        &Default::default(),
+        &plain,
+        true,
+    );
+    assert_eq!(again.unwrap().analysed, 1);
+    let (latest, counts) = verdicts();
+    assert_ne!(
+        latest.as_deref(),
+        Some("fail"),
+        "the built-in table's judgement"
+    );
+    assert_eq!(counts, (1, 2), "both analyses kept");
 }
