@@ -92,7 +92,15 @@ const FLUX_WORDS: &[&str] = &[
     "b_field",
     "magnetic_field",
 ];
-const TIME_WORDS: &[&str] = &["time", "elapsed", "elapsed_time", "time_elapsed", "runtime"];
+const TIME_WORDS: &[&str] = &[
+    "time",
+    "elapsed",
+    "elapsed_time",
+    "time_elapsed",
+    "runtime",
+    "run_time",
+    "device_time",
+];
 const CLOCK_WORDS: &[&str] = &["clock", "timestamp", "datetime", "date_time"];
 
 /// The name's words, lower case, joined by `_`, and a unit given in brackets.

@@ -1,8 +1,8 @@
-//! A run reported against a fixture reference keeps that reference beside it, so whatever
-//! analyses the run later — an import into the history above all — judges it as its
-//! certificate did. Before, `history import` re-analysed such runs from the geometry alone and
-//! filed INDETERMINATE for parts whose certificates said PASS.
-
+//! What the history files for a run is what was certified. A run reported against a fixture
+//! reference keeps that reference beside it, so whatever analyses the run later judges it as
+//! its certificate did (before, `history import` re-analysed such runs from the geometry alone
+//! and filed INDETERMINATE for parts whose certificates said PASS); an import stores the filed
+//! analysis itself; a logger's CSV is filed with the magnet it was analysed for.
 use remanent::history::{Filter, Location, Store};
 use remanent::jobs::{history::import, report, Judging};
 use remanent_rig_model::RigParams;
@@ -155,4 +155,26 @@ fn an_import_files_the_analysis_as_filed_and_a_reanalysis_only_beside_it() {
         "the built-in table's judgement"
     );
     assert_eq!(counts, (1, 2), "both analyses kept");
+}
+
+#[test]
+fn a_logged_csv_analysed_with_its_magnet_is_filed_with_the_magnet_and_grade() {
+    // a CSV analysed with --magnet was once stored with magnet and grade "—"; the tool's own
+    // samples.csv (time column `device_time_s`) is read as any logger's file
+    let dir = tempfile::tempdir().unwrap();
+    let run = dir.path().join("run");
+    crate::util::rapid_run(&run, 9);
+    let csv = run.join("samples.csv");
+    let req = remanent::jobs::InputRequest {
+        input: csv.clone(),
+        magnet: Some("RM-N42SH-D10x5".into()),
+        ..Default::default()
+    };
+    let (_, a) = remanent::jobs::analyze_input::load_and_analyze(&req).unwrap();
+    let at = Location::Sqlite(dir.path().join("h.sqlite"));
+    remanent::jobs::history::store_analysis(&at, &csv, &a).unwrap();
+    let found = Store::open(&at).unwrap().find(&Filter::default()).unwrap();
+    assert_eq!(found.len(), 1);
+    assert_eq!(found[0].magnet_id.as_deref(), Some("RM-N42SH-D10x5"));
+    assert_eq!(found[0].grade.as_deref(), Some("N42SH"));
 }
