@@ -200,9 +200,6 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         Qty::one(Kind::Alpha, true_alpha, 4).signed().render(u),
         truth.irreversible * 100.0
     );
-    a.store.keep("the analysis", |at| {
-        remanent::jobs::history::store_analysis(at, &out, &analysis)
-    });
     let look = remanent::report::Look {
         units: *u,
         issuer: remanent::units::issuer()?,
@@ -220,6 +217,9 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         false,
         &look,
     )?;
+    a.store.keep("the analysis and its certificate", |at| {
+        remanent::jobs::history::store_reported(at, &out, &analysis, &written)
+    });
     written.insert(0, ref_file);
     println!();
     for f in written {

@@ -75,7 +75,7 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
     }
     if let Some(analysis) = &r.analysis {
         a.store.keep("the analysis", |at| {
-            remanent::jobs::history::store_analysis(at, &a.run, analysis)
+            remanent::jobs::history::store_reported(at, &a.run, analysis, &r.written)
         });
     }
     // the outputs of a record that could not be analysed are written, but it is no result

@@ -52,6 +52,14 @@ pub enum StoreError {
         /// Why.
         reason: String,
     },
+    /// A certificate number already stands for a different analysis.
+    #[error("history store {store}: certificate number {number} is already filed for a different analysis; the new certificate was not filed")]
+    NumberTaken {
+        /// Which store.
+        store: String,
+        /// The number.
+        number: String,
+    },
     /// The engine refused a statement.
     #[error("history store {store}: {reason}")]
     Engine {

@@ -5,6 +5,7 @@
 //! CSV. Run directories stay the record of truth: anything lost here can be re-imported.
 
 mod backend;
+pub mod certificates;
 pub mod control;
 pub mod entry;
 mod error;
@@ -18,6 +19,7 @@ mod store;
 pub mod trend;
 
 pub use backend::Value;
+pub use certificates::CertificateEntry;
 pub use entry::RunEntry;
 pub use error::{software, StoreError};
 pub use location::{Location, STORE_ENV};

@@ -6,7 +6,7 @@ use super::backend::{Backend, Value};
 use super::error::StoreError;
 
 /// The schema version this program writes and reads.
-pub const SCHEMA_VERSION: i64 = 2;
+pub const SCHEMA_VERSION: i64 = 3;
 
 /// One step of the schema.
 pub struct Migration {
@@ -95,6 +95,24 @@ pub const MIGRATIONS: &[Migration] = &[
             "CREATE INDEX runs_by_start ON runs (started_utc)",
             "CREATE INDEX analyses_by_run ON analyses (run_uid)",
         ],
+    },
+    Migration {
+        version: 3,
+        summary: "certificates: each number once, with the fingerprints of the record and the \
+                  analysis it states and where it was written (what `verify NUMBER` checks)",
+        statements: &["CREATE TABLE certificates (
+                number TEXT PRIMARY KEY,
+                run_uid TEXT NOT NULL REFERENCES runs (run_uid),
+                analysis_uid TEXT NOT NULL,
+                issued_utc TEXT NOT NULL,
+                issuer TEXT,
+                folder TEXT NOT NULL,
+                raw_file TEXT NOT NULL,
+                raw_sha256 TEXT NOT NULL,
+                analysis_file TEXT NOT NULL,
+                analysis_sha256 TEXT NOT NULL,
+                stored_utc TEXT NOT NULL
+            )"],
     },
 ];
 

@@ -79,6 +79,45 @@ pub fn store_analysis(at: &Location, input: &Path, a: &Analysis) -> Result<bool,
     Ok(Store::open(at)?.put_analysis(&entry, a)?)
 }
 
+/// Store the analysis of a report and file the certificate it wrote, if it wrote one (its
+/// `certificate.toml` among `written`), in the store; true if the analysis was new.
+pub fn store_reported(
+    at: &Location,
+    input: &Path,
+    a: &Analysis,
+    written: &[PathBuf],
+) -> Result<bool, HistoryError> {
+    use crate::report::seal;
+    let entry = entry_for(input, a)?;
+    let mut store = Store::open(at)?;
+    let new = store.put_analysis(&entry, a)?;
+    let Some(file) = written.iter().find(|f| f.ends_with(seal::SEAL_FILE)) else {
+        return Ok(new);
+    };
+    let (s, folder) = seal::read_seal(file).map_err(|e| HistoryError::Read {
+        path: file.display().to_string(),
+        reason: e.to_string(),
+    })?;
+    let folder = std::fs::canonicalize(&folder).unwrap_or(folder);
+    store.put_certificate(&crate::history::CertificateEntry {
+        number: s.number,
+        run_uid: entry.run_uid.clone(),
+        analysis_uid: crate::history::entry::analysis_row(&entry.run_uid, a)
+            .values
+            .first()
+            .and_then(crate::history::Value::text)
+            .unwrap_or_default(),
+        issued_utc: s.issued_utc,
+        issuer: s.issuer,
+        folder: folder.display().to_string(),
+        raw_file: s.raw_file.display().to_string(),
+        raw_sha256: s.raw_sha256,
+        analysis_file: s.analysis_file.display().to_string(),
+        analysis_sha256: s.analysis_sha256,
+    })?;
+    Ok(new)
+}
+
 /// Store several analyses (a lot's) in one transaction; true if any was new.
 pub fn store_analyses(at: &Location, items: &[(PathBuf, Analysis)]) -> Result<bool, HistoryError> {
     let entries = items

@@ -9,5 +9,6 @@ pub mod lot;
 pub mod reference;
 pub mod report;
 pub mod trial;
+pub mod verify;
 
 pub use analyze_input::{load_and_analyze, Analyzed, InputRequest, JobError, Judging};

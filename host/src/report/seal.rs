@@ -111,8 +111,8 @@ pub struct Verified {
     pub changed: Vec<(PathBuf, String, Option<String>)>,
 }
 
-/// Recompute the fingerprint of the certificate whose seal is in `dir` (or is the file `dir`).
-pub fn verify(dir: &Path) -> Result<Verified, SealError> {
+/// The seal in `dir` (or the seal file `dir`), and the folder its paths are relative to.
+pub fn read_seal(dir: &Path) -> Result<(Seal, PathBuf), SealError> {
     let file = if dir.is_dir() {
         dir.join(SEAL_FILE)
     } else {
@@ -123,7 +123,18 @@ pub fn verify(dir: &Path) -> Result<Verified, SealError> {
         path: file.display().to_string(),
         reason: crate::formats::bounded(&e.to_string()),
     })?;
-    let base = file.parent().unwrap_or(Path::new("."));
+    let base = file.parent().unwrap_or(Path::new(".")).to_path_buf();
+    Ok((seal, base))
+}
+
+/// Recompute the fingerprint of the certificate whose seal is in `dir` (or is the file `dir`).
+pub fn verify(dir: &Path) -> Result<Verified, SealError> {
+    let (seal, base) = read_seal(dir)?;
+    Ok(check(seal, &base))
+}
+
+/// Check the files `seal` names (relative to `base` unless absolute) against its digests.
+pub fn check(seal: Seal, base: &Path) -> Verified {
     let mut changed = Vec::new();
     for (f, want) in [
         (&seal.raw_file, &seal.raw_sha256),
@@ -139,7 +150,7 @@ pub fn verify(dir: &Path) -> Result<Verified, SealError> {
             changed.push((f.clone(), want.clone(), now));
         }
     }
-    Ok(Verified { seal, changed })
+    Verified { seal, changed }
 }
 
 /// `path` relative to `dir` when it lies inside it (a run's raw.bin), else as it is.

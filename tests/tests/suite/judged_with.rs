@@ -3,6 +3,7 @@
 //! its certificate did (before, `history import` re-analysed such runs from the geometry alone
 //! and filed INDETERMINATE for parts whose certificates said PASS); an import stores the filed
 //! analysis itself; a logger's CSV is filed with the magnet it was analysed for.
+
 use remanent::history::{Filter, Location, Store};
 use remanent::jobs::{history::import, report, Judging};
 use remanent_rig_model::RigParams;

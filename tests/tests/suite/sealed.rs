@@ -74,3 +74,56 @@ fn certificate_pages_carry_the_number_the_issuer_and_the_fingerprint() {
         );
     }
 }
+
+#[test]
+fn a_filed_certificate_is_verified_by_its_number_against_what_the_store_filed() {
+    use remanent::history::{Location, Store};
+    use remanent::jobs::verify::verify;
+    let dir = tempfile::tempdir().unwrap();
+    let run = certified(dir.path());
+    let at = Location::Sqlite(dir.path().join("h.sqlite"));
+    let r = report::run(&run, &Judging::default(), true, &Look::default()).unwrap();
+    let a = r.analysis.unwrap();
+    remanent::jobs::history::store_reported(&at, &run, &a, &r.written).unwrap();
+    let number = seal::verify(&run).unwrap().seal.number;
+    let by_number = verify(&number, &at).unwrap();
+    assert!(by_number.matches(), "{by_number:?}");
+    assert_eq!(by_number.filed, Some(true));
+    // one number per store: the same number for another analysis is refused
+    let mut store = Store::open(&at).unwrap();
+    let mut other = store.certificate(&number).unwrap().unwrap();
+    other.analysis_sha256 = "0".repeat(64);
+    let e = store.put_certificate(&other).unwrap_err().to_string();
+    assert!(e.contains(&number) && e.contains("already filed"), "{e}");
+    drop(store);
+    // the analysis changed and its certificate.toml edited to match: the folder alone agrees
+    // with itself, the store does not
+    let json = run.join("analysis.json");
+    let edited = std::fs::read_to_string(&json)
+        .unwrap()
+        .replacen("\"verdict\": \"fail\"", "\"verdict\": \"pass\"", 1)
+        .replacen("\"verdict\": \"indeterminate\"", "\"verdict\": \"pass\"", 1)
+        .replacen("\"schema_version\": 1", "\"schema_version\": 1 ", 1);
+    std::fs::write(&json, &edited).unwrap();
+    let toml_file = run.join(seal::SEAL_FILE);
+    let mut s: seal::Seal = toml::from_str(&std::fs::read_to_string(&toml_file).unwrap()).unwrap();
+    s.analysis_sha256 = seal::sha256_hex(edited.as_bytes());
+    std::fs::write(&toml_file, toml::to_string(&s).unwrap()).unwrap();
+    assert!(
+        seal::verify(&run).unwrap().changed.is_empty(),
+        "self-consistent"
+    );
+    for target in [number.clone(), run.display().to_string()] {
+        let audit = verify(&target, &at).unwrap();
+        assert!(!audit.matches(), "{target}: {audit:?}");
+        assert!(audit.seal_differs, "{target}");
+        assert_eq!(audit.verified.changed.len(), 1, "{target}: {audit:?}");
+        assert_eq!(
+            audit.verified.changed[0].0,
+            std::path::PathBuf::from("analysis.json")
+        );
+    }
+    // a number no store filed
+    let e = verify("RM-20260101-DEADBEEF", &at).unwrap_err().to_string();
+    assert!(e.contains("no certificate filed under that number"), "{e}");
+}
