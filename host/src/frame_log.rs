@@ -56,6 +56,7 @@ pub fn log(w: &mut RunWriter, e: &Event, t: Option<f64>) -> Result<(), RunDirErr
             };
             w.event(Some(f64::from(st.time_ms) / 1000.0), &state)
         }
+        Event::Resampled(r) => w.event(t, &RunEvent::Resampled(*r)),
         Event::Fault(f) => {
             w.meta.counts.faults += 1;
             w.event(Some(f64::from(f.time_ms) / 1000.0), &RunEvent::fault(f))

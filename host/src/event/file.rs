@@ -78,6 +78,13 @@ pub fn to_row(t: f64, e: &RunEvent) -> EventRow {
         RunEvent::StopRequested => row(t, "stop", none(), None, e),
         RunEvent::Stopped => row(t, "stopped", none(), None, e),
         RunEvent::SettleFailed(_) => row(t, "settle", none(), None, e),
+        RunEvent::Resampled(r) => row(
+            t,
+            "resampled",
+            format!("{}-{}", r.period_before_ms, r.period_ms),
+            Some(f64::from(r.from_seq)),
+            e,
+        ),
         RunEvent::Untyped { kind, .. } => row(t, kind, none(), None, e),
     }
 }
@@ -107,6 +114,18 @@ pub fn from_row(r: &EventRow) -> RunEvent {
             .map(|(before_seq, m)| RunEvent::Gap {
                 missing: m as u64,
                 before_seq,
+            }),
+        "resampled" => r
+            .code
+            .split_once('-')
+            .and_then(|(a, b)| Some((a.parse().ok()?, b.parse().ok()?)))
+            .zip(r.value)
+            .map(|((period_before_ms, period_ms), seq)| {
+                RunEvent::Resampled(crate::link::Resampled {
+                    period_before_ms,
+                    period_ms,
+                    from_seq: seq as u32,
+                })
             }),
         "state" | "state_beacon" => named::<RunState>(&r.code).map(|state| RunEvent::State {
             state,

@@ -79,6 +79,8 @@ pub enum RunEvent {
     Stopped,
     /// The last samples could not be settled after the end.
     SettleFailed(String),
+    /// The device's sampling changed during the record (a Configure the recorder never sends).
+    Resampled(crate::link::Resampled),
     /// A row of an events file written before events were typed: its kind and words.
     Untyped {
         /// The kind column.
@@ -179,6 +181,8 @@ pub enum Notice {
     },
     /// The device reports a latched fault whose report was lost on the link.
     FaultReportLost,
+    /// The device's sampling changed: another program configured it.
+    Resampled(crate::link::Resampled),
     /// The analysis could state what the record is for: it ends here.
     Complete(Phrase),
     /// A survey reads from a bench without a valid calibration, as the user asked.

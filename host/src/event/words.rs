@@ -45,8 +45,16 @@ pub fn event(e: &RunEvent) -> Phrase {
         RunEvent::StopRequested => phrase!("heater off requested as the record ends"),
         RunEvent::Stopped => phrase!("stop acknowledged; heater off"),
         RunEvent::SettleFailed(why) => phrase!("after the end: ", why.as_str()),
+        RunEvent::Resampled(r) => resampled(r),
         RunEvent::Untyped { detail, .. } => phrase!(detail.as_str()),
     }
+}
+
+fn resampled(r: &crate::link::Resampled) -> Phrase {
+    phrase!(format!(
+        "the device's sampling changed from {} ms to {} ms at seq {}: a Configure the recorder did not send (another program on the link); each sample is timed by the sampling in force when it was taken",
+        r.period_before_ms, r.period_ms, r.from_seq
+    ))
 }
 
 fn fault_words(
@@ -110,6 +118,7 @@ pub fn notice(n: &Notice) -> Phrase {
         Notice::StoppedElsewhere { ran_s, shortest_s } => phrase!(format!(
             "the device stopped after {ran_s:.0} s of a profile that takes at least {shortest_s:.0} s: a Stop the recorder did not send (another program on the link?); heater off"
         )),
+        Notice::Resampled(r) => resampled(r),
         Notice::FaultReportLost => phrase!(
             "the device reports a latched fault (its fault report was lost); heater off"
         ),

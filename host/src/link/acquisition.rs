@@ -53,6 +53,8 @@ pub enum Event {
     Hello(DeviceHello),
     /// A frame the decoder rejected.
     Rejected(FrameError),
+    /// The device's sampling changed (a Configure from another program).
+    Resampled(super::Resampled),
 }
 
 /// Where a session stands: a record holds only what the device sent after its hello.
@@ -116,6 +118,9 @@ impl Ingest {
                 }
                 for placed in settled {
                     out.push(self.sample_event(placed));
+                }
+                if let Some(r) = self.timeline.take_resampled() {
+                    out.push(Event::Resampled(r));
                 }
                 out.push(Event::Beacon(b));
             }

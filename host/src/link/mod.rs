@@ -8,4 +8,4 @@ pub mod timeline;
 pub mod words;
 
 pub use session::{LinkError, Session};
-pub use timeline::{PlacedSample, Timeline};
+pub use timeline::{PlacedSample, Resampled, Timeline};

@@ -25,6 +25,18 @@ pub struct PlacedSample {
     pub sample: Sample,
 }
 
+/// The device's sampling changed while it was being listened to (a Configure, which the recorder
+/// never sends: another program on the link).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Resampled {
+    /// The period before, ms.
+    pub period_before_ms: u16,
+    /// The period now, ms.
+    pub period_ms: u16,
+    /// The first sample of the new sampling.
+    pub from_seq: u32,
+}
+
 /// More samples than this are never held (a beacon comes every second).
 const MAX_HELD: usize = 4096;
 /// Samples sent after a beacon were taken after its newest less the device's queue (16) and
@@ -35,6 +47,11 @@ const QUEUE_MARGIN: u32 = 20;
 #[derive(Debug, Default, Clone)]
 pub struct Timeline {
     beacon: Option<Beacon>,
+    /// The beacon of the sampling before the latest change: samples taken before the change
+    /// are timed by it.
+    epoch_before: Option<Beacon>,
+    /// A change of sampling not yet taken by [`Timeline::take_resampled`].
+    resampled: Option<Resampled>,
     last_seq: Option<u32>,
     held: Vec<(Sample, i16)>,
     start_after: Option<u32>,
@@ -84,6 +101,16 @@ impl Timeline {
     pub fn beacon(&mut self, b: Beacon) -> Vec<PlacedSample> {
         self.device_dropped = b.dropped_total;
         let previous = self.beacon.replace(b);
+        if let Some(p) = previous.filter(|p| {
+            (p.epoch_seq, p.epoch_ms, p.period_ms) != (b.epoch_seq, b.epoch_ms, b.period_ms)
+        }) {
+            self.epoch_before = Some(p);
+            self.resampled = Some(Resampled {
+                period_before_ms: p.period_ms,
+                period_ms: b.period_ms,
+                from_seq: b.epoch_seq,
+            });
+        }
         let held = std::mem::take(&mut self.held);
         let floor = match (self.last_seq, previous) {
             (Some(l), Some(p)) => l.max(p.seq.wrapping_sub(QUEUE_MARGIN)),
@@ -116,6 +143,11 @@ impl Timeline {
             }
         }
         out
+    }
+
+    /// The device's sampling changed since this was last asked.
+    pub fn take_resampled(&mut self) -> Option<Resampled> {
+        self.resampled.take()
     }
 
     /// Samples waiting for a beacon.
@@ -152,8 +184,14 @@ impl Timeline {
             }
         }
         self.last_seq = Some(seq);
-        let slot_ms = f64::from(b.epoch_ms)
-            + f64::from(seq.wrapping_sub(b.epoch_seq)) * f64::from(b.period_ms);
+        // timed by the sampling in force when it was taken (a sample from before a change of
+        // sampling, timed from the new epoch, once wrapped to 4.3e8 s)
+        let e = match self.epoch_before {
+            Some(before) if (seq.wrapping_sub(b.epoch_seq) as i32) < 0 => before,
+            _ => b,
+        };
+        let slot_ms = f64::from(e.epoch_ms)
+            + f64::from(seq.wrapping_sub(e.epoch_seq)) * f64::from(e.period_ms);
         let device_time_s = (slot_ms + f64::from(sample.status.lateness_ms())) / 1000.0;
         Some(PlacedSample {
             seq,

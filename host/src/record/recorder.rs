@@ -205,6 +205,7 @@ impl Recorder {
                 return Ok(Some(RecordEnd::Fault(f.fault)));
             }
             Event::Reply { id, result } => return self.on_reply(*id, result, t, w),
+            Event::Resampled(r) => progress.notice(&Notice::Resampled(*r)),
             Event::Hello(_) => {}
         }
         Ok(None)

@@ -92,3 +92,64 @@ fn a_stop_from_another_program_is_named_and_is_no_finished_profile() {
         "the end's reason is kept: {meta}"
     );
 }
+
+#[test]
+fn a_configure_from_another_program_neither_corrupts_time_nor_goes_unreported() {
+    // before: the samples held across the device's new sampling epoch were timed from it and
+    // wrapped to 4.3e8 s (572 rows), and nothing said the period had changed
+    let part = magnets::resolve("RM-N42SH-D10x5").unwrap();
+    let opts = VirtualRigOptions::new(part.model.unwrap());
+    let params = opts.params;
+    let profile = ProfileSpec::resolve("rapid").unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let port = SecondWriter {
+        port: SimulatedPort::new(opts),
+        reads: 0,
+        // 20 s into the minute at rest, while the device is idle and accepts it
+        at_read: 200,
+        command: Some(Command::Configure(remanent_protocol::SamplingConfig {
+            period_ms: 200,
+            oversample: 4,
+        })),
+    };
+    let rec = RecordOptions {
+        port_label: "simulated, with a second writer".into(),
+        silence_timeout: std::time::Duration::from_secs(5),
+        auto_end: Some(Default::default()),
+        ..RecordOptions::new(
+            part.info,
+            profile,
+            Calibration::virtual_rig(&params),
+            dir.path().join("run"),
+        )
+    };
+    let summary = record(port, rec, &mut Quiet).unwrap();
+    let run = dir.path().join("run");
+    let samples = std::fs::read_to_string(run.join("samples.csv")).unwrap();
+    let times: Vec<f64> = samples
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').nth(1).unwrap().parse().unwrap())
+        .collect();
+    assert!(times.len() > 1000, "{} rows", times.len());
+    let last = *times.last().unwrap();
+    assert!(last < 3600.0, "the record's last sample at {last} s");
+    for w in times.windows(2) {
+        assert!(
+            w[1] > w[0] && w[1] - w[0] < 1.0,
+            "device time steps {} → {} s",
+            w[0],
+            w[1]
+        );
+    }
+    let events = std::fs::read_to_string(run.join("events.csv")).unwrap();
+    let line = events
+        .lines()
+        .find(|l| l.contains(",resampled,"))
+        .unwrap_or_else(|| panic!("no resampled event:\n{events}"));
+    assert!(
+        line.contains("100 ms") && line.contains("200 ms") && line.contains("another program"),
+        "{line}"
+    );
+    assert!(summary.end.is_complete(), "{:?}", summary.end);
+}
