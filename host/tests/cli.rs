@@ -38,16 +38,14 @@ fn sampling_plan_never_replaces_a_plot_without_force() {
     let dir = tempfile::tempdir().unwrap();
     let stem = dir.path().join("oc");
     let stem = stem.to_str().unwrap();
-    let args = [
-        "sampling-plan",
-        "--aql",
-        "0.01",
-        "--rql",
-        "0.06",
-        "--plot",
-        stem,
-    ];
-    assert_eq!(run(&args).0, 0);
+    let args = ["sampling-plan", "--aql", "1", "--rql", "6%", "--plot", stem];
+    let (code, text) = run(&args);
+    assert_eq!(code, 0, "{text}");
+    // AQL and RQL in percent, as practitioners write them, and said back as read
+    assert!(
+        text.contains("AQL 1.00 %") && text.contains("RQL 6.00 %"),
+        "{text}"
+    );
     let before = std::fs::metadata(format!("{stem}.png"))
         .unwrap()
         .modified()

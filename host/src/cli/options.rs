@@ -112,6 +112,18 @@ pub fn parse_finite(s: &str) -> Result<f64, String> {
     }
 }
 
+/// A quality level in percent defective, as AQL tables and practitioners write it (`1`, `1%`,
+/// `0.65`), as a fraction; between 0 and 100 % exclusive.
+pub fn parse_percent(s: &str) -> Result<f64, String> {
+    let v = parse_finite(s.trim().trim_end_matches('%'))?;
+    if v <= 0.0 || v >= 100.0 {
+        return Err(format!(
+            "{v} % is not a fraction defective a lot can have (between 0 and 100 %)"
+        ));
+    }
+    Ok(v / 100.0)
+}
+
 /// A tick for every line typed on the terminal (Enter pressed), read on a thread of its own;
 /// the channel closes when the terminal does.
 pub fn enter_presses() -> std::sync::mpsc::Receiver<()> {

@@ -7,11 +7,12 @@ use remanent::sampling::{design, Model};
 
 #[derive(clap::Args)]
 pub struct Args {
-    /// Acceptable quality level: fraction defective a good lot may have (e.g. 0.01).
-    #[arg(long)]
+    /// Acceptable quality level, in percent defective a good lot may have, as AQL tables write
+    /// it (`1` or `1%` is one part in a hundred; `0.65` is 0.65 %).
+    #[arg(long, value_name = "PERCENT", value_parser = super::options::parse_percent)]
     aql: f64,
-    /// Rejectable quality level: fraction defective a bad lot has (e.g. 0.06).
-    #[arg(long)]
+    /// Rejectable quality level, in percent defective a bad lot has (e.g. `6`).
+    #[arg(long, value_name = "PERCENT", value_parser = super::options::parse_percent)]
     rql: f64,
     /// Producer's risk: chance of rejecting a lot at the AQL.
     #[arg(long, default_value_t = 0.05)]
@@ -74,7 +75,11 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         per.total_s() / 60.0,
         per.rest_s,
         per.profile_s / 60.0,
-        if profile.name == "rapid" { " at most: the record ends once α and the loss are known" } else { "" },
+        if ["rapid", "inspect"].contains(&profile.name.as_str()) {
+            " nominal; the record often ends sooner, once α and the loss are known"
+        } else {
+            ""
+        },
         per.handling_s / 60.0,
         t.rig_hours,
         remanent::units::count(a.rigs, "rig", "rigs"),
