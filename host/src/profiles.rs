@@ -134,7 +134,7 @@ pub fn builtin(name: &str) -> Option<ProfileSpec> {
         },
         "rapid" => ProfileSpec {
             name: "rapid".into(),
-            description: "α and loss in 12–15 minutes: 20 s reference at 25 °C, ramp to 100 °C at 25 °C/min, 90 s hold, heater off until 38 °C, up to 5 min of return reference there (the record ends as soon as the analysis has what it needs)".into(),
+            description: "α and loss in 11–15 minutes: 20 s reference at 25 °C, ramp to 100 °C at 25 °C/min, 90 s hold, heater off until 38 °C, up to 5 min of return reference there (the record ends as soon as the analysis has what it needs)".into(),
             limit_c: 115.0,
             segments: vec![seg(25.0, 0.0, 20.0), seg(100.0, 25.0, 90.0), seg(38.0, 0.0, 300.0)],
         },
@@ -157,6 +157,28 @@ pub fn builtin(name: &str) -> Option<ProfileSpec> {
 /// The reference fixture's natural cooling time constant toward room temperature, s (from the
 /// virtual rig's `rapid` runs in the throughput benchmark): what a step down costs.
 pub const FREE_COOLING_TAU_S: f64 = 133.0;
+
+/// A profile file of one's own, as `remanent profiles` shows it (every key required; the limit
+/// is the run's, which the firmware enforces).
+pub const EXAMPLE_FILE: &str = r#"name = "warm-check"
+description = "reference at 25 °C, 10 min at 60 °C, back to 25 °C"
+limit_C = 70
+
+[[segment]]
+target_C = 25
+ramp_C_per_min = 0      # 0: a step
+hold_s = 120
+
+[[segment]]
+target_C = 60
+ramp_C_per_min = 10
+hold_s = 600
+
+[[segment]]
+target_C = 25
+ramp_C_per_min = 5
+hold_s = 300
+"#;
 
 /// Names of the built-in profiles.
 pub const BUILTIN_NAMES: [&str; 5] = ["inspect", "rapid", "quick-alpha", "exposure", "curie-sweep"];

@@ -31,6 +31,9 @@ pub fn run(u: &DisplayUnits) -> anyhow::Result<ExitCode> {
             );
         }
     }
-    println!("\nYour own: a TOML file with `name`, `description`, `limit_C` and [[segment]] tables (see `remanent record --help`).");
+    println!(
+        "\nYour own: a TOML file like this one, every key required (`remanent record --profile warm-check.toml`):\n"
+    );
+    print!("{}", remanent::profiles::EXAMPLE_FILE);
     Ok(ExitCode::SUCCESS)
 }

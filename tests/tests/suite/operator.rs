@@ -259,3 +259,32 @@ fn the_self_test_leaves_a_heating_fault_for_the_operator_to_clear() {
         "{start:?}"
     );
 }
+
+#[test]
+fn the_profile_file_that_remanent_profiles_shows_is_one_the_tool_takes() {
+    // `profiles` once pointed to a `record --help` that did not describe the file, and the
+    // README's format missed three of its required keys
+    let dir = tempfile::tempdir().unwrap();
+    let file = dir.path().join("warm-check.toml");
+    std::fs::write(&file, remanent::profiles::EXAMPLE_FILE).unwrap();
+    let p = remanent::profiles::ProfileSpec::resolve(file.to_str().unwrap()).unwrap();
+    assert_eq!(
+        (p.name.as_str(), p.limit_c, p.segments.len()),
+        ("warm-check", 70.0, 3)
+    );
+    let readme =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/../README.md")).unwrap();
+    for key in [
+        "`name`",
+        "`description`",
+        "`limit_C`",
+        "`target_C`",
+        "`ramp_C_per_min`",
+        "`hold_s`",
+    ] {
+        assert!(
+            readme.contains(key),
+            "the README's profile format lacks {key}"
+        );
+    }
+}
