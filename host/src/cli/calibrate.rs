@@ -62,16 +62,19 @@ pub struct Args {
     /// Coil pair: radius (and spacing), mm, and its standard uncertainty.
     #[arg(long, default_value_t = 50.0)]
     radius_mm: f64,
+    /// Standard uncertainty of the coil pair's radius, mm.
     #[arg(long, default_value_t = 0.05)]
     radius_u_mm: f64,
     /// Coil current as measured, A, and its standard uncertainty.
     #[arg(long, default_value_t = 8.0)]
     current_a: f64,
+    /// Standard uncertainty of the measured coil current, A.
     #[arg(long, default_value_t = 0.008)]
     current_u_a: f64,
     /// Barometric pressure for the boiling point, kPa (else from --altitude-m).
     #[arg(long, value_parser = parse_finite)]
     pressure_kpa: Option<f64>,
+    /// Standard uncertainty of the barometric pressure, kPa.
     #[arg(long, default_value_t = 0.1)]
     pressure_u_kpa: f64,
     /// Altitude of the bench, m, when no barometer reading is given.

@@ -114,3 +114,29 @@ fn dispatch(command: Cmd, u: &DisplayUnits) -> anyhow::Result<std::process::Exit
         Cmd::History(a) => history::run(a, u),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use clap::CommandFactory;
+
+    /// Every option of every command, however deep, with the command's path, that has no help.
+    fn undocumented(c: &clap::Command, path: &str, out: &mut Vec<String>) {
+        for a in c.get_arguments() {
+            let id = a.get_id().as_str();
+            if id != "help" && id != "version" && a.get_help().is_none() {
+                out.push(format!("{path} --{}", a.get_long().unwrap_or(id)));
+            }
+        }
+        for s in c.get_subcommands() {
+            undocumented(s, &format!("{path} {}", s.get_name()), out);
+        }
+    }
+
+    #[test]
+    fn every_option_of_every_command_has_help_text() {
+        // `calibrate --help` once showed --radius-u-mm, --current-u-a and --pressure-u-kpa bare
+        let mut missing = Vec::new();
+        undocumented(&super::Cli::command(), "remanent", &mut missing);
+        assert!(missing.is_empty(), "no help text: {missing:#?}");
+    }
+}
