@@ -7,10 +7,20 @@ use remanent_rig_model::catalogue::PARTS;
 
 pub fn run(u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     let max = format!("max {}", u.temp_symbol());
-    println!("{:<16} {:<11} {:>9}  description", "id", "grade", max);
+    // columns as wide as their widest entry (a reference part's id is longer than the others)
+    let w = |f: fn(&remanent_rig_model::catalogue::DemoPart) -> &str, head: &str| {
+        PARTS
+            .iter()
+            .map(|p| f(p).chars().count())
+            .chain([head.chars().count()])
+            .max()
+            .unwrap_or(0)
+    };
+    let (wi, wg) = (w(|p| p.id, "id"), w(|p| p.grade, "grade"));
+    println!("{:<wi$}  {:<wg$}  {:>7}  description", "id", "grade", max);
     for p in PARTS {
         println!(
-            "{:<16} {:<11} {:>9.0}  {}",
+            "{:<wi$}  {:<wg$}  {:>7.0}  {}",
             p.id,
             p.grade,
             u.temp(p.magnet.max_working_c),
