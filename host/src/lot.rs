@@ -219,7 +219,7 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
 }
 
 fn opt(v: Option<f64>, p: usize) -> String {
-    v.map(|x| format!("{x:.p$}")).unwrap_or_default()
+    v.map(|x| crate::units::fixed(x, p)).unwrap_or_default()
 }
 
 /// One row of `lot.csv`: numbers at the precision the measurement supports.
@@ -262,6 +262,7 @@ pub fn to_csv(s: &LotSummary) -> String {
 
 /// A short text summary.
 pub fn text(s: &LotSummary, u: &crate::units::DisplayUnits) -> String {
+    let at20 = crate::units::temp_q(20.0, 0).render(u);
     let (per, flux) = (u.per_degree(1.0), u.flux(1.0));
     let fd = u.flux_decimals(2);
     let (au, fu) = (u.alpha_symbol(), u.flux_symbol());
@@ -284,13 +285,15 @@ pub fn text(s: &LotSummary, u: &crate::units::DisplayUnits) -> String {
     if let Some(l) = s.loss {
         let _ = writeln!(
             out,
-            "loss:   mean {:.3} %, sd {:.3}, median {:.3}",
-            l.mean, l.sd, l.median
+            "loss:   mean {} %, sd {:.3}, median {}",
+            crate::units::fixed(l.mean, 3),
+            l.sd,
+            crate::units::fixed(l.median, 3)
         );
     }
     let _ = writeln!(
         out,
-        "B20:    mean {:.fd$} {fu}, sd {:.fd$}, median {:.fd$}",
+        "B at {at20}:  mean {:.fd$} {fu}, sd {:.fd$}, median {:.fd$}",
         s.b20.mean * flux,
         s.b20.sd * flux,
         s.b20.median * flux
@@ -301,7 +304,7 @@ pub fn text(s: &LotSummary, u: &crate::units::DisplayUnits) -> String {
         "id",
         format!("α {au}"),
         "loss %",
-        format!("B20 {fu}"),
+        format!("B {fu}"),
         "verdict"
     );
     for r in &s.rows {

@@ -22,7 +22,7 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
     );
     let _ = writeln!(
         s,
-        "  tangent at {t20}:     {}, quadratic term {}, B20 = {}",
+        "  tangent at {t20}:     {}, quadratic term {}, B at {t20} = {}",
         alpha(a.alpha_at_20c_pct_per_c, 4),
         Qty::one(Kind::Alpha2, a.gamma_pct_per_c2, 6)
             .signed()

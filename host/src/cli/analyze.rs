@@ -47,7 +47,12 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
     if a.json {
         println!("{}", serde_json::to_string_pretty(&analysis)?);
     } else {
-        let title = format!("{} — {}", loaded.title, a.input.display());
+        // a logger's file with no magnet is titled by its name: said once
+        let input = a.input.display().to_string();
+        let title = match input.ends_with(&loaded.title) {
+            true => input,
+            false => format!("{} — {input}", loaded.title),
+        };
         print!("{}", summary::text(&analysis, &title, u));
     }
     a.store.keep("the analysis", |at| {

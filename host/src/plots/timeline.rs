@@ -137,11 +137,18 @@ pub fn draw_timeline<DB: DrawingBackend>(
     let root = root
         .titled(&format!("Time series — {title}"), ("sans-serif", 20))
         .map_err(e)?;
-    let panels = root.split_evenly((3, 1));
+    // a logger's file with no heater column gets no (empty) heater panel
+    let duty = s
+        .duty_pct
+        .as_deref()
+        .filter(|d| d.iter().any(|v| v.is_finite()));
+    let panels = root.split_evenly((if duty.is_some() { 3 } else { 2 }, 1));
     let axis = Axis::new(s, u);
     temperature_panel(&panels[0], &axis, s, magnet_c, u)?;
-    flux_panel(&panels[1], &axis, s, u)?;
-    duty_panel(&panels[2], &axis, s)?;
+    flux_panel(&panels[1], &axis, s, u, duty.is_none())?;
+    if let Some(d) = duty {
+        duty_panel(&panels[2], &axis, d)?;
+    }
     root.present().map_err(e)
 }
 
@@ -230,12 +237,14 @@ fn flux_panel<DB: DrawingBackend>(
     axis: &Axis,
     s: &Series,
     u: &DisplayUnits,
+    bottom: bool,
 ) -> DrawResult {
     let (plot, side) = with_key_strip(area);
     let flux: Vec<f64> = s.flux_mt.iter().map(|&b| u.flux(b)).collect();
     let (lo, hi) = range(flux.iter().copied());
     let y_desc = format!("flux density, {}", u.flux_symbol());
-    let mut c = time_panel(&plot, axis.x.clone(), lo..hi, &y_desc, None)?;
+    let x_desc = bottom.then_some(X_DESC);
+    let mut c = time_panel(&plot, axis.x.clone(), lo..hi, &y_desc, x_desc)?;
     axis.marks(&mut c, (lo, hi))?;
     line(&mut c, axis, &flux, REFERENCE.stroke_width(1))?;
     draw_keys(
@@ -245,17 +254,23 @@ fn flux_panel<DB: DrawingBackend>(
     )
 }
 
+/// The time axis's name, on the bottom panel.
+const X_DESC: &str = "time since start, min";
+
 fn duty_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     axis: &Axis,
-    s: &Series,
+    duty_pct: &[f64],
 ) -> DrawResult {
     let (plot, side) = with_key_strip(area);
-    let x_desc = Some("time since start, min");
-    let mut c = time_panel(&plot, axis.x.clone(), 0.0..100.0, "heater duty, %", x_desc)?;
+    let mut c = time_panel(
+        &plot,
+        axis.x.clone(),
+        0.0..100.0,
+        "heater duty, %",
+        Some(X_DESC),
+    )?;
     axis.marks(&mut c, (0.0, 100.0))?;
-    if let Some(d) = &s.duty_pct {
-        line(&mut c, axis, d, DUTY.stroke_width(1))?;
-    }
+    line(&mut c, axis, duty_pct, DUTY.stroke_width(1))?;
     draw_keys(&side, &[Key::Line(DUTY, "heater duty".into())], 16)
 }

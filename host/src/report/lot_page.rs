@@ -37,7 +37,7 @@ pub fn lot_html(s: &LotSummary, title: &str, figure: &Figure, u: &DisplayUnits) 
     ));
     page.table(&["", "mean", "sd", "median", "MAD"], &rows)
         .h2("Magnets, ranked by room-temperature flux");
-    let mut t = format!("<table><tr><th>id</th><th>grade</th><th>α {alpha_unit}</th><th>U95</th><th>loss %</th><th>U95</th><th>B20 {flux_unit}</th><th>verdict</th><th>outlier</th></tr>");
+    let mut t = format!("<table><tr><th>id</th><th>grade</th><th>α {alpha_unit}</th><th>U95</th><th>loss %</th><th>U95</th><th>B at {at20}, {flux_unit}</th><th>verdict</th><th>outlier</th></tr>");
     for r in &s.rows {
         t.push_str(&format!(
             "<tr><td>{}</td><td>{}</td><td>{:+.4}</td><td>{:.4}</td><td>{}</td><td>{}</td><td>{:.flux_d$}</td><td>{}</td><td class=\"o\">{}</td></tr>",

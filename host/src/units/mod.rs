@@ -20,7 +20,21 @@ pub fn alpha_with_u95(u: &DisplayUnits, alpha_pct_per_c: f64, u95: f64) -> Strin
 
 /// Irreversible loss with its expanded uncertainty: `0.123 ± 0.010 % (95 %)`.
 pub fn loss_with_u95(loss_pct: f64, u95: f64) -> String {
-    format!("{loss_pct:.3} ± {u95:.3} % (95 %)")
+    format!("{} ± {u95:.3} % (95 %)", fixed(loss_pct, 3))
+}
+
+/// `v` to `d` decimals, a value that rounds to zero shown without a sign (`0.000`, never
+/// `-0.000`).
+pub fn fixed(v: f64, d: usize) -> String {
+    unsigned_zero(format!("{v:.d$}"))
+}
+
+/// A number's text without the minus of a value that rounds to zero.
+pub fn unsigned_zero(s: String) -> String {
+    match s.strip_prefix('-') {
+        Some(rest) if rest.chars().all(|c| c == '0' || c == '.') => rest.to_string(),
+        _ => s,
+    }
 }
 
 /// A temperature range: `21.3 … 99.8 °C`.
@@ -86,6 +100,10 @@ mod tests {
         assert_eq!(temp_range(&si, [21.26, 99.84]), "21.3 … 99.8 °C");
         assert_eq!(count(1, "gap", "gaps"), "1 gap");
         assert_eq!(count(0, "gap", "gaps"), "0 gaps");
+        // a value that rounds to zero has no sign
+        assert_eq!(fixed(-0.0001, 3), "0.000");
+        assert_eq!(fixed(-0.0006, 3), "-0.001");
+        assert_eq!(loss_with_u95(-0.0004, 0.02), "0.000 ± 0.020 % (95 %)");
         // budget terms keep two significant digits however small
         assert_eq!(uncertainty(0.000163), "0.00016");
         assert_eq!(uncertainty(0.2), "0.20");

@@ -103,7 +103,7 @@ impl Qty {
             if self.signed {
                 format!("{c:+.d$}")
             } else {
-                format!("{c:.d$}")
+                super::unsigned_zero(format!("{c:.d$}"))
             }
         };
         match self.shape {

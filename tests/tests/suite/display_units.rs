@@ -81,7 +81,9 @@ fn a_report_in_gauss_and_fahrenheit_converts_every_shown_number_and_no_file() {
     assert!(line.contains("%/°F"), "{line}");
     let top_f = number_after(line, "68 …");
     assert!((top_f - (top * 1.8 + 32.0)).abs() <= 0.6, "{line}");
-    let b_g = number_after(&md, "B20 = ");
+    // the field at 20 °C named in °F too (it once said "B20 =")
+    assert!(!md.contains("B20 ="), "{md}");
+    let b_g = number_after(&md, "B at 68 °F = ");
     assert!((b_g - b20 * 10.0).abs() <= 0.06, "{b_g} G vs {b20} mT");
     assert!(md.contains("Shown in °F and G"), "{md}");
     // the checks and notes are shown in the chosen units too
@@ -129,7 +131,7 @@ fn a_lot_page_and_plot_show_alpha_per_degree_fahrenheit_and_flux_in_tesla() {
     .unwrap();
     let row = &done.summary.rows[0];
     let html = std::fs::read_to_string(out.join("lot.html")).unwrap();
-    assert!(html.contains("<th>α %/°F</th>") && html.contains("<th>B20 T</th>"));
+    assert!(html.contains("<th>α %/°F</th>") && html.contains("<th>B at 68 °F, T</th>"));
     // the row's α in %/°F and B20 in T, converted from the SI row
     assert!(
         html.contains(&format!("{:+.4}", row.alpha / 1.8)),

@@ -194,3 +194,30 @@ fn a_mixed_lot_names_every_grade_and_every_magnet_whole() {
     }
     assert!(texts.iter().any(|(_, t)| t.contains("U95 bars")));
 }
+
+#[test]
+fn a_timeline_without_a_heater_column_has_no_heater_panel() {
+    // a logger's CSV with time, temperature and flux only once showed an empty "heater duty"
+    // panel with a legend entry for a line that was not there
+    let mut s = remanent::analysis::dataset::Series::default();
+    for i in 0..600 {
+        let t = f64::from(i);
+        s.time_s.push(t);
+        s.temp_c.push(25.0 + 0.1 * t);
+        s.flux_mt.push(200.0 - 0.02 * t);
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let draw = |s: &remanent::analysis::dataset::Series, name: &str| {
+        let stem = dir.path().join(name);
+        remanent::plots::timeline_figure(&stem, s, name, false, &Default::default()).unwrap();
+        std::fs::read_to_string(stem.with_extension("svg")).unwrap()
+    };
+    let logged = draw(&s, "logged");
+    assert!(!logged.contains("heater duty"), "an empty heater panel");
+    assert!(
+        logged.contains("time since start, min"),
+        "the time axis is named"
+    );
+    s.duty_pct = Some(vec![40.0; 600]);
+    assert!(draw(&s, "recorded").contains("heater duty"));
+}
