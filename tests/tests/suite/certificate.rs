@@ -234,12 +234,26 @@ fn certificate_pages_in_gauss_and_fahrenheit_say_so_and_convert_alpha() {
     assert!(!text.contains("%/°C (95 %)"), "{text}");
 }
 
-/// Words of a PDF page with their boxes, as poppler's `pdftotext -bbox` finds them:
+/// Words of a PDF's first page with their boxes, as poppler's `pdftotext -bbox` finds them:
 /// (xMin, yMin, xMax, word).
 fn word_boxes(pdf: &Path) -> Vec<(f64, f64, f64, String)> {
+    word_boxes_of(pdf, 1)
+}
+
+/// The same for page `page`.
+fn word_boxes_of(pdf: &Path, page: usize) -> Vec<(f64, f64, f64, String)> {
+    let page = page.to_string();
     let html = tool(
         "pdftotext",
-        &["-bbox", "-f", "1", "-l", "1", pdf.to_str().unwrap(), "-"],
+        &[
+            "-bbox",
+            "-f",
+            &page,
+            "-l",
+            &page,
+            pdf.to_str().unwrap(),
+            "-",
+        ],
     );
     let attr = |line: &str, name: &str| -> f64 {
         let at = line.find(&format!("{name}=\"")).expect(name) + name.len() + 2;
@@ -291,4 +305,52 @@ fn certificate_pages_never_print_a_checks_outcome_over_its_reason() {
             assert!(w.0 >= o.2, "`{}` printed over `{}`", w.3, o.3);
         }
     }
+}
+
+#[test]
+#[ignore = "needs poppler-utils (pdftotext): .ci/run installs it"]
+fn a_400_character_reason_is_printed_whole_and_clear_of_every_other_word() {
+    let dir = tempfile::tempdir().unwrap();
+    let run = dir.path().join("run");
+    crate::util::rapid_run(&run, 4);
+    let r = remanent::jobs::report::run(&run, &Default::default(), false, &Default::default());
+    let mut a = r.unwrap().analysis.unwrap();
+    // 80 numbered words of five characters with their spaces: 400 characters
+    let reason: Vec<String> = (0..80).map(|i| format!("q{i:03}")).collect();
+    let reason = reason.join(" ");
+    assert_eq!(reason.len() + 1, 400);
+    a.checks[0].reason = remanent::phrase!(reason.as_str());
+    let png = std::fs::read(run.join("flux_vs_temp.png")).unwrap();
+    let meta = read_meta(&run).unwrap();
+    let look = remanent::report::Look::default();
+    let pdf = remanent::report::certificate::certificate(&a, Some(&meta), None, &png, &look);
+    let file = dir.path().join("long.pdf");
+    std::fs::write(&file, pdf.unwrap()).unwrap();
+    let pages = pages_in(&std::fs::read(&file).unwrap());
+    let mut seen = 0;
+    for page in 1..=pages {
+        let words = word_boxes_of(&file, page);
+        seen += words.iter().filter(|w| w.3.starts_with('q')).count();
+        for w in &words {
+            assert!(
+                w.2 <= 595.3,
+                "page {page}: `{}` runs off the paper at {}",
+                w.3,
+                w.2
+            );
+            // no word on the same line starts inside another
+            for o in words
+                .iter()
+                .filter(|o| (o.1 - w.1).abs() < 1.0 && o.0 > w.0)
+            {
+                assert!(
+                    o.0 >= w.2 - 0.5,
+                    "page {page}: `{}` printed over `{}`",
+                    o.3,
+                    w.3
+                );
+            }
+        }
+    }
+    assert_eq!(seen, 80, "every word of the reason is on the certificate");
 }
