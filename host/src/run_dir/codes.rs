@@ -1,6 +1,7 @@
 //! The part of a sample row the analysis re-converts — device time, the raw codes, the duty
-//! and the setpoint — read straight from the line without the derived columns, with a decimal
-//! reader for the writer's fixed-point numbers that gives exactly what `str::parse` gives.
+//! and the setpoint — read straight from the line, every other column checked but not used
+//! (finite numbers, flags 0 or 1), with a decimal reader for the writer's fixed-point numbers
+//! that gives exactly what `str::parse` gives.
 
 use remanent_protocol::ThermoWord;
 
@@ -116,8 +117,36 @@ impl CodesRow {
                 String::from_utf8_lossy(cells[i])
             )
         };
-        let num = |i: usize, name: &str| decimal(cells[i]).ok_or_else(|| bad(i, name, "a number"));
+        let num = |i: usize, name: &str| {
+            decimal(cells[i])
+                .filter(|v| v.is_finite())
+                .ok_or_else(|| bad(i, name, "a finite number"))
+        };
         let int = |i: usize, name: &str| int16(cells[i]).ok_or_else(|| bad(i, name, "a code"));
+        // the columns the analysis derives again are checked all the same: a row the tool did
+        // not write is not taken on the strength of the columns it happens to read
+        if std::str::from_utf8(cells[0])
+            .ok()
+            .and_then(|t| t.parse::<u32>().ok())
+            .is_none()
+        {
+            return Err(bad(0, "seq", "a sample number"));
+        }
+        for (i, name) in [(6, "heater_on"), (7, "fault_latched")] {
+            if !matches!(cells[i], b"0" | b"1") {
+                return Err(bad(i, name, "0 or 1"));
+            }
+        }
+        for (i, name) in [
+            (9, "temp_C"),
+            (10, "cold_junction_C"),
+            (11, "probe_temp_C"),
+            (12, "flux_mT"),
+        ] {
+            if !cells[i].is_empty() {
+                num(i, name)?;
+            }
+        }
         Ok(CodesRow {
             device_time_s: num(1, "device_time_s")?,
             hall_code: int(2, "hall_code")?,
@@ -137,6 +166,29 @@ impl CodesRow {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn every_column_of_a_row_is_checked_and_named() {
+        let good = "7,0.709,17450,14088,01601900,0.0,0,0,,21.919,25.0000,21.998,217.9583,";
+        assert!(CodesRow::parse_line(good.as_bytes()).is_ok());
+        // (column, a value it must refuse): the columns read and the ones derived again
+        for (col, value, name) in [
+            (1, "nan", "device_time_s"),
+            (1, "inf", "device_time_s"),
+            (5, "NaN", "heater_duty_pct"),
+            (0, "-3", "seq"),
+            (6, "2", "heater_on"),
+            (7, "yes", "fault_latched"),
+            (9, "inf", "temp_C"),
+            (12, "nan", "flux_mT"),
+            (13, "-inf", "setpoint_C"),
+        ] {
+            let mut cells: Vec<&str> = good.split(',').collect();
+            cells[col] = value;
+            let e = CodesRow::parse_line(cells.join(",").as_bytes()).unwrap_err();
+            assert!(e.contains(name) && e.contains(value), "{e}");
+        }
+    }
 
     #[test]
     fn the_decimal_reader_gives_what_parse_gives() {
