@@ -193,7 +193,7 @@ fn two_rigs_record_side_by_side_on_one_host_and_a_busy_port_is_refused() {
     .collect::<Vec<_>>());
     assert_eq!(code, 2, "{text}");
     assert!(
-        text.contains("another program has this port open"),
+        text.contains("is in use by another program"),
         "{text}"
     );
     for (child, name) in [(a, "a"), (b, "b")] {
