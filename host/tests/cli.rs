@@ -192,10 +192,7 @@ fn two_rigs_record_side_by_side_on_one_host_and_a_busy_port_is_refused() {
     .chain([dir.path().join("c").to_str().unwrap()])
     .collect::<Vec<_>>());
     assert_eq!(code, 2, "{text}");
-    assert!(
-        text.contains("is in use by another program"),
-        "{text}"
-    );
+    assert!(text.contains("is in use by another program"), "{text}");
     for (child, name) in [(a, "a"), (b, "b")] {
         let out = child.wait_with_output().unwrap();
         let text = String::from_utf8_lossy(&out.stdout).into_owned()

@@ -9,7 +9,7 @@ mod types;
 
 use crate::calibration_policy::Basis;
 pub use types::{
-    LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions, RecordSummary,
+    LiveSample, LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions, RecordSummary,
 };
 
 use std::io::{Read, Write};

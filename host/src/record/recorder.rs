@@ -10,7 +10,9 @@ use std::time::{Duration, Instant};
 
 use remanent_protocol::{Command, RefuseReason, RunState};
 
-use super::types::{LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions};
+use super::types::{
+    LiveSample, LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions,
+};
 use crate::event::{Notice, RunEvent, StartSeen};
 use crate::frame_log;
 use crate::link::acquisition::{Acquisition, Event};
@@ -171,7 +173,7 @@ impl Recorder {
                 placed,
                 values,
                 missing_before,
-                ..
+                setpoint_c,
             } => {
                 self.status.samples = w.meta.counts.samples;
                 self.status.gap_samples += missing_before;
@@ -185,6 +187,14 @@ impl Recorder {
                     );
                 }
                 self.track(placed.device_time_s, values.temp_c, values.flux_mt, duty);
+                progress.sample(&LiveSample {
+                    device_time_s: placed.device_time_s,
+                    temp_c: values.temp_c,
+                    flux_mt: values.flux_mt,
+                    setpoint_c: *setpoint_c,
+                    duty_pct: duty,
+                    heating: self.start == Start::Running,
+                });
             }
             Event::Beacon(b) => {
                 self.status.state = Some(b.state);
@@ -354,18 +364,8 @@ impl Recorder {
         self.status.flux_mt = flux_mt;
         self.status.duty_pct = duty_pct;
         if let Some(tc) = temp_c {
-            self.history.push_back((t, tc));
-            while self
-                .history
-                .front()
-                .is_some_and(|h| t - h.0 > RAMP_WINDOW_S)
-            {
-                self.history.pop_front();
-            }
-            if let (Some(a), Some(b)) = (self.history.front(), self.history.back()) {
-                if b.0 - a.0 > 5.0 {
-                    self.status.ramp_c_per_min = Some((b.1 - a.1) / (b.0 - a.0) * 60.0);
-                }
+            if let Some(r) = super::types::ramp_rate(&mut self.history, t, tc, RAMP_WINDOW_S) {
+                self.status.ramp_c_per_min = Some(r);
             }
         }
     }

@@ -98,13 +98,49 @@ pub struct LiveStatus {
     pub bad_frames: u64,
 }
 
-/// Receives progress while recording: the live figures, and typed notices (words for them
-/// from [`crate::event::words::notice`], in the receiver's display units).
+/// One sample as it arrives, for a live view (the record keeps every one in samples.csv).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct LiveSample {
+    /// Device time, s.
+    pub device_time_s: f64,
+    /// Thermocouple, °C (none: no valid reading).
+    pub temp_c: Option<f64>,
+    /// Flux density, mT.
+    pub flux_mt: Option<f64>,
+    /// The setpoint in force, °C (none: heater off).
+    pub setpoint_c: Option<f64>,
+    /// Heater duty, %.
+    pub duty_pct: f64,
+    /// The profile has started (before it: the rest at room temperature).
+    pub heating: bool,
+}
+
+/// Receives progress while recording: the live figures, every sample as it arrives, and typed
+/// notices (words for them from [`crate::event::words::notice`], in the receiver's display
+/// units). A receiver must not block: the recorder waits for it.
 pub trait Progress {
     /// The figures changed.
     fn update(&mut self, status: &LiveStatus);
     /// Something worth telling the user.
     fn notice(&mut self, notice: &Notice);
+    /// A sample arrived (placed on the record's timeline).
+    fn sample(&mut self, _sample: &LiveSample) {}
+}
+
+/// The rate of temperature change over the last `window_s` once it spans more than 5 s, °C/min,
+/// with (`t`, `temp_c`) added to `history` and what is older than the window dropped.
+pub(super) fn ramp_rate(
+    history: &mut std::collections::VecDeque<(f64, f64)>,
+    t: f64,
+    temp_c: f64,
+    window_s: f64,
+) -> Option<f64> {
+    history.push_back((t, temp_c));
+    while history.front().is_some_and(|h| t - h.0 > window_s) {
+        history.pop_front();
+    }
+    let (a, b) = (history.front()?, history.back()?);
+    (b.0 - a.0 > 5.0).then(|| (b.1 - a.1) / (b.0 - a.0) * 60.0)
 }
 
 /// Progress that goes nowhere.
