@@ -10,6 +10,7 @@ pub mod calibration_dates;
 pub mod calibration_policy;
 pub mod clear_fault;
 pub mod clock;
+pub mod console;
 pub mod conversion;
 pub mod drill;
 pub mod event;

@@ -7,6 +7,7 @@ mod analyze;
 mod calibrate;
 mod calibrate_fixture;
 mod clear_fault;
+mod console;
 mod demo;
 mod history;
 mod lot;
@@ -40,6 +41,8 @@ struct Cli {
 enum Cmd {
     /// Run the whole job on the built-in virtual rig: record, analyse, plot, report.
     Demo(demo::Args),
+    /// The bench console: a lot inspected part by part from a browser page, live.
+    Console(console::Args),
     /// Record a heat cycle from a bench (or a virtual rig) into a new run directory.
     Record(record::Args),
     /// Serve a virtual rig on a pseudo-terminal for any program to open.
@@ -95,6 +98,7 @@ fn dispatch(command: Cmd, u: &DisplayUnits) -> anyhow::Result<std::process::Exit
     match command {
         Cmd::Demo(a) => demo::run(a, u),
         Cmd::Record(a) => record::run(a, u),
+        Cmd::Console(a) => console::run(a, u),
         Cmd::VirtualRig(a) => virtual_rig::run(a),
         Cmd::Ports => ports::run(),
         Cmd::Magnets => magnets::run(u),

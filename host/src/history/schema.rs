@@ -6,7 +6,7 @@ use super::backend::{Backend, Value};
 use super::error::StoreError;
 
 /// The schema version this program writes and reads.
-pub const SCHEMA_VERSION: i64 = 3;
+pub const SCHEMA_VERSION: i64 = 4;
 
 /// One step of the schema.
 pub struct Migration {
@@ -112,6 +112,23 @@ pub const MIGRATIONS: &[Migration] = &[
                 analysis_file TEXT NOT NULL,
                 analysis_sha256 TEXT NOT NULL,
                 stored_utc TEXT NOT NULL
+            )"],
+    },
+    Migration {
+        version: 4,
+        summary: "lot decisions: a lot's sampling plan and its decision as the console judged it",
+        statements: &["CREATE TABLE lot_decisions (
+                lot TEXT PRIMARY KEY,
+                supplier TEXT,
+                purchase_order TEXT,
+                grade TEXT NOT NULL,
+                sample_size BIGINT NOT NULL,
+                acceptance_number BIGINT NOT NULL,
+                judged BIGINT NOT NULL,
+                defects BIGINT NOT NULL,
+                decision TEXT NOT NULL,
+                words TEXT NOT NULL,
+                decided_utc TEXT NOT NULL
             )"],
     },
 ];

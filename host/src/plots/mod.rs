@@ -6,6 +6,7 @@
 pub mod decimate;
 pub mod figure;
 pub mod flux;
+pub mod live;
 pub mod lot;
 pub mod oc;
 pub mod style;
