@@ -165,6 +165,11 @@ pub enum Notice {
         /// How long, s.
         seconds: f64,
     },
+    /// The fixture is still warming or cooling: the rest goes on until it is steady.
+    Settling {
+        /// How fast it moves, °C/min.
+        c_per_min: f64,
+    },
     /// The user asked to stop: the heater is going off.
     Stopping,
     /// The device tripped an interlock; its heater is off.

@@ -119,6 +119,11 @@ pub fn notice(n: &Notice) -> Phrase {
             "the device stopped after {ran_s:.0} s of a profile that takes at least {shortest_s:.0} s: a Stop the recorder did not send (another program on the link?); heater off"
         )),
         Notice::Resampled(r) => resampled(r),
+        Notice::Settling { c_per_min } => phrase!(
+            "the fixture is still moving (",
+            crate::units::Qty::one(crate::units::Kind::Span, *c_per_min, 1).signed(),
+            " a minute): the room-temperature reference waits until it is steady (at most 15 min)"
+        ),
         Notice::FaultReportLost => phrase!(
             "the device reports a latched fault (its fault report was lost); heater off"
         ),

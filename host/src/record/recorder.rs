@@ -23,6 +23,8 @@ use crate::run_dir::RunWriter;
 const IDLE_BEACONS_BEFORE_RESEND: u32 = 3;
 /// The ramp shown is over this much device time, s.
 const RAMP_WINDOW_S: f64 = 30.0;
+
+mod rest;
 /// Progress is shown this often.
 const PROGRESS_EVERY: Duration = Duration::from_millis(100);
 /// … or after this much device time, whichever comes first: a fast virtual rig runs minutes of
@@ -60,6 +62,7 @@ pub(super) struct Recorder {
     start_device_s: Option<f64>,
     first_sample_s: Option<f64>,
     nominal_s: f64,
+    told_settling: bool,
     shortest_s: f64,
     stop: Arc<AtomicBool>,
     start: Start,
@@ -74,6 +77,7 @@ impl Recorder {
             history: VecDeque::new(),
             start_device_s: None,
             first_sample_s: None,
+            told_settling: false,
             nominal_s: opts.profile.nominal_duration_s(22.0),
             shortest_s: opts.profile.shortest_duration_s(),
             stop: opts.stop.clone(),
@@ -145,7 +149,7 @@ impl Recorder {
                 w.event(None, &RunEvent::Resent)?;
                 self.send_start(acq, opts)?;
             }
-            if self.start == Start::Resting && self.rest_s() >= opts.preroll_s {
+            if self.start == Start::Resting && self.rest_over(opts.preroll_s, progress) {
                 self.send_start(acq, opts)?;
             }
             w.maybe_flush()?;
@@ -341,33 +345,6 @@ impl Recorder {
             return None;
         }
         self.auto.as_mut()?.check()
-    }
-
-    /// Device time covered by samples so far, s.
-    fn rest_s(&self) -> f64 {
-        match (self.first_sample_s, self.history.back()) {
-            (Some(a), Some(b)) => b.0 - a,
-            _ => 0.0,
-        }
-    }
-
-    fn track(&mut self, t: f64, temp_c: Option<f64>, flux_mt: Option<f64>, duty_pct: f64) {
-        self.first_sample_s.get_or_insert(t);
-        let start = if self.running() {
-            *self.start_device_s.get_or_insert(t)
-        } else {
-            t
-        };
-        self.status.elapsed_s = t - start;
-        self.status.remaining_s = (self.nominal_s - self.status.elapsed_s).max(0.0);
-        self.status.temp_c = temp_c;
-        self.status.flux_mt = flux_mt;
-        self.status.duty_pct = duty_pct;
-        if let Some(tc) = temp_c {
-            if let Some(r) = super::types::ramp_rate(&mut self.history, t, tc, RAMP_WINDOW_S) {
-                self.status.ramp_c_per_min = Some(r);
-            }
-        }
     }
 
     fn stop_device<P: Read + Write>(

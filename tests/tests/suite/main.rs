@@ -28,3 +28,4 @@ mod safe_peak;
 mod sealed;
 mod throughput;
 mod util;
+mod warm_fixture;
