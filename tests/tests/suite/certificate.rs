@@ -309,7 +309,7 @@ fn certificate_pages_never_print_a_checks_outcome_over_its_reason() {
 
 #[test]
 #[ignore = "needs poppler-utils (pdftotext): .ci/run installs it"]
-fn a_400_character_reason_is_printed_whole_and_clear_of_every_other_word() {
+fn certificate_pages_print_a_400_character_reason_whole_and_clear_of_every_other_word() {
     let dir = tempfile::tempdir().unwrap();
     let run = dir.path().join("run");
     crate::util::rapid_run(&run, 4);
