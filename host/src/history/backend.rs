@@ -80,6 +80,16 @@ impl From<Option<String>> for Value {
 /// A row as the engine returned it.
 pub type Row = Vec<Value>;
 
+/// The cell `name` of `row`, selected as `columns` (comma-separated, in order) name them; NULL
+/// when no column has that name.
+pub fn cell(columns: &str, row: &Row, name: &str) -> Value {
+    columns
+        .split(',')
+        .position(|c| c.trim() == name)
+        .and_then(|i| row.get(i).cloned())
+        .unwrap_or(Value::Null)
+}
+
 /// What both engines do for the store.
 pub trait Backend: Send {
     /// Several statements with no parameters (migrations).

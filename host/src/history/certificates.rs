@@ -84,13 +84,7 @@ impl Store {
             &[number.into()],
         )?;
         Ok(rows.first().map(|r| {
-            // by name: the row's cells are in the order of COLUMNS
-            let cell = |name: &str| {
-                COLUMNS
-                    .split(',')
-                    .position(|c| c.trim() == name)
-                    .and_then(|i| r[i].text())
-            };
+            let cell = |name: &str| super::backend::cell(COLUMNS, r, name).text();
             let t = |name: &str| cell(name).unwrap_or_default();
             CertificateEntry {
                 number: t("number"),

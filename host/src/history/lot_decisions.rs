@@ -72,13 +72,7 @@ impl Store {
             &[lot.into()],
         )?;
         Ok(rows.first().map(|r| {
-            let cell = |name: &str| {
-                COLUMNS
-                    .split(',')
-                    .position(|c| c.trim() == name)
-                    .map(|i| r[i].clone())
-                    .unwrap_or(Value::Null)
-            };
+            let cell = |name: &str| super::backend::cell(COLUMNS, r, name);
             let n = |name: &str| cell(name).int().unwrap_or(0).max(0) as u64;
             let t = |name: &str| cell(name).text().unwrap_or_default();
             LotDecision {
@@ -94,5 +88,36 @@ impl Store {
                 words: t("words"),
             }
         }))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::history::Location;
+
+    #[test]
+    fn a_lots_decision_is_replaced_as_parts_are_judged_and_read_back_by_name() {
+        let dir = tempfile::tempdir().unwrap();
+        let mut store = Store::open(&Location::Sqlite(dir.path().join("h.sqlite"))).unwrap();
+        let mut d = LotDecision {
+            lot: "DEMO-LOT-26-20".into(),
+            supplier: Some("Kestrel Magnet Works (invented)".into()),
+            purchase_order: None,
+            grade: "N42SH".into(),
+            sample_size: 3,
+            acceptance_number: 0,
+            judged: 1,
+            defects: 0,
+            decision: "open".into(),
+            words: "open: 0 defects in 1 of 3 judged".into(),
+        };
+        store.put_lot_decision(&d).unwrap();
+        d.judged = 3;
+        d.decision = "accept".into();
+        d.words = "accept: 0 defects in 3 of 3".into();
+        store.put_lot_decision(&d).unwrap();
+        assert_eq!(store.lot_decision("DEMO-LOT-26-20").unwrap(), Some(d));
+        assert_eq!(store.lot_decision("no such lot").unwrap(), None);
     }
 }

@@ -50,31 +50,42 @@ impl Write for SecondWriter {
     }
 }
 
-#[test]
-fn a_stop_from_another_program_is_named_and_is_no_finished_profile() {
+/// Record the demo N42SH with `profile` while a second writer sends `command` after `at_read`
+/// reads (each 0.1 s of device time); the summary and the folder holding `run`.
+fn record_beside(
+    profile: &str,
+    at_read: usize,
+    command: Command,
+    auto_end: bool,
+) -> (remanent::record::RecordSummary, tempfile::TempDir) {
     let part = magnets::resolve("RM-N42SH-D10x5").unwrap();
     let opts = VirtualRigOptions::new(part.model.unwrap());
     let params = opts.params;
-    let profile = ProfileSpec::resolve("quick-alpha").unwrap();
     let dir = tempfile::tempdir().unwrap();
     let port = SecondWriter {
         port: SimulatedPort::new(opts),
         reads: 0,
-        // each read is 0.1 s of device time: the Stop comes about 10 minutes in
-        at_read: 6000,
-        command: Some(Command::Stop),
+        at_read,
+        command: Some(command),
     };
     let rec = RecordOptions {
         port_label: "simulated, with a second writer".into(),
         silence_timeout: std::time::Duration::from_secs(5),
+        auto_end: auto_end.then(Default::default),
         ..RecordOptions::new(
             part.info,
-            profile,
+            ProfileSpec::resolve(profile).unwrap(),
             Calibration::virtual_rig(&params),
             dir.path().join("run"),
         )
     };
-    let summary = record(port, rec, &mut Quiet).unwrap();
+    (record(port, rec, &mut Quiet).unwrap(), dir)
+}
+
+#[test]
+fn a_stop_from_another_program_is_named_and_is_no_finished_profile() {
+    // the Stop comes about 10 minutes in
+    let (summary, dir) = record_beside("quick-alpha", 6000, Command::Stop, false);
     assert!(
         matches!(summary.end, RecordEnd::StoppedElsewhere { .. }),
         "{:?}",
@@ -97,33 +108,12 @@ fn a_stop_from_another_program_is_named_and_is_no_finished_profile() {
 fn a_configure_from_another_program_neither_corrupts_time_nor_goes_unreported() {
     // before: the samples held across the device's new sampling epoch were timed from it and
     // wrapped to 4.3e8 s (572 rows), and nothing said the period had changed
-    let part = magnets::resolve("RM-N42SH-D10x5").unwrap();
-    let opts = VirtualRigOptions::new(part.model.unwrap());
-    let params = opts.params;
-    let profile = ProfileSpec::resolve("rapid").unwrap();
-    let dir = tempfile::tempdir().unwrap();
-    let port = SecondWriter {
-        port: SimulatedPort::new(opts),
-        reads: 0,
-        // 20 s into the minute at rest, while the device is idle and accepts it
-        at_read: 200,
-        command: Some(Command::Configure(remanent_protocol::SamplingConfig {
-            period_ms: 200,
-            oversample: 4,
-        })),
-    };
-    let rec = RecordOptions {
-        port_label: "simulated, with a second writer".into(),
-        silence_timeout: std::time::Duration::from_secs(5),
-        auto_end: Some(Default::default()),
-        ..RecordOptions::new(
-            part.info,
-            profile,
-            Calibration::virtual_rig(&params),
-            dir.path().join("run"),
-        )
-    };
-    let summary = record(port, rec, &mut Quiet).unwrap();
+    // 20 s into the minute at rest, while the device is idle and accepts it
+    let configure = Command::Configure(remanent_protocol::SamplingConfig {
+        period_ms: 200,
+        oversample: 4,
+    });
+    let (summary, dir) = record_beside("rapid", 200, configure, true);
     let run = dir.path().join("run");
     let samples = std::fs::read_to_string(run.join("samples.csv")).unwrap();
     let times: Vec<f64> = samples
