@@ -47,8 +47,9 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         .unwrap_or(Model::Binomial);
     let plan = design(model, a.aql, a.rql, a.producer_risk, a.consumer_risk)?;
     println!(
-        "test n = {} magnets, accept the lot if at most c = {} fail",
-        plan.n, plan.c
+        "test n = {}, accept the lot if at most c = {} fail",
+        remanent::units::count(plan.n, "magnet", "magnets"),
+        plan.c
     );
     println!(
         "  P(accept) at AQL {:.2} %: {:.4} (wanted ≥ {:.2}); at RQL {:.2} %: {:.4} (wanted ≤ {:.2}); {} model",

@@ -68,6 +68,8 @@ pub struct LotSession {
     pub n: u64,
     /// Acceptance number.
     pub c: u64,
+    /// The test the parts' grade and shape allow, in words (the safe test peak).
+    pub test: Vec<String>,
     /// The parts so far, in order.
     pub parts: Vec<PartRecord>,
 }
@@ -102,6 +104,7 @@ impl LotSession {
             rql_pct: req.rql_pct,
             n,
             c,
+            test: Vec::new(),
             parts: Vec::new(),
         })
     }
@@ -175,6 +178,7 @@ mod tests {
             rql_pct: 6.0,
             n,
             c,
+            test: Vec::new(),
             parts: verdicts
                 .iter()
                 .enumerate()

@@ -110,7 +110,15 @@ impl Console {
             return Err("a lot needs its id and its supplier".into());
         }
         let magnet = crate::magnets::resolve(req.magnet.trim()).map_err(|e| e.to_string())?;
-        let session = LotSession::start(&req, &magnet.info.grade).map_err(|e| e.to_string())?;
+        let mut session = LotSession::start(&req, &magnet.info.grade).map_err(|e| e.to_string())?;
+        // what every part will get: the profile held to the safe peak of its grade and shape
+        let plan = crate::test_plan::plan("inspect", &magnet.info, &self.bench.specs, false)
+            .map_err(|e| e.to_string())?;
+        session.test = plan
+            .announce(&magnet.info.id)
+            .iter()
+            .map(|p| p.render(&self.bench.look.units))
+            .collect();
         keep_decision(&self.bench.store, &session);
         *self.magnet.lock().unwrap_or_else(|p| p.into_inner()) = Some(magnet);
         *self.lot.lock().unwrap_or_else(|p| p.into_inner()) = Some(session.clone());

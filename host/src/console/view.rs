@@ -29,6 +29,7 @@ pub fn lot(s: Option<&LotSession>) -> Value {
         "defects": defects,
         "decision": s.decision(),
         "decision_words": s.decision_words(),
+        "test": s.test,
         "parts": s.parts,
     })
 }
@@ -69,7 +70,7 @@ pub fn rig(index: usize, l: &Live, u: &DisplayUnits) -> Value {
         let flux = s.flux_mt.map(|b| Qty::one(Kind::Flux, b, 2).render(u));
         let ramp = s
             .ramp_c_per_min
-            .map(|r| format!("{} /min", Qty::one(Kind::Span, r, 1).signed().render(u)));
+            .map(|r| format!("{}/min", Qty::one(Kind::Span, r, 1).signed().render(u)));
         json!({
             "temp": temp,
             "flux": flux,

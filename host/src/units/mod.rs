@@ -104,6 +104,11 @@ mod tests {
         assert_eq!(fixed(-0.0001, 3), "0.000");
         assert_eq!(fixed(-0.0006, 3), "-0.001");
         assert_eq!(loss_with_u95(-0.0004, 0.02), "0.000 ± 0.020 % (95 %)");
+        assert_eq!(Qty::one(Kind::Span, -0.01, 1).signed().render(&si), "0.0 K");
+        assert_eq!(
+            Qty::one(Kind::Span, -0.06, 1).signed().render(&si),
+            "-0.1 K"
+        );
         // budget terms keep two significant digits however small
         assert_eq!(uncertainty(0.000163), "0.00016");
         assert_eq!(uncertainty(0.2), "0.20");

@@ -100,7 +100,14 @@ impl Qty {
         let (unit, d) = self.unit_and_decimals(u);
         let num = |v: f64, as_span: bool| {
             let c = self.convert(u, v, as_span);
-            if self.signed {
+            if self.signed
+                && format!("{:.d$}", c.abs())
+                    .trim_matches(['0', '.'])
+                    .is_empty()
+            {
+                // a value that rounds to zero has no sign (`-0.0 K` once showed)
+                format!("{:.d$}", 0.0)
+            } else if self.signed {
                 format!("{c:+.d$}")
             } else {
                 super::unsigned_zero(format!("{c:.d$}"))

@@ -63,9 +63,17 @@ function card(i, rig) {
       id.value = "";
     } catch (x) { setText($(node, ".rig-error"), x.message); }
   });
-  $(node, ".part-stop").addEventListener("click", async () => {
+  const stop = async () => {
     try { await post("/api/rig/" + i + "/stop"); } catch (x) { setText($(node, ".rig-error"), x.message); }
-  });
+  };
+  $(node, ".part-stop").addEventListener("click", stop);
+  // and one always in view, whatever is scrolled
+  const always = document.createElement("button");
+  always.type = "button";
+  always.className = "stop-always";
+  always.textContent = "Stop heater — rig " + (i + 1);
+  always.addEventListener("click", stop);
+  document.getElementById("stops").appendChild(always);
   document.getElementById("rigs").appendChild(node);
   rigCards[i] = node;
   drawn[i] = -1;
@@ -146,6 +154,7 @@ function showLot(lot) {
   summary.hidden = false;
   setText(document.getElementById("lot-title"), lot.lot + " from " + lot.supplier + " — " + lot.magnet + " (" + lot.grade + ")");
   setText(document.getElementById("lot-plan"), "sample n = " + lot.n + ", accept with at most c = " + lot.c + " defects (AQL " + lot.aql_pct + " %, RQL " + lot.rql_pct + " %)");
+  setList(document.getElementById("lot-test"), lot.test);
   const d = document.getElementById("lot-decision");
   d.className = "decision " + lot.decision;
   setText(d, lot.decision_words);
