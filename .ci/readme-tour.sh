@@ -21,6 +21,16 @@ for line in "${lines[@]}"; do
   cmd=${cmd%"${cmd##*[![:space:]]}"}   # trim trailing blanks
   cmd=${cmd/\$R/$R}
   echo "+ ${cmd}"
+  if [[ "$cmd" == *" console "*"&"* ]]; then
+    # the console prints its page's address first: the page must be served
+    ${cmd%&} > console.out 2> console.err &
+    RIG_PID="$RIG_PID $!"
+    for _ in $(seq 100); do URL=$(head -1 console.out 2>/dev/null || true); [ -n "$URL" ] && break; sleep 0.1; done
+    curl -fsS "$URL" | grep -q "Remanent bench console" || { cat console.err; echo "the console served no page at '$URL'"; exit 1; }
+    curl -fsS "${URL}api/state" | grep -q '"rigs"' || { echo "the console's state is not served"; exit 1; }
+    echo "  console at $URL"
+    continue
+  fi
   if [[ "$cmd" == *"virtual-rig"*"&"* ]]; then
     rm -f rig.out
     ${cmd%&} > rig.out 2> rig.err &
