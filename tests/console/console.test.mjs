@@ -120,6 +120,7 @@ for (const [k, id, scanner] of [[0, "P-001", false], [1, "P-002", true], [2, "P-
   console.log(`${id}: ${verdict}, certificate read back (${fs.statSync(pdf).size} bytes)`);
 }
 const decision = await page.textContent("#lot-decision");
+if (process.env.SCREENSHOT) await page.screenshot({ path: process.env.SCREENSHOT, fullPage: true });
 console.log("lot decision: " + decision);
 check(decision.startsWith("accept: 0 defects in 3 of 3"), "the lot's decision: " + decision);
 
