@@ -4,6 +4,7 @@
 
 pub mod analyze_input;
 pub mod calibrate;
+pub mod demo;
 pub mod history;
 pub mod lot;
 pub mod reference;
