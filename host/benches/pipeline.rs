@@ -201,7 +201,7 @@ fn main() {
         profile: ProfileSpec::resolve("quick-alpha").unwrap(),
         calibration: Calibration::virtual_rig(&RigParams::REFERENCE),
         // the fake device is no virtual rig: measure without a calibration, as a test bench
-        policy: remanent::calibration_policy::Policy {
+        policy: remanent::calibration::policy::Policy {
             uncalibrated: true,
             ..Default::default()
         },

@@ -4,10 +4,7 @@
 //! irreversible loss, judge the magnet, and plot and report it.
 
 pub mod analysis;
-pub mod calibrate;
 pub mod calibration;
-pub mod calibration_dates;
-pub mod calibration_policy;
 pub mod clear_fault;
 pub mod clock;
 pub mod console;

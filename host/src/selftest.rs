@@ -320,7 +320,7 @@ fn latches<P: Read + Write>(p: &mut Probe<P>, target: f64) -> Result<Step, LinkE
 pub fn run<P: Read + Write>(
     port: P,
     cal: Calibration,
-    policy: &crate::calibration_policy::Policy,
+    policy: &crate::calibration::policy::Policy,
 ) -> Result<(DeviceHello, Vec<Step>), LinkError> {
     let (acq, hello, _) = Acquisition::connect(port, cal, SILENCE)?;
     policy.accept(&hello, &cal, crate::calibration::Stamp::now())?;

@@ -32,7 +32,7 @@ pub struct SurveyOptions {
     /// Give up after this long without a new reading (wall clock).
     pub idle_timeout: Duration,
     /// Whether the bench may measure with the calibration.
-    pub policy: crate::calibration_policy::Policy,
+    pub policy: crate::calibration::policy::Policy,
 }
 
 impl SurveyOptions {
@@ -100,7 +100,7 @@ pub fn run<P: Read + Write>(
     let uncalibrated =
         opts.policy
             .accept(&hello, &opts.calibration, crate::calibration::Stamp::now())?
-            == crate::calibration_policy::Basis::Uncalibrated;
+            == crate::calibration::policy::Basis::Uncalibrated;
     if uncalibrated {
         progress.notice(&Notice::SurveyUncalibrated);
     }

@@ -76,14 +76,14 @@ pub struct CalibrationOpts {
     #[arg(long)]
     pub uncalibrated: bool,
     /// Refuse a calibration whose oldest step is older than this, days.
-    #[arg(long, default_value_t = remanent::calibration_policy::DEFAULT_MAX_AGE_DAYS)]
+    #[arg(long, default_value_t = remanent::calibration::policy::DEFAULT_MAX_AGE_DAYS)]
     pub max_calibration_age_days: f64,
 }
 
 impl CalibrationOpts {
     /// The policy these options state.
-    pub fn policy(&self) -> remanent::calibration_policy::Policy {
-        remanent::calibration_policy::Policy {
+    pub fn policy(&self) -> remanent::calibration::policy::Policy {
+        remanent::calibration::policy::Policy {
             file: self.calibration.clone(),
             uncalibrated: self.uncalibrated,
             max_age_days: self.max_calibration_age_days,

@@ -9,7 +9,7 @@ use std::sync::{Arc, Mutex};
 
 use super::hub::{Hub, HubProgress, Outcome, Phase};
 use super::lot::{LotSession, PartRecord};
-use crate::calibration_policy::Policy;
+use crate::calibration::policy::Policy;
 use crate::history::Location;
 use crate::jobs::{history, report, Judging};
 use crate::magnets::MagnetFile;

@@ -130,7 +130,7 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
         }
         uncalibrated = !recalibrated
             && src.meta.as_ref().and_then(|m| m.calibration_basis)
-                == Some(crate::calibration_policy::Basis::Uncalibrated);
+                == Some(crate::calibration::policy::Basis::Uncalibrated);
         meta = src.meta.clone();
         let run_name = file_name(&req.input);
         let title = src

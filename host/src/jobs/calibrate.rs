@@ -6,8 +6,8 @@
 use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 
-use crate::calibrate::steps::Found;
-use crate::calibrate::{self, CalibrateError, Options, Progress, Setup, Step};
+use crate::calibration::procedure::steps::Found;
+use crate::calibration::procedure::{self, CalibrateError, Options, Progress, Setup, Step};
 use crate::calibration::{Calibration, CalibrationError};
 use crate::output::{self, OutputError};
 use remanent_rig_model::RigParams;
@@ -72,7 +72,7 @@ pub fn run<P: Read + Write>(
     let mut found = Vec::new();
     for step in steps {
         let f =
-            calibrate::run(&mut port, &mut cal, step, setup, opts, progress).map_err(|source| {
+            procedure::run(&mut port, &mut cal, step, setup, opts, progress).map_err(|source| {
                 CalibrateJobError::Step {
                     step: crate::event::words::step_name(step.kind()).to_string(),
                     source,
@@ -94,10 +94,16 @@ pub fn run<P: Read + Write>(
 pub fn identify_fixture<P: Read + Write>(
     port: P,
     files: &Files,
-    plan: &crate::calibrate::fixture::Plan,
-    progress: &mut dyn crate::calibrate::fixture::Progress,
-) -> Result<(Calibration, crate::calibrate::fixture_fit::Fitted), CalibrateJobError> {
-    use crate::calibrate::fixture;
+    plan: &crate::calibration::procedure::fixture::Plan,
+    progress: &mut dyn crate::calibration::procedure::fixture::Progress,
+) -> Result<
+    (
+        Calibration,
+        crate::calibration::procedure::fixture_fit::Fitted,
+    ),
+    CalibrateJobError,
+> {
+    use crate::calibration::procedure::fixture;
     let mut cal = starting_point(files.from.as_deref())?;
     output::refuse_existing([files.out.clone()], files.force)?;
     let (found, fitted) = fixture::identify(port, &cal, plan, progress).map_err(|source| {

@@ -115,7 +115,8 @@ pub fn measure_reference(req: &DemoRequest) -> Result<(MagnetFile, FixtureRefere
         Some(speed) => {
             opts.speed = speed;
             let rig = VirtualRig::start(opts).map_err(at("the reference's rig"))?;
-            let mut port = crate::link::port::open(rig.path()).map_err(at("the reference's rig"))?;
+            let mut port =
+                crate::link::port::open(rig.path()).map_err(at("the reference's rig"))?;
             let r = measure(&mut port)?;
             rig.stop().map_err(at("the reference's rig"))?;
             r
@@ -145,7 +146,7 @@ pub fn record_part(
         ..RecordOptions::new(
             p.part.info.clone(),
             p.plan.profile.clone(),
-            calibration.clone(),
+            calibration,
             req.out.clone(),
         )
     };

@@ -6,8 +6,8 @@ use std::io::{Read, Write};
 use std::sync::mpsc::Receiver;
 
 use crate::analysis::fixture_ref::{FixtureReference, DEFAULT_REPEATABILITY_PCT};
+use crate::calibration::policy::Policy;
 use crate::calibration::{Calibration, Stamp};
-use crate::calibration_policy::Policy;
 use crate::link::LinkError;
 use crate::magnets::MagnetFile;
 use crate::specs::SpecTable;

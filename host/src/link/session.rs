@@ -40,7 +40,7 @@ pub enum LinkError {
     NoAnswer(&'static str),
     /// The bench may not measure with this calibration (nothing was started).
     #[error(transparent)]
-    Calibration(#[from] crate::calibration_policy::PolicyError),
+    Calibration(#[from] crate::calibration::policy::PolicyError),
 }
 
 /// What one read produced.

@@ -7,7 +7,7 @@ pub mod auto_end;
 mod recorder;
 mod types;
 
-use crate::calibration_policy::Basis;
+use crate::calibration::policy::Basis;
 pub use types::{
     LiveSample, LiveStatus, Progress, Quiet, RecordEnd, RecordError, RecordOptions, RecordSummary,
 };

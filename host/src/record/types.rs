@@ -27,7 +27,7 @@ pub struct RecordOptions {
     /// Calibration for the converted columns.
     pub calibration: Calibration,
     /// Whether the bench may measure with it (checked against the device's hello).
-    pub policy: crate::calibration_policy::Policy,
+    pub policy: crate::calibration::policy::Policy,
     /// New run directory.
     pub out: PathBuf,
     /// The link counts as lost after this long without a byte.
@@ -237,5 +237,5 @@ pub enum RecordError {
     RunDir(#[from] RunDirError),
     /// The bench may not measure with this calibration (nothing was started).
     #[error(transparent)]
-    Calibration(#[from] crate::calibration_policy::PolicyError),
+    Calibration(#[from] crate::calibration::policy::PolicyError),
 }

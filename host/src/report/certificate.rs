@@ -35,8 +35,10 @@ fn header(a: &Analysis, meta: Option<&RunMeta>) -> Vec<(&'static str, String)> {
         .map(|m| {
             let oldest = m.calibration.dates.oldest().map(|s| s.0);
             let basis = match m.calibration_basis {
-                Some(crate::calibration_policy::Basis::VirtualRig) => "the virtual rig's constants",
-                Some(crate::calibration_policy::Basis::Uncalibrated) => "UNCALIBRATED bench",
+                Some(crate::calibration::policy::Basis::VirtualRig) => {
+                    "the virtual rig's constants"
+                }
+                Some(crate::calibration::policy::Basis::Uncalibrated) => "UNCALIBRATED bench",
                 _ => "rig calibration",
             };
             match oldest {

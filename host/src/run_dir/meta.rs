@@ -127,7 +127,7 @@ pub struct RunMeta {
     pub calibration: Calibration,
     /// On what the conversion rests (absent in runs recorded before it was kept).
     #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub calibration_basis: Option<crate::calibration_policy::Basis>,
+    pub calibration_basis: Option<crate::calibration::policy::Basis>,
     /// Counts.
     pub counts: Counts,
     /// Lot, purchase order, supplier and operator, as given when recording.

@@ -3,9 +3,9 @@
 //! Coil field: the Helmholtz formula (checked against its worked value in `remanent-physics`);
 //! boiling point: IAPWS-IF97 (checked against its verification values there).
 
-use remanent::calibrate::reading::{Raw, Stillness};
-use remanent::calibrate::steps::{Coil, Pressure, Reference};
-use remanent::calibrate::{self, Options, Progress, Step, VirtualSetup};
+use remanent::calibration::procedure::reading::{Raw, Stillness};
+use remanent::calibration::procedure::steps::{Coil, Pressure, Reference};
+use remanent::calibration::procedure::{self, Options, Progress, Step, VirtualSetup};
 use remanent::calibration::Calibration;
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 use remanent_physics::HallSensor;
@@ -82,7 +82,7 @@ fn each_step_recovers_the_virtual_rig_s_truth_within_its_uncertainty() {
         Step::BoilingPoint(Pressure::Measured(97.2, 0.1)),
         Step::Gap(reference),
     ] {
-        let found = calibrate::run(
+        let found = procedure::run(
             &mut port, &mut cal, &step, &mut setup, &run_opts, &mut Quiet,
         )
         .unwrap_or_else(|e| panic!("{step:?}: {e}"));
@@ -150,7 +150,7 @@ fn a_thermocouple_off_at_the_boiling_point_is_flagged() {
     // the user says sea level, but the bench is at 2000 m: the water boils 6.6 K lower
     setup.true_pressure_kpa = Some(remanent_physics::boiling::standard_pressure_kpa(2000.0));
     let mut cal = Calibration::virtual_rig(&RigParams::REFERENCE);
-    let found = calibrate::run(
+    let found = procedure::run(
         &mut port,
         &mut cal,
         &Step::BoilingPoint(Pressure::Measured(101.325, 0.2)),
@@ -167,7 +167,7 @@ fn a_thermocouple_off_at_the_boiling_point_is_flagged() {
 /// A record on the virtual rig with the given policy.
 fn record_with(
     dir: &std::path::Path,
-    policy: remanent::calibration_policy::Policy,
+    policy: remanent::calibration::policy::Policy,
 ) -> Result<std::path::PathBuf, remanent::record::RecordError> {
     let m = remanent::magnets::resolve("RM-N42-D10x5").unwrap();
     let out = dir.join("run");
@@ -186,7 +186,7 @@ fn record_with(
 
 #[test]
 fn a_stale_calibration_is_refused_before_anything_starts_and_uncalibrated_runs_say_so() {
-    use remanent::calibration_policy::Policy;
+    use remanent::calibration::policy::Policy;
     let dir = tempfile::tempdir().unwrap();
     // a calibration file whose steps were done long ago
     let mut cal = Calibration::virtual_rig(&RigParams::REFERENCE);

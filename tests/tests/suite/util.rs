@@ -56,7 +56,7 @@ pub struct VirtualRecord {
     /// Converts the record.
     pub calibration: remanent::calibration::Calibration,
     /// Whether the bench may measure.
-    pub policy: remanent::calibration_policy::Policy,
+    pub policy: remanent::calibration::policy::Policy,
     /// The profile's limit, °C.
     pub limit_c: f64,
     /// The cycle.

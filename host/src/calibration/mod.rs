@@ -1,12 +1,18 @@
 //! The rig calibration: every constant that turns raw codes into °C and mT, with the standard
-//! uncertainties the analysis's uncertainty budget needs. Stored as TOML.
+//! uncertainties the analysis's uncertainty budget needs, stored as TOML; and beside it in this
+//! room when each step was done ([`dates`]), whether a bench may measure with it ([`policy`]),
+//! and the steps that make it ([`procedure`]).
+
+pub mod dates;
+pub mod policy;
+pub mod procedure;
 
 use std::path::Path;
 
 use remanent_physics::{HallSensor, Standoff, Thermistor};
 use serde::{Deserialize, Serialize};
 
-pub use crate::calibration_dates::{Dates, Stamp};
+pub use crate::calibration::dates::{Dates, Stamp};
 
 /// Hall probe calibration: the sensor's constants as measured, with their uncertainties.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
