@@ -6,9 +6,9 @@
 
 use std::time::Instant;
 
+use remanent::jobs::record::auto_end::Tolerance;
 use remanent::jobs::trial::{self, TrialSpec, SWEEP};
 use remanent::profiles::{ProfileSpec, BUILTIN_NAMES};
-use remanent::record::auto_end::Tolerance;
 
 fn cpu_seconds() -> f64 {
     let stat = std::fs::read_to_string("/proc/self/stat").unwrap_or_default();
@@ -46,7 +46,7 @@ fn main() {
             let a = &t.analysis;
             let num =
                 |v: Option<f64>, d: usize| v.map(|x| format!("{x:+.d$}")).unwrap_or("—".into());
-            let end = if matches!(t.end, remanent::record::RecordEnd::Complete(_)) {
+            let end = if matches!(t.end, remanent::jobs::record::RecordEnd::Complete(_)) {
                 "analysis"
             } else {
                 "profile"

@@ -5,11 +5,9 @@
 
 pub mod analysis;
 pub mod calibration;
-pub mod clear_fault;
 pub mod clock;
 pub mod console;
 pub mod conversion;
-pub mod drill;
 pub mod event;
 pub mod families;
 pub mod formats;
@@ -24,16 +22,12 @@ pub mod master;
 pub mod output;
 pub mod plots;
 pub mod profiles;
-pub mod record;
-pub mod replay;
 pub mod report;
 pub mod rig_time;
 pub mod run_dir;
 pub mod safe_peak;
 pub mod sampling;
-pub mod selftest;
 pub mod specs;
-pub mod survey;
 pub mod test_plan;
 pub mod units;
 pub mod user_dirs;

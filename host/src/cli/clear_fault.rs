@@ -2,7 +2,7 @@
 
 use std::process::ExitCode;
 
-use remanent::clear_fault::Cleared;
+use remanent::jobs::clear_fault::Cleared;
 use remanent::link::words::{describe_boot, describe_fault, describe_refusal};
 
 use super::options::CalibrationOpts;
@@ -20,7 +20,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
     // clearing a fault converts nothing that is kept: any calibration will do
     let cal = a.calibration.policy().provisional()?;
     let port = remanent::link::port::open(&a.port)?;
-    let (hello, outcome) = remanent::clear_fault::run(port, cal)?;
+    let (hello, outcome) = remanent::jobs::clear_fault::run(port, cal)?;
     if let Some(why) = describe_boot(&hello.boot) {
         println!("{why}");
     }

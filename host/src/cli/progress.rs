@@ -4,7 +4,7 @@ use std::time::Duration;
 
 use indicatif::{ProgressBar, ProgressStyle};
 use remanent::event::{words, Notice};
-use remanent::record::{LiveStatus, Progress};
+use remanent::jobs::record::{LiveStatus, Progress};
 use remanent::units::DisplayUnits;
 
 pub struct Bar {

@@ -7,8 +7,8 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 
 use anyhow::Context;
+use remanent::jobs::record::{record, RecordEnd, RecordOptions, RecordSummary};
 use remanent::magnets;
-use remanent::record::{record, RecordEnd, RecordOptions, RecordSummary};
 use remanent::specs::SpecTable;
 use remanent::test_plan::{plan, TestPlan};
 

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use remanent::analysis::fixture_ref::FixtureReference;
-use remanent::survey::{Reading, SurveyProgress};
+use remanent::jobs::survey::{Reading, SurveyProgress};
 
 use super::options::{CalibrationOpts, ForceOpts};
 

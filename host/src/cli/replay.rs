@@ -23,7 +23,7 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         .as_deref()
         .map(Calibration::load)
         .transpose()?;
-    let c = remanent::replay::replay(&a.run, &a.out, cal)?;
+    let c = remanent::jobs::replay::replay(&a.run, &a.out, cal)?;
     println!(
         "replayed {} into {}: {} samples, {} gaps ({} missing), {} rejected frames",
         a.run.display(),

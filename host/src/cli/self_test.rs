@@ -27,7 +27,7 @@ enum DrillKind {
     StackOverflow,
 }
 
-fn print_steps(steps: &[remanent::selftest::Step], u: &DisplayUnits) -> bool {
+fn print_steps(steps: &[remanent::jobs::selftest::Step], u: &DisplayUnits) -> bool {
     let mut ok = true;
     for s in steps {
         ok &= s.passed;
@@ -52,7 +52,7 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
             DrillKind::StackOverflow => remanent_protocol::Drill::StackOverflow,
         };
         eprintln!("fault drill: the heater will be switched on, then the firmware made to fail");
-        let steps = remanent::drill::run(port, cal, drill)?;
+        let steps = remanent::jobs::drill::run(port, cal, drill)?;
         let ok = print_steps(&steps, u) && steps.len() == 4;
         println!("drill {}", if ok { "passed" } else { "FAILED" });
         return Ok(if ok {
@@ -63,10 +63,10 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     }
     eprintln!(
         "self-test: the heater will raise the reading by {} (toward a target {} above), then be tripped",
-        span(remanent::selftest::RISE_CHECK_K, 0).render(u),
-        span(remanent::selftest::HEAT_BY_K, 0).render(u)
+        span(remanent::jobs::selftest::RISE_CHECK_K, 0).render(u),
+        span(remanent::jobs::selftest::HEAT_BY_K, 0).render(u)
     );
-    let (hello, steps) = remanent::selftest::run(port, cal, &policy)?;
+    let (hello, steps) = remanent::jobs::selftest::run(port, cal, &policy)?;
     println!(
         "device: board `{}`, firmware {}.{}.{}, {}",
         hello.board.as_str(),
@@ -76,7 +76,7 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         hello.version
     );
     let mut ok = print_steps(&steps, u);
-    ok &= steps.len() == remanent::selftest::STEPS;
+    ok &= steps.len() == remanent::jobs::selftest::STEPS;
     println!("self-test {}", if ok { "passed" } else { "FAILED" });
     Ok(if ok {
         ExitCode::SUCCESS

@@ -4,8 +4,8 @@ use remanent::units::{flux, temp_q, DisplayUnits};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
+use remanent::jobs::survey::{self, Reading, SurveyOptions, SurveyProgress};
 use remanent::specs::SpecTable;
-use remanent::survey::{self, Reading, SurveyOptions, SurveyProgress};
 
 #[derive(clap::Args)]
 pub struct Args {

@@ -10,7 +10,7 @@ use std::time::{SystemTime, UNIX_EPOCH};
 use serde::Serialize;
 
 use crate::event::words;
-use crate::record::{LiveSample, LiveStatus, Progress};
+use crate::jobs::record::{LiveSample, LiveStatus, Progress};
 use crate::units::DisplayUnits;
 
 /// One sample as a viewer draws it.

@@ -11,9 +11,9 @@ use super::hub::{Hub, HubProgress, Outcome, Phase};
 use super::lot::{LotSession, PartRecord};
 use crate::calibration::policy::Policy;
 use crate::history::Location;
+use crate::jobs::record::{record, RecordEnd, RecordOptions};
 use crate::jobs::{history, report, Judging};
 use crate::magnets::MagnetFile;
-use crate::record::{record, RecordEnd, RecordOptions};
 use crate::report::Look;
 use crate::specs::SpecTable;
 

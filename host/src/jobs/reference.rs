@@ -8,10 +8,10 @@ use std::sync::mpsc::Receiver;
 use crate::analysis::fixture_ref::{FixtureReference, DEFAULT_REPEATABILITY_PCT};
 use crate::calibration::policy::Policy;
 use crate::calibration::{Calibration, Stamp};
+use crate::jobs::survey::{self, SurveyOptions, SurveyProgress};
 use crate::link::LinkError;
 use crate::magnets::MagnetFile;
 use crate::specs::SpecTable;
-use crate::survey::{self, SurveyOptions, SurveyProgress};
 
 /// The reference could not be measured.
 #[derive(Debug, thiserror::Error)]

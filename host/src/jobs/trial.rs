@@ -8,10 +8,10 @@ use std::time::Duration;
 use super::analyze_input::{load_and_analyze, InputRequest, JobError};
 use crate::analysis::Analysis;
 use crate::calibration::Calibration;
+use crate::jobs::record::auto_end::Tolerance;
+use crate::jobs::record::{record, Quiet, RecordEnd, RecordError, RecordOptions};
 use crate::magnets::{self, MagnetError};
 use crate::profiles::ProfileSpec;
-use crate::record::auto_end::Tolerance;
-use crate::record::{record, Quiet, RecordEnd, RecordError, RecordOptions};
 use crate::virtual_rig::{SimulatedPort, VirtualRigOptions};
 
 /// What a trial asks for.

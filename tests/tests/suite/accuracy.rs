@@ -7,9 +7,9 @@ use std::time::Duration;
 use remanent::analysis::dataset;
 use remanent::analysis::{analyze, Analysis, Context};
 use remanent::calibration::Calibration;
+use remanent::jobs::record::{record, Quiet, RecordEnd, RecordOptions};
 use remanent::magnets;
 use remanent::profiles::{ProfileSpec, SegmentSpec};
-use remanent::record::{record, Quiet, RecordEnd, RecordOptions};
 use remanent::specs::SpecTable;
 use remanent::virtual_rig::{RigTruth, SimulatedPort, VirtualRigOptions};
 

@@ -168,7 +168,7 @@ fn a_thermocouple_off_at_the_boiling_point_is_flagged() {
 fn record_with(
     dir: &std::path::Path,
     policy: remanent::calibration::policy::Policy,
-) -> Result<std::path::PathBuf, remanent::record::RecordError> {
+) -> Result<std::path::PathBuf, remanent::jobs::record::RecordError> {
     let m = remanent::magnets::resolve("RM-N42-D10x5").unwrap();
     let out = dir.join("run");
     crate::util::VirtualRecord {

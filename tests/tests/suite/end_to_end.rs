@@ -9,9 +9,9 @@ use std::time::Duration;
 use remanent::analysis::dataset::{self, CsvOptions};
 use remanent::analysis::{analyze, Context};
 use remanent::calibration::Calibration;
+use remanent::jobs::record::{record, Quiet, RecordEnd, RecordOptions, RecordSummary};
 use remanent::magnets;
 use remanent::profiles::{ProfileSpec, SegmentSpec};
-use remanent::record::{record, Quiet, RecordEnd, RecordOptions, RecordSummary};
 use remanent::specs::SpecTable;
 use remanent::virtual_rig::{VirtualRig, VirtualRigOptions};
 
@@ -127,7 +127,7 @@ fn a_full_cycle_records_without_gaps_and_recovers_alpha() {
     // an existing run directory is never overwritten
     // the raw stream alone rebuilds the record: every sample row the same
     let replayed = dir.path().join("replayed");
-    let counts = remanent::replay::replay(&out, &replayed, None).unwrap();
+    let counts = remanent::jobs::replay::replay(&out, &replayed, None).unwrap();
     assert_eq!(counts.samples, summary.counts.samples);
     assert_eq!(
         std::fs::read(replayed.join("samples.csv")).unwrap(),
@@ -307,8 +307,8 @@ fn stopping_a_record_turns_the_heater_off_and_closes_cleanly() {
     let s2 = stop.clone();
     // the progress callback plays the user pressing Ctrl-C once the heater is on
     struct StopWhenHot(Arc<AtomicBool>);
-    impl remanent::record::Progress for StopWhenHot {
-        fn update(&mut self, s: &remanent::record::LiveStatus) {
+    impl remanent::jobs::record::Progress for StopWhenHot {
+        fn update(&mut self, s: &remanent::jobs::record::LiveStatus) {
             if s.temp_c.is_some_and(|t| t > 40.0) {
                 self.0.store(true, std::sync::atomic::Ordering::Relaxed);
             }
@@ -344,14 +344,15 @@ fn the_self_test_passes_on_a_healthy_simulated_bench_and_fails_a_detached_heater
     let opts = VirtualRigOptions::new(m.model.unwrap());
     let cal = Calibration::virtual_rig(&opts.params);
     let (_, steps) =
-        remanent::selftest::run(SimulatedPort::new(opts.clone()), cal, &Default::default())
+        remanent::jobs::selftest::run(SimulatedPort::new(opts.clone()), cal, &Default::default())
             .unwrap();
-    assert_eq!(steps.len(), remanent::selftest::STEPS);
+    assert_eq!(steps.len(), remanent::jobs::selftest::STEPS);
     assert!(steps.iter().all(|s| s.passed), "{steps:#?}");
     let mut broken = opts;
     broken.faults.heater_detached_at_s = Some(0.0);
     let (_, steps) =
-        remanent::selftest::run(SimulatedPort::new(broken), cal, &Default::default()).unwrap();
+        remanent::jobs::selftest::run(SimulatedPort::new(broken), cal, &Default::default())
+            .unwrap();
     let heats = steps.iter().find(|s| s.name == "heater heats").unwrap();
     assert!(!heats.passed, "a detached heater must fail the self-test");
 }

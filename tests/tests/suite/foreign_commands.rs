@@ -5,9 +5,9 @@
 use std::io::{Read, Write};
 
 use remanent::calibration::Calibration;
+use remanent::jobs::record::{record, Quiet, RecordEnd, RecordOptions};
 use remanent::magnets;
 use remanent::profiles::ProfileSpec;
-use remanent::record::{record, Quiet, RecordEnd, RecordOptions};
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 use remanent_protocol::{encode, Command, HostMsg, MAX_HOST_FRAME};
 
@@ -57,7 +57,7 @@ fn record_beside(
     at_read: usize,
     command: Command,
     auto_end: bool,
-) -> (remanent::record::RecordSummary, tempfile::TempDir) {
+) -> (remanent::jobs::record::RecordSummary, tempfile::TempDir) {
     let part = magnets::resolve("RM-N42SH-D10x5").unwrap();
     let opts = VirtualRigOptions::new(part.model.unwrap());
     let params = opts.params;

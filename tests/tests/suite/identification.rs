@@ -230,7 +230,7 @@ fn an_unidentified_bench_refuses_to_heat_past_its_model_free_ceiling_until_it_is
 #[test]
 fn a_record_on_an_unidentified_bench_says_so_and_stays_under_the_model_free_limits() {
     use remanent::event::{words, Notice};
-    use remanent::record::{
+    use remanent::jobs::record::{
         record, LiveStatus, Progress as RecordProgress, RecordEnd, RecordOptions,
     };
     struct Notes(Vec<Notice>);

@@ -5,9 +5,9 @@
 use std::time::Duration;
 
 use remanent::calibration::Calibration;
+use remanent::jobs::record::{record, Quiet, RecordEnd, RecordOptions};
 use remanent::magnets;
 use remanent::profiles::{ProfileSpec, SegmentSpec};
-use remanent::record::{record, Quiet, RecordEnd, RecordOptions};
 use remanent::run_dir::{for_each_row, SampleRow};
 use remanent::virtual_rig::{SimulatedPort, VirtualRig, VirtualRigOptions};
 
@@ -97,7 +97,7 @@ fn a_record_after_a_self_test_on_the_same_port_holds_only_its_own_samples() {
     let rig = VirtualRig::start(opts).unwrap();
     // an earlier session heats the fixture, trips and clears a fault, then leaves
     let port = remanent::link::port::open(rig.path()).unwrap();
-    let (_, steps) = remanent::selftest::run(port, cal, &Default::default()).unwrap();
+    let (_, steps) = remanent::jobs::selftest::run(port, cal, &Default::default()).unwrap();
     assert!(steps.iter().all(|s| s.passed), "{steps:#?}");
     std::thread::sleep(Duration::from_millis(1500));
     let dir = tempfile::tempdir().unwrap();
@@ -154,7 +154,7 @@ fn a_record_after_a_self_test_on_the_same_port_holds_only_its_own_samples() {
 fn simulated_record(
     out: &std::path::Path,
     profile: ProfileSpec,
-) -> Result<remanent::record::RecordSummary, remanent::record::RecordError> {
+) -> Result<remanent::jobs::record::RecordSummary, remanent::jobs::record::RecordError> {
     let m = magnets::resolve("RM-N42SH-D10x5").unwrap();
     let opts = VirtualRigOptions::new(m.model.unwrap());
     let rec = RecordOptions {
@@ -357,7 +357,7 @@ fn a_raw_stream_this_build_cannot_rebuild_is_refused_saying_why_and_leaves_nothi
     assert_ne!(older, text, "run.toml names the protocol");
     std::fs::write(&meta_path, &older).unwrap();
     let to = dir.path().join("again");
-    let e = remanent::replay::replay(&out, &to, None)
+    let e = remanent::jobs::replay::replay(&out, &to, None)
         .unwrap_err()
         .to_string();
     assert!(e.contains("protocol 3") && e.contains("run"), "{e}");
@@ -365,7 +365,7 @@ fn a_raw_stream_this_build_cannot_rebuild_is_refused_saying_why_and_leaves_nothi
     // the right protocol, but a raw stream with nothing in it
     std::fs::write(&meta_path, &text).unwrap();
     std::fs::write(out.join("raw.bin"), b"").unwrap();
-    let e = remanent::replay::replay(&out, &to, None)
+    let e = remanent::jobs::replay::replay(&out, &to, None)
         .unwrap_err()
         .to_string();
     assert!(e.contains("no sample"), "{e}");

@@ -1,7 +1,7 @@
 //! The operator's commands: clearing a latched fault on purpose, and what the CLI refuses.
 
 use remanent::calibration::Calibration;
-use remanent::clear_fault::Cleared;
+use remanent::jobs::clear_fault::Cleared;
 use remanent::magnets;
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 use remanent_protocol::{Fault, RefuseReason};
@@ -19,7 +19,7 @@ fn rig(tc_open: bool) -> (SimulatedPort, Calibration) {
 #[test]
 fn clear_fault_names_the_latched_fault_and_refuses_while_its_cause_persists() {
     let (port, cal) = rig(false);
-    let (_, outcome) = remanent::clear_fault::run(port, cal).unwrap();
+    let (_, outcome) = remanent::jobs::clear_fault::run(port, cal).unwrap();
     assert_eq!(outcome, Cleared::NothingLatched);
     // an open thermocouple latches even with the heater idle; it cannot be cleared while open
     let (mut port, cal) = rig(true);
@@ -28,7 +28,7 @@ fn clear_fault_names_the_latched_fault_and_refuses_while_its_cause_persists() {
         // let the device run a few periods before the host says hello
         let _ = std::io::Read::read(&mut port, &mut buf);
     }
-    let (hello, outcome) = remanent::clear_fault::run(port, cal).unwrap();
+    let (hello, outcome) = remanent::jobs::clear_fault::run(port, cal).unwrap();
     assert_eq!(hello.latched, Some(Fault::ThermocoupleOpen));
     assert_eq!(
         outcome,
@@ -122,7 +122,7 @@ fn the_self_test_names_a_latched_fault_and_measures_from_its_own_start() {
         s.read().unwrap();
     }
     drop(s);
-    let (_, steps) = remanent::selftest::run(&mut port, cal, &Default::default()).unwrap();
+    let (_, steps) = remanent::jobs::selftest::run(&mut port, cal, &Default::default()).unwrap();
     let start = &steps[0];
     assert!(start.passed, "{start:?}");
     assert!(
@@ -147,7 +147,7 @@ fn the_self_test_names_a_latched_fault_and_measures_from_its_own_start() {
     assert!(secs < 120.0, "{heats:?}");
     // a thermocouple fault is named where it is, not reported as a weak heater
     let (port, cal) = rig(true);
-    let (_, steps) = remanent::selftest::run(port, cal, &Default::default()).unwrap();
+    let (_, steps) = remanent::jobs::selftest::run(port, cal, &Default::default()).unwrap();
     let tc = steps.iter().find(|s| s.name == "thermocouple").unwrap();
     assert!(
         !tc.passed && tc.detail.to_string().contains("open"),
@@ -250,7 +250,7 @@ fn the_self_test_leaves_a_heating_fault_for_the_operator_to_clear() {
     }
     assert_eq!(fault, Some(Fault::HeatingWhileOff));
     drop(s);
-    let (_, steps) = remanent::selftest::run(&mut port, cal, &Default::default()).unwrap();
+    let (_, steps) = remanent::jobs::selftest::run(&mut port, cal, &Default::default()).unwrap();
     assert_eq!(steps.len(), 1, "nothing more is tried: {steps:#?}");
     let start = &steps[0];
     let detail = start.detail.to_string();

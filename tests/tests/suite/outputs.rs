@@ -6,10 +6,10 @@ use std::time::Duration;
 use remanent::analysis::dataset;
 use remanent::analysis::{analyze, Context};
 use remanent::calibration::Calibration;
+use remanent::jobs::record::{record, Quiet, RecordOptions};
 use remanent::lot::{self, LotRow};
 use remanent::magnets;
 use remanent::profiles::ProfileSpec;
-use remanent::record::{record, Quiet, RecordOptions};
 use remanent::sampling::{accept_probability, design, Model};
 use remanent::specs::SpecTable;
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
@@ -219,7 +219,7 @@ fn sampling_plan_matches_the_textbook_example() {
 
 #[test]
 fn a_survey_of_a_rotor_set_flags_the_damaged_magnets() {
-    use remanent::survey::{self, SurveyOptions};
+    use remanent::jobs::survey::{self, SurveyOptions};
     struct Silent;
     impl survey::SurveyProgress for Silent {
         fn reading(&mut self, _: &survey::Reading) {}

@@ -9,9 +9,9 @@ use remanent::analysis::fixture_ref::FixtureReference;
 use remanent::analysis::verdict::Outcome;
 use remanent::analysis::Analysis;
 use remanent::calibration::Calibration;
+use remanent::jobs::survey::{Reading, SurveyProgress};
 use remanent::jobs::{load_and_analyze, InputRequest};
 use remanent::magnets;
-use remanent::survey::{Reading, SurveyProgress};
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 use remanent_rig_model::{Magnet, RigParams};
 

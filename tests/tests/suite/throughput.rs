@@ -3,10 +3,10 @@
 //! ±0.003 %/°C, loss to ±0.1 %, each inside its U95) against the rig model's truth, as the
 //! accuracy sweep is.
 
+use remanent::jobs::record::auto_end::Tolerance;
+use remanent::jobs::record::RecordEnd;
 use remanent::jobs::trial::{self, Trial, TrialSpec, SWEEP};
 use remanent::profiles::ProfileSpec;
-use remanent::record::auto_end::Tolerance;
-use remanent::record::RecordEnd;
 
 const FIFTEEN_MINUTES_S: f64 = 900.0;
 

@@ -70,9 +70,9 @@ impl VirtualRecord {
     pub fn run(
         self,
         out: &std::path::Path,
-    ) -> Result<remanent::record::RecordSummary, remanent::record::RecordError> {
+    ) -> Result<remanent::jobs::record::RecordSummary, remanent::jobs::record::RecordError> {
+        use remanent::jobs::record::{record, Quiet, RecordOptions};
         use remanent::profiles::{ProfileSpec, SegmentSpec};
-        use remanent::record::{record, Quiet, RecordOptions};
         let rec = RecordOptions {
             port_label: "simulated".into(),
             policy: self.policy,

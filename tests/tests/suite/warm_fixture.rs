@@ -5,9 +5,9 @@
 
 use remanent::calibration::Calibration;
 use remanent::event::Notice;
+use remanent::jobs::record::{record, LiveStatus, Progress, RecordOptions};
 use remanent::magnets;
 use remanent::profiles::ProfileSpec;
-use remanent::record::{record, LiveStatus, Progress, RecordOptions};
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 
 /// The notices a record gave.

@@ -8,10 +8,10 @@ use std::time::{Duration, Instant};
 use remanent_protocol::{Command, Drill, ResetCause, RunState};
 
 use crate::calibration::Calibration;
+use crate::jobs::selftest::Step;
 use crate::link::acquisition::{Acquisition, Event};
 use crate::link::words::{describe_boot, describe_refusal};
 use crate::link::LinkError;
-use crate::selftest::Step;
 
 /// The link may be quiet this long while the device resets.
 const SILENCE: Duration = Duration::from_secs(15);
