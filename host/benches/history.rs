@@ -42,7 +42,7 @@ fn template() -> Analysis {
 fn item(k: usize, a: &Analysis) -> (RunEntry, Analysis) {
     let mut a = a.clone();
     a.alpha_pct_per_c += 1e-4 * ((k as f64) * 0.37).sin();
-    a.provenance.analysed_utc = remanent::clock::format_utc(1_767_225_600 + k as u64 * 1728);
+    a.provenance.analysed_utc = remanent::timestamps::format_utc(1_767_225_600 + k as u64 * 1728);
     let e = RunEntry {
         run_uid: format!("bench-{k:06}"),
         run_name: format!("run-{k:06}"),

@@ -3,9 +3,9 @@
 //! calibration, fit the reversible temperature coefficient with its uncertainty, measure
 //! irreversible loss, judge the magnet, and plot and report it.
 
+pub mod acceptance_plan;
 pub mod analysis;
 pub mod calibration;
-pub mod clock;
 pub mod console;
 pub mod conversion;
 pub mod event;
@@ -26,9 +26,9 @@ pub mod report;
 pub mod rig_time;
 pub mod run_dir;
 pub mod safe_peak;
-pub mod sampling;
 pub mod specs;
 pub mod test_plan;
+pub mod timestamps;
 pub mod units;
 pub mod user_dirs;
 pub mod values;

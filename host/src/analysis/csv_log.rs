@@ -14,7 +14,7 @@ use super::csv_cells::{parse_cell, spans, Cell};
 use super::csv_header::{pick_columns, Col, Header};
 use super::repair::Verdict;
 use super::series::{InputError, Series, MIN_ROWS};
-use crate::clock;
+use crate::timestamps;
 
 /// Options for plain CSV logs.
 #[derive(Debug, Clone, Default)]
@@ -104,7 +104,7 @@ struct Rows {
     probe_tc: Option<f64>,
     s: Series,
     probe_c: Vec<f64>,
-    clock: clock::Clock,
+    clock: timestamps::Clock,
     scratch: String,
     cells: Vec<std::ops::Range<usize>>,
     strict: bool,
@@ -126,7 +126,7 @@ impl Rows {
             probe_tc,
             s: Series::default(),
             probe_c: Vec::new(),
-            clock: clock::Clock::default(),
+            clock: timestamps::Clock::default(),
             scratch: String::new(),
             cells: Vec::new(),
             strict: false,

@@ -4,7 +4,7 @@
 
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
-use crate::clock;
+use crate::timestamps;
 
 /// A moment, seconds since 1970 UTC.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
@@ -29,7 +29,7 @@ impl Stamp {
 
 impl std::fmt::Display for Stamp {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(&clock::format_utc(self.0))
+        f.write_str(&timestamps::format_utc(self.0))
     }
 }
 
@@ -42,7 +42,7 @@ impl Serialize for Stamp {
 impl<'de> Deserialize<'de> for Stamp {
     fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Stamp, D::Error> {
         let text = String::deserialize(d)?;
-        let mut c = clock::Clock::default();
+        let mut c = timestamps::Clock::default();
         // a clock gives seconds from its first stamp: measure from the epoch instead
         c.seconds("1970-01-01T00:00:00Z");
         c.seconds(&text)

@@ -3,7 +3,7 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use remanent::sampling::{design, Model};
+use remanent::acceptance_plan::{design, Model};
 
 #[derive(clap::Args)]
 pub struct Args {

@@ -4,9 +4,9 @@
 
 use serde::Serialize;
 
+use crate::acceptance_plan::{design, Model, Plan, PlanError};
 use crate::analysis::verdict::Outcome;
 use crate::inspection::Inspection;
-use crate::sampling::{design, Model, Plan, PlanError};
 
 /// What the operator states when a lot starts.
 #[derive(Debug, Clone, PartialEq, serde::Deserialize)]

@@ -120,7 +120,7 @@ impl RunEntry {
                 .calibration
                 .dates
                 .oldest()
-                .map(|s| crate::clock::format_utc(s.0)),
+                .map(|s| crate::timestamps::format_utc(s.0)),
             calibration_json: serde_json::to_string(&meta.calibration).ok(),
             samples: i64::try_from(meta.counts.samples).ok(),
             gap_samples: i64::try_from(meta.counts.gap_samples).ok(),

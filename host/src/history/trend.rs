@@ -67,7 +67,7 @@ pub fn chart(
             .iter()
             .filter_map(|p| {
                 let v = pick(p).filter(|v| v.is_finite())?;
-                let t = crate::clock::parse_utc(&p.when_utc)?;
+                let t = crate::timestamps::parse_utc(&p.when_utc)?;
                 Some((t, v, p.magnet_id.clone().unwrap_or_default()))
             })
             .collect();

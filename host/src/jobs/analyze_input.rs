@@ -196,7 +196,8 @@ impl Analyzed {
             source,
         })?;
         a.provenance = self.provenance.clone();
-        a.provenance.analysed_utc = crate::clock::format_utc(crate::calibration::Stamp::now().0);
+        a.provenance.analysed_utc =
+            crate::timestamps::format_utc(crate::calibration::Stamp::now().0);
         if self.uncalibrated {
             a.uncalibrated = true;
             a.notes.insert(0, "UNCALIBRATED BENCH: recorded without a valid calibration (--uncalibrated); re-convert it with `analyze --calibration` once the bench is calibrated".into());

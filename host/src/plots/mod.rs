@@ -114,8 +114,8 @@ pub fn write_lot_plot(
 /// The OC curve of `plan` as `stem`.png/.svg (refuses to replace them unless `force`).
 pub fn write_oc_plot(
     stem: &Path,
-    model: crate::sampling::Model,
-    plan: &crate::sampling::Plan,
+    model: crate::acceptance_plan::Model,
+    plan: &crate::acceptance_plan::Plan,
     aql: f64,
     rql: f64,
     force: bool,

@@ -9,8 +9,8 @@ use super::style::{legend, DrawResult, COOLING, FIT, HEATING};
 /// The OC curve.
 pub fn oc_curve<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
-    model: crate::sampling::Model,
-    plan: &crate::sampling::Plan,
+    model: crate::acceptance_plan::Model,
+    plan: &crate::acceptance_plan::Plan,
     aql: f64,
     rql: f64,
 ) -> DrawResult {
@@ -39,7 +39,7 @@ pub fn oc_curve<DB: DrawingBackend>(
             let p = pmax * f64::from(k) / 300.0;
             (
                 p * 100.0,
-                crate::sampling::accept_probability(model, plan.n, plan.c, p),
+                crate::acceptance_plan::accept_probability(model, plan.n, plan.c, p),
             )
         }),
         COOLING.stroke_width(3),

@@ -77,7 +77,7 @@ fn draw_panel<DB: DrawingBackend>(
     // a date once per label: over a few days the labels carry the time of day as well
     let short = x.end - x.start < 3.0;
     let label = move |d: &f64| {
-        let s = crate::clock::format_utc((d * DAY_S).max(0.0) as u64);
+        let s = crate::timestamps::format_utc((d * DAY_S).max(0.0) as u64);
         if short {
             s[5..16].replace('T', " ")
         } else {

@@ -44,7 +44,7 @@ fn header(a: &Analysis, meta: Option<&RunMeta>) -> Vec<(&'static str, String)> {
             match oldest {
                 Some(s) => format!(
                     "{basis}, oldest step {}",
-                    &crate::clock::format_utc(s)[..10]
+                    &crate::timestamps::format_utc(s)[..10]
                 ),
                 None => basis.to_string(),
             }
@@ -258,7 +258,7 @@ fn signatures(f: &mut Flow) {
 /// logger's file, which names no time, is dated when it is made.
 fn issue_time_s(meta: Option<&RunMeta>) -> i64 {
     meta.and_then(|m| m.finished_utc.as_deref().or(Some(m.started_utc.as_str())))
-        .and_then(crate::clock::parse_utc)
+        .and_then(crate::timestamps::parse_utc)
         .map(|s| s as i64)
         .unwrap_or_else(|| {
             std::time::SystemTime::now()

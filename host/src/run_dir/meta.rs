@@ -200,7 +200,7 @@ pub fn utc_now() -> String {
     format_utc(secs)
 }
 
-pub use crate::clock::format_utc;
+pub use crate::timestamps::format_utc;
 
 #[cfg(test)]
 mod tests {

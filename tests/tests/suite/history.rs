@@ -116,7 +116,7 @@ fn exercise(at: &Location) {
         },
     );
     assert_eq!(by_magnet.len(), 1);
-    let tomorrow = remanent::clock::format_utc(remanent::calibration::Stamp::now().0 + 86_400);
+    let tomorrow = remanent::timestamps::format_utc(remanent::calibration::Stamp::now().0 + 86_400);
     assert!(find(
         &mut store,
         Filter {
@@ -465,7 +465,7 @@ fn a_suppliers_drift_shows_beyond_the_control_limits_on_the_chart() {
     // from the baseline must flag exactly the drifted five
     let points: Vec<TrendPoint> = (0..30u64)
         .map(|k| TrendPoint {
-            when_utc: remanent::clock::format_utc(1_767_225_600 + k * 86_400),
+            when_utc: remanent::timestamps::format_utc(1_767_225_600 + k * 86_400),
             magnet_id: Some(format!("M{k}")),
             lot: Some("L".into()),
             alpha_pct_per_c: Some(
@@ -503,7 +503,7 @@ fn a_trend_of_a_few_runs_draws_no_limits_and_mixed_grades_are_counted() {
     use remanent::history::TrendPoint;
     // three runs of two grades: the loss limits once came out as −2.0 … from mixed grades
     let point = |k: u64, grade: &str, loss: f64| TrendPoint {
-        when_utc: remanent::clock::format_utc(1_767_225_600 + k * 3_600),
+        when_utc: remanent::timestamps::format_utc(1_767_225_600 + k * 3_600),
         magnet_id: Some(format!("M{k}")),
         lot: None,
         alpha_pct_per_c: Some(-0.11),

@@ -3,6 +3,7 @@
 
 use std::time::Duration;
 
+use remanent::acceptance_plan::{accept_probability, design, Model};
 use remanent::analysis::dataset;
 use remanent::analysis::{analyze, Context};
 use remanent::calibration::Calibration;
@@ -10,7 +11,6 @@ use remanent::jobs::record::{record, Quiet, RecordOptions};
 use remanent::lot::{self, LotRow};
 use remanent::magnets;
 use remanent::profiles::ProfileSpec;
-use remanent::sampling::{accept_probability, design, Model};
 use remanent::specs::SpecTable;
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 

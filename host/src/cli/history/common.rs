@@ -46,7 +46,7 @@ pub struct FilterOpts {
 }
 
 fn parse_when(s: &str) -> Result<String, String> {
-    remanent::clock::parse_utc(s)
+    remanent::timestamps::parse_utc(s)
         .map(|_| s.trim().to_string())
         .ok_or_else(|| format!("`{s}` is not a date (YYYY-MM-DD) or an RFC 3339 UTC instant"))
 }

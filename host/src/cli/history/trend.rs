@@ -79,7 +79,7 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         for (t, v, id) in p.outside() {
             println!(
                 "    beyond: {} {id} {v:.4}",
-                &remanent::clock::format_utc(*t as u64)[..10]
+                &remanent::timestamps::format_utc(*t as u64)[..10]
             );
         }
     }
