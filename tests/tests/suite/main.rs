@@ -9,6 +9,7 @@ mod coverage;
 mod display_units;
 mod end_to_end;
 mod foreign_commands;
+mod json_layout;
 mod history;
 mod identification;
 mod imperfect_records;
