@@ -120,7 +120,7 @@ pub fn estimate(
             spread / 3f64.sqrt(),
         ));
     }
-    if data.code == "single_ramp" {
+    if data.code == super::result::FitMethod::SingleRamp {
         let (lo, hi) = super::fit_data::SINGLE_RAMP_TAU_S;
         let a_at = |tau: f64| -> f64 {
             super::fit_data::single_ramp(p, &lagged.seg, tau)

@@ -40,7 +40,7 @@ pub fn judge_total(a: &mut Analysis) {
         .map_or(exposure_c, |c| c.2);
     a.irreversible_loss_pct = Some(total);
     a.irreversible_loss_u95_pct = Some(u95);
-    a.loss_method_code = Some("cycles".into());
+    a.loss_method_code = Some(super::result::LossMethod::Cycles);
     a.reference_c = None;
     a.loss_budget = per
         .iter()

@@ -8,6 +8,7 @@ use super::lag;
 use super::lag_estimate::Lagged;
 use super::lag_estimate::MIN_BRANCH_SAMPLES;
 use super::prepare::{mean, Prepared, LOSSY};
+use super::result::FitMethod;
 use super::segments::{Segments, MIN_SPAN_K};
 
 /// Fewest soak points that make a quadratic worth fitting.
@@ -58,7 +59,7 @@ pub struct FitData {
     pub method: &'static str,
     /// The same as a stable code for machines: `heating_below_collapse`, `cooling_branch`,
     /// `ramps`, `soak_points` or `single_ramp`.
-    pub code: &'static str,
+    pub code: super::result::FitMethod,
 }
 
 /// Choose the points.
@@ -78,15 +79,15 @@ pub fn select(
             t_c: idx.iter().map(|&i| tm[i]).collect(),
             b_mt: idx.iter().map(|&i| p.flux[i]).collect(),
             method: "the heating branch below the collapse",
-            code: "heating_below_collapse",
+            code: FitMethod::HeatingBelowCollapse,
         });
     }
     if lagged.tau_s.is_some() {
         let (t_c, b_mt) = p.fit_points(&lagged.seg, tm, lagged.loss);
         let (method, code) = if lagged.loss > LOSSY {
-            ("the lag-corrected cooling branch", "cooling_branch")
+            ("the lag-corrected cooling branch", FitMethod::CoolingBranch)
         } else {
-            ("lag-corrected ramps", "ramps")
+            ("lag-corrected ramps", FitMethod::Ramps)
         };
         return Ok(FitData {
             t_c,
@@ -109,7 +110,7 @@ pub fn select(
                 t_c,
                 b_mt,
                 method: "one ramp alone (no return: the lag taken from a band, not estimated)",
-                code: "single_ramp",
+                code: FitMethod::SingleRamp,
             });
         }
         return Err(AnalysisError::CannotFit(format!(
@@ -121,6 +122,6 @@ pub fn select(
         t_c: t,
         b_mt: b,
         method: "soak points",
-        code: "soak_points",
+        code: FitMethod::SoakPoints,
     })
 }

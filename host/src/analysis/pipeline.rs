@@ -228,17 +228,13 @@ fn analyze_cycle_with(
         residual_sd_mt: a.fit.residual_sd,
         fit_points: a.fit.n,
         fit_method: data.method.into(),
-        fit_method_code: data.code.into(),
+        fit_method_code: data.code,
         lag_time_constant_s: lagged.tau_s,
         irreversible_loss_pct: loss.as_ref().map(|l| l.loss_pct),
         irreversible_loss_u95_pct: loss.as_ref().map(|l| l.u95_pct),
-        loss_method_code: loss.as_ref().map(|_| {
-            if by_references {
-                "references"
-            } else {
-                "branches"
-            }
-            .into()
+        loss_method_code: loss.as_ref().map(|_| match by_references {
+            true => super::result::LossMethod::References,
+            false => super::result::LossMethod::Branches,
         }),
         reference_c: loss.as_ref().map(|l| l.ref_c),
         reference_probe_c: loss.as_ref().and_then(|l| l.ref_probe_c),

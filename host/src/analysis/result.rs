@@ -18,6 +18,54 @@ pub enum Distribution {
     Rectangular,
 }
 
+/// How α's fit was made, as `analysis.json` codes it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum FitMethod {
+    /// Both lag-corrected ramps.
+    Ramps,
+    /// The lag-corrected cooling branch (the part lost flux on the way up).
+    CoolingBranch,
+    /// The ends of the holds.
+    SoakPoints,
+    /// The heating branch below where the field collapsed (a Curie sweep).
+    HeatingBelowCollapse,
+    /// One ramp alone, the lag taken from a band.
+    SingleRamp,
+}
+
+/// How the irreversible loss was found, as `analysis.json` codes it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum LossMethod {
+    /// The flux at rest before and after, referred to one temperature.
+    References,
+    /// Heating against cooling at the same temperature (a record with no return).
+    Branches,
+    /// The total over several heat cycles.
+    Cycles,
+}
+
+impl FitMethod {
+    /// The code, as `analysis.json` writes it.
+    pub fn code(self) -> &'static str {
+        match self {
+            FitMethod::Ramps => "ramps",
+            FitMethod::CoolingBranch => "cooling_branch",
+            FitMethod::SoakPoints => "soak_points",
+            FitMethod::HeatingBelowCollapse => "heating_below_collapse",
+            FitMethod::SingleRamp => "single_ramp",
+        }
+    }
+}
+
+/// A method compares equal to its code (`a.fit_method_code == "ramps"`).
+impl PartialEq<&str> for FitMethod {
+    fn eq(&self, code: &&str) -> bool {
+        self.code() == *code
+    }
+}
+
 /// One contribution to an uncertainty budget.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct BudgetLine {
@@ -161,7 +209,7 @@ pub struct Analysis {
     pub fit_method: String,
     /// The same as a stable code: `ramps`, `cooling_branch`, `soak_points`,
     /// `heating_below_collapse`.
-    pub fit_method_code: String,
+    pub fit_method_code: FitMethod,
     /// Thermal lag time constant of the magnet behind the thermocouple, s (None: not estimated).
     pub lag_time_constant_s: Option<f64>,
     /// Irreversible loss between the references before and after the excursion (at
@@ -172,7 +220,7 @@ pub struct Analysis {
     /// How the loss was found: `references` (the flux at rest before and after, referred to
     /// one temperature) or `branches` (heating against cooling at the same temperature, for a
     /// record with no return); absent with no loss.
-    pub loss_method_code: Option<String>,
+    pub loss_method_code: Option<LossMethod>,
     /// Reference temperatures before and after, °C.
     #[serde(rename = "reference_C")]
     pub reference_c: Option<[f64; 2]>,
@@ -293,5 +341,15 @@ mod tests {
         assert!((BudgetLine::expanded(&rect) - 0.9545).abs() < 1e-3);
         // the combined standard uncertainty is the same whatever the distribution
         assert!((BudgetLine::combined(&rect) - 1.0 / 3f64.sqrt()).abs() < 1e-12);
+    }
+
+    #[test]
+    fn each_fit_method_writes_the_code_it_compares_as() {
+        use FitMethod::*;
+        for m in [Ramps, CoolingBranch, SoakPoints, HeatingBelowCollapse, SingleRamp] {
+            let json = serde_json::to_value(m).unwrap();
+            assert_eq!(json.as_str(), Some(m.code()));
+            assert!(m == m.code());
+        }
     }
 }

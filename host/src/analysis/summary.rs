@@ -3,7 +3,7 @@
 
 use std::fmt::Write;
 
-use super::result::Analysis;
+use super::result::{Analysis, LossMethod};
 use crate::units::{self, temp_q, DisplayUnits, Kind, Qty};
 
 /// Lines of text describing the result, in the display units `u`.
@@ -109,13 +109,13 @@ pub fn loss_words(a: &Analysis, u: &DisplayUnits) -> String {
     match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
         (Some(l), Some(lu)) => {
             let at = match a.reference_c {
-                Some([t0, t1]) if a.loss_method_code.as_deref() == Some("references") => format!(
+                Some([t0, t1]) if a.loss_method_code == Some(LossMethod::References) => format!(
                     " between the references at {} and {}, each referred to {} with the fitted curve,",
                     units::temp(u, t0),
                     units::temp(u, t1),
                     units::temp(u, 20.0)
                 ),
-                _ if a.loss_method_code.as_deref() == Some("cycles") => format!(
+                _ if a.loss_method_code == Some(LossMethod::Cycles) => format!(
                     " in total over {} heat cycles, from the first reference to the last ({}),",
                     a.cycles.len(),
                     a.cycles

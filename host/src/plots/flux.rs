@@ -22,7 +22,7 @@ const BRANCH_BINS: usize = 1500;
 /// drawn there.
 pub fn fit_line(a: &Analysis, u: &DisplayUnits) -> (Vec<(f64, f64)>, String) {
     let (f0, f1) = (a.fit_range_c[0], a.fit_range_c[1]);
-    let after_loss = a.fit_method_code == "cooling_branch";
+    let after_loss = a.fit_method_code == crate::analysis::result::FitMethod::CoolingBranch;
     let level = if after_loss {
         1.0 - a.loss_fraction()
     } else {
@@ -141,7 +141,7 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
         Key::Triangle(REFERENCE, format!("reference readings at rest{loss}")),
         Key::Line(FIT, fit_label),
     ];
-    if a.fit_method_code == "cooling_branch" {
+    if a.fit_method_code == crate::analysis::result::FitMethod::CoolingBranch {
         keys.push(Key::Text(
             "the heating branch is shown for context: it mixes reversible change and the loss"
                 .into(),

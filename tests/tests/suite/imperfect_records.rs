@@ -176,7 +176,10 @@ fn the_headline_loss_of_several_cycles_is_the_total_and_a_first_cycle_loss_is_ju
     let total = *truth.loss_after_step_pct.last().unwrap();
     assert!(total > 0.5, "the model lost {total} %");
     check_loss(loss_of(&a), total, "total over two cycles", &a);
-    assert_eq!(a.loss_method_code.as_deref(), Some("cycles"));
+    assert_eq!(
+        a.loss_method_code,
+        Some(remanent::analysis::result::LossMethod::Cycles)
+    );
     // the second cycle alone lost nothing: the old headline would have hidden the damage
     let last = &a.cycles[1];
     assert!(

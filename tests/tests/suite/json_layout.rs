@@ -31,8 +31,6 @@ fn analysis_json_keeps_its_layout_byte_for_byte() {
     assert!(
         text == golden,
         "analysis.json changed; first differing line: {:?}",
-        text.lines()
-            .zip(golden.lines())
-            .find(|(a, b)| a != b)
+        text.lines().zip(golden.lines()).find(|(a, b)| a != b)
     );
 }

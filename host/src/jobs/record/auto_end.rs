@@ -119,7 +119,7 @@ impl AutoEnd {
         let a = analyze(&self.series, &self.context).ok()?;
         // only a loss between two references at rest: the branches alone cannot tell a loss
         // from a lag on a record cut short
-        if a.loss_method_code.as_deref() != Some("references") {
+        if a.loss_method_code != Some(crate::analysis::result::LossMethod::References) {
             return None;
         }
         let loss_u = a.irreversible_loss_u95_pct?;
