@@ -63,12 +63,12 @@ pub fn compare(
     let alpha_tol = (spec.alpha_max - spec.alpha_min).abs() / 2.0;
     let checks = [
         Check {
-            what: "field against the master".into(),
+            what: crate::analysis::verdict::CheckKind::MasterField,
             outcome: judge(ratio, 2.0 * u_ratio, -br_tol, br_tol),
             reason: Default::default(),
         },
         Check {
-            what: "α against the master".into(),
+            what: crate::analysis::verdict::CheckKind::MasterAlpha,
             outcome: judge(d_alpha, 2.0 * u_alpha, -alpha_tol, alpha_tol),
             reason: Default::default(),
         },

@@ -4,6 +4,7 @@
 
 use super::result::{Analysis, BudgetLine};
 use super::verdict;
+use super::verdict::CheckKind;
 
 /// The record's headline loss over several cycles: the total from the first reference to the
 /// last (each cycle's loss compounds), judged on the total and on the cycle that lost most.
@@ -50,7 +51,7 @@ pub fn judge_total(a: &mut Analysis) {
         })
         .collect();
     a.checks
-        .retain(|c| c.what != "coercivity" && c.what != "irreversible loss");
+        .retain(|c| !matches!(c.what, CheckKind::Coercivity | CheckKind::Loss));
     let lv = super::loss_verdict::judge_loss(
         Some((total, u95)),
         causing_c,

@@ -131,7 +131,7 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<Phrase>) -> Judged {
             &family,
         ),
         None => vec![Check {
-            what: "grade".into(),
+            what: super::verdict::CheckKind::Grade,
             outcome: Outcome::Indeterminate,
             reason: match &grade {
                 Some(g) => format!("grade `{g}` is not in the spec table").into(),
@@ -147,10 +147,9 @@ pub fn judge(m: &Measured, ctx: &Context, notes: &mut Vec<Phrase>) -> Judged {
     checks.extend(lv.check);
     let (heat_damaged, quarantine) = (lv.heat_damaged, lv.quarantine);
     if ctx.reference.is_none() {
-        for c in checks
-            .iter_mut()
-            .filter(|c| c.what == "Br" && c.outcome == Outcome::Indeterminate)
-        {
+        for c in checks.iter_mut().filter(|c| {
+            c.what == super::verdict::CheckKind::Br && c.outcome == Outcome::Indeterminate
+        }) {
             c.reason.push(" — from geometry the gap's uncertainty dominates: refer the run to a reference magnet (`remanent reference`, then --reference)");
         }
     }

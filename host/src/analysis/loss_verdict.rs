@@ -49,7 +49,7 @@ pub fn judge_loss(
         (true, Some((l, u))) => Some(match safe {
             Some(s) => coercivity_check(l, u, loss_peak_c, s),
             None => Check {
-                what: "irreversible loss".into(),
+                what: super::verdict::CheckKind::Loss,
                 outcome: Outcome::Fail,
                 reason: format!("lost {l:.2} ± {u:.2} % of its flux in this test").into(),
             },
@@ -78,12 +78,10 @@ fn coercivity_check(l: f64, u: f64, peak_c: f64, s: &SafePeak) -> Check {
         " (within its rating): heat damage or a coercivity below grade"
     });
     Check {
-        what: if judged_by_knee {
-            "coercivity"
-        } else {
-            "irreversible loss"
-        }
-        .into(),
+        what: match judged_by_knee {
+            true => super::verdict::CheckKind::Coercivity,
+            false => super::verdict::CheckKind::Loss,
+        },
         outcome: Outcome::Fail,
         reason,
     }

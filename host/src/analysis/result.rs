@@ -346,7 +346,13 @@ mod tests {
     #[test]
     fn each_fit_method_writes_the_code_it_compares_as() {
         use FitMethod::*;
-        for m in [Ramps, CoolingBranch, SoakPoints, HeatingBelowCollapse, SingleRamp] {
+        for m in [
+            Ramps,
+            CoolingBranch,
+            SoakPoints,
+            HeatingBelowCollapse,
+            SingleRamp,
+        ] {
             let json = serde_json::to_value(m).unwrap();
             assert_eq!(json.as_str(), Some(m.code()));
             assert!(m == m.code());

@@ -147,7 +147,7 @@ fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
     f.text_at(0.0, 15.0, true, &format!("Verdict: {}{grade}", a.verdict));
     f.skip(9.0);
     for (c, lines) in a.checks.iter().zip(wrapped) {
-        f.text_at(0.0, size, true, &c.what);
+        f.text_at(0.0, size, true, c.what.name());
         f.text_at(outcome_x, size, true, &c.outcome.to_string());
         for l in lines {
             f.text_at(reason_x, size, false, &l);

@@ -110,7 +110,7 @@ pub fn html(
         let o = c.outcome.word();
         checks.push_str(&format!(
             "<tr><td>{}</td><td class=\"{o}\">{o}</td><td>{}</td></tr>",
-            esc(&c.what),
+            esc(c.what.name()),
             esc(&c.reason.render(u))
         ));
     }
