@@ -13,6 +13,7 @@ pub mod alpha;
 pub mod blocks;
 pub mod branch_loss;
 pub mod branch_ratio;
+pub mod check_kind;
 pub mod clean;
 pub mod column_names;
 pub mod csv_cells;
