@@ -72,36 +72,40 @@ pub struct Found {
     pub analysed_utc: Option<String>,
 }
 
-const FOUND_SELECT: &str = "SELECT r.run_uid, r.run_name, r.location, r.host, r.magnet_id,
-    r.grade, r.lot, r.purchase_order, r.supplier, r.operator,
-    r.started_utc, a.verdict, a.alpha_pct_per_C, a.alpha_u95_pct_per_C,
-    a.br_T, a.br_u95_T, a.loss_pct, a.loss_u95_pct, a.b20_mT, a.analysed_utc
-    FROM runs r LEFT JOIN analyses a ON a.analysis_uid = r.latest_analysis_uid";
+/// The columns of a search, by which a row's cells are read.
+const FOUND_COLUMNS: &str = "r.run_uid, r.run_name, r.location, r.host, r.magnet_id, \
+    r.grade, r.lot, r.purchase_order, r.supplier, r.operator, \
+    r.started_utc, a.verdict, a.alpha_pct_per_C, a.alpha_u95_pct_per_C, \
+    a.br_T, a.br_u95_T, a.loss_pct, a.loss_u95_pct, a.b20_mT, a.analysed_utc";
 
-fn found(row: &[Value]) -> Found {
-    let t = |i: usize| row[i].text();
-    let f = |i: usize| row[i].real();
+const FOUND_FROM: &str =
+    " FROM runs r LEFT JOIN analyses a ON a.analysis_uid = r.latest_analysis_uid";
+
+fn found(row: &super::backend::Row) -> Found {
+    let cell = |name: &str| super::backend::cell(FOUND_COLUMNS, row, name);
+    let t = |name: &str| cell(name).text();
+    let f = |name: &str| cell(name).real();
     Found {
-        run_uid: t(0).unwrap_or_default(),
-        run_name: t(1).unwrap_or_default(),
-        location: t(2).unwrap_or_default(),
-        host: t(3).unwrap_or_default(),
-        magnet_id: t(4),
-        grade: t(5),
-        lot: t(6),
-        purchase_order: t(7),
-        supplier: t(8),
-        operator: t(9),
-        when_utc: t(10).unwrap_or_default(),
-        verdict: t(11),
-        alpha_pct_per_c: f(12),
-        alpha_u95_pct_per_c: f(13),
-        br_t: f(14),
-        br_u95_t: f(15),
-        loss_pct: f(16),
-        loss_u95_pct: f(17),
-        b20_mt: f(18),
-        analysed_utc: t(19),
+        run_uid: t("r.run_uid").unwrap_or_default(),
+        run_name: t("r.run_name").unwrap_or_default(),
+        location: t("r.location").unwrap_or_default(),
+        host: t("r.host").unwrap_or_default(),
+        magnet_id: t("r.magnet_id"),
+        grade: t("r.grade"),
+        lot: t("r.lot"),
+        purchase_order: t("r.purchase_order"),
+        supplier: t("r.supplier"),
+        operator: t("r.operator"),
+        when_utc: t("r.started_utc").unwrap_or_default(),
+        verdict: t("a.verdict"),
+        alpha_pct_per_c: f("a.alpha_pct_per_C"),
+        alpha_u95_pct_per_c: f("a.alpha_u95_pct_per_C"),
+        br_t: f("a.br_T"),
+        br_u95_t: f("a.br_u95_T"),
+        loss_pct: f("a.loss_pct"),
+        loss_u95_pct: f("a.loss_u95_pct"),
+        b20_mt: f("a.b20_mT"),
+        analysed_utc: t("a.analysed_utc"),
     }
 }
 
@@ -160,14 +164,16 @@ impl Store {
         let (clause, vals) = filter.clause();
         let when = "r.started_utc";
         let sql = match filter.limit {
-            Some(n) => format!("{FOUND_SELECT}{clause} ORDER BY {when} DESC, r.run_uid LIMIT {n}"),
-            None => format!("{FOUND_SELECT}{clause} ORDER BY {when}, r.run_uid"),
+            Some(n) => format!(
+                "SELECT {FOUND_COLUMNS}{FOUND_FROM}{clause} ORDER BY {when} DESC, r.run_uid LIMIT {n}"
+            ),
+            None => format!("SELECT {FOUND_COLUMNS}{FOUND_FROM}{clause} ORDER BY {when}, r.run_uid"),
         };
         let mut rows: Vec<Found> = self
             .db()
             .query(&sql, &vals)?
             .iter()
-            .map(|r| found(r))
+            .map(found)
             .collect();
         if filter.limit.is_some() {
             rows.reverse();
@@ -192,10 +198,12 @@ impl Store {
         supplier: &str,
         grade: Option<&str>,
     ) -> Result<Vec<TrendPoint>, StoreError> {
-        let mut sql = "SELECT r.started_utc, r.magnet_id, r.lot,
-            r.latest_alpha_pct_per_C, r.latest_br_T, r.latest_loss_pct, r.grade
-            FROM runs r WHERE r.supplier = $1 AND r.latest_analysis_uid IS NOT NULL"
-            .to_string();
+        const COLUMNS: &str = "r.started_utc, r.magnet_id, r.lot, r.latest_alpha_pct_per_C, \
+            r.latest_br_T, r.latest_loss_pct, r.grade";
+        let mut sql = format!(
+            "SELECT {COLUMNS} FROM runs r WHERE r.supplier = $1 \
+             AND r.latest_analysis_uid IS NOT NULL"
+        );
         let mut vals = vec![Value::Text(supplier.into())];
         if let Some(g) = grade {
             sql.push_str(" AND r.grade = $2");
@@ -206,14 +214,17 @@ impl Store {
             .db()
             .query(&sql, &vals)?
             .into_iter()
-            .map(|r| TrendPoint {
-                when_utc: r[0].text().unwrap_or_default(),
-                magnet_id: r[1].text(),
-                lot: r[2].text(),
-                alpha_pct_per_c: r[3].real(),
-                br_t: r[4].real(),
-                loss_pct: r[5].real(),
-                grade: r[6].text(),
+            .map(|r| {
+                let cell = |name: &str| super::backend::cell(COLUMNS, &r, name);
+                TrendPoint {
+                    when_utc: cell("r.started_utc").text().unwrap_or_default(),
+                    magnet_id: cell("r.magnet_id").text(),
+                    lot: cell("r.lot").text(),
+                    alpha_pct_per_c: cell("r.latest_alpha_pct_per_C").real(),
+                    br_t: cell("r.latest_br_T").real(),
+                    loss_pct: cell("r.latest_loss_pct").real(),
+                    grade: cell("r.grade").text(),
+                }
             })
             .collect())
     }
