@@ -40,7 +40,6 @@ pub mod repair;
 pub mod result;
 pub mod segments;
 pub mod series;
-pub mod summary;
 pub mod verdict;
 
 pub mod context;

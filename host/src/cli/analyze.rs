@@ -3,8 +3,8 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use remanent::analysis::summary;
 use remanent::jobs::{load_and_analyze, InputRequest};
+use remanent::report::summary;
 
 use super::options::SpecOpts;
 

@@ -93,7 +93,7 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     println!();
     print!(
         "{}",
-        remanent::analysis::summary::text(analysis, &done.title, u)
+        remanent::report::summary::text(analysis, &done.title, u)
     );
     let true_alpha =
         p.model.alpha_pct_per_c + p.model.gamma_pct_per_c2 * (analysis.fit_range_c[1] - 20.0);

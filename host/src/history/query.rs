@@ -169,12 +169,7 @@ impl Store {
             ),
             None => format!("SELECT {FOUND_COLUMNS}{FOUND_FROM}{clause} ORDER BY {when}, r.run_uid"),
         };
-        let mut rows: Vec<Found> = self
-            .db()
-            .query(&sql, &vals)?
-            .iter()
-            .map(found)
-            .collect();
+        let mut rows: Vec<Found> = self.db().query(&sql, &vals)?.iter().map(found).collect();
         if filter.limit.is_some() {
             rows.reverse();
         }

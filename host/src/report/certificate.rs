@@ -78,7 +78,7 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(&'static str, String)> {
         ),
         (
             "Irreversible loss",
-            crate::analysis::summary::loss_words(a, u),
+            crate::report::summary::loss_words(a, u),
         ),
     ];
     if let Some(p) = &a.safe_peak {

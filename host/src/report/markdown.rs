@@ -3,7 +3,8 @@
 use std::fmt::Write as _;
 
 use super::notes::{budget_rows, facts, safety_notes, METHOD_NOTES};
-use crate::analysis::{summary, Analysis};
+use super::summary;
+use crate::analysis::Analysis;
 use crate::run_dir::RunMeta;
 use crate::units::DisplayUnits;
 

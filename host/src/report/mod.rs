@@ -11,6 +11,7 @@ pub mod page;
 pub mod pdf_flow;
 pub mod run_page;
 pub mod seal;
+pub mod summary;
 
 use std::path::{Path, PathBuf};
 

@@ -45,7 +45,7 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(String, String)> {
         ),
         (
             "irreversible loss".into(),
-            crate::analysis::summary::loss_words(a, u),
+            crate::report::summary::loss_words(a, u),
         ),
     ];
     if let Some(p) = &a.safe_peak {

@@ -221,7 +221,7 @@ fn a_stale_calibration_is_refused_before_anything_starts_and_uncalibrated_runs_s
     assert_eq!(a.provenance.run, "run");
     assert!(a.provenance.started_utc.is_some() && !a.provenance.analysed_utc.is_empty());
     assert!(
-        remanent::analysis::summary::text(&a, "t", &remanent::units::DisplayUnits::SI)
+        remanent::report::summary::text(&a, "t", &remanent::units::DisplayUnits::SI)
             .contains("UNCALIBRATED")
     );
 }

@@ -3,7 +3,7 @@
 
 use std::fmt::Write;
 
-use super::result::{Analysis, LossMethod};
+use crate::analysis::result::{Analysis, LossMethod};
 use crate::units::{self, temp_q, DisplayUnits, Kind, Qty};
 
 /// Lines of text describing the result, in the display units `u`.
