@@ -42,6 +42,11 @@ pub struct Args {
     /// to ±0.003 %/°C and ±0.1 % (by default the record ends there and frees the fixture).
     #[arg(long)]
     full_profile: bool,
+    /// Sampling period, ms (10 to 250; default: the board's own, 100 ms): shorter for fast
+    /// ramps, longer for long exposures and smaller files. The board refuses a period it
+    /// cannot convert both inputs in, naming the shortest it can.
+    #[arg(long, value_parser = clap::value_parser!(u16).range(10..=250))]
+    sample_period_ms: Option<u16>,
     #[command(flatten)]
     inspection: super::options::InspectionOpts,
     #[command(flatten)]
@@ -79,6 +84,12 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         port_label: a.port.clone(),
         policy,
         stop: stop_flag()?,
+        sampling: a
+            .sample_period_ms
+            .map(|period_ms| remanent_protocol::SamplingConfig {
+                period_ms,
+                oversample: 4,
+            }),
         ..RecordOptions::new(magnet.info, profile, calibration, a.out)
     };
     let summary = record_with_bar(port, opts, u)?;

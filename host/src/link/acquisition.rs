@@ -75,6 +75,8 @@ pub struct Ingest {
     pub timeline: Timeline,
     calibration: Calibration,
     phase: Phase,
+    /// This side asked the device to change its sampling: the next change is its own.
+    own_configure: bool,
 }
 
 impl Ingest {
@@ -84,6 +86,7 @@ impl Ingest {
             timeline: Timeline::default(),
             calibration,
             phase: Phase::BeforeHello,
+            own_configure: false,
         }
     }
 
@@ -120,7 +123,10 @@ impl Ingest {
                     out.push(self.sample_event(placed));
                 }
                 if let Some(r) = self.timeline.take_resampled() {
-                    out.push(Event::Resampled(r));
+                    // the recorder's own Configure is no news; anyone else's is
+                    if !std::mem::take(&mut self.own_configure) {
+                        out.push(Event::Resampled(r));
+                    }
                 }
                 out.push(Event::Beacon(b));
             }
@@ -212,15 +218,26 @@ impl<P: Read + Write> Acquisition<P> {
             }
         }
         if let Some(f) = calibration.fixture {
-            acq.send_fixture(f.model(), &mut batch)?;
+            acq.ask(
+                Command::Fixture(f.model()),
+                "the fixture's identification",
+                &mut batch,
+            )?;
         }
         Ok((acq, hello, batch))
     }
 
-    /// Give the device the fixture's identification and wait for its answer, keeping every
-    /// byte and event that arrives meanwhile in `batch`; a refusal is an error.
-    fn send_fixture(&mut self, model: FixtureModel, batch: &mut Batch) -> Result<(), LinkError> {
-        let id = self.send(Command::Fixture(model))?;
+    /// Send `command` (`what` it is, for messages) and wait for its answer, keeping every byte
+    /// and event that arrives meanwhile in `batch`; a refusal is an error. A change of sampling
+    /// asked for here is not reported as another program's.
+    pub fn ask(
+        &mut self,
+        command: Command,
+        what: &'static str,
+        batch: &mut Batch,
+    ) -> Result<(), LinkError> {
+        self.ingest.own_configure |= matches!(command, Command::Configure(_));
+        let id = self.send(command)?;
         let start = Instant::now();
         while start.elapsed() < Duration::from_secs(5) {
             let b = self.poll()?;
@@ -235,7 +252,7 @@ impl<P: Read + Write> Acquisition<P> {
                     Some(Ok(())) => return Ok(()),
                     Some(Err(reason)) => {
                         return Err(LinkError::Refused {
-                            command: "the fixture's identification",
+                            command: what,
                             reason,
                         })
                     }
@@ -243,7 +260,7 @@ impl<P: Read + Write> Acquisition<P> {
                 }
             }
         }
-        Err(LinkError::NoAnswer("the fixture's identification"))
+        Err(LinkError::NoAnswer(what))
     }
 
     /// Ingest one frame. Device time moves on one period with every sample that arrives (its

@@ -143,3 +143,43 @@ fn a_configure_from_another_program_neither_corrupts_time_nor_goes_unreported() 
     );
     assert!(summary.end.is_complete(), "{:?}", summary.end);
 }
+
+#[test]
+fn the_recorders_own_sampling_period_is_kept_and_is_no_news() {
+    // `record --sample-period-ms 50`: the recorder asks for it before recording; the samples
+    // come 50 ms apart and the change is not reported as another program's
+    let part = magnets::resolve("RM-N42SH-D10x5").unwrap();
+    let opts = VirtualRigOptions::new(part.model.unwrap());
+    let params = opts.params;
+    let dir = tempfile::tempdir().unwrap();
+    let rec = RecordOptions {
+        port_label: "simulated".into(),
+        silence_timeout: std::time::Duration::from_secs(5),
+        auto_end: Some(Default::default()),
+        sampling: Some(remanent_protocol::SamplingConfig {
+            period_ms: 50,
+            oversample: 4,
+        }),
+        ..RecordOptions::new(
+            part.info,
+            ProfileSpec::resolve("rapid").unwrap(),
+            Calibration::virtual_rig(&params),
+            dir.path().join("run"),
+        )
+    };
+    let summary = record(SimulatedPort::new(opts), rec, &mut Quiet).unwrap();
+    assert!(summary.end.is_complete(), "{:?}", summary.end);
+    let run = dir.path().join("run");
+    let samples = std::fs::read_to_string(run.join("samples.csv")).unwrap();
+    let t: Vec<f64> = samples
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').nth(1).unwrap().parse().unwrap())
+        .collect();
+    let mut steps: Vec<f64> = t.windows(2).map(|w| w[1] - w[0]).collect();
+    steps.sort_by(f64::total_cmp);
+    let median = steps[steps.len() / 2];
+    assert!((median - 0.05).abs() < 0.005, "median step {median} s");
+    let events = std::fs::read_to_string(run.join("events.csv")).unwrap();
+    assert!(!events.contains(",resampled,"), "{events}");
+}

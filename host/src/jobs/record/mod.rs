@@ -37,7 +37,7 @@ pub fn record<P: Read + Write>(
         return Err(RunDirError::Exists(opts.out.display().to_string()).into());
     }
     progress.notice(&Notice::Connecting);
-    let (mut acq, hello, early) =
+    let (mut acq, hello, mut early) =
         Acquisition::connect(port, opts.calibration, opts.silence_timeout)?;
     let ceiling_c = remanent_physics::wire::c_from_tenths(hello.limits.ceiling_tenth_c);
     progress.notice(&Notice::Connected {
@@ -62,6 +62,10 @@ pub fn record<P: Read + Write>(
         Basis::Uncalibrated => progress.notice(&Notice::Uncalibrated),
         Basis::VirtualRig => progress.notice(&Notice::VirtualRigConstants),
         Basis::Calibrated => {}
+    }
+    if let Some(cfg) = opts.sampling {
+        // asked before anything is written: a refusal leaves no run directory behind
+        acq.ask(Command::Configure(cfg), "the sampling period", &mut early)?;
     }
     let meta = RunMeta {
         software: format!("remanent {}", env!("CARGO_PKG_VERSION")),

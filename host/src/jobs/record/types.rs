@@ -42,6 +42,8 @@ pub struct RecordOptions {
     pub auto_end: Option<super::auto_end::Tolerance>,
     /// Set to stop (Ctrl-C, or a termination or hang-up signal).
     pub stop: Arc<AtomicBool>,
+    /// The sampling to ask the device for before recording (None: the board's own, 100 ms).
+    pub sampling: Option<remanent_protocol::SamplingConfig>,
 }
 
 impl RecordOptions {
@@ -67,6 +69,7 @@ impl RecordOptions {
             inspection: Default::default(),
             auto_end: None,
             stop: Arc::new(AtomicBool::new(false)),
+            sampling: None,
         }
     }
 }
