@@ -4,8 +4,6 @@
 //! Run: `cargo bench -p remanent`
 
 use std::io::{self, Read, Write};
-use std::sync::atomic::AtomicBool;
-use std::sync::Arc;
 use std::time::{Duration, Instant};
 
 use remanent::analysis::dataset::Series;
@@ -194,21 +192,20 @@ fn main() {
         started: false,
     };
     let opts = RecordOptions {
-        inspection: Default::default(),
-        auto_end: None,
         port_label: "bench".into(),
-        magnet: m.info,
-        profile: ProfileSpec::resolve("quick-alpha").unwrap(),
-        calibration: Calibration::virtual_rig(&RigParams::REFERENCE),
         // the fake device is no virtual rig: measure without a calibration, as a test bench
         policy: remanent::calibration::policy::Policy {
             uncalibrated: true,
             ..Default::default()
         },
-        out: dir.join("run"),
         silence_timeout: Duration::from_secs(5),
         preroll_s: 0.0,
-        stop: Arc::new(AtomicBool::new(false)),
+        ..RecordOptions::new(
+            m.info,
+            ProfileSpec::resolve("quick-alpha").unwrap(),
+            Calibration::virtual_rig(&RigParams::REFERENCE),
+            dir.join("run"),
+        )
     };
     let (c0, w0) = (cpu_seconds(), Instant::now());
     let summary = record(dev, opts, &mut Quiet).unwrap();
