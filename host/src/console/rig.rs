@@ -73,6 +73,23 @@ pub fn check_id(id: &str) -> Result<String, StartError> {
         .ok_or_else(|| StartError::BadId(id.into()))
 }
 
+/// A folder name for a lot as the operator typed it: letters, digits, `-`, `_` and `.` kept,
+/// anything else (a `/`, a space) made `_`, and never `.`-first (so never `..`).
+pub fn folder_name(lot: &str) -> String {
+    let name: String = lot
+        .trim()
+        .chars()
+        .map(|c| match c.is_ascii_alphanumeric() || "-_.".contains(c) {
+            true => c,
+            false => '_',
+        })
+        .collect();
+    match name.is_empty() || name.starts_with('.') {
+        true => format!("lot-{name}"),
+        false => name,
+    }
+}
+
 /// A new run directory for `id` in `lot_dir`: `id`, or `id-2`, `id-3`… for a retest.
 fn run_dir_for(lot_dir: &Path, id: &str) -> PathBuf {
     (1..)
@@ -113,7 +130,7 @@ impl Rig {
             // claimed before the lock is let go: a second start is refused
             l.phase = Phase::Recording;
         }
-        let dir = run_dir_for(&bench.out.join(&session.lot), &id);
+        let dir = run_dir_for(&bench.out.join(folder_name(&session.lot)), &id);
         let words: Vec<String> = plan
             .announce(&id)
             .iter()
@@ -235,5 +252,22 @@ fn run_part(hub: &Hub, port: &str, bench: &Bench, opts: RecordOptions) -> Outcom
             })
             .collect(),
         certificate,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_lot_or_part_name_cannot_leave_the_consoles_folder() {
+        assert_eq!(folder_name("DEMO-LOT-26-20"), "DEMO-LOT-26-20");
+        assert_eq!(folder_name("L 2611/A"), "L_2611_A");
+        assert_eq!(folder_name("../../etc"), "lot-.._.._etc");
+        assert_eq!(folder_name(""), "lot-");
+        assert!(check_id("P-001").is_ok());
+        for bad in ["../x", ".hidden", "a/b", "", "a b"] {
+            assert!(check_id(bad).is_err(), "{bad}");
+        }
     }
 }
