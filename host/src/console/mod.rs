@@ -109,6 +109,18 @@ impl Console {
         if req.lot.trim().is_empty() || req.supplier.trim().is_empty() {
             return Err("a lot needs its id and its supplier".into());
         }
+        // a part on a rig belongs to the lot it was started in
+        if let Some(busy) = self.rigs.iter().find(|r| {
+            matches!(
+                r.hub.lock().phase,
+                hub::Phase::Recording | hub::Phase::Reporting
+            )
+        }) {
+            return Err(format!(
+                "a part is still on the rig on {}: wait for its verdict (or stop it) before starting another lot",
+                busy.port
+            ));
+        }
         let magnet = crate::magnets::resolve(req.magnet.trim()).map_err(|e| e.to_string())?;
         let mut session = LotSession::start(&req, &magnet.info.grade).map_err(|e| e.to_string())?;
         // what every part will get: the profile held to the safe peak of its grade and shape
@@ -157,10 +169,11 @@ impl Console {
     }
 }
 
-/// A part's result joins its lot, and the lot's decision goes to the store.
-fn keep_part(store: &Location, lot: &Mutex<Option<LotSession>>, part: PartRecord) {
+/// A part's result joins its lot (the one it was started in), and the lot's decision goes to
+/// the store.
+fn keep_part(store: &Location, lot: &Mutex<Option<LotSession>>, lot_id: &str, part: PartRecord) {
     let mut l = lot.lock().unwrap_or_else(|p| p.into_inner());
-    if let Some(s) = l.as_mut() {
+    if let Some(s) = l.as_mut().filter(|s| s.lot == lot_id) {
         s.parts.push(part);
         keep_decision(store, s);
     }

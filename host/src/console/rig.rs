@@ -155,6 +155,7 @@ impl Rig {
             stop: self.stop.clone(),
             ..RecordOptions::new(info, plan.profile, calibration, dir)
         };
+        let lot_id = session.lot.clone();
         let (hub, port, bench, lot) = (
             self.hub.clone(),
             self.port.clone(),
@@ -178,7 +179,7 @@ impl Rig {
                     .clone()
                     .unwrap_or_else(|| outcome.reasons.join("; ")),
             };
-            super::keep_part(&bench.store, &lot, part);
+            super::keep_part(&bench.store, &lot, &lot_id, part);
             hub.change(|l| {
                 l.phase = Phase::Done;
                 l.outcome = Some(outcome);

@@ -5,6 +5,7 @@ mod analysis_input;
 mod bench_model;
 mod calibration_steps;
 mod certificate;
+mod console_api;
 mod coverage;
 mod display_units;
 mod end_to_end;
