@@ -255,15 +255,12 @@ fn main() {
     let pdir = std::env::temp_dir().join(format!("remanent-bench-plots-{}", std::process::id()));
     std::fs::create_dir_all(&pdir).unwrap();
     let t0 = Instant::now();
-    remanent::plots::write_run_plots(
-        &pdir,
-        &s,
-        &a,
-        "benchmark",
-        true,
-        &remanent::units::DisplayUnits::SI,
-    )
-    .unwrap();
+    let figures =
+        remanent::plots::run_figures(&s, &a, "benchmark", &remanent::units::DisplayUnits::SI)
+            .unwrap();
+    for f in &figures {
+        remanent::output::write_set(&pdir, &f.files(), true).unwrap();
+    }
     println!(
         "| plots of a 1 M-sample record (3 plots, PNG and SVG) | {:.3} s | < 2 s |",
         t0.elapsed().as_secs_f64()

@@ -5,8 +5,6 @@
 //! median also exceeds what the measurement can resolve (the magnet's own U95 for α and loss,
 //! 0.3 % for the room-temperature flux), so a tight lot does not make noise look like outliers.
 
-use std::fmt::Write as _;
-
 use serde::Serialize;
 
 use crate::analysis::verdict::Outcome;
@@ -218,134 +216,9 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
     }
 }
 
-fn opt(v: Option<f64>, p: usize) -> String {
-    v.map(|x| crate::units::fixed(x, p)).unwrap_or_default()
-}
-
-/// One row of `lot.csv`: numbers at the precision the measurement supports.
-#[derive(Debug, Serialize)]
-struct CsvRow<'a> {
-    id: &'a str,
-    grade: &'a str,
-    #[serde(rename = "alpha_pct_per_C")]
-    alpha: String,
-    #[serde(rename = "alpha_u95_pct_per_C")]
-    alpha_u95: String,
-    loss_pct: String,
-    loss_u95_pct: String,
-    #[serde(rename = "b20_mT")]
-    b20: String,
-    verdict: &'static str,
-    outlier: String,
-}
-
-/// The per-magnet table as CSV (quoted where a field needs it).
-pub fn to_csv(s: &LotSummary) -> String {
-    let mut w = csv::Writer::from_writer(Vec::new());
-    for r in &s.rows {
-        let row = CsvRow {
-            id: &r.id,
-            grade: &r.grade,
-            alpha: format!("{:.5}", r.alpha),
-            alpha_u95: format!("{:.5}", r.alpha_u95),
-            loss_pct: opt(r.loss_pct, 4),
-            loss_u95_pct: opt(r.loss_u95_pct, 4),
-            b20: format!("{:.3}", r.b20_mt),
-            verdict: r.verdict.word(),
-            outlier: r.outlier.join("; "),
-        };
-        // writing into memory cannot fail
-        let _ = w.serialize(row);
-    }
-    String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
-}
-
-/// A short text summary.
-pub fn text(s: &LotSummary, u: &crate::units::DisplayUnits) -> String {
-    let at20 = crate::units::temp_q(20.0, 0).render(u);
-    let (per, flux) = (u.per_degree(1.0), u.flux(1.0));
-    let fd = u.flux_decimals(2);
-    let (au, fu) = (u.alpha_symbol(), u.flux_symbol());
-    let mut out = String::new();
-    let _ = writeln!(
-        out,
-        "{}: {} pass, {} fail, {} indeterminate",
-        crate::units::count(s.rows.len() as u64, "magnet", "magnets"),
-        s.passed,
-        s.failed,
-        s.indeterminate
-    );
-    let _ = writeln!(
-        out,
-        "α(Br):  mean {:+.4} {au}, sd {:.4}, median {:+.4}",
-        s.alpha.mean * per,
-        s.alpha.sd * per,
-        s.alpha.median * per
-    );
-    if let Some(l) = s.loss {
-        let _ = writeln!(
-            out,
-            "loss:   mean {} %, sd {:.3}, median {}",
-            crate::units::fixed(l.mean, 3),
-            l.sd,
-            crate::units::fixed(l.median, 3)
-        );
-    }
-    let _ = writeln!(
-        out,
-        "B at {at20}:  mean {:.fd$} {fu}, sd {:.fd$}, median {:.fd$}",
-        s.b20.mean * flux,
-        s.b20.sd * flux,
-        s.b20.median * flux
-    );
-    let _ = writeln!(
-        out,
-        "\n{:<18} {:>10} {:>9} {:>8} {:>14}  outlier",
-        "id",
-        format!("α {au}"),
-        "loss %",
-        format!("B {fu}"),
-        "verdict"
-    );
-    for r in &s.rows {
-        let _ = writeln!(
-            out,
-            "{:<18} {:>+10.4} {:>9} {:>8.fd$} {:>14}  {}",
-            r.id,
-            r.alpha * per,
-            opt(r.loss_pct, 3),
-            r.b20_mt * flux,
-            r.verdict.word(),
-            r.outlier.join("; ")
-        );
-    }
-    out
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn a_comma_in_an_id_stays_in_its_field() {
-        let row = LotRow {
-            id: "RM,7".into(),
-            grade: "N42".into(),
-            alpha: -0.11,
-            alpha_u95: 0.002,
-            loss_pct: None,
-            loss_u95_pct: None,
-            b20_mt: 200.0,
-            verdict: Outcome::Pass,
-            heat_damaged: false,
-            outlier: vec!["flux".into(), "α".into()],
-        };
-        let csv = to_csv(&summarise(vec![row]));
-        let mut r = csv::Reader::from_reader(csv.as_bytes());
-        let rec = r.records().next().unwrap().unwrap();
-        assert_eq!(&rec[0], "RM,7");
-        assert_eq!(rec.len(), 9);
-    }
 
     #[test]
     fn a_lot_of_three_scores_a_real_difference_in_units_of_its_uncertainty_not_thousands() {

@@ -92,31 +92,3 @@ pub fn compare(
         ],
     })
 }
-
-/// The comparison as CSV.
-pub fn to_csv(rows: &[AgainstMaster]) -> String {
-    let mut w = csv::Writer::from_writer(Vec::new());
-    for r in rows {
-        let _ = w.serialize(CsvRow {
-            id: &r.id,
-            b20_vs_master_pct: format!("{:.3}", r.b20_vs_master_pct),
-            b20_u95_pct: format!("{:.3}", r.b20_u95_pct),
-            alpha_vs_master: format!("{:.5}", r.alpha_diff),
-            alpha_u95: format!("{:.5}", r.alpha_u95),
-            outcome: r.outcome.word(),
-        });
-    }
-    String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
-}
-
-#[derive(Serialize)]
-struct CsvRow<'a> {
-    id: &'a str,
-    b20_vs_master_pct: String,
-    b20_u95_pct: String,
-    #[serde(rename = "alpha_vs_master_pct_per_C")]
-    alpha_vs_master: String,
-    #[serde(rename = "alpha_u95_pct_per_C")]
-    alpha_u95: String,
-    outcome: &'static str,
-}

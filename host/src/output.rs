@@ -1,7 +1,8 @@
 //! One output policy for every file a command writes for the user: nothing already there is
 //! replaced without `--force`, and each file is written under a temporary name in its own
 //! folder and renamed into place, so a failure (a full disk, a plotting error) never leaves a
-//! 0-byte or half-written file behind.
+//! 0-byte or half-written file behind. Outputs are rendered in memory first, as named bytes
+//! ([`Produced`]); [`write_set`] checks a whole set before it writes any of it.
 
 use std::fs;
 use std::io::Write as _;
@@ -96,6 +97,36 @@ pub fn write_with(
     })
 }
 
+/// One output rendered in memory: its file name inside the output folder, and its bytes.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Produced {
+    /// The file's name (a plain name, no folder).
+    pub name: String,
+    /// Its content.
+    pub bytes: Vec<u8>,
+}
+
+impl Produced {
+    /// `bytes` as the file `name`.
+    pub fn new(name: impl Into<String>, bytes: impl Into<Vec<u8>>) -> Produced {
+        Produced {
+            name: name.into(),
+            bytes: bytes.into(),
+        }
+    }
+}
+
+/// Write every file of `set` into `dir`: refused as a whole when any is there (unless `force`),
+/// then each written under a temporary name and renamed. Returns the paths, in `set`'s order.
+pub fn write_set(dir: &Path, set: &[Produced], force: bool) -> Result<Vec<PathBuf>, OutputError> {
+    let paths: Vec<PathBuf> = set.iter().map(|p| dir.join(&p.name)).collect();
+    refuse_existing(paths.iter().cloned(), force)?;
+    for (p, path) in set.iter().zip(&paths) {
+        write(path, &p.bytes, true)?;
+    }
+    Ok(paths)
+}
+
 /// Create a new output folder (refused if it exists, unless `force`).
 pub fn create_dir(dir: &Path, force: bool) -> Result<(), OutputError> {
     refuse_existing([dir.to_path_buf()], force)?;
@@ -126,5 +157,25 @@ mod tests {
         });
         assert!(matches!(r, Err(OutputError::Produce { .. })));
         assert!(!q.exists() && !temporary(&q).exists());
+    }
+
+    #[test]
+    fn a_set_is_refused_whole_when_one_of_its_files_is_there() {
+        let dir = tempfile::tempdir().unwrap();
+        fs::write(dir.path().join("b.csv"), "kept").unwrap();
+        let set = [Produced::new("a.csv", "a"), Produced::new("b.csv", "b")];
+        assert!(matches!(
+            write_set(dir.path(), &set, false),
+            Err(OutputError::Exists(_))
+        ));
+        // nothing of the set was written, the file there is untouched
+        assert!(!dir.path().join("a.csv").exists());
+        assert_eq!(fs::read(dir.path().join("b.csv")).unwrap(), b"kept");
+        let written = write_set(dir.path(), &set, true).unwrap();
+        assert_eq!(
+            written,
+            [dir.path().join("a.csv"), dir.path().join("b.csv")]
+        );
+        assert_eq!(fs::read(&written[1]).unwrap(), b"b");
     }
 }

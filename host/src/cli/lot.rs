@@ -3,8 +3,6 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use remanent::lot;
-
 use super::options::{ForceOpts, SpecOpts};
 
 #[derive(clap::Args)]
@@ -59,7 +57,7 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
     for (run, why) in &outcome.skipped {
         eprintln!("left out of the lot: {}: {why}", run.display());
     }
-    print!("{}", lot::text(&outcome.summary, u));
+    print!("{}", remanent::report::lot_text(&outcome.summary, u));
     if !outcome.skipped.is_empty() {
         let names: Vec<String> = outcome
             .skipped

@@ -88,7 +88,8 @@ pub fn run(a: Args) -> anyhow::Result<ExitCode> {
         t.rounds
     );
     if let Some(stem) = a.plot {
-        for f in remanent::plots::write_oc_plot(&stem, model, &plan, a.aql, a.rql, a.force.force)? {
+        let figure = remanent::plots::oc_figure("oc", model, &plan, a.aql, a.rql)?;
+        for f in remanent::plots::write_figure(&stem, &figure, a.force.force)? {
             println!("wrote {}", f.display());
         }
     }

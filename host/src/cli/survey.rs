@@ -101,7 +101,11 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
     if let Some(dir) = out.parent().filter(|d| !d.as_os_str().is_empty()) {
         std::fs::create_dir_all(dir)?;
     }
-    remanent::output::write(&out, survey::to_csv(&ranked).as_bytes(), false)?;
+    remanent::output::write(
+        &out,
+        remanent::report::tables::survey_csv(&ranked).as_bytes(),
+        false,
+    )?;
     println!("wrote {}", out.display());
     if readings.len() < a.count {
         eprintln!(

@@ -1,12 +1,12 @@
 //! Analyse a lot: every run analysed (those that cannot be are listed, not fatal), the
-//! summary with robust outliers, and `lot.csv`, `lot.html` and the lot plot in a new folder.
+//! summary with robust outliers, and its outputs (`report::lot_outputs`) in a new folder.
 
 use std::path::{Path, PathBuf};
 
 use super::analyze_input::{load_and_analyze, spec_table, InputRequest, JobError, Judging};
 use crate::lot::{self, LotRow, LotSummary};
 use crate::output::{self, OutputError};
-use crate::plots::{self, PlotError};
+use crate::plots::PlotError;
 use crate::report;
 
 /// The lot job failed.
@@ -139,43 +139,34 @@ pub fn run(
             many.join(", ")
         ),
     };
-    std::fs::create_dir_all(out).map_err(|source| OutputError::Io {
-        path: out.display().to_string(),
-        source,
-    })?;
-    let csv_path = out.join("lot.csv");
-    output::write(&csv_path, lot::to_csv(&summary).as_bytes(), force)?;
-    let figure = plots::lot_figure(&out.join("lot"), &summary, spec, &title, force, u)?;
-    let html_path = out.join("lot.html");
-    let html = report::lot_html(&summary, &title, &figure, u);
-    output::write(&html_path, html.as_bytes(), force)?;
-    let mut written = vec![csv_path, html_path];
-    written.extend(figure.files());
     let mut warnings = warnings;
     let against_master = match (&judging.master, spec) {
         (Some(m), Some(spec)) => {
             let (rows, mut w) = against_master(m, judging, &analysed, spec)?;
             warnings.append(&mut w);
-            let path = out.join("master.csv");
-            output::write(&path, crate::master::to_csv(&rows).as_bytes(), force)?;
-            written.push(path);
-            rows
+            Some(rows)
         }
         (Some(_), None) => {
             warnings.push(
                 "the lot's grade is not in the spec table: it cannot be judged against the master"
                     .into(),
             );
-            Vec::new()
+            None
         }
-        _ => Vec::new(),
+        _ => None,
     };
+    let files = report::lot_outputs(&summary, spec, &title, against_master.as_deref(), u)?;
+    std::fs::create_dir_all(out).map_err(|source| OutputError::Io {
+        path: out.display().to_string(),
+        source,
+    })?;
+    let written = output::write_set(out, &files, force)?;
     Ok(LotOutcome {
         summary,
         skipped,
         written,
         warnings,
-        against_master,
+        against_master: against_master.unwrap_or_default(),
         analyses: analysed_runs
             .into_iter()
             .zip(analysed.into_iter().map(|(_, a)| a))

@@ -224,39 +224,3 @@ pub fn rank(readings: &[Reading]) -> Vec<Ranked> {
     out.sort_by(|a, b| a.reading.flux_mt.total_cmp(&b.reading.flux_mt));
     out
 }
-
-/// The ranked table as CSV.
-pub fn to_csv(ranked: &[Ranked]) -> String {
-    let mut w = csv::Writer::from_writer(Vec::new());
-    for (i, r) in ranked.iter().enumerate() {
-        // writing into memory cannot fail
-        let _ = w.serialize(CsvRow {
-            rank: i + 1,
-            magnet: r.reading.index,
-            flux: format!("{:.3}", r.reading.flux_mt),
-            deviation_pct: format!("{:+.3}", r.deviation_pct),
-            modified_z: format!("{:+.2}", r.z),
-            temp: format!("{:.2}", r.reading.temp_c),
-            rel_sd: format!("{:.6}", r.reading.rel_sd),
-            low: u8::from(r.low),
-            uncalibrated: u8::from(r.reading.uncalibrated),
-        });
-    }
-    String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
-}
-
-/// One row of the survey's CSV.
-#[derive(serde::Serialize)]
-struct CsvRow {
-    rank: usize,
-    magnet: usize,
-    #[serde(rename = "flux_mT")]
-    flux: String,
-    deviation_pct: String,
-    modified_z: String,
-    #[serde(rename = "temp_C")]
-    temp: String,
-    rel_sd: String,
-    low: u8,
-    uncalibrated: u8,
-}

@@ -1,13 +1,12 @@
-//! Rendering one figure: the bundled font (no system fonts), the SVG drawn into memory (the
-//! report embeds it from there) and written out, the PNG drawn to a temporary file and renamed
-//! into place — both through the output policy.
+//! Rendering one figure into memory: the bundled font (no system fonts), the SVG document (the
+//! report embeds it from there) and the PNG encoded from a pixel buffer. Nothing here writes a
+//! file: a figure is two named outputs that the output policy writes with the rest of a set.
 
-use std::path::{Path, PathBuf};
 use std::sync::Once;
 
 use plotters::prelude::*;
 
-use crate::output::{self, OutputError};
+use crate::output::Produced;
 
 /// Pixel size of every plot.
 pub const SIZE: (u32, u32) = (1100, 700);
@@ -39,26 +38,27 @@ pub enum PlotError {
     },
     /// Writing failed, or a file is already there.
     #[error(transparent)]
-    Output(#[from] OutputError),
+    Output(#[from] crate::output::OutputError),
 }
 
-/// A rendered figure: its two files and the SVG text.
+/// A rendered figure, in memory: its name (the file stem), the SVG document and the PNG bytes.
 #[derive(Debug, Clone)]
 pub struct Figure {
-    /// The figure's name (its file stem).
+    /// The figure's name (its files' stem).
     pub name: String,
-    /// The PNG file.
-    pub png: PathBuf,
-    /// The SVG file.
-    pub svg_path: PathBuf,
     /// The SVG document.
     pub svg: String,
+    /// The PNG file's bytes.
+    pub png: Vec<u8>,
 }
 
 impl Figure {
-    /// Both files.
-    pub fn files(&self) -> [PathBuf; 2] {
-        [self.png.clone(), self.svg_path.clone()]
+    /// Its two files, PNG then SVG, as outputs.
+    pub fn files(&self) -> [Produced; 2] {
+        [
+            Produced::new(format!("{}.png", self.name), self.png.clone()),
+            Produced::new(format!("{}.svg", self.name), self.svg.as_bytes()),
+        ]
     }
 
     /// The `<svg>` element alone, for embedding in a page.
@@ -67,13 +67,12 @@ impl Figure {
     }
 }
 
-/// Render `$draw` (an expression using the drawing area `$area`) as the figure `$stem`.png
-/// and .svg (refused where they exist unless `$force`); evaluates to a `Result<Figure, _>`.
+/// Render `$draw` (an expression using the drawing area `$area`) as the figure `$name`, SVG and
+/// PNG in memory; evaluates to a `Result<Figure, PlotError>`.
 macro_rules! render_figure {
-    ($stem:expr, $force:expr, |$area:ident| $draw:expr) => {{
+    ($name:expr, |$area:ident| $draw:expr) => {{
         $crate::plots::figure::render(
-            $stem,
-            $force,
+            $name,
             |svg: &mut String| {
                 let $area = plotters::prelude::IntoDrawingArea::into_drawing_area(
                     plotters::prelude::SVGBackend::with_string(svg, $crate::plots::figure::SIZE),
@@ -82,42 +81,52 @@ macro_rules! render_figure {
                 drop($area);
                 r
             },
-            |png: &std::path::Path| {
+            |pixels: &mut [u8]| {
                 let $area = plotters::prelude::IntoDrawingArea::into_drawing_area(
-                    plotters::prelude::BitMapBackend::new(png, $crate::plots::figure::SIZE),
+                    plotters::prelude::BitMapBackend::with_buffer(
+                        pixels,
+                        $crate::plots::figure::SIZE,
+                    ),
                 );
-                $draw
+                let r = $draw;
+                drop($area);
+                r
             },
         )
     }};
 }
 pub(crate) use render_figure;
 
-/// Draw the SVG into memory and write it, then the PNG through a temporary file.
+/// Draw the SVG into a string and the PNG into an RGB buffer, then encode the PNG.
 pub fn render(
-    stem: &Path,
-    force: bool,
+    name: &str,
     draw_svg: impl FnOnce(&mut String) -> Result<(), String>,
-    draw_png: impl FnOnce(&Path) -> Result<(), String>,
+    draw_png: impl FnOnce(&mut [u8]) -> Result<(), String>,
 ) -> Result<Figure, PlotError> {
     ensure_font();
-    let png = stem.with_extension("png");
-    let svg_path = stem.with_extension("svg");
-    output::refuse_existing([png.clone(), svg_path.clone()], force)?;
+    let failed = |ext: &str| {
+        let path = format!("{name}.{ext}");
+        move |reason| PlotError::Draw { path, reason }
+    };
     let mut svg = String::new();
-    draw_svg(&mut svg).map_err(|reason| PlotError::Draw {
-        path: svg_path.display().to_string(),
-        reason,
-    })?;
-    output::write(&svg_path, svg.as_bytes(), force)?;
-    output::write_with(&png, force, draw_png)?;
+    draw_svg(&mut svg).map_err(failed("svg"))?;
+    let (w, h) = SIZE;
+    let mut pixels = vec![255u8; (w * h * 3) as usize];
+    draw_png(&mut pixels).map_err(failed("png"))?;
+    let png = encode_png(&pixels, w, h).map_err(failed("png"))?;
     Ok(Figure {
-        name: stem
-            .file_stem()
-            .map(|n| n.to_string_lossy().into_owned())
-            .unwrap_or_default(),
-        png,
-        svg_path,
+        name: name.into(),
         svg,
+        png,
     })
+}
+
+/// An RGB pixel buffer as a PNG file's bytes.
+fn encode_png(pixels: &[u8], w: u32, h: u32) -> Result<Vec<u8>, String> {
+    use image::ImageEncoder as _;
+    let mut png = Vec::new();
+    image::codecs::png::PngEncoder::new(&mut png)
+        .write_image(pixels, w, h, image::ColorType::Rgb8)
+        .map_err(|e| e.to_string())?;
+    Ok(png)
 }

@@ -4,7 +4,7 @@
 //! replaced without `force`, nothing half-written is left behind.
 
 pub mod certificate;
-pub mod lot_page;
+pub mod lot;
 pub mod markdown;
 pub mod notes;
 pub mod page;
@@ -12,17 +12,18 @@ pub mod pdf_flow;
 pub mod run_page;
 pub mod seal;
 pub mod summary;
+pub mod tables;
 
 use std::path::{Path, PathBuf};
 
-pub use lot_page::lot_html;
+pub use lot::{lot_html, lot_outputs, lot_text};
 pub use markdown::markdown;
 pub use notes::{safety_notes, METHOD_NOTES};
 
 use crate::analysis::dataset::Series;
 use crate::analysis::Analysis;
-use crate::output::{self, OutputError};
-use crate::plots::{self, PlotError};
+use crate::output::{self, OutputError, Produced};
+use crate::plots::{self, Figure, PlotError};
 use crate::run_dir;
 use crate::units::DisplayUnits;
 use page::Page;
@@ -95,25 +96,30 @@ pub fn write_all_as(
     force: bool,
     look: &Look,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    let meta = src.meta;
-    let u = &look.units;
-    let docs = [JSON_FILE, MD_FILE, HTML_FILE, certificate::CERTIFICATE_FILE].map(|f| dir.join(f));
-    output::refuse_existing(docs.clone(), force)?;
-    let figures = plots::run_figures(dir, series, a, title, force, u)?;
+    let files = run_outputs(dir, series, a, src, title, look)?;
+    Ok(output::write_set(dir, &files, force)?)
+}
+
+/// Every output of a run, rendered in memory: the plots (PNG, SVG), `analysis.json`, the
+/// Markdown and HTML reports, the certificate and, for a record with raw bytes, its seal.
+/// `dir` is where they will be filed (the seal names the record relative to it).
+pub fn run_outputs(
+    dir: &Path,
+    series: &Series,
+    a: &Analysis,
+    src: &Source,
+    title: &str,
+    look: &Look,
+) -> Result<Vec<Produced>, ReportError> {
+    let (meta, u) = (src.meta, &look.units);
+    let figures = plots::run_figures(series, a, title, u)?;
     let json = serde_json::to_string_pretty(a).expect("analysis serializes");
-    output::write(&docs[0], json.as_bytes(), force)?;
-    output::write(&docs[1], markdown(a, meta, title, u).as_bytes(), force)?;
-    let html = run_page::html(a, meta, title, &figures, u);
-    output::write(&docs[2], html.as_bytes(), force)?;
-    let plot = std::fs::read(&figures[0].png).map_err(|source| OutputError::Io {
-        path: figures[0].png.display().to_string(),
-        source,
-    })?;
     let sealed = match src.raw {
         Some(raw) => Some(
             seal::seal(
                 &seal::relative_to(raw, dir),
                 Path::new(JSON_FILE),
+                json.as_bytes(),
                 &a.provenance.analysed_utc,
                 look.issuer.clone(),
                 dir,
@@ -125,26 +131,27 @@ pub fn write_all_as(
         ),
         None => None,
     };
-    let pdf =
-        certificate::certificate(a, meta, sealed.as_ref(), &plot, look).map_err(|reason| {
-            OutputError::Produce {
-                path: docs[3].display().to_string(),
-                reason,
-            }
-        })?;
-    output::write(&docs[3], &pdf, force)?;
-    let mut written: Vec<PathBuf> = figures.iter().flat_map(|f| f.files()).collect();
-    written.extend(docs);
+    let pdf = certificate::certificate(a, meta, sealed.as_ref(), &figures[0].png, look).map_err(
+        |reason| OutputError::Produce {
+            path: dir
+                .join(certificate::CERTIFICATE_FILE)
+                .display()
+                .to_string(),
+            reason,
+        },
+    )?;
+    let mut files: Vec<Produced> = figures.iter().flat_map(Figure::files).collect();
+    files.extend([
+        Produced::new(MD_FILE, markdown(a, meta, title, u)),
+        Produced::new(HTML_FILE, run_page::html(a, meta, title, &figures, u)),
+        Produced::new(certificate::CERTIFICATE_FILE, pdf),
+    ]);
+    files.insert(figures.len() * 2, Produced::new(JSON_FILE, json));
     if let Some(s) = &sealed {
-        let at = dir.join(seal::SEAL_FILE);
-        output::write(
-            &at,
-            toml::to_string(s).expect("a seal serializes").as_bytes(),
-            true,
-        )?;
-        written.push(at);
+        let text = toml::to_string(s).expect("a seal serializes");
+        files.push(Produced::new(seal::SEAL_FILE, text));
     }
-    Ok(written)
+    Ok(files)
 }
 
 /// The report of a record the analysis could not use: the time series, the run's facts and,
@@ -158,9 +165,19 @@ pub fn write_unanalysed(
     force: bool,
     u: &DisplayUnits,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    let (md_path, html_path) = (dir.join(MD_FILE), dir.join(HTML_FILE));
-    output::refuse_existing([md_path.clone(), html_path.clone()], force)?;
-    let figure = plots::timeline_figure(&dir.join("timeline"), series, title, force, u)?;
+    let files = unanalysed_outputs(meta, series, title, reason, u)?;
+    Ok(output::write_set(dir, &files, force)?)
+}
+
+/// The outputs of [`write_unanalysed`], rendered in memory.
+pub fn unanalysed_outputs(
+    meta: Option<&run_dir::RunMeta>,
+    series: &Series,
+    title: &str,
+    reason: &str,
+    u: &DisplayUnits,
+) -> Result<Vec<Produced>, ReportError> {
+    let figure = plots::timeline_figure("timeline", series, title, u)?;
     let facts = notes::facts(meta, u);
     let safety = safety_notes(u);
     let mut md = format!("# Remanent report — {title}\n\n**Not analysed:** {reason}\n\n");
@@ -171,15 +188,16 @@ pub fn write_unanalysed(
     for n in &safety {
         md.push_str(&format!("- {n}\n"));
     }
-    output::write(&md_path, md.as_bytes(), force)?;
     let mut page = Page::new("report", title);
     page.p(&format!("Not analysed: {reason}"))
         .facts(&facts)
         .figure("timeline", figure.svg_element())
         .h2("Safety")
         .list(safety.iter().map(String::as_str));
-    output::write(&html_path, page.finish().as_bytes(), force)?;
-    let mut written = figure.files().to_vec();
-    written.extend([md_path, html_path]);
-    Ok(written)
+    let mut files = figure.files().to_vec();
+    files.extend([
+        Produced::new(MD_FILE, md),
+        Produced::new(HTML_FILE, page.finish()),
+    ]);
+    Ok(files)
 }

@@ -68,23 +68,22 @@ fn read(p: &Path) -> Result<Vec<u8>, SealError> {
     })
 }
 
-/// The seal of a certificate issued at `issued_utc` for the record `raw` and the analysis
-/// `analysis_file` (already written), each relative to `dir` unless absolute.
+/// The seal of a certificate issued at `issued_utc` for the record `raw` (relative to `dir`
+/// unless absolute) and the analysis `analysis` as it is filed under `analysis_file`.
 pub fn seal(
     raw: &Path,
     analysis_file: &Path,
+    analysis: &[u8],
     issued_utc: &str,
     issuer: Option<String>,
     dir: &Path,
 ) -> Result<Seal, SealError> {
-    let at = |p: &Path| {
-        if p.is_absolute() {
-            p.to_path_buf()
-        } else {
-            dir.join(p)
-        }
+    let raw_at = if raw.is_absolute() {
+        raw.to_path_buf()
+    } else {
+        dir.join(raw)
     };
-    let analysis_sha256 = sha256_hex(&read(&at(analysis_file))?);
+    let analysis_sha256 = sha256_hex(analysis);
     let day: String = issued_utc
         .chars()
         .filter(char::is_ascii_digit)
@@ -95,7 +94,7 @@ pub fn seal(
         issued_utc: issued_utc.into(),
         issuer,
         raw_file: raw.to_path_buf(),
-        raw_sha256: sha256_hex(&read(&at(raw))?),
+        raw_sha256: sha256_hex(&read(&raw_at)?),
         analysis_file: analysis_file.to_path_buf(),
         analysis_sha256,
     })

@@ -484,7 +484,8 @@ fn a_suppliers_drift_shows_beyond_the_control_limits_on_the_chart() {
     assert!(chart.panels[1].outside().is_empty());
     assert_eq!(chart.panels[2].limits, None);
     let dir = tempfile::tempdir().unwrap();
-    remanent::plots::write_trend_plot(&dir.path().join("trend"), &chart, false).unwrap();
+    let figure = remanent::plots::trend_figure("trend", &chart).unwrap();
+    remanent::plots::write_figure(&dir.path().join("trend"), &figure, false).unwrap();
     crate::util::assert_plot_shows(&dir.path().join("trend"), &["Ferrum Works"], 30);
     let svg = std::fs::read_to_string(dir.path().join("trend.svg")).unwrap();
     assert!(
@@ -492,7 +493,7 @@ fn a_suppliers_drift_shows_beyond_the_control_limits_on_the_chart() {
         "labels drawn"
     );
     assert!(
-        remanent::plots::write_trend_plot(&dir.path().join("trend"), &chart, false).is_err(),
+        remanent::plots::write_figure(&dir.path().join("trend"), &figure, false).is_err(),
         "never replaced without force"
     );
 }

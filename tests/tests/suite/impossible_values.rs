@@ -121,12 +121,12 @@ fn plotting_an_all_nan_series_finishes() {
     let (tx, rx) = mpsc::channel();
     std::thread::spawn(move || {
         let r = remanent::plots::timeline_figure(
-            &stem,
+            "timeline",
             &s,
             "all NaN",
-            false,
             &remanent::units::DisplayUnits::SI,
         )
+        .and_then(|f| remanent::plots::write_figure(&stem, &f, false))
         .map(|_| ());
         let _ = tx.send(r.map_err(|e| e.to_string()));
     });

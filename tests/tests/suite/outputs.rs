@@ -160,16 +160,23 @@ fn a_lot_finds_the_weak_magnet() {
     assert!(
         clean,
         "{}",
-        lot::text(&s, &remanent::units::DisplayUnits::SI)
+        remanent::report::lot_text(&s, &remanent::units::DisplayUnits::SI)
     );
     assert_eq!(s.rows.last().unwrap().id, "LOT-06", "ranked last by flux");
     assert!(s.alpha.sd < 0.001, "α spread {:.5}", s.alpha.sd);
-    let csv = lot::to_csv(&s);
+    let csv = remanent::report::tables::lot_csv(&s);
     assert_eq!(csv.lines().count(), 7);
     assert!(csv.contains(&format!("{:.5}", weak.alpha)));
     let stem = dir.path().join("lot");
-    remanent::plots::write_lot_plot(&stem, &s, SpecTable::builtin().find("N42SH"), "test lot")
-        .unwrap();
+    let figure = remanent::plots::lot_figure(
+        "lot",
+        &s,
+        SpecTable::builtin().find("N42SH"),
+        "test lot",
+        &remanent::units::DisplayUnits::SI,
+    )
+    .unwrap();
+    remanent::plots::write_figure(&stem, &figure, false).unwrap();
     // the axes, every magnet by its id, and a point for each of the six
     crate::util::assert_plot_shows(
         &stem,
@@ -248,5 +255,10 @@ fn a_survey_of_a_rotor_set_flags_the_damaged_magnets() {
             r.deviation_pct
         );
     }
-    assert_eq!(survey::to_csv(&ranked).lines().count(), 13);
+    assert_eq!(
+        remanent::report::tables::survey_csv(&ranked)
+            .lines()
+            .count(),
+        13
+    );
 }

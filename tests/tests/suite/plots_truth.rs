@@ -111,15 +111,9 @@ fn lines_break_at_gaps_and_keys_and_ticks_are_clean() {
         &out,
     );
     let (s, _) = dataset::load_run(&out, None).unwrap();
-    let figs = remanent::plots::run_figures(
-        &out,
-        &s,
-        &t.analysis,
-        "test",
-        false,
-        &remanent::units::DisplayUnits::SI,
-    )
-    .unwrap();
+    let figs =
+        remanent::plots::run_figures(&s, &t.analysis, "test", &remanent::units::DisplayUnits::SI)
+            .unwrap();
     let svg = &figs[0].svg;
     let texts = svg_texts(svg);
     let key_x = (remanent::plots::SIZE.0 - remanent::plots::style::KEY_WIDTH) as f64;
@@ -209,7 +203,8 @@ fn a_timeline_without_a_heater_column_has_no_heater_panel() {
     let dir = tempfile::tempdir().unwrap();
     let draw = |s: &remanent::analysis::dataset::Series, name: &str| {
         let stem = dir.path().join(name);
-        remanent::plots::timeline_figure(&stem, s, name, false, &Default::default()).unwrap();
+        let f = remanent::plots::timeline_figure(name, s, name, &Default::default()).unwrap();
+        remanent::plots::write_figure(&stem, &f, false).unwrap();
         std::fs::read_to_string(stem.with_extension("svg")).unwrap()
     };
     let logged = draw(&s, "logged");

@@ -83,8 +83,8 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
             );
         }
     }
-    let stem = a.out.with_extension("");
-    for f in remanent::plots::write_trend_plot(&stem, &chart, a.force.force)? {
+    let figure = remanent::plots::trend_figure("trend", &chart)?;
+    for f in remanent::plots::write_figure(&a.out, &figure, a.force.force)? {
         println!("wrote {}", f.display());
     }
     Ok(ExitCode::SUCCESS)
