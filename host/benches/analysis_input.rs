@@ -9,7 +9,7 @@ use std::path::Path;
 use std::process::Command;
 use std::time::Instant;
 
-use remanent::analysis::dataset::{self, CsvOptions};
+use remanent::input::dataset::{self, CsvOptions};
 use remanent::jobs::{load_and_analyze, InputRequest};
 use remanent::magnets;
 use remanent::profiles::ProfileSpec;

@@ -6,9 +6,9 @@
 
 use std::time::Instant;
 
-use remanent::analysis::dataset::Series;
 use remanent::analysis::{analyze, Analysis, Context};
 use remanent::history::{Filter, Location, RunEntry, Store};
+use remanent::input::dataset::Series;
 use remanent::specs::SpecTable;
 
 const RUNS: usize = 100_000;

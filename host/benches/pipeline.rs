@@ -6,9 +6,9 @@
 use std::io::{self, Read, Write};
 use std::time::{Duration, Instant};
 
-use remanent::analysis::dataset::Series;
 use remanent::analysis::{analyze, Context};
 use remanent::calibration::Calibration;
+use remanent::input::dataset::Series;
 use remanent::jobs::record::{record, Quiet, RecordOptions};
 use remanent::magnets;
 use remanent::profiles::ProfileSpec;

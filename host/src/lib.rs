@@ -13,6 +13,7 @@ pub mod families;
 pub mod formats;
 pub mod frame_log;
 pub mod history;
+pub mod input;
 pub mod inspection;
 pub mod jobs;
 pub mod link;

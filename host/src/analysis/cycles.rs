@@ -4,8 +4,8 @@
 
 use std::ops::Range;
 
-use super::dataset::Series;
 use super::segments::MIN_SPAN_K;
+use crate::input::dataset::Series;
 
 /// A cycle has ended once the temperature is back below the start plus this fraction of its
 /// excursion (and half the smallest span worth fitting).

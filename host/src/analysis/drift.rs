@@ -8,7 +8,7 @@
 use super::lag_estimate::Lagged;
 use super::model::{autocorrelation_inflation, Quadratic};
 use super::prepare::Prepared;
-use super::series::Series;
+use crate::input::series::Series;
 use crate::units::Phrase;
 use serde::Serialize;
 

@@ -251,7 +251,7 @@ pub fn full(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::series::Series;
+    use crate::input::series::Series;
 
     /// 100 readings at `t0` around `b0`, 100 on the excursion, 100 at `t1` around `b1`; the
     /// readings alternate ±0.01 mT about their level.

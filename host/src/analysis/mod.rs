@@ -10,20 +10,13 @@
 //! [`judge`] turns the numbers into Br, the family ([`families`]) and the verdict.
 
 pub mod alpha;
-pub mod blocks;
 pub mod branch_loss;
 pub mod branch_ratio;
 pub mod check_kind;
-pub mod clean;
-pub mod column_names;
-pub mod csv_cells;
-pub mod csv_header;
-pub mod csv_log;
 pub mod curie;
 pub mod cycle_loss;
 pub mod cycle_total;
 pub mod cycles;
-pub mod dataset;
 pub mod drift;
 pub mod fit_data;
 pub mod fixture_ref;
@@ -36,10 +29,8 @@ pub mod loss_verdict;
 pub mod lsq;
 pub mod model;
 pub mod prepare;
-pub mod repair;
 pub mod result;
 pub mod segments;
-pub mod series;
 pub mod verdict;
 
 pub mod context;

@@ -1,12 +1,13 @@
 //! The analysis run as its named steps, in order, into one result.
 
 use super::context::{AnalysisError, Context};
-use super::dataset::Series;
 use super::prepare::{Prepared, LOSSY};
 use super::result::{Analysis, CycleResult, Traces};
 use super::segments::MIN_SPAN_K;
-use super::{alpha, clean, curie, cycles, fit_data, judge, lag_estimate, model, segments, verdict};
+use super::{alpha, curie, cycles, fit_data, judge, lag_estimate, model, segments, verdict};
 use super::{drift, loss_verdict};
+use crate::input::clean;
+use crate::input::dataset::Series;
 use crate::units::{self, Kind, Phrase, Qty};
 
 /// A probe that came back more than this far from where it started is noted, K.

@@ -6,9 +6,9 @@ use remanent_physics::standoff;
 
 use super::branch_ratio::LOSSY_COMPARE_FRACTION;
 use super::context::Context;
-use super::dataset::Series;
 use super::lag;
 use super::segments::Segments;
+use crate::input::dataset::Series;
 
 /// The lag search runs on at most this many points: a first-order response is smooth, so a
 /// 20 000-point series finds τ as well as a million.

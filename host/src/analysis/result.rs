@@ -269,7 +269,7 @@ pub struct Analysis {
     /// after the excursion).
     pub probe_drift: Option<super::drift::DriftResult>,
     /// What was repaired in a logger's file (duplicate rows, a restarting time column).
-    pub repairs: super::repair::Repairs,
+    pub repairs: crate::input::repair::Repairs,
     /// How Br was found: its budget, relative standard uncertainties, %.
     pub br_budget: Vec<BudgetLine>,
     /// Br was referred to the fixture's reference magnet (else: geometry at the calibrated gap).

@@ -3,9 +3,9 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::analysis::dataset::{self, CsvOptions, InputError, Series};
 use crate::analysis::{analyze, Analysis, AnalysisError, Context};
 use crate::calibration::{Calibration, CalibrationError};
+use crate::input::dataset::{self, CsvOptions, InputError, Series};
 use crate::magnets::{self, MagnetError};
 use crate::specs::{SpecError, SpecTable};
 

@@ -10,8 +10,8 @@ use super::style::{
     draw_keys, range, tick, tickable, with_key_strip, DrawResult, Key, COOLING, FIT, HEATING,
     REFERENCE,
 };
-use crate::analysis::dataset::Series;
 use crate::analysis::Analysis;
+use crate::input::dataset::Series;
 use crate::units::{self, DisplayUnits, Kind, Qty};
 
 /// Points of each branch drawn (each bin's extremes).

@@ -16,8 +16,8 @@ pub mod trend;
 pub use decimate::{decimate_minmax, minmax_indices};
 pub use figure::{ensure_font, Figure, PlotError, SIZE};
 
-use crate::analysis::dataset::Series;
 use crate::analysis::Analysis;
+use crate::input::dataset::Series;
 use crate::specs::GradeSpec;
 use crate::units::DisplayUnits;
 use figure::render_figure;

@@ -10,8 +10,8 @@ use super::style::{
     draw_keys, range, time_panel, with_key_strip, Chart, DrawResult, Key, COOLING, DUTY, FIT, GAP,
     HEATING, REFERENCE,
 };
-use crate::analysis::dataset::Series;
 use crate::event::words::fault_mark;
+use crate::input::dataset::Series;
 use crate::units::DisplayUnits;
 
 /// Points per trace drawn (each bin's extremes).

@@ -20,8 +20,8 @@ pub use lot::{lot_html, lot_outputs, lot_text};
 pub use markdown::markdown;
 pub use notes::{safety_notes, METHOD_NOTES};
 
-use crate::analysis::dataset::Series;
 use crate::analysis::Analysis;
+use crate::input::dataset::Series;
 use crate::output::{self, OutputError, Produced};
 use crate::plots::{self, Figure, PlotError};
 use crate::run_dir;

@@ -4,9 +4,9 @@
 
 use std::time::Duration;
 
-use remanent::analysis::dataset;
 use remanent::analysis::{analyze, Analysis, Context};
 use remanent::calibration::Calibration;
+use remanent::input::dataset;
 use remanent::jobs::record::{record, Quiet, RecordEnd, RecordOptions};
 use remanent::magnets;
 use remanent::profiles::{ProfileSpec, SegmentSpec};

@@ -3,7 +3,7 @@
 
 use crate::util::ctx;
 use remanent::analysis::analyze;
-use remanent::analysis::dataset::{self, CsvOptions};
+use remanent::input::dataset::{self, CsvOptions};
 
 /// A staircase of soaks only (a logger that records each soak's steady state for a few
 /// minutes), in gauss, with a column named by the logger: α = −0.04 %/°C (a SmCo-like magnet).

@@ -159,7 +159,7 @@ fn certificate_pages_render_and_carry_the_inspection_read_back_by_poppler() {
 fn logged_run(dir: &Path, name: &str) -> std::path::PathBuf {
     let run = dir.join("run");
     crate::util::rapid_run(&run, 8);
-    let (s, _) = remanent::analysis::dataset::load_run(&run, None).unwrap();
+    let (s, _) = remanent::input::dataset::load_run(&run, None).unwrap();
     let mut text = String::from("time_s,temp_C,flux_mT\n");
     for i in 0..s.time_s.len() {
         text.push_str(&format!(

@@ -6,9 +6,9 @@ use std::sync::atomic::AtomicBool;
 use std::sync::Arc;
 use std::time::Duration;
 
-use remanent::analysis::dataset::{self, CsvOptions};
 use remanent::analysis::{analyze, Context};
 use remanent::calibration::Calibration;
+use remanent::input::dataset::{self, CsvOptions};
 use remanent::jobs::record::{record, Quiet, RecordEnd, RecordOptions, RecordSummary};
 use remanent::magnets;
 use remanent::profiles::{ProfileSpec, SegmentSpec};

@@ -8,8 +8,8 @@
 //! practice). Tolerances from the project's accuracy goal: α within ±0.003 %/°C and inside its
 //! U95; loss within ±0.1 % absolute and inside its U95.
 
-use remanent::analysis::dataset::CsvOptions;
 use remanent::analysis::Analysis;
+use remanent::input::dataset::CsvOptions;
 
 use crate::bench_model::{self as bm, Bench, TrueMagnet, NDFEB};
 

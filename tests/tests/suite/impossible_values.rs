@@ -6,10 +6,10 @@ use crate::util::ctx;
 use std::sync::mpsc;
 use std::time::Duration;
 
-use remanent::analysis::dataset::Series;
 use remanent::analysis::verdict::{judge, Outcome};
 use remanent::analysis::{analyze, AnalysisError};
 use remanent::calibration::Calibration;
+use remanent::input::dataset::Series;
 
 fn cycle(n: usize) -> Series {
     let mut s = Series::default();

@@ -197,7 +197,7 @@ fn events_are_in_time_order_with_every_time_filled_and_a_torn_last_row_is_tolera
         .unwrap();
     write!(f, "999999,12.3,170").unwrap();
     drop(f);
-    let (series, _) = remanent::analysis::dataset::load_run(&out, None).unwrap();
+    let (series, _) = remanent::input::dataset::load_run(&out, None).unwrap();
     assert_eq!(series.time_s.len(), n_rows);
     assert!(series.skipped.iter().any(|(_, why)| why.contains("torn")));
 }
@@ -248,7 +248,7 @@ fn on_a_full_disk_every_complete_row_is_kept_and_the_run_says_why() {
         })
         .unwrap_or_default();
     let meta = remanent::run_dir::read_meta(&out);
-    let loaded = remanent::analysis::dataset::load_run(&out, None).map(|(s, _)| s.time_s.len());
+    let loaded = remanent::input::dataset::load_run(&out, None).map(|(s, _)| s.time_s.len());
     let _ = std::process::Command::new("umount")
         .arg(mnt.path())
         .status();

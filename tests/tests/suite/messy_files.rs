@@ -4,7 +4,7 @@
 
 use crate::util::ctx;
 use remanent::analysis::analyze;
-use remanent::analysis::dataset::{self, CsvOptions, InputError};
+use remanent::input::dataset::{self, CsvOptions, InputError};
 
 use crate::bench_model::{self as bm, Bench, Row, NDFEB};
 

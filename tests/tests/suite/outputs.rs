@@ -4,9 +4,9 @@
 use std::time::Duration;
 
 use remanent::acceptance_plan::{accept_probability, design, Model};
-use remanent::analysis::dataset;
 use remanent::analysis::{analyze, Context};
 use remanent::calibration::Calibration;
+use remanent::input::dataset;
 use remanent::jobs::record::{record, Quiet, RecordOptions};
 use remanent::lot::{self, LotRow};
 use remanent::magnets;

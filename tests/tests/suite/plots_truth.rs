@@ -3,7 +3,7 @@
 //! clear of the data, ticks carry no needless ".0", and a lot's plot names every grade and
 //! every magnet whole. Each check reads what is drawn (the marks, or the SVG text).
 
-use remanent::analysis::dataset;
+use remanent::input::dataset;
 use remanent::jobs::trial::{self, TrialSpec};
 use remanent::plots::flux::{fit_line, residual_marks, ResidualMarks};
 use remanent::profiles::{ProfileSpec, SegmentSpec};
@@ -193,7 +193,7 @@ fn a_mixed_lot_names_every_grade_and_every_magnet_whole() {
 fn a_timeline_without_a_heater_column_has_no_heater_panel() {
     // a logger's CSV with time, temperature and flux only once showed an empty "heater duty"
     // panel with a legend entry for a line that was not there
-    let mut s = remanent::analysis::dataset::Series::default();
+    let mut s = remanent::input::dataset::Series::default();
     for i in 0..600 {
         let t = f64::from(i);
         s.time_s.push(t);
@@ -201,7 +201,7 @@ fn a_timeline_without_a_heater_column_has_no_heater_panel() {
         s.flux_mt.push(200.0 - 0.02 * t);
     }
     let dir = tempfile::tempdir().unwrap();
-    let draw = |s: &remanent::analysis::dataset::Series, name: &str| {
+    let draw = |s: &remanent::input::dataset::Series, name: &str| {
         let stem = dir.path().join(name);
         let f = remanent::plots::timeline_figure(name, s, name, &Default::default()).unwrap();
         remanent::plots::write_figure(&stem, &f, false).unwrap();

@@ -2,9 +2,9 @@
 //! every so often, whether it can already state α and the irreversible loss to the tolerance;
 //! when it can, the record ends there (the fixture is freed) and says why.
 
-use crate::analysis::dataset::Series;
 use crate::analysis::{analyze, Context};
 use crate::calibration::Calibration;
+use crate::input::dataset::Series;
 use crate::magnets::MagnetInfo;
 use crate::specs::SpecTable;
 
