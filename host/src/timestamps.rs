@@ -79,7 +79,15 @@ fn days_from_civil(d: &str) -> Option<i64> {
     let y: i64 = parts.next()?.parse().ok()?;
     let m: i64 = parts.next()?.parse().ok()?;
     let day: i64 = parts.next()?.parse().ok()?;
-    if parts.next().is_some() || !(1..=12).contains(&m) || !(1..=31).contains(&day) {
+    // the Gregorian calendar's month lengths: a 30 February is no day
+    let leap = y % 4 == 0 && (y % 100 != 0 || y % 400 == 0);
+    let month_days = match m {
+        2 if leap => 29,
+        2 => 28,
+        4 | 6 | 9 | 11 => 30,
+        _ => 31,
+    };
+    if parts.next().is_some() || !(1..=12).contains(&m) || !(1..=month_days).contains(&day) {
         return None;
     }
     let y = if m <= 2 { y - 1 } else { y };
@@ -122,6 +130,18 @@ mod tests {
         // 2000-03-01 is day 11017 of the Unix epoch (POSIX time 951868800 / 86400)
         assert_eq!(days_from_civil("2000-03-01"), Some(11_017));
         assert_eq!(days_from_civil("2026-13-01"), None);
+    }
+
+    #[test]
+    fn a_day_past_its_months_end_is_no_date() {
+        // Gregorian leap years: 2024 is one, 1900 is not, 2000 is (every 4th, not every
+        // 100th, every 400th)
+        assert!(days_from_civil("2024-02-29").is_some());
+        assert!(days_from_civil("2000-02-29").is_some());
+        assert_eq!(days_from_civil("1900-02-29"), None);
+        assert_eq!(days_from_civil("2026-02-29"), None);
+        assert_eq!(days_from_civil("2026-04-31"), None);
+        assert!(days_from_civil("2026-12-31").is_some());
     }
 
     #[test]

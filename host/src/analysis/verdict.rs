@@ -181,6 +181,18 @@ impl Outcome {
     }
 }
 
+impl std::str::FromStr for Outcome {
+    type Err = String;
+
+    /// The word [`Outcome::word`] gives, in any case.
+    fn from_str(word: &str) -> Result<Outcome, String> {
+        [Outcome::Pass, Outcome::Fail, Outcome::Indeterminate]
+            .into_iter()
+            .find(|o| o.word().eq_ignore_ascii_case(word.trim()))
+            .ok_or_else(|| format!("`{word}` is not a verdict (pass, fail or indeterminate)"))
+    }
+}
+
 impl std::fmt::Display for Outcome {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.write_str(match self {

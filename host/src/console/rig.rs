@@ -173,7 +173,7 @@ impl Rig {
                     .unwrap_or_default()
                     .display()
                     .to_string(),
-                verdict: outcome.verdict.as_deref().and_then(parse_verdict),
+                verdict: outcome.verdict.as_deref().and_then(|w| w.parse().ok()),
                 note: outcome
                     .certificate
                     .clone()
@@ -186,16 +186,6 @@ impl Rig {
             });
         });
         Ok(())
-    }
-}
-
-fn parse_verdict(word: &str) -> Option<crate::analysis::verdict::Outcome> {
-    use crate::analysis::verdict::Outcome as O;
-    match word {
-        "PASS" => Some(O::Pass),
-        "FAIL" => Some(O::Fail),
-        "INDETERMINATE" => Some(O::Indeterminate),
-        _ => None,
     }
 }
 

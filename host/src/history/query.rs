@@ -5,6 +5,46 @@
 use super::backend::Value;
 use super::error::StoreError;
 use super::store::Store;
+use crate::analysis::verdict::Outcome;
+use crate::timestamps::{format_utc, parse_utc};
+
+/// A bound on when a run started, UTC: a whole day (`2026-01-31`) or an instant (RFC 3339).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct When {
+    /// Seconds since 1970 at its start.
+    pub secs: u64,
+    /// A whole day rather than an instant.
+    pub whole_day: bool,
+}
+
+impl When {
+    /// The first instant it covers, as the store writes times.
+    fn first(self) -> String {
+        format_utc(self.secs)
+    }
+
+    /// The last instant it covers (a day's last second), as the store writes times.
+    fn last(self) -> String {
+        format_utc(self.secs + if self.whole_day { 86_399 } else { 0 })
+    }
+}
+
+impl std::str::FromStr for When {
+    type Err = String;
+
+    fn from_str(text: &str) -> Result<When, String> {
+        let t = text.trim();
+        match parse_utc(t) {
+            Some(secs) if secs >= 0.0 => Ok(When {
+                secs: secs as u64,
+                whole_day: !t.contains(['T', ' ']),
+            }),
+            _ => Err(format!(
+                "`{text}` is not a date (YYYY-MM-DD) or an RFC 3339 UTC instant"
+            )),
+        }
+    }
+}
 
 /// What to look for; every field given must match (dates compare with the record's start).
 #[derive(Debug, Clone, Default)]
@@ -17,12 +57,12 @@ pub struct Filter {
     pub supplier: Option<String>,
     /// The stated grade.
     pub grade: Option<String>,
-    /// Started on or after this date or instant (`2026-01-31` or RFC 3339).
-    pub since: Option<String>,
-    /// Started on or before this date (the whole day) or instant.
-    pub until: Option<String>,
-    /// The latest analysis's verdict: `pass`, `fail` or `indeterminate`.
-    pub verdict: Option<String>,
+    /// Started on or after this day or instant.
+    pub since: Option<When>,
+    /// Started on or before this day (the whole day) or instant.
+    pub until: Option<When>,
+    /// The latest analysis's verdict.
+    pub verdict: Option<Outcome>,
     /// At most this many (the newest), none: all.
     pub limit: Option<u64>,
 }
@@ -109,15 +149,6 @@ fn found(row: &super::backend::Row) -> Found {
     }
 }
 
-/// `until` as an upper bound: a plain date covers its whole day.
-fn until_bound(u: &str) -> String {
-    if u.len() == 10 {
-        format!("{u}T23:59:59Z")
-    } else {
-        u.into()
-    }
-}
-
 impl Filter {
     /// The WHERE clause and its values, placeholders numbered from `$1`.
     fn clause(&self) -> (String, Vec<Value>) {
@@ -140,14 +171,14 @@ impl Filter {
         if let Some(g) = &self.grade {
             add("r.grade = ?", g.clone());
         }
-        if let Some(s) = &self.since {
-            add(&format!("{when} >= ?"), s.clone());
+        if let Some(s) = self.since {
+            add(&format!("{when} >= ?"), s.first());
         }
-        if let Some(u) = &self.until {
-            add(&format!("{when} <= ?"), until_bound(u));
+        if let Some(u) = self.until {
+            add(&format!("{when} <= ?"), u.last());
         }
-        if let Some(v) = &self.verdict {
-            add("a.verdict = ?", v.to_lowercase());
+        if let Some(v) = self.verdict {
+            add("a.verdict = ?", v.word().into());
         }
         let sql = if conds.is_empty() {
             String::new()
@@ -321,4 +352,40 @@ pub fn lot_summary(lot: &str, runs: &[Found]) -> LotSummary {
         _ => None,
     };
     s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_day_bounds_its_whole_day_and_an_instant_itself() {
+        // RFC 3339 §5.6 full-date and date-time; the store writes times as format_utc does
+        let day: When = "2026-01-31".parse().unwrap();
+        assert!(day.whole_day);
+        assert_eq!(day.first(), "2026-01-31T00:00:00Z");
+        assert_eq!(day.last(), "2026-01-31T23:59:59Z");
+        let at: When = "2026-01-31T10:20:30Z".parse().unwrap();
+        assert!(!at.whole_day);
+        assert_eq!(
+            (at.first(), at.last()),
+            (at.last(), "2026-01-31T10:20:30Z".into())
+        );
+        assert!("31/01/2026".parse::<When>().is_err());
+        assert!("2026-02-30".parse::<When>().is_err());
+    }
+
+    #[test]
+    fn a_verdict_filter_is_the_word_the_store_keeps() {
+        for o in [Outcome::Pass, Outcome::Fail, Outcome::Indeterminate] {
+            let f = Filter {
+                verdict: Some(o),
+                ..Default::default()
+            };
+            let (sql, vals) = f.clause();
+            assert_eq!(sql, " WHERE a.verdict = $1");
+            assert!(matches!(&vals[..], [Value::Text(w)] if w == o.word()));
+            assert_eq!(o.word().to_uppercase().parse::<Outcome>(), Ok(o));
+        }
+    }
 }

@@ -120,7 +120,7 @@ fn exercise(at: &Location) {
     assert!(find(
         &mut store,
         Filter {
-            since: Some(tomorrow[..10].into()),
+            since: Some(tomorrow[..10].parse().unwrap()),
             ..Default::default()
         }
     )
@@ -129,7 +129,7 @@ fn exercise(at: &Location) {
         find(
             &mut store,
             Filter {
-                until: Some(tomorrow[..10].into()),
+                until: Some(tomorrow[..10].parse().unwrap()),
                 ..Default::default()
             }
         )
@@ -149,7 +149,7 @@ fn exercise(at: &Location) {
     }
     for v in ["pass", "fail", "indeterminate"] {
         let f = Filter {
-            verdict: Some(v.into()),
+            verdict: Some(v.parse().unwrap()),
             ..Default::default()
         };
         let mut got: Vec<String> = find(&mut store, f)

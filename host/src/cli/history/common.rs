@@ -2,6 +2,8 @@
 //! terms of `find` and `export`.
 
 use crate::cli::options::StoreOpts;
+use remanent::analysis::verdict::Outcome;
+use remanent::history::When;
 
 /// Open the store the options name (refusing `off`).
 pub fn open(store: &StoreOpts) -> anyhow::Result<remanent::history::Store> {
@@ -35,20 +37,21 @@ pub struct FilterOpts {
     #[arg(long)]
     grade: Option<String>,
     /// Started on or after this date (YYYY-MM-DD) or instant (RFC 3339, UTC).
-    #[arg(long, value_parser = parse_when)]
-    since: Option<String>,
+    #[arg(long)]
+    since: Option<When>,
     /// Started on or before this date (the whole day) or instant.
-    #[arg(long, value_parser = parse_when)]
-    until: Option<String>,
+    #[arg(long)]
+    until: Option<When>,
     /// The latest analysis's verdict.
-    #[arg(long, value_parser = ["pass", "fail", "indeterminate"])]
-    verdict: Option<String>,
+    #[arg(long, value_parser = verdicts())]
+    verdict: Option<Outcome>,
 }
 
-fn parse_when(s: &str) -> Result<String, String> {
-    remanent::timestamps::parse_utc(s)
-        .map(|_| s.trim().to_string())
-        .ok_or_else(|| format!("`{s}` is not a date (YYYY-MM-DD) or an RFC 3339 UTC instant"))
+/// The verdicts `--verdict` takes, listed in its help.
+fn verdicts() -> impl clap::builder::TypedValueParser<Value = Outcome> {
+    use clap::builder::TypedValueParser as _;
+    clap::builder::PossibleValuesParser::new(["pass", "fail", "indeterminate"])
+        .try_map(|w| w.parse::<Outcome>())
 }
 
 impl FilterOpts {
@@ -58,9 +61,9 @@ impl FilterOpts {
             lot: self.lot.clone(),
             supplier: self.supplier.clone(),
             grade: self.grade.clone(),
-            since: self.since.clone(),
-            until: self.until.clone(),
-            verdict: self.verdict.clone(),
+            since: self.since,
+            until: self.until,
+            verdict: self.verdict,
             limit,
         }
     }
