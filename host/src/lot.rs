@@ -30,6 +30,9 @@ pub struct LotRow {
     /// Room-temperature flux (fitted B at 20 °C), mT.
     #[serde(rename = "b20_mT")]
     pub b20_mt: f64,
+    /// Br from geometry, T (none: no shape, or not found).
+    #[serde(rename = "br_T")]
+    pub br_t: Option<f64>,
     /// The magnet's verdict.
     pub verdict: Outcome,
     /// The verdict found heat damage (a loss above the threshold by more than its U95).
@@ -50,6 +53,7 @@ impl LotRow {
             loss_pct: a.irreversible_loss_pct,
             loss_u95_pct: a.irreversible_loss_u95_pct,
             b20_mt: a.b20_mt,
+            br_t: a.br.as_ref().map(|b| b.br_t),
             verdict: a.verdict,
             heat_damaged: a.heat_damaged,
             outlier: Vec::new(),
@@ -147,6 +151,8 @@ pub struct LotSummary {
     pub loss: Option<Spread>,
     /// Room-temperature flux spread.
     pub b20: Spread,
+    /// Br spread, T (magnets with a Br).
+    pub br: Option<Spread>,
     /// Verdict counts.
     pub passed: usize,
     /// Failed.
@@ -198,6 +204,7 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
             rows[*i].outlier.push(format!("loss (M = {z:+.1})"));
         }
     }
+    let brs: Vec<f64> = rows.iter().filter_map(|r| r.br_t).collect();
     let count = |o: Outcome| rows.iter().filter(|r| r.verdict == o).count();
     let (passed, failed, indeterminate) = (
         count(Outcome::Pass),
@@ -209,6 +216,7 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
         alpha: spread(&alphas),
         loss: (!losses.is_empty()).then(|| spread(&losses)),
         b20: spread(&b20),
+        br: (!brs.is_empty()).then(|| spread(&brs)),
         rows,
         passed,
         failed,
@@ -231,6 +239,7 @@ mod tests {
             loss_pct: None,
             loss_u95_pct: None,
             b20_mt: 200.0,
+            br_t: None,
             verdict: Outcome::Pass,
             heat_damaged: false,
             outlier: Vec::new(),

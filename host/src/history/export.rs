@@ -45,7 +45,7 @@ pub fn to_csv(rows: &[Found]) -> String {
             txt(&r.supplier),
             txt(&r.operator),
             r.when_utc.clone(),
-            txt(&r.verdict),
+            r.verdict.map(|v| v.word()).unwrap_or_default().into(),
             num(r.alpha_pct_per_c),
             num(r.alpha_u95_pct_per_c),
             num(r.br_t),

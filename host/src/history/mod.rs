@@ -26,5 +26,5 @@ pub use error::{software, StoreError};
 pub use location::{Location, STORE_ENV};
 pub use lot_decisions::LotDecision;
 pub use pg::redact;
-pub use query::{Filter, Found, LotSummary, TrendPoint, When};
+pub use query::{Filter, Found, LotHistory, TrendPoint, When};
 pub use store::Store;

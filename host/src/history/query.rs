@@ -6,6 +6,7 @@ use super::backend::Value;
 use super::error::StoreError;
 use super::store::Store;
 use crate::analysis::verdict::Outcome;
+use crate::lot::{summarise, LotRow, LotSummary};
 use crate::timestamps::{format_utc, parse_utc};
 
 /// A bound on when a run started, UTC: a whole day (`2026-01-31`) or an instant (RFC 3339).
@@ -93,7 +94,7 @@ pub struct Found {
     /// Start (or, for a log, when it was stored), UTC.
     pub when_utc: String,
     /// Latest analysis: verdict and figures (absent when never analysed).
-    pub verdict: Option<String>,
+    pub verdict: Option<Outcome>,
     /// α, %/°C, and its U95.
     pub alpha_pct_per_c: Option<f64>,
     /// U95 of α.
@@ -137,7 +138,7 @@ fn found(row: &super::backend::Row) -> Found {
         supplier: t("r.supplier"),
         operator: t("r.operator"),
         when_utc: t("r.started_utc").unwrap_or_default(),
-        verdict: t("a.verdict"),
+        verdict: t("a.verdict").and_then(|w| w.parse().ok()),
         alpha_pct_per_c: f("a.alpha_pct_per_C"),
         alpha_u95_pct_per_c: f("a.alpha_u95_pct_per_C"),
         br_t: f("a.br_T"),
@@ -275,83 +276,69 @@ pub struct TrendPoint {
     pub grade: Option<String>,
 }
 
-/// A lot at a glance.
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct LotSummary {
+/// A lot as the store holds it: its runs, when they were recorded, the grades and suppliers
+/// named, and the analysed runs summarised as `remanent lot` summarises a lot (the one lot
+/// summary: spreads, robust outliers, verdict counts).
+#[derive(Debug, Clone)]
+pub struct LotHistory {
     /// The lot.
     pub lot: String,
-    /// Runs in it, and how many were analysed.
+    /// Runs in it.
     pub runs: usize,
-    /// Runs with an analysis.
-    pub analysed: usize,
-    /// Latest verdicts: pass, fail, indeterminate.
-    pub pass: usize,
-    /// Fails.
-    pub fail: usize,
-    /// Indeterminate.
-    pub indeterminate: usize,
-    /// Grades and suppliers named in it.
+    /// Grades named in it.
     pub grades: Vec<String>,
-    /// Suppliers.
+    /// Suppliers named in it.
     pub suppliers: Vec<String>,
-    /// Mean and sample standard deviation of α, Br and loss over the analysed runs.
-    pub alpha_pct_per_c: Option<(f64, f64)>,
-    /// Br, T.
-    pub br_t: Option<(f64, f64)>,
-    /// Loss, %.
-    pub loss_pct: Option<(f64, f64)>,
     /// First and last start, UTC.
     pub span_utc: Option<(String, String)>,
+    /// The runs with an analysis (none: not one was analysed).
+    pub summary: Option<LotSummary>,
 }
 
-/// Mean and sample standard deviation (Welford's running form), None for no values.
-pub fn mean_sd(values: impl IntoIterator<Item = f64>) -> Option<(f64, f64)> {
-    let (mut n, mut mean, mut m2) = (0u64, 0.0, 0.0);
-    for x in values.into_iter().filter(|x| x.is_finite()) {
-        n += 1;
-        let d = x - mean;
-        mean += d / n as f64;
-        m2 += d * (x - mean);
-    }
-    match n {
-        0 => None,
-        1 => Some((mean, 0.0)),
-        n => Some((mean, (m2 / (n - 1) as f64).sqrt())),
+impl LotHistory {
+    /// Runs with an analysis.
+    pub fn analysed(&self) -> usize {
+        self.summary.as_ref().map_or(0, |s| s.rows.len())
     }
 }
 
-/// Summarise the runs of a lot (as [`Store::find`] returns them).
-pub fn lot_summary(lot: &str, runs: &[Found]) -> LotSummary {
-    let mut s = LotSummary {
-        lot: lot.into(),
-        runs: runs.len(),
-        ..Default::default()
-    };
-    for r in runs {
-        match r.verdict.as_deref() {
-            Some("pass") => s.pass += 1,
-            Some("fail") => s.fail += 1,
-            Some(_) => s.indeterminate += 1,
-            None => continue,
-        }
-        s.analysed += 1;
-    }
+/// A found run's latest analysis as a row of a lot (none: never analysed).
+fn lot_row(r: &Found) -> Option<LotRow> {
+    Some(LotRow {
+        id: r.magnet_id.clone().unwrap_or_else(|| r.run_name.clone()),
+        grade: r.grade.clone().unwrap_or_default(),
+        alpha: r.alpha_pct_per_c?,
+        alpha_u95: r.alpha_u95_pct_per_c?,
+        loss_pct: r.loss_pct,
+        loss_u95_pct: r.loss_u95_pct,
+        b20_mt: r.b20_mt?,
+        br_t: r.br_t,
+        verdict: r.verdict?,
+        heat_damaged: false,
+        outlier: Vec::new(),
+    })
+}
+
+/// The lot `lot` from its runs (as [`Store::find`] returns them).
+pub fn lot_history(lot: &str, runs: &[Found]) -> LotHistory {
     let names = |f: fn(&Found) -> Option<&String>| {
         let mut v: Vec<String> = runs.iter().filter_map(f).cloned().collect();
         v.sort();
         v.dedup();
         v
     };
-    s.grades = names(|r| r.grade.as_ref());
-    s.suppliers = names(|r| r.supplier.as_ref());
-    s.alpha_pct_per_c = mean_sd(runs.iter().filter_map(|r| r.alpha_pct_per_c));
-    s.br_t = mean_sd(runs.iter().filter_map(|r| r.br_t));
-    s.loss_pct = mean_sd(runs.iter().filter_map(|r| r.loss_pct));
-    s.span_utc = match (runs.first(), runs.last()) {
-        (Some(a), Some(b)) => Some((a.when_utc.clone(), b.when_utc.clone())),
-        _ => None,
-    };
-    s
+    let rows: Vec<LotRow> = runs.iter().filter_map(lot_row).collect();
+    LotHistory {
+        lot: lot.into(),
+        runs: runs.len(),
+        grades: names(|r| r.grade.as_ref()),
+        suppliers: names(|r| r.supplier.as_ref()),
+        span_utc: match (runs.first(), runs.last()) {
+            (Some(a), Some(b)) => Some((a.when_utc.clone(), b.when_utc.clone())),
+            _ => None,
+        },
+        summary: (!rows.is_empty()).then(|| summarise(rows)),
+    }
 }
 
 #[cfg(test)]

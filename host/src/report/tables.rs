@@ -129,6 +129,7 @@ mod tests {
             loss_pct: None,
             loss_u95_pct: None,
             b20_mt: 200.0,
+            br_t: None,
             verdict: crate::analysis::verdict::Outcome::Pass,
             heat_damaged: false,
             outlier: vec!["flux".into(), "α".into()],

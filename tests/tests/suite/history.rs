@@ -173,7 +173,8 @@ fn exercise(at: &Location) {
     assert_eq!(row.br_t, direct.br.as_ref().map(|b| b.br_t));
     assert_eq!(row.loss_pct, direct.irreversible_loss_pct);
 
-    let s = remanent::history::query::lot_summary("L-2611-A", &lot_a);
+    let h = remanent::history::query::lot_history("L-2611-A", &lot_a);
+    let s = h.summary.as_ref().expect("the lot's runs were analysed");
     // the lot's counts are its two runs' own verdicts
     let in_lot_a = |v: &str| {
         let names: Vec<String> = runs[..2]
@@ -184,7 +185,7 @@ fn exercise(at: &Location) {
             .map_or(0, |w| w.iter().filter(|n| names.contains(n)).count())
     };
     assert_eq!(
-        (s.runs, s.analysed, s.pass, s.fail, s.indeterminate),
+        (h.runs, h.analysed(), s.passed, s.failed, s.indeterminate),
         (
             2,
             2,
@@ -193,7 +194,7 @@ fn exercise(at: &Location) {
             in_lot_a("indeterminate")
         )
     );
-    assert_eq!(s.grades, vec!["N42".to_string(), "N42SH".into()]);
+    assert_eq!(h.grades, vec!["N42".to_string(), "N42SH".into()]);
     let trend = store.trend("Ferrum Works", None).unwrap();
     assert_eq!(trend.len(), 2);
     let alphas: Vec<f64> = lot_a.iter().filter_map(|r| r.alpha_pct_per_c).collect();

@@ -4,6 +4,7 @@
 //! and filed INDETERMINATE for parts whose certificates said PASS); an import stores the filed
 //! analysis itself; a logger's CSV is filed with the magnet it was analysed for.
 
+use remanent::analysis::verdict::Outcome;
 use remanent::history::{Filter, Location, Store};
 use remanent::jobs::{history::import, report, Judging};
 use remanent_rig_model::RigParams;
@@ -43,8 +44,8 @@ fn an_import_judges_a_run_with_the_reference_its_certificate_was_issued_with() {
     assert_eq!(done.new_analyses, 1);
     let found = Store::open(&at).unwrap().find(&Filter::default()).unwrap();
     assert_eq!(
-        found[0].verdict.as_deref(),
-        Some(issued.verdict.to_string().to_lowercase().as_str()),
+        found[0].verdict,
+        Some(issued.verdict),
         "filed as the certificate says"
     );
     // a different reference for the same run is not taken silently
@@ -126,7 +127,7 @@ fn an_import_files_the_analysis_as_filed_and_a_reanalysis_only_beside_it() {
     let at = Location::Sqlite(dir.path().join("h.sqlite"));
     let verdicts = || {
         let mut s = Store::open(&at).unwrap();
-        let latest = s.find(&Filter::default()).unwrap()[0].verdict.clone();
+        let latest = s.find(&Filter::default()).unwrap()[0].verdict;
         (latest, s.counts().unwrap())
     };
     let plain = Judging::default();
@@ -139,7 +140,7 @@ fn an_import_files_the_analysis_as_filed_and_a_reanalysis_only_beside_it() {
     );
     let done = done.unwrap();
     assert_eq!((done.as_filed, done.analysed), (1, 0));
-    assert_eq!(verdicts(), (Some("fail".into()), (1, 1)), "stored as filed");
+    assert_eq!(verdicts(), (Some(Outcome::Fail), (1, 1)), "stored as filed");
     // re-analysing is an explicit act, and the filed analysis stays beside the new one
     let again = import(
         &at,
@@ -151,8 +152,8 @@ fn an_import_files_the_analysis_as_filed_and_a_reanalysis_only_beside_it() {
     assert_eq!(again.unwrap().analysed, 1);
     let (latest, counts) = verdicts();
     assert_ne!(
-        latest.as_deref(),
-        Some("fail"),
+        latest,
+        Some(Outcome::Fail),
         "the built-in table's judgement"
     );
     assert_eq!(counts, (1, 2), "both analyses kept");

@@ -52,7 +52,7 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
             t(&r.grade),
             t(&r.lot),
             t(&r.supplier),
-            r.verdict.as_deref().unwrap_or("not analysed"),
+            r.verdict.map_or("not analysed", |v| v.word()),
             num(r.alpha_pct_per_c.map(|v| u.per_degree(v)), 4),
             num(r.br_t.map(|v| u.br(v)), u.br_decimals(4)),
             num(r.loss_pct, 3),
