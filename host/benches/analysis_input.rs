@@ -118,9 +118,9 @@ fn analyse_dir(dir: &Path) -> f64 {
     let (_, a) = load_and_analyze(&req).unwrap();
     let wall = t0.elapsed().as_secs_f64();
     assert!(
-        (a.alpha_pct_per_c + 0.11).abs() < 0.005,
+        (a.alpha.pct_per_c + 0.11).abs() < 0.005,
         "α {}",
-        a.alpha_pct_per_c
+        a.alpha.pct_per_c
     );
     wall
 }

@@ -229,9 +229,9 @@ fn main() {
         let dt = t0.elapsed().as_secs_f64();
         per_sample.push(dt / n as f64);
         assert!(
-            (a.alpha_pct_per_c + 0.11).abs() < 0.005,
+            (a.alpha.pct_per_c + 0.11).abs() < 0.005,
             "α {}",
-            a.alpha_pct_per_c
+            a.alpha.pct_per_c
         );
         println!(
             "| analysis of {n} samples | {:.3} s | {} |",
@@ -251,13 +251,18 @@ fn main() {
 
     // plots of a 1 M-sample record
     let s = synthetic(1_000_000);
-    let a = analyze(&s, &ctx).unwrap();
+    let (a, traces) = remanent::analysis::analyze_traced(&s, &ctx).unwrap();
     let pdir = std::env::temp_dir().join(format!("remanent-bench-plots-{}", std::process::id()));
     std::fs::create_dir_all(&pdir).unwrap();
     let t0 = Instant::now();
-    let figures =
-        remanent::plots::run_figures(&s, &a, "benchmark", &remanent::units::DisplayUnits::SI)
-            .unwrap();
+    let figures = remanent::plots::run_figures(
+        &s,
+        &a,
+        &traces,
+        "benchmark",
+        &remanent::units::DisplayUnits::SI,
+    )
+    .unwrap();
     for f in &figures {
         remanent::output::write_set(&pdir, &f.files(), true).unwrap();
     }

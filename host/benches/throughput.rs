@@ -55,9 +55,10 @@ fn main() {
                 "| {name} | {magnet} | {:.1} | {:+.4} | {:.4} | {} | {} | {end} | {} |",
                 t.fixture_s / 60.0,
                 t.alpha_error_pct_per_c,
-                a.alpha_u95_pct_per_c,
+                a.alpha.u95_pct_per_c,
                 num(t.loss_error_pct, 3),
-                a.irreversible_loss_u95_pct
+                a.loss
+                    .u95_pct
                     .map(|u| format!("{u:.3}"))
                     .unwrap_or("—".into()),
                 if t.meets(&goal) { "yes" } else { "no" },

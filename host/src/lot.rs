@@ -48,14 +48,14 @@ impl LotRow {
         LotRow {
             id: id.into(),
             grade: grade.into(),
-            alpha: a.alpha_pct_per_c,
-            alpha_u95: a.alpha_u95_pct_per_c,
-            loss_pct: a.irreversible_loss_pct,
-            loss_u95_pct: a.irreversible_loss_u95_pct,
-            b20_mt: a.b20_mt,
-            br_t: a.br.as_ref().map(|b| b.br_t),
-            verdict: a.verdict,
-            heat_damaged: a.heat_damaged,
+            alpha: a.alpha.pct_per_c,
+            alpha_u95: a.alpha.u95_pct_per_c,
+            loss_pct: a.loss.pct,
+            loss_u95_pct: a.loss.u95_pct,
+            b20_mt: a.alpha.b20_mt,
+            br_t: a.remanence.estimate.as_ref().map(|b| b.br_t),
+            verdict: a.judgement.verdict,
+            heat_damaged: a.judgement.heat_damaged,
             outlier: Vec::new(),
         }
     }

@@ -52,13 +52,13 @@ pub fn compare(
         return None;
     }
     let m = master.analysis;
-    let ratio = (a.b20_mt / m.b20_mt - 1.0) * 100.0;
-    let rel = |x: &Analysis| x.b20_u_mt / x.b20_mt * 100.0;
+    let ratio = (a.alpha.b20_mt / m.alpha.b20_mt - 1.0) * 100.0;
+    let rel = |x: &Analysis| x.alpha.b20_u_mt / x.alpha.b20_mt * 100.0;
     // each placement adds the fixture's repeatability
     let u_ratio =
         (rel(a).powi(2) + rel(m).powi(2) + 2.0 * DEFAULT_REPEATABILITY_PCT.powi(2)).sqrt();
-    let d_alpha = a.alpha_pct_per_c - m.alpha_pct_per_c;
-    let u_alpha = (a.alpha_u95_pct_per_c.powi(2) + m.alpha_u95_pct_per_c.powi(2)).sqrt() / 2.0;
+    let d_alpha = a.alpha.pct_per_c - m.alpha.pct_per_c;
+    let u_alpha = (a.alpha.u95_pct_per_c.powi(2) + m.alpha.u95_pct_per_c.powi(2)).sqrt() / 2.0;
     let br_tol = (spec.br_max_t - spec.br_min_t) / (spec.br_max_t + spec.br_min_t) * 100.0;
     let alpha_tol = (spec.alpha_max - spec.alpha_min).abs() / 2.0;
     let checks = [

@@ -25,10 +25,10 @@ pub fn judge_total(a: &mut Analysis) {
         .map(|c| c.peak_c)
         .fold(f64::NEG_INFINITY, f64::max);
     let Some(per) = per else {
-        a.irreversible_loss_pct = None;
-        a.irreversible_loss_u95_pct = None;
-        a.loss_method_code = None;
-        a.loss_budget.clear();
+        a.loss.pct = None;
+        a.loss.u95_pct = None;
+        a.loss.method_code = None;
+        a.loss.budget.clear();
         a.notes.push("a cycle's loss could not be computed, so neither can the total over the record: irreversible loss not computed".into());
         return;
     };
@@ -39,27 +39,28 @@ pub fn judge_total(a: &mut Analysis) {
         .iter()
         .max_by(|x, y| x.0.total_cmp(&y.0))
         .map_or(exposure_c, |c| c.2);
-    a.irreversible_loss_pct = Some(total);
-    a.irreversible_loss_u95_pct = Some(u95);
-    a.loss_method_code = Some(super::result::LossMethod::Cycles);
-    a.reference_c = None;
-    a.loss_budget = per
+    a.loss.pct = Some(total);
+    a.loss.u95_pct = Some(u95);
+    a.loss.method_code = Some(super::result::LossMethod::Cycles);
+    a.loss.reference_c = None;
+    a.loss.budget = per
         .iter()
         .enumerate()
         .map(|(k, (_, u, _))| {
             BudgetLine::b(format!("cycle {}: its loss's own budget", k + 1), u / 2.0)
         })
         .collect();
-    a.checks
+    a.judgement
+        .checks
         .retain(|c| !matches!(c.what, CheckKind::Coercivity | CheckKind::Loss));
     let lv = super::loss_verdict::judge_loss(
         Some((total, u95)),
         causing_c,
         exposure_c,
-        a.safe_peak.as_ref(),
+        a.judgement.safe_peak.as_ref(),
     );
-    a.checks.extend(lv.check);
-    a.heat_damaged = lv.heat_damaged;
-    a.quarantine = lv.quarantine;
-    a.verdict = verdict::overall(&a.checks);
+    a.judgement.checks.extend(lv.check);
+    a.judgement.heat_damaged = lv.heat_damaged;
+    a.judgement.quarantine = lv.quarantine;
+    a.judgement.verdict = verdict::overall(&a.judgement.checks);
 }

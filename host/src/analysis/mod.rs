@@ -12,6 +12,7 @@
 pub mod alpha;
 pub mod branch_loss;
 pub mod branch_ratio;
+pub mod budget;
 pub mod check_kind;
 pub mod curie;
 pub mod cycle_loss;
@@ -24,6 +25,7 @@ pub mod geometry;
 pub mod judge;
 pub mod lag;
 pub mod lag_estimate;
+pub mod layout;
 pub mod loss;
 pub mod loss_verdict;
 pub mod lsq;
@@ -38,6 +40,6 @@ pub mod coverage;
 pub mod pipeline;
 
 pub use context::{AnalysisError, Context, DEFAULT_TC_GAIN_PCT};
-pub use pipeline::analyze;
+pub use pipeline::{analyze, analyze_traced};
 pub use result::{Analysis, BudgetLine, CycleResult, Traces};
 pub use segments::MIN_SPAN_K;

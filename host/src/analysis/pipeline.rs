@@ -2,7 +2,10 @@
 
 use super::context::{AnalysisError, Context};
 use super::prepare::{Prepared, LOSSY};
-use super::result::{Analysis, CycleResult, Traces};
+use super::result::{
+    AlphaFit, Analysis, CycleResult, InputFacts, Judgement, LagFacts, LossFacts, LossMethod,
+    Remanence, Traces,
+};
 use super::segments::MIN_SPAN_K;
 use super::{alpha, curie, cycles, fit_data, judge, lag_estimate, model, segments, verdict};
 use super::{drift, loss_verdict};
@@ -13,8 +16,16 @@ use crate::units::{self, Kind, Phrase, Qty};
 /// A probe that came back more than this far from where it started is noted, K.
 pub const PROBE_RETURN_K: f64 = 2.0;
 
-/// Analyse a series.
+/// A result and the traces beside it.
+type Traced = (Analysis, Traces);
+
+/// Analyse a series: the result alone.
 pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
+    analyze_traced(s, ctx).map(|(a, _)| a)
+}
+
+/// Analyse a series: the result, and beside it the per-sample traces the plots draw.
+pub fn analyze_traced(s: &Series, ctx: &Context) -> Result<Traced, AnalysisError> {
     check_finite(s)?;
     // a file that holds several records is split where they meet; else the heat cycles
     let split = !s.breaks.is_empty();
@@ -27,13 +38,13 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         cycles::find(&s.temp_c)
     };
     if ranges.len() < 2 {
-        let mut a = analyze_cycle(s, ctx, clean::notes(s))?;
+        let (mut a, traces) = analyze_cycle(s, ctx, clean::notes(s))?;
         a.cycles = vec![cycle_of(&a, s)];
-        a.repairs = s.repairs.clone();
-        return Ok(a);
+        a.input.repairs = s.repairs.clone();
+        return Ok((a, traces));
     }
     let parts: Vec<Series> = ranges.iter().map(|r| cycles::slice(s, r.clone())).collect();
-    let results: Vec<Result<Analysis, AnalysisError>> = parts
+    let results: Vec<Result<Traced, AnalysisError>> = parts
         .iter()
         .map(|part| analyze_cycle(part, ctx, Vec::new()))
         .collect();
@@ -49,13 +60,14 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
             note.push("; ");
         }
         match r {
-            Ok(a) => {
+            Ok((a, _)) => {
                 note.push(format!("{part_word} {} to ", k + 1));
-                note.push(units::temp_q(a.max_magnet_temp_c, 0));
+                note.push(units::temp_q(a.lag.max_magnet_temp_c, 0));
                 note.push(format!(
                     ": loss {}",
-                    a.irreversible_loss_pct
-                        .zip(a.irreversible_loss_u95_pct)
+                    a.loss
+                        .pct
+                        .zip(a.loss.u95_pct)
                         .map_or("not computed".into(), |(l, u)| format!("{l:.3} ± {u:.3} %"))
                 ));
             }
@@ -76,7 +88,7 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
         .iter()
         .zip(&parts)
         .map(|(r, part)| match r {
-            Ok(a) => cycle_of(a, part),
+            Ok((a, _)) => cycle_of(a, part),
             Err(_) => CycleResult {
                 span_s: [part.time_s[0], part.time_s[part.time_s.len() - 1]],
                 peak_c: part
@@ -94,9 +106,9 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
     let mut traces_flux = Vec::with_capacity(s.time_s.len());
     for (r, part) in results.iter().zip(&parts) {
         match r {
-            Ok(a) => {
-                traces_tm.extend_from_slice(&a.traces.magnet_temp_c);
-                traces_flux.extend_from_slice(&a.traces.flux_corrected_mt);
+            Ok((_, t)) => {
+                traces_tm.extend_from_slice(&t.magnet_temp_c);
+                traces_flux.extend_from_slice(&t.flux_corrected_mt);
             }
             Err(_) => {
                 traces_tm.extend_from_slice(&part.temp_c);
@@ -104,35 +116,37 @@ pub fn analyze(s: &Series, ctx: &Context) -> Result<Analysis, AnalysisError> {
             }
         }
     }
-    let mut a = results.into_iter().last().expect("two or more cycles")?;
+    let (mut a, last) = results.into_iter().last().expect("two or more cycles")?;
     notes.append(&mut a.notes);
     a.notes = notes;
     a.cycles = cycle_list;
-    a.samples = s.time_s.len();
-    a.rows_left_out = s.skipped.len();
-    a.spikes_rejected = s.spikes.len();
-    a.repairs = s.repairs.clone();
-    a.traces.magnet_temp_c = traces_tm;
-    a.traces.flux_corrected_mt = traces_flux;
-    a.traces.segments = a.traces.segments.map(|g| g.shifted(offset));
+    a.input.samples = s.time_s.len();
+    a.input.rows_left_out = s.skipped.len();
+    a.input.spikes_rejected = s.spikes.len();
+    a.input.repairs = s.repairs.clone();
+    let traces = Traces {
+        segments: last.segments.map(|g| g.shifted(offset)),
+        magnet_temp_c: traces_tm,
+        flux_corrected_mt: traces_flux,
+    };
     if !split {
         super::cycle_total::judge_total(&mut a);
     }
-    Ok(a)
+    Ok((a, traces))
 }
 
 /// The cycle summary of one analysed cycle.
 fn cycle_of(a: &Analysis, s: &Series) -> CycleResult {
     CycleResult {
         span_s: [s.time_s[0], s.time_s[s.time_s.len() - 1]],
-        peak_c: a.max_magnet_temp_c,
-        irreversible_loss_pct: a.irreversible_loss_pct,
-        irreversible_loss_u95_pct: a.irreversible_loss_u95_pct,
+        peak_c: a.lag.max_magnet_temp_c,
+        irreversible_loss_pct: a.loss.pct,
+        irreversible_loss_u95_pct: a.loss.u95_pct,
     }
 }
 
 /// Analyse one heat cycle; `notes` so far.
-fn analyze_cycle(s: &Series, ctx: &Context, notes: Vec<Phrase>) -> Result<Analysis, AnalysisError> {
+fn analyze_cycle(s: &Series, ctx: &Context, notes: Vec<Phrase>) -> Result<Traced, AnalysisError> {
     analyze_cycle_with(s, ctx, notes, None)
 }
 
@@ -142,7 +156,7 @@ fn analyze_cycle_with(
     ctx: &Context,
     mut notes: Vec<Phrase>,
     drift: Option<drift::Drift>,
-) -> Result<Analysis, AnalysisError> {
+) -> Result<Traced, AnalysisError> {
     let entry_notes = notes.clone();
     let prep = Prepared::new(s, ctx, &mut notes);
     let seg = segments::find(&s.time_s, &s.temp_c, &s.temp_c);
@@ -215,59 +229,72 @@ fn analyze_cycle_with(
     };
     let judged = judge::judge(&measured, ctx, &mut notes);
     fit_notes(lagged.loss > LOSSY, a.range_c[1], &mut notes);
-    Ok(Analysis {
+    let analysis = Analysis {
         schema_version: super::result::SCHEMA_VERSION,
         provenance: Default::default(),
-        alpha_pct_per_c: a.alpha,
-        alpha_u95_pct_per_c: a.u95(),
-        alpha_fit_se_pct_per_c: a.u_fit,
-        alpha_at_20c_pct_per_c: a.model.alpha_at_reference_pct_per_c(),
-        gamma_pct_per_c2: a.model.gamma_pct_per_c2(),
-        b20_mt: a.model.b0_mt,
-        b20_u_mt: measured.b20_u_mt,
-        fit_range_c: a.range_c,
-        residual_sd_mt: a.fit.residual_sd,
-        fit_points: a.fit.n,
-        fit_method: data.method.into(),
-        fit_method_code: data.code,
-        lag_time_constant_s: lagged.tau_s,
-        irreversible_loss_pct: loss.as_ref().map(|l| l.loss_pct),
-        irreversible_loss_u95_pct: loss.as_ref().map(|l| l.u95_pct),
-        loss_method_code: loss.as_ref().map(|_| match by_references {
-            true => super::result::LossMethod::References,
-            false => super::result::LossMethod::Branches,
-        }),
-        reference_c: loss.as_ref().map(|l| l.ref_c),
-        reference_probe_c: loss.as_ref().and_then(|l| l.ref_probe_c),
-        max_magnet_temp_c: lagged.tm[lagged.seg.peak],
-        curie_estimate_c: lagged.curie_c,
-        br: judged.br,
-        material_family: judged.material_family,
-        verdict: verdict::overall(&judged.checks),
-        grade: judged.grade,
-        checks: judged.checks,
-        heat_damaged: judged.heat_damaged,
-        safe_peak: judged.safe_peak,
-        repairs: Default::default(),
-        probe_drift: drift.map(|d| d.result(corrected)),
-        quarantine: judged.quarantine,
-        br_budget: judged.br_budget,
-        br_referred: ctx.reference.is_some() && judged.br.is_some(),
-        alpha_budget: a.budget,
-        loss_budget: loss.map(|l| l.budget).unwrap_or_default(),
-        notes,
-        uncalibrated: false,
-        cycles: Vec::new(),
-        samples: s.time_s.len(),
-        rows_left_out: s.skipped.len(),
-        spikes_rejected: s.spikes.len(),
-        model: a.model,
-        traces: Traces {
-            segments: Some(lagged.seg),
-            magnet_temp_c: lagged.tm,
-            flux_corrected_mt: prep.flux,
+        input: InputFacts {
+            samples: s.time_s.len(),
+            rows_left_out: s.skipped.len(),
+            spikes_rejected: s.spikes.len(),
+            repairs: Default::default(),
+            probe_drift: drift.map(|d| d.result(corrected)),
+            uncalibrated: false,
         },
-    })
+        lag: LagFacts {
+            time_constant_s: lagged.tau_s,
+            max_magnet_temp_c: lagged.tm[lagged.seg.peak],
+            curie_estimate_c: lagged.curie_c,
+        },
+        alpha: AlphaFit {
+            pct_per_c: a.alpha,
+            u95_pct_per_c: a.u95(),
+            fit_se_pct_per_c: a.u_fit,
+            at_20c_pct_per_c: a.model.alpha_at_reference_pct_per_c(),
+            gamma_pct_per_c2: a.model.gamma_pct_per_c2(),
+            b20_mt: a.model.b0_mt,
+            b20_u_mt: measured.b20_u_mt,
+            range_c: a.range_c,
+            residual_sd_mt: a.fit.residual_sd,
+            points: a.fit.n,
+            method: data.method.into(),
+            method_code: data.code,
+            budget: a.budget,
+            model: a.model,
+        },
+        loss: LossFacts {
+            pct: loss.as_ref().map(|l| l.loss_pct),
+            u95_pct: loss.as_ref().map(|l| l.u95_pct),
+            method_code: loss.as_ref().map(|_| match by_references {
+                true => LossMethod::References,
+                false => LossMethod::Branches,
+            }),
+            reference_c: loss.as_ref().map(|l| l.ref_c),
+            reference_probe_c: loss.as_ref().and_then(|l| l.ref_probe_c),
+            budget: loss.map(|l| l.budget).unwrap_or_default(),
+        },
+        remanence: Remanence {
+            estimate: judged.br,
+            budget: judged.br_budget,
+            referred: ctx.reference.is_some() && judged.br.is_some(),
+        },
+        judgement: Judgement {
+            material_family: judged.material_family,
+            verdict: verdict::overall(&judged.checks),
+            grade: judged.grade,
+            checks: judged.checks,
+            heat_damaged: judged.heat_damaged,
+            safe_peak: judged.safe_peak,
+            quarantine: judged.quarantine,
+        },
+        cycles: Vec::new(),
+        notes,
+    };
+    let traces = Traces {
+        segments: Some(lagged.seg),
+        magnet_temp_c: lagged.tm,
+        flux_corrected_mt: prep.flux,
+    };
+    Ok((analysis, traces))
 }
 
 /// α over the families' table range (20…100 °C) with its U95: a wider fit's curve converted

@@ -1,22 +1,15 @@
-//! The analysis's result: the numbers a report carries (serialised as `analysis.json`), the
-//! uncertainty budget lines, and apart from them the per-sample traces the plots draw.
+//! The analysis's result, grouped by the step that produced each part (the input, the lag, α,
+//! the loss, Br, the judgement, the cycles, the notes), and apart from it the per-sample traces
+//! the plots draw. `analysis.json` is written from it in its fixed layout ([`super::layout`]).
 
 use serde::Serialize;
 
+pub use super::budget::{BudgetLine, Distribution};
 use super::geometry::BrEstimate;
 use super::model::Quadratic;
 use super::segments::Segments;
 use super::verdict::{Check, Outcome};
-
-/// How a contribution's knowledge is spread: what the coverage interval is computed from.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Distribution {
-    /// A standard deviation of a normal distribution (every type A term, most type B ones).
-    Normal,
-    /// Bounds known, nothing between them preferred: u = half-width / √3.
-    Rectangular,
-}
+use crate::units::Phrase;
 
 /// How α's fit was made, as `analysis.json` codes it.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
@@ -66,71 +59,6 @@ impl PartialEq<&str> for FitMethod {
     }
 }
 
-/// One contribution to an uncertainty budget.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct BudgetLine {
-    /// What it is.
-    pub source: String,
-    /// Type A (statistics) or B (other knowledge).
-    pub kind: char,
-    /// Standard uncertainty, in the result's unit.
-    pub u: f64,
-    /// How it is spread.
-    pub distribution: Distribution,
-}
-
-impl BudgetLine {
-    /// A type A (statistical) contribution.
-    pub fn a(source: impl Into<String>, u: f64) -> BudgetLine {
-        BudgetLine {
-            source: source.into(),
-            kind: 'A',
-            u,
-            distribution: Distribution::Normal,
-        }
-    }
-
-    /// A type B contribution given as a normal standard deviation.
-    pub fn b(source: impl Into<String>, u: f64) -> BudgetLine {
-        BudgetLine {
-            source: source.into(),
-            kind: 'B',
-            u,
-            distribution: Distribution::Normal,
-        }
-    }
-
-    /// A type B contribution known by its bounds (rectangular; `u` is half-width / √3).
-    pub fn rectangular(source: impl Into<String>, u: f64) -> BudgetLine {
-        BudgetLine {
-            distribution: Distribution::Rectangular,
-            ..BudgetLine::b(source, u)
-        }
-    }
-
-    /// Root sum of squares of a budget: the combined standard uncertainty.
-    pub fn combined(lines: &[BudgetLine]) -> f64 {
-        lines.iter().map(|l| l.u * l.u).sum::<f64>().sqrt()
-    }
-
-    /// The expanded uncertainty of a budget: the half-width of its 95.45 % coverage interval
-    /// (k = 2 for normal terms alone; see [`super::coverage`]).
-    pub fn expanded(lines: &[BudgetLine]) -> f64 {
-        let normal = lines
-            .iter()
-            .filter(|l| l.distribution == Distribution::Normal)
-            .map(|l| l.u * l.u)
-            .sum::<f64>()
-            .sqrt();
-        let rect: Vec<f64> = lines
-            .iter()
-            .filter(|l| l.distribution == Distribution::Rectangular)
-            .map(|l| l.u)
-            .collect();
-        super::coverage::half_width(normal, &rect)
-    }
-}
-
 /// One heat cycle of a record with several.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct CycleResult {
@@ -169,72 +97,101 @@ pub struct Provenance {
     pub inspection: crate::inspection::Inspection,
 }
 
-/// The analysis result.
-#[derive(Debug, Clone, Serialize)]
-pub struct Analysis {
-    /// The layout's version ([`SCHEMA_VERSION`]).
-    pub schema_version: u32,
-    /// What was analysed.
-    pub provenance: Provenance,
-    /// Mean α(Br) between 20 °C and the top of the fitted range, %/°C (the standards' two-point form).
-    #[serde(rename = "alpha_pct_per_C")]
-    pub alpha_pct_per_c: f64,
-    /// Its expanded uncertainty, k = 2, %/°C.
-    #[serde(rename = "alpha_u95_pct_per_C")]
-    pub alpha_u95_pct_per_c: f64,
-    /// Standard error of α from the fit alone, %/°C.
-    #[serde(rename = "alpha_fit_se_pct_per_C")]
-    pub alpha_fit_se_pct_per_c: f64,
-    /// Tangent coefficient at 20 °C (the linear term of the fit), %/°C.
-    #[serde(rename = "alpha_at_20C_pct_per_C")]
-    pub alpha_at_20c_pct_per_c: f64,
-    /// Quadratic term, %/°C².
-    #[serde(rename = "gamma_pct_per_C2")]
-    pub gamma_pct_per_c2: f64,
-    /// Fitted B at 20 °C, mT.
-    #[serde(rename = "b20_mT")]
-    pub b20_mt: f64,
-    /// Its standard uncertainty from the fit, mT.
-    #[serde(rename = "b20_u_mT")]
-    pub b20_u_mt: f64,
-    /// Lowest and highest magnet temperature in the fit, °C.
-    #[serde(rename = "fit_range_C")]
-    pub fit_range_c: [f64; 2],
-    /// Residual standard deviation of the fit, mT.
-    #[serde(rename = "residual_sd_mT")]
-    pub residual_sd_mt: f64,
-    /// Points fitted.
-    pub fit_points: usize,
-    /// How the fit was made, in words.
-    pub fit_method: String,
-    /// The same as a stable code: `ramps`, `cooling_branch`, `soak_points`,
-    /// `heating_below_collapse`.
-    pub fit_method_code: FitMethod,
+/// What the input held and what was done to it before the analysis.
+#[derive(Debug, Clone, Default)]
+pub struct InputFacts {
+    /// Samples analysed.
+    pub samples: usize,
+    /// Rows of the input left out (blank cells, sensor faults, a torn last line).
+    pub rows_left_out: usize,
+    /// Thermocouple spikes rejected.
+    pub spikes_rejected: usize,
+    /// What was repaired in a logger's file (duplicate rows, a restarting time column).
+    pub repairs: crate::input::repair::Repairs,
+    /// The probe's zero drift the flat stretches before and after showed (none: no stretch
+    /// after the excursion).
+    pub probe_drift: Option<super::drift::DriftResult>,
+    /// Measured on a bench without a valid calibration (the user said `--uncalibrated`).
+    pub uncalibrated: bool,
+}
+
+/// The magnet's temperature behind the thermocouple.
+#[derive(Debug, Clone, Default)]
+pub struct LagFacts {
     /// Thermal lag time constant of the magnet behind the thermocouple, s (None: not estimated).
-    pub lag_time_constant_s: Option<f64>,
-    /// Irreversible loss between the references before and after the excursion (at
-    /// `reference_C`, referred to one temperature with the fitted curve), % (None: no return).
-    pub irreversible_loss_pct: Option<f64>,
-    /// Its expanded uncertainty, k = 2, %.
-    pub irreversible_loss_u95_pct: Option<f64>,
-    /// How the loss was found: `references` (the flux at rest before and after, referred to
-    /// one temperature) or `branches` (heating against cooling at the same temperature, for a
-    /// record with no return); absent with no loss.
-    pub loss_method_code: Option<LossMethod>,
-    /// Reference temperatures before and after, °C.
-    #[serde(rename = "reference_C")]
-    pub reference_c: Option<[f64; 2]>,
-    /// Probe temperatures at the two references, °C.
-    #[serde(rename = "reference_probe_C")]
-    pub reference_probe_c: Option<[f64; 2]>,
+    pub time_constant_s: Option<f64>,
     /// Highest magnet temperature reached, °C.
-    #[serde(rename = "max_magnet_temp_C")]
     pub max_magnet_temp_c: f64,
     /// Where the field collapsed in a Curie sweep, °C (None: not reached).
-    #[serde(rename = "curie_estimate_C")]
     pub curie_estimate_c: Option<f64>,
-    /// Br estimate from geometry.
-    pub br: Option<BrEstimate>,
+}
+
+/// The reversible temperature coefficient: the fit and its budget.
+#[derive(Debug, Clone)]
+pub struct AlphaFit {
+    /// Mean α(Br) between 20 °C and the top of the fitted range, %/°C (the standards'
+    /// two-point form).
+    pub pct_per_c: f64,
+    /// Its expanded uncertainty, k = 2, %/°C.
+    pub u95_pct_per_c: f64,
+    /// Standard error of α from the fit alone, %/°C.
+    pub fit_se_pct_per_c: f64,
+    /// Tangent coefficient at 20 °C (the linear term of the fit), %/°C.
+    pub at_20c_pct_per_c: f64,
+    /// Quadratic term, %/°C².
+    pub gamma_pct_per_c2: f64,
+    /// Fitted B at 20 °C, mT.
+    pub b20_mt: f64,
+    /// Its standard uncertainty from the fit, mT.
+    pub b20_u_mt: f64,
+    /// Lowest and highest magnet temperature in the fit, °C.
+    pub range_c: [f64; 2],
+    /// Residual standard deviation of the fit, mT.
+    pub residual_sd_mt: f64,
+    /// Points fitted.
+    pub points: usize,
+    /// How the fit was made, in words.
+    pub method: String,
+    /// The same as a stable code.
+    pub method_code: FitMethod,
+    /// Uncertainty budget of α, %/°C.
+    pub budget: Vec<BudgetLine>,
+    /// The fitted reversible model.
+    pub model: Quadratic,
+}
+
+/// The irreversible loss (all absent when there is no return to compare with).
+#[derive(Debug, Clone, Default)]
+pub struct LossFacts {
+    /// Irreversible loss between the references before and after the excursion (at
+    /// `reference_c`, referred to one temperature with the fitted curve), %.
+    pub pct: Option<f64>,
+    /// Its expanded uncertainty, k = 2, %.
+    pub u95_pct: Option<f64>,
+    /// How the loss was found.
+    pub method_code: Option<LossMethod>,
+    /// Reference temperatures before and after, °C.
+    pub reference_c: Option<[f64; 2]>,
+    /// Probe temperatures at the two references, °C.
+    pub reference_probe_c: Option<[f64; 2]>,
+    /// Uncertainty budget of the loss, %.
+    pub budget: Vec<BudgetLine>,
+}
+
+/// Br, from geometry at the calibrated gap or referred to the fixture's reference magnet.
+#[derive(Debug, Clone, Default)]
+pub struct Remanence {
+    /// The estimate (none: no shape, or not found).
+    pub estimate: Option<BrEstimate>,
+    /// Its budget, relative standard uncertainties, %.
+    pub budget: Vec<BudgetLine>,
+    /// Referred to the fixture's reference magnet (else: geometry at the calibrated gap).
+    pub referred: bool,
+}
+
+/// The judgement against the grade's spec.
+#[derive(Debug, Clone)]
+pub struct Judgement {
     /// Material family (or families) α and Br point to.
     pub material_family: String,
     /// Overall verdict against the grade's spec.
@@ -248,41 +205,35 @@ pub struct Analysis {
     /// The part's safe test peak and how it was found (none: no magnet stated).
     pub safe_peak: Option<crate::safe_peak::SafePeak>,
     /// The test took the part beyond its safe peak: quarantine it (words for the verdict block).
-    pub quarantine: Option<crate::units::Phrase>,
-    /// Uncertainty budget of α, %/°C.
-    pub alpha_budget: Vec<BudgetLine>,
-    /// Uncertainty budget of the loss, %.
-    pub loss_budget: Vec<BudgetLine>,
-    /// Plain words about what was done, assumed or could not be computed.
-    pub notes: Vec<crate::units::Phrase>,
-    /// Samples analysed.
-    /// Measured on a bench without a valid calibration (the user said `--uncalibrated`).
-    pub uncalibrated: bool,
-    /// Each heat cycle found in the record, in order (one for a plain record).
-    pub cycles: Vec<CycleResult>,
-    pub samples: usize,
-    /// Rows of the input left out (blank cells, sensor faults, a torn last line).
-    pub rows_left_out: usize,
-    /// Thermocouple spikes rejected.
-    pub spikes_rejected: usize,
-    /// The probe's zero drift the flat stretches before and after showed (none: no stretch
-    /// after the excursion).
-    pub probe_drift: Option<super::drift::DriftResult>,
-    /// What was repaired in a logger's file (duplicate rows, a restarting time column).
-    pub repairs: crate::input::repair::Repairs,
-    /// How Br was found: its budget, relative standard uncertainties, %.
-    pub br_budget: Vec<BudgetLine>,
-    /// Br was referred to the fixture's reference magnet (else: geometry at the calibrated gap).
-    pub br_referred: bool,
-    /// The fitted reversible model.
-    #[serde(skip)]
-    pub model: Quadratic,
-    /// Per-sample traces for the plots (not part of the result).
-    #[serde(skip)]
-    pub traces: Traces,
+    pub quarantine: Option<Phrase>,
 }
 
-/// Per-sample traces the plots draw: the analysis's intermediate series, kept apart from its
+/// The analysis result.
+#[derive(Debug, Clone)]
+pub struct Analysis {
+    /// The layout's version ([`SCHEMA_VERSION`]).
+    pub schema_version: u32,
+    /// What was analysed.
+    pub provenance: Provenance,
+    /// The input.
+    pub input: InputFacts,
+    /// The lag and the temperatures reached.
+    pub lag: LagFacts,
+    /// α and its fit.
+    pub alpha: AlphaFit,
+    /// The irreversible loss.
+    pub loss: LossFacts,
+    /// Br.
+    pub remanence: Remanence,
+    /// The verdict and its checks.
+    pub judgement: Judgement,
+    /// Each heat cycle found in the record, in order (one for a plain record).
+    pub cycles: Vec<CycleResult>,
+    /// Plain words about what was done, assumed or could not be computed.
+    pub notes: Vec<Phrase>,
+}
+
+/// Per-sample traces the plots draw: the analysis's intermediate series, returned beside its
 /// result.
 #[derive(Debug, Clone, Default)]
 pub struct Traces {
@@ -297,51 +248,37 @@ pub struct Traces {
 impl Analysis {
     /// The fitted reversible B at `t_c`, mT.
     pub fn fitted_mt(&self, t_c: f64) -> f64 {
-        self.model.eval_mt(t_c)
-    }
-
-    /// Every sample's flux against the fit, mT, with the irreversible loss taken back out of
-    /// the samples after the peak, so the cooling branch is compared with the same curve.
-    pub fn residuals_mt(&self) -> Vec<f64> {
-        let t = &self.traces;
-        let loss = self.loss_fraction();
-        let peak = t.segments.as_ref().map_or(usize::MAX, |s| s.peak);
-        t.flux_corrected_mt
-            .iter()
-            .zip(&t.magnet_temp_c)
-            .enumerate()
-            .map(|(i, (b, tm))| {
-                let b = if i > peak { b / (1.0 - loss) } else { *b };
-                b - self.fitted_mt(*tm)
-            })
-            .collect()
+        self.alpha.model.eval_mt(t_c)
     }
 
     /// Loss as a fraction (0 when not computed or negative): what the plots take back out of
     /// the cooling branch.
     pub fn loss_fraction(&self) -> f64 {
-        self.irreversible_loss_pct.unwrap_or(0.0).max(0.0) / 100.0
+        self.loss.pct.unwrap_or(0.0).max(0.0) / 100.0
+    }
+}
+
+impl Traces {
+    /// Every sample's flux against `a`'s fit, mT, with the irreversible loss taken back out of
+    /// the samples after the peak, so the cooling branch is compared with the same curve.
+    pub fn residuals_mt(&self, a: &Analysis) -> Vec<f64> {
+        let loss = a.loss_fraction();
+        let peak = self.segments.as_ref().map_or(usize::MAX, |s| s.peak);
+        self.flux_corrected_mt
+            .iter()
+            .zip(&self.magnet_temp_c)
+            .enumerate()
+            .map(|(i, (b, tm))| {
+                let b = if i > peak { b / (1.0 - loss) } else { *b };
+                b - a.fitted_mt(*tm)
+            })
+            .collect()
     }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn a_budget_combines_in_quadrature_and_expands_by_its_distribution() {
-        // 3 and 4 combine to 5 (GUM 5.1.2, uncorrelated inputs, unit sensitivities)
-        let normal = [BudgetLine::a("a", 3.0), BudgetLine::b("b", 4.0)];
-        assert_eq!(BudgetLine::combined(&normal), 5.0);
-        // normal terms alone: k = 2
-        assert_eq!(BudgetLine::expanded(&normal), 10.0);
-        // one rectangular term alone: 95.45 % of its half-width √3·u (by hand: u = 1/√3
-        // gives a half-width of 1, so 0.9545)
-        let rect = [BudgetLine::rectangular("r", 1.0 / 3f64.sqrt())];
-        assert!((BudgetLine::expanded(&rect) - 0.9545).abs() < 1e-3);
-        // the combined standard uncertainty is the same whatever the distribution
-        assert!((BudgetLine::combined(&rect) - 1.0 / 3f64.sqrt()).abs() < 1e-12);
-    }
 
     #[test]
     fn each_fit_method_writes_the_code_it_compares_as() {

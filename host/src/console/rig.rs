@@ -229,8 +229,9 @@ fn run_part(hub: &Hub, port: &str, bench: &Bench, opts: RecordOptions) -> Outcom
         .ok()
         .map(|(s, _)| s.number);
     Outcome {
-        verdict: Some(a.verdict.to_string()),
+        verdict: Some(a.judgement.verdict.to_string()),
         reasons: a
+            .judgement
             .checks
             .iter()
             .map(|c| {

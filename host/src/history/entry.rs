@@ -139,7 +139,7 @@ impl RunEntry {
             magnet_id: p.magnet_id.clone(),
             grade: p.grade.clone(),
             inspection: p.inspection.clone(),
-            samples: i64::try_from(analysis.samples).ok(),
+            samples: i64::try_from(analysis.input.samples).ok(),
             ..Default::default()
         }
     }

@@ -3,7 +3,7 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::analysis::{analyze, Analysis, AnalysisError, Context};
+use crate::analysis::{analyze_traced, Analysis, AnalysisError, Context, Traces};
 use crate::calibration::{Calibration, CalibrationError};
 use crate::input::dataset::{self, CsvOptions, InputError, Series};
 use crate::magnets::{self, MagnetError};
@@ -189,20 +189,26 @@ pub fn load(req: &InputRequest) -> Result<Analyzed, JobError> {
 }
 
 impl Analyzed {
-    /// Run the analysis.
+    /// Run the analysis: the result alone.
     pub fn analyze(&self, input: &Path) -> Result<Analysis, JobError> {
-        let mut a = analyze(&self.series, &self.context).map_err(|source| JobError::Analysis {
-            path: input.display().to_string(),
-            source,
-        })?;
+        self.analyze_traced(input).map(|(a, _)| a)
+    }
+
+    /// Run the analysis: the result, and beside it the traces the plots draw.
+    pub fn analyze_traced(&self, input: &Path) -> Result<(Analysis, Traces), JobError> {
+        let (mut a, traces) =
+            analyze_traced(&self.series, &self.context).map_err(|source| JobError::Analysis {
+                path: input.display().to_string(),
+                source,
+            })?;
         a.provenance = self.provenance.clone();
         a.provenance.analysed_utc =
             crate::timestamps::format_utc(crate::calibration::Stamp::now().0);
         if self.uncalibrated {
-            a.uncalibrated = true;
+            a.input.uncalibrated = true;
             a.notes.insert(0, "UNCALIBRATED BENCH: recorded without a valid calibration (--uncalibrated); re-convert it with `analyze --calibration` once the bench is calibrated".into());
         }
-        Ok(a)
+        Ok((a, traces))
     }
 }
 

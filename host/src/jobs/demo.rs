@@ -196,21 +196,22 @@ pub fn finish(
         reference: Some(ref_file.clone()),
         ..Default::default()
     };
-    let (loaded, analysis) = crate::jobs::load_and_analyze(&input).map_err(at("the analysis"))?;
+    let loaded = crate::jobs::analyze_input::load(&input).map_err(at("the analysis"))?;
+    let (analysis, traces) = loaded
+        .analyze_traced(&input.input)
+        .map_err(at("the analysis"))?;
     let source = crate::report::Source {
         meta: loaded.meta.as_ref(),
         raw: Some(&req.out.join(crate::run_dir::RAW_FILE)),
     };
-    let mut written = crate::report::write_all_as(
-        &req.out,
-        &loaded.series,
-        &analysis,
-        &source,
-        &loaded.title,
-        false,
-        look,
-    )
-    .map_err(at("the report"))?;
+    let subject = crate::report::Subject {
+        series: &loaded.series,
+        analysis: &analysis,
+        traces: &traces,
+        title: &loaded.title,
+    };
+    let mut written = crate::report::write_all_as(&req.out, &subject, &source, false, look)
+        .map_err(at("the report"))?;
     written.insert(0, ref_file);
     Ok(Finished {
         analysis,

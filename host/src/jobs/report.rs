@@ -102,17 +102,20 @@ pub fn run_input(
             source,
         })
     })?;
-    Ok(match loaded.analyze(&req.input) {
-        Ok(a) => RunReport {
+    Ok(match loaded.analyze_traced(&req.input) {
+        Ok((a, traces)) => RunReport {
             written: report::write_all_as(
                 out,
-                &loaded.series,
-                &a,
+                &report::Subject {
+                    series: &loaded.series,
+                    analysis: &a,
+                    traces: &traces,
+                    title: &loaded.title,
+                },
                 &report::Source {
                     meta: loaded.meta.as_ref(),
                     raw: Some(raw.as_path()).filter(|p| p.is_file()),
                 },
-                &loaded.title,
                 force,
                 look,
             )?,

@@ -5,8 +5,8 @@
 use std::path::Path;
 use std::time::Duration;
 
-use super::analyze_input::{load_and_analyze, InputRequest, JobError};
-use crate::analysis::Analysis;
+use super::analyze_input::{load, InputRequest, JobError};
+use crate::analysis::{Analysis, Traces};
 use crate::calibration::Calibration;
 use crate::jobs::record::auto_end::Tolerance;
 use crate::jobs::record::{record, Quiet, RecordEnd, RecordError, RecordOptions};
@@ -36,6 +36,8 @@ pub struct TrialSpec {
 pub struct Trial {
     /// The analysis of the run directory.
     pub analysis: Analysis,
+    /// The per-sample traces beside it (what the plots draw).
+    pub traces: Traces,
     /// How the record ended.
     pub end: RecordEnd,
     /// Device time from the first sample to the last: the fixture's occupation, s.
@@ -55,11 +57,11 @@ impl Trial {
     pub fn meets(&self, t: &Tolerance) -> bool {
         let a = &self.analysis;
         let alpha = self.alpha_error_pct_per_c.abs();
-        let loss_ok = match (self.loss_error_pct, a.irreversible_loss_u95_pct) {
+        let loss_ok = match (self.loss_error_pct, a.loss.u95_pct) {
             (Some(e), Some(u)) => e.abs() <= t.loss_u95_pct && e.abs() <= u,
             _ => false,
         };
-        alpha <= t.alpha_u95_pct_per_c && alpha <= a.alpha_u95_pct_per_c && loss_ok
+        alpha <= t.alpha_u95_pct_per_c && alpha <= a.alpha.u95_pct_per_c && loss_ok
     }
 }
 
@@ -105,20 +107,22 @@ pub fn run(spec: &TrialSpec, out: &Path) -> Result<Trial, TrialError> {
     };
     let summary = record(&mut port, rec, &mut Quiet)?;
     let truth = port.bench().truth();
-    let (loaded, analysis) = load_and_analyze(&InputRequest {
+    let loaded = load(&InputRequest {
         input: out.to_path_buf(),
         ..Default::default()
     })?;
+    let (analysis, traces) = loaded.analyze_traced(out)?;
     let t = &loaded.series.time_s;
     let fixture_s = t.last().copied().unwrap_or(0.0) - t.first().copied().unwrap_or(0.0);
-    let top = analysis.fit_range_c[1];
+    let top = analysis.alpha.range_c[1];
     let alpha_truth = model.alpha_pct_per_c + model.gamma_pct_per_c2 * (top - 20.0);
     let loss_truth_pct = truth.irreversible * 100.0;
     Ok(Trial {
-        alpha_error_pct_per_c: analysis.alpha_pct_per_c - alpha_truth,
-        loss_error_pct: analysis.irreversible_loss_pct.map(|l| l - loss_truth_pct),
+        alpha_error_pct_per_c: analysis.alpha.pct_per_c - alpha_truth,
+        loss_error_pct: analysis.loss.pct.map(|l| l - loss_truth_pct),
         loss_truth_pct,
         analysis,
+        traces,
         end: summary.end,
         fixture_s,
         gap_samples: summary.counts.gap_samples,

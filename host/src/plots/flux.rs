@@ -10,7 +10,7 @@ use super::style::{
     draw_keys, range, tick, tickable, with_key_strip, DrawResult, Key, COOLING, FIT, HEATING,
     REFERENCE,
 };
-use crate::analysis::Analysis;
+use crate::analysis::{Analysis, Traces};
 use crate::input::dataset::Series;
 use crate::units::{self, DisplayUnits, Kind, Qty};
 
@@ -21,8 +21,8 @@ const BRANCH_BINS: usize = 1500;
 /// was fitted to the cooling branch, whose level is the flux left after the loss, so it is
 /// drawn there.
 pub fn fit_line(a: &Analysis, u: &DisplayUnits) -> (Vec<(f64, f64)>, String) {
-    let (f0, f1) = (a.fit_range_c[0], a.fit_range_c[1]);
-    let after_loss = a.fit_method_code == crate::analysis::result::FitMethod::CoolingBranch;
+    let (f0, f1) = (a.alpha.range_c[0], a.alpha.range_c[1]);
+    let after_loss = a.alpha.method_code == crate::analysis::result::FitMethod::CoolingBranch;
     let level = if after_loss {
         1.0 - a.loss_fraction()
     } else {
@@ -43,7 +43,7 @@ pub fn fit_line(a: &Analysis, u: &DisplayUnits) -> (Vec<(f64, f64)>, String) {
         pts,
         format!(
             "{what}: α = {} over {}",
-            units::alpha_with_u95(u, a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
+            units::alpha_with_u95(u, a.alpha.pct_per_c, a.alpha.u95_pct_per_c),
             Qty::range(Kind::Temp, f0, f1, 0).render(u)
         ),
     )
@@ -53,6 +53,7 @@ pub fn fit_line(a: &Analysis, u: &DisplayUnits) -> (Vec<(f64, f64)>, String) {
 pub fn flux_vs_temp<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     a: &Analysis,
+    t: &Traces,
     title: &str,
     u: &DisplayUnits,
 ) -> DrawResult {
@@ -67,9 +68,9 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
         )
         .map_err(e)?;
     let (plot, side) = with_key_strip(&root);
-    let seg = a.traces.segments.as_ref().ok_or("no segments")?;
-    let tm = &a.traces.magnet_temp_c;
-    let b = &a.traces.flux_corrected_mt;
+    let seg = t.segments.as_ref().ok_or("no segments")?;
+    let tm = &t.magnet_temp_c;
+    let b = &t.flux_corrected_mt;
     let (tlo, thi) = range(tm.iter().map(|&t| u.temp(t)));
     let (blo, bhi) = range(b.iter().map(|&v| u.flux(v)));
     let mut chart = ChartBuilder::on(&plot)
@@ -131,7 +132,7 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
             FIT.mix(0.9).stroke_width(2),
         ))
         .map_err(e)?;
-    let loss = match a.irreversible_loss_pct {
+    let loss = match a.loss.pct {
         Some(l) => format!(" (loss {:.2} %)", if l.abs() < 0.005 { 0.0 } else { l }),
         None => String::new(),
     };
@@ -141,7 +142,7 @@ pub fn flux_vs_temp<DB: DrawingBackend>(
         Key::Triangle(REFERENCE, format!("reference readings at rest{loss}")),
         Key::Line(FIT, fit_label),
     ];
-    if a.fit_method_code == crate::analysis::result::FitMethod::CoolingBranch {
+    if a.alpha.method_code == crate::analysis::result::FitMethod::CoolingBranch {
         keys.push(Key::Text(
             "the heating branch is shown for context: it mixes reversible change and the loss"
                 .into(),
@@ -166,12 +167,14 @@ pub enum ResidualMarks {
 }
 
 /// The residuals in the fitted range and how they are drawn, with the y half-range.
-pub fn residual_marks(s: &Series, a: &Analysis) -> (ResidualMarks, f64) {
-    let tm = &a.traces.magnet_temp_c;
-    let peak = a.traces.segments.as_ref().map_or(usize::MAX, |g| g.peak);
-    let all = a.residuals_mt();
+pub fn residual_marks(s: &Series, a: &Analysis, t: &Traces) -> (ResidualMarks, f64) {
+    let tm = &t.magnet_temp_c;
+    let peak = t.segments.as_ref().map_or(usize::MAX, |g| g.peak);
+    let all = t.residuals_mt(a);
     let res: Vec<(f64, f64, bool)> = (0..s.time_s.len().min(all.len()))
-        .filter(|&i| tm[i] >= a.fit_range_c[0] && tm[i] <= a.fit_range_c[1] && all[i].is_finite())
+        .filter(|&i| {
+            tm[i] >= a.alpha.range_c[0] && tm[i] <= a.alpha.range_c[1] && all[i].is_finite()
+        })
         .map(|i| (tm[i], all[i], i > peak))
         .collect();
     let lim = res.iter().map(|r| r.1.abs()).fold(0.0, f64::max).max(1e-3) * 1.1;
@@ -179,8 +182,8 @@ pub fn residual_marks(s: &Series, a: &Analysis) -> (ResidualMarks, f64) {
         return (ResidualMarks::Points(res), lim);
     }
     let (t0, t1) = (
-        a.fit_range_c[0],
-        a.fit_range_c[1].max(a.fit_range_c[0] + 1e-9),
+        a.alpha.range_c[0],
+        a.alpha.range_c[1].max(a.alpha.range_c[0] + 1e-9),
     );
     let (nx, ny) = CELLS;
     let mut counts = vec![0usize; nx * ny];
@@ -219,6 +222,7 @@ pub fn residuals<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     s: &Series,
     a: &Analysis,
+    t: &Traces,
     title: &str,
     u: &DisplayUnits,
 ) -> DrawResult {
@@ -230,9 +234,9 @@ pub fn residuals<DB: DrawingBackend>(
         .titled(&format!("Fit residuals — {title}"), ("sans-serif", 20))
         .map_err(e)?;
     let (plot, side) = with_key_strip(&root);
-    let (marks, lim) = residual_marks(s, a);
+    let (marks, lim) = residual_marks(s, a, t);
     let lim = u.flux(lim);
-    let (t0, t1) = (u.temp(a.fit_range_c[0]), u.temp(a.fit_range_c[1]));
+    let (t0, t1) = (u.temp(a.alpha.range_c[0]), u.temp(a.alpha.range_c[1]));
     let mut chart = ChartBuilder::on(&plot)
         .margin(15)
         .x_label_area_size(50)

@@ -16,7 +16,7 @@ pub mod trend;
 pub use decimate::{decimate_minmax, minmax_indices};
 pub use figure::{ensure_font, Figure, PlotError, SIZE};
 
-use crate::analysis::Analysis;
+use crate::analysis::{Analysis, Traces};
 use crate::input::dataset::Series;
 use crate::specs::GradeSpec;
 use crate::units::DisplayUnits;
@@ -29,13 +29,18 @@ pub const RUN_PLOTS: [&str; 3] = ["flux_vs_temp", "residuals", "timeline"];
 pub fn run_figures(
     s: &Series,
     a: &Analysis,
+    t: &Traces,
     title: &str,
     u: &DisplayUnits,
 ) -> Result<Vec<Figure>, PlotError> {
-    let magnet_c = Some(a.traces.magnet_temp_c.as_slice());
+    let magnet_c = Some(t.magnet_temp_c.as_slice());
     Ok(vec![
-        render_figure!(RUN_PLOTS[0], |area| flux::flux_vs_temp(&area, a, title, u))?,
-        render_figure!(RUN_PLOTS[1], |area| flux::residuals(&area, s, a, title, u))?,
+        render_figure!(RUN_PLOTS[0], |area| flux::flux_vs_temp(
+            &area, a, t, title, u
+        ))?,
+        render_figure!(RUN_PLOTS[1], |area| flux::residuals(
+            &area, s, a, t, title, u
+        ))?,
         render_figure!(RUN_PLOTS[2], |area| timeline::draw_timeline(
             &area, s, magnet_c, title, u
         ))?,

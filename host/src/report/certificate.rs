@@ -72,8 +72,8 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(&'static str, String)> {
             "α(Br)",
             format!(
                 "{} over {}",
-                units::alpha_with_u95(u, a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
-                units::temp_range(u, a.fit_range_c)
+                units::alpha_with_u95(u, a.alpha.pct_per_c, a.alpha.u95_pct_per_c),
+                units::temp_range(u, a.alpha.range_c)
             ),
         ),
         (
@@ -81,11 +81,11 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(&'static str, String)> {
             crate::report::summary::loss_words(a, u),
         ),
     ];
-    if let Some(p) = &a.safe_peak {
+    if let Some(p) = &a.judgement.safe_peak {
         r.push(("Safe test peak", p.explain().render(u)));
     }
-    if let Some(b) = &a.br {
-        let how = if a.br_referred {
+    if let Some(b) = &a.remanence.estimate {
+        let how = if a.remanence.referred {
             "referred to the fixture's reference magnet"
         } else {
             "from geometry at the calibrated gap"
@@ -98,7 +98,7 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(&'static str, String)> {
             ),
         ));
     }
-    r.push(("Material family", a.material_family.clone()));
+    r.push(("Material family", a.judgement.material_family.clone()));
     r
 }
 
@@ -121,32 +121,43 @@ fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
     // the reasons start clear of the widest outcome word (INDETERMINATE is the longest)
     let outcome_x = 36.0;
     let widest = a
+        .judgement
         .checks
         .iter()
         .map(|c| Flow::bold_caps_width_mm(&c.outcome.to_string(), size))
         .fold(0.0f32, f32::max);
     let reason_x = (outcome_x + widest + 3.0).max(58.0);
     let wrapped: Vec<Vec<String>> = a
+        .judgement
         .checks
         .iter()
         .map(|c| Flow::wrap(&c.reason.render(u), f.width_mm() - reason_x, size))
         .collect();
     // the outcome lines, then the decision rule's paragraph (four lines at most)
-    let height = 30.0
-        + if a.quarantine.is_some() { 14.0 } else { 0.0 }
-        + wrapped
+    let height =
+        30.0 + if a.judgement.quarantine.is_some() {
+            14.0
+        } else {
+            0.0
+        } + wrapped
             .iter()
             .map(|w| Flow::lines_mm(w.len(), size) + 1.0)
             .sum::<f32>();
     f.keep_together(height);
     let grade = a
+        .judgement
         .grade
         .as_deref()
         .map(|g| format!(" against grade {g}"))
         .unwrap_or_default();
-    f.text_at(0.0, 15.0, true, &format!("Verdict: {}{grade}", a.verdict));
+    f.text_at(
+        0.0,
+        15.0,
+        true,
+        &format!("Verdict: {}{grade}", a.judgement.verdict),
+    );
     f.skip(9.0);
-    for (c, lines) in a.checks.iter().zip(wrapped) {
+    for (c, lines) in a.judgement.checks.iter().zip(wrapped) {
         f.text_at(0.0, size, true, c.what.name());
         f.text_at(outcome_x, size, true, &c.outcome.to_string());
         for l in lines {
@@ -155,7 +166,7 @@ fn verdict_block(f: &mut Flow, a: &Analysis, u: &DisplayUnits) {
         }
         f.skip(1.0);
     }
-    if let Some(q) = &a.quarantine {
+    if let Some(q) = &a.judgement.quarantine {
         f.paragraph(0.0, size, true, &q.render(u));
         f.skip(2.0);
     }
@@ -301,7 +312,7 @@ pub fn certificate(
     );
     f.skip(5.0);
     identity(&mut f, seal, look);
-    if a.uncalibrated {
+    if a.input.uncalibrated {
         f.paragraph(
             0.0,
             10.0,
@@ -325,21 +336,21 @@ pub fn certificate(
     budget(
         &mut f,
         "Uncertainty budget of α (standard uncertainties)",
-        &a.alpha_budget,
+        &a.alpha.budget,
         &u.alpha_symbol(),
         u.per_degree(1.0),
     );
     budget(
         &mut f,
         "Uncertainty budget of the loss",
-        &a.loss_budget,
+        &a.loss.budget,
         "%",
         1.0,
     );
     budget(
         &mut f,
         "Uncertainty budget of Br (relative)",
-        &a.br_budget,
+        &a.remanence.budget,
         "%",
         1.0,
     );

@@ -12,7 +12,7 @@ use crate::units::DisplayUnits;
 pub fn markdown(a: &Analysis, meta: Option<&RunMeta>, title: &str, u: &DisplayUnits) -> String {
     let mut s = String::new();
     let _ = writeln!(s, "# Remanent report — {title}\n");
-    if a.uncalibrated {
+    if a.input.uncalibrated {
         let _ = writeln!(s, "**UNCALIBRATED BENCH: recorded without a valid calibration; the numbers are not traceable.**\n");
     }
     if let Some(note) = u.shown_note() {
@@ -27,18 +27,18 @@ pub fn markdown(a: &Analysis, meta: Option<&RunMeta>, title: &str, u: &DisplayUn
         summary::text(a, title, u)
     );
     let _ = writeln!(s, "## Uncertainty budget of α ({}, standard uncertainties)\n\n| source | type | u |\n|---|---|---|", u.alpha_symbol());
-    for (src, k, v) in budget_rows(&a.alpha_budget, u.per_degree(1.0)) {
+    for (src, k, v) in budget_rows(&a.alpha.budget, u.per_degree(1.0)) {
         let _ = writeln!(s, "| {src} | {k} | {v} |");
     }
-    if !a.loss_budget.is_empty() {
+    if !a.loss.budget.is_empty() {
         let _ = writeln!(s, "\n## Uncertainty budget of the loss (%, standard uncertainties)\n\n| source | type | u |\n|---|---|---|");
-        for (src, k, v) in budget_rows(&a.loss_budget, 1.0) {
+        for (src, k, v) in budget_rows(&a.loss.budget, 1.0) {
             let _ = writeln!(s, "| {src} | {k} | {v} |");
         }
     }
-    if !a.br_budget.is_empty() {
+    if !a.remanence.budget.is_empty() {
         let _ = writeln!(s, "\n## Uncertainty budget of Br (relative %, standard uncertainties)\n\n| source | type | u |\n|---|---|---|");
-        for (src, k, v) in budget_rows(&a.br_budget, 1.0) {
+        for (src, k, v) in budget_rows(&a.remanence.budget, 1.0) {
             let _ = writeln!(s, "| {src} | {k} | {v} |");
         }
     }

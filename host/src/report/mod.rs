@@ -20,7 +20,7 @@ pub use lot::{lot_html, lot_outputs, lot_text};
 pub use markdown::markdown;
 pub use notes::{safety_notes, METHOD_NOTES};
 
-use crate::analysis::Analysis;
+use crate::analysis::{Analysis, Traces};
 use crate::input::dataset::Series;
 use crate::output::{self, OutputError, Produced};
 use crate::plots::{self, Figure, PlotError};
@@ -63,6 +63,7 @@ pub fn write_all(
     dir: &Path,
     series: &Series,
     a: &Analysis,
+    t: &Traces,
     title: &str,
     force: bool,
 ) -> Result<Vec<PathBuf>, ReportError> {
@@ -72,7 +73,27 @@ pub fn write_all(
         meta: meta.as_ref(),
         raw: raw.as_deref(),
     };
-    write_all_as(dir, series, a, &src, title, force, &Look::default())
+    let subject = Subject {
+        series,
+        analysis: a,
+        traces: t,
+        title,
+    };
+    write_all_as(dir, &subject, &src, force, &Look::default())
+}
+
+/// What a run's report shows: the record as read, its analysis, the traces beside it, and the
+/// title it goes by.
+#[derive(Debug, Clone, Copy)]
+pub struct Subject<'a> {
+    /// The record.
+    pub series: &'a Series,
+    /// Its analysis.
+    pub analysis: &'a Analysis,
+    /// The per-sample traces the plots draw.
+    pub traces: &'a Traces,
+    /// The title.
+    pub title: &'a str,
 }
 
 /// Where a report's record comes from: the run's own facts (read from the run, never from where
@@ -89,14 +110,12 @@ pub struct Source<'a> {
 /// [`write_all`] in `look`'s units and on its paper, into `dir`, for the record `src`.
 pub fn write_all_as(
     dir: &Path,
-    series: &Series,
-    a: &Analysis,
+    subject: &Subject,
     src: &Source,
-    title: &str,
     force: bool,
     look: &Look,
 ) -> Result<Vec<PathBuf>, ReportError> {
-    let files = run_outputs(dir, series, a, src, title, look)?;
+    let files = run_outputs(dir, subject, src, look)?;
     Ok(output::write_set(dir, &files, force)?)
 }
 
@@ -105,14 +124,13 @@ pub fn write_all_as(
 /// `dir` is where they will be filed (the seal names the record relative to it).
 pub fn run_outputs(
     dir: &Path,
-    series: &Series,
-    a: &Analysis,
+    subject: &Subject,
     src: &Source,
-    title: &str,
     look: &Look,
 ) -> Result<Vec<Produced>, ReportError> {
     let (meta, u) = (src.meta, &look.units);
-    let figures = plots::run_figures(series, a, title, u)?;
+    let (a, title) = (subject.analysis, subject.title);
+    let figures = plots::run_figures(subject.series, a, subject.traces, title, u)?;
     let json = serde_json::to_string_pretty(a).expect("analysis serializes");
     let sealed = match src.raw {
         Some(raw) => Some(

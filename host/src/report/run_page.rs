@@ -14,32 +14,33 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(String, String)> {
     let mut rows = vec![
         (
             format!("α(Br), mean {at20} … top of range"),
-            units::alpha_with_u95(u, a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
+            units::alpha_with_u95(u, a.alpha.pct_per_c, a.alpha.u95_pct_per_c),
         ),
         (
             "fitted range".into(),
             format!(
                 "{} ({}, {} points)",
-                units::temp_range(u, a.fit_range_c),
-                a.fit_method,
-                a.fit_points
+                units::temp_range(u, a.alpha.range_c),
+                a.alpha.method,
+                a.alpha.points
             ),
         ),
         (
             format!("tangent at {at20}, quadratic term"),
             format!(
                 "{}, {}",
-                Qty::one(Kind::Alpha, a.alpha_at_20c_pct_per_c, 4)
+                Qty::one(Kind::Alpha, a.alpha.at_20c_pct_per_c, 4)
                     .signed()
                     .render(u),
-                Qty::one(Kind::Alpha2, a.gamma_pct_per_c2, 6)
+                Qty::one(Kind::Alpha2, a.alpha.gamma_pct_per_c2, 6)
                     .signed()
                     .render(u)
             ),
         ),
         (
             "thermal lag".into(),
-            a.lag_time_constant_s
+            a.lag
+                .time_constant_s
                 .map(|t| format!("τ = {t:.1} s"))
                 .unwrap_or_else(|| "not estimated".into()),
         ),
@@ -48,11 +49,11 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(String, String)> {
             crate::report::summary::loss_words(a, u),
         ),
     ];
-    if let Some(p) = &a.safe_peak {
+    if let Some(p) = &a.judgement.safe_peak {
         rows.push(("safe test peak".into(), p.explain().render(u)));
     }
-    if let Some(b) = a.br {
-        rows.push(if a.br_referred {
+    if let Some(b) = a.remanence.estimate {
+        rows.push(if a.remanence.referred {
             (
                 "Br (referred to the fixture's reference magnet)".into(),
                 format!(
@@ -71,7 +72,10 @@ fn results(a: &Analysis, u: &DisplayUnits) -> Vec<(String, String)> {
             )
         });
     }
-    rows.push(("material family".into(), a.material_family.clone()));
+    rows.push((
+        "material family".into(),
+        a.judgement.material_family.clone(),
+    ));
     rows
 }
 
@@ -84,8 +88,8 @@ pub fn html(
     u: &DisplayUnits,
 ) -> String {
     let mut page = Page::new("report", title);
-    let v = a.verdict;
-    if a.uncalibrated {
+    let v = a.judgement.verdict;
+    if a.input.uncalibrated {
         page.raw("<p class=\"v fail\">UNCALIBRATED BENCH: recorded without a valid calibration; the numbers are not traceable</p>");
     }
     let i = &a.provenance.inspection;
@@ -106,7 +110,7 @@ pub fn html(
         .facts(&results(a, u))
         .h2("Verdict and reasons");
     let mut checks = String::from("<table><tr><th>check</th><th>outcome</th><th>reason</th></tr>");
-    for c in &a.checks {
+    for c in &a.judgement.checks {
         let o = c.outcome.word();
         checks.push_str(&format!(
             "<tr><td>{}</td><td class=\"{o}\">{o}</td><td>{}</td></tr>",
@@ -117,7 +121,7 @@ pub fn html(
     page.raw("<div class=\"keep\">")
         .raw(&checks)
         .raw("</table></div>");
-    if let Some(q) = &a.quarantine {
+    if let Some(q) = &a.judgement.quarantine {
         page.raw(&format!("<p class=\"v fail\">{}</p>", esc(&q.render(u))));
     }
     for n in &a.notes {
@@ -126,11 +130,11 @@ pub fn html(
     for (name, lines, scale) in [
         (
             format!("α ({})", u.alpha_symbol()),
-            &a.alpha_budget,
+            &a.alpha.budget,
             u.per_degree(1.0),
         ),
-        ("irreversible loss (%)".into(), &a.loss_budget, 1.0),
-        ("Br (relative, %)".into(), &a.br_budget, 1.0),
+        ("irreversible loss (%)".into(), &a.loss.budget, 1.0),
+        ("Br (relative, %)".into(), &a.remanence.budget, 1.0),
     ] {
         if lines.is_empty() {
             continue;

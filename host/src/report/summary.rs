@@ -15,21 +15,21 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
     let _ = writeln!(
         s,
         "  α(Br), {}:   {}, fitted {} by {}",
-        Qty::range(Kind::Temp, 20.0, a.fit_range_c[1], 0).render(u),
-        units::alpha_with_u95(u, a.alpha_pct_per_c, a.alpha_u95_pct_per_c),
-        units::temp_range(u, a.fit_range_c),
-        a.fit_method
+        Qty::range(Kind::Temp, 20.0, a.alpha.range_c[1], 0).render(u),
+        units::alpha_with_u95(u, a.alpha.pct_per_c, a.alpha.u95_pct_per_c),
+        units::temp_range(u, a.alpha.range_c),
+        a.alpha.method
     );
     let _ = writeln!(
         s,
         "  tangent at {t20}:     {}, quadratic term {}, B at {t20} = {}",
-        alpha(a.alpha_at_20c_pct_per_c, 4),
-        Qty::one(Kind::Alpha2, a.gamma_pct_per_c2, 6)
+        alpha(a.alpha.at_20c_pct_per_c, 4),
+        Qty::one(Kind::Alpha2, a.alpha.gamma_pct_per_c2, 6)
             .signed()
             .render(u),
-        Qty::one(Kind::Flux, a.b20_mt, 2).render(u)
+        Qty::one(Kind::Flux, a.alpha.b20_mt, 2).render(u)
     );
-    match a.lag_time_constant_s {
+    match a.lag.time_constant_s {
         Some(t) => {
             let _ = writeln!(
                 s,
@@ -41,11 +41,11 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
         }
     }
     let _ = writeln!(s, "  irreversible loss:    {}", loss_words(a, u));
-    if let Some(p) = &a.safe_peak {
+    if let Some(p) = &a.judgement.safe_peak {
         let _ = writeln!(s, "  {}", p.explain().render(u));
     }
-    if let Some(b) = a.br {
-        if a.br_referred {
+    if let Some(b) = a.remanence.estimate {
+        if a.remanence.referred {
             let _ = writeln!(
                 s,
                 "  Br (reference):       {} (k = 2), referred to the fixture's reference magnet",
@@ -60,32 +60,33 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
             );
         }
     }
-    if let Some(tc) = a.curie_estimate_c {
+    if let Some(tc) = a.lag.curie_estimate_c {
         let _ = writeln!(
             s,
             "  Curie collapse:       at about {}",
             temp_q(tc, 0).render(u)
         );
     }
-    let _ = writeln!(s, "  material family:      {}", a.material_family);
-    if a.uncalibrated {
+    let _ = writeln!(s, "  material family:      {}", a.judgement.material_family);
+    if a.input.uncalibrated {
         let _ = writeln!(s, "  UNCALIBRATED BENCH: recorded without a valid calibration; the numbers are not traceable");
     }
     let _ = writeln!(
         s,
         "  verdict:              {}{}{}",
-        a.verdict,
-        a.grade
+        a.judgement.verdict,
+        a.judgement
+            .grade
             .as_ref()
             .map(|g| format!(" against grade {g}"))
             .unwrap_or_default(),
-        if a.heat_damaged {
+        if a.judgement.heat_damaged {
             "  — FLUX LOST in this test, within its safe test peak"
         } else {
             ""
         }
     );
-    for c in &a.checks {
+    for c in &a.judgement.checks {
         let _ = writeln!(
             s,
             "    {:<18} {:<13} {}",
@@ -94,7 +95,7 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
             c.reason.render(u)
         );
     }
-    if let Some(q) = &a.quarantine {
+    if let Some(q) = &a.judgement.quarantine {
         let _ = writeln!(s, "  {}", q.render(u));
     }
     for n in &a.notes {
@@ -106,16 +107,16 @@ pub fn text(a: &Analysis, title: &str, u: &DisplayUnits) -> String {
 /// The loss in words, with the temperatures its references were taken at (the same words in
 /// every format).
 pub fn loss_words(a: &Analysis, u: &DisplayUnits) -> String {
-    match (a.irreversible_loss_pct, a.irreversible_loss_u95_pct) {
+    match (a.loss.pct, a.loss.u95_pct) {
         (Some(l), Some(lu)) => {
-            let at = match a.reference_c {
-                Some([t0, t1]) if a.loss_method_code == Some(LossMethod::References) => format!(
+            let at = match a.loss.reference_c {
+                Some([t0, t1]) if a.loss.method_code == Some(LossMethod::References) => format!(
                     " between the references at {} and {}, each referred to {} with the fitted curve,",
                     units::temp(u, t0),
                     units::temp(u, t1),
                     units::temp(u, 20.0)
                 ),
-                _ if a.loss_method_code == Some(LossMethod::Cycles) => format!(
+                _ if a.loss.method_code == Some(LossMethod::Cycles) => format!(
                     " in total over {} heat cycles, from the first reference to the last ({}),",
                     a.cycles.len(),
                     a.cycles
@@ -137,7 +138,7 @@ pub fn loss_words(a: &Analysis, u: &DisplayUnits) -> String {
             format!(
                 "{}{at} after a peak of {}",
                 units::loss_with_u95(l, lu),
-                units::temp(u, a.max_magnet_temp_c)
+                units::temp(u, a.lag.max_magnet_temp_c)
             )
         }
         _ => "not computed (the notes say why)".into(),

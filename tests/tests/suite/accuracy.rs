@@ -82,17 +82,17 @@ fn measure(
 
 fn check_alpha(a: &Analysis, model: &remanent_rig_model::Magnet, label: &str) {
     // truth: the model's mean coefficient from 20 °C to the top of the fitted range
-    let truth = model.alpha_pct_per_c + model.gamma_pct_per_c2 * (a.fit_range_c[1] - 20.0);
-    let err = a.alpha_pct_per_c - truth;
+    let truth = model.alpha_pct_per_c + model.gamma_pct_per_c2 * (a.alpha.range_c[1] - 20.0);
+    let err = a.alpha.pct_per_c - truth;
     assert!(
         err.abs() <= 0.003,
         "{label}: α {:.5} vs truth {truth:.5}",
-        a.alpha_pct_per_c
+        a.alpha.pct_per_c
     );
     assert!(
-        err.abs() <= a.alpha_u95_pct_per_c,
+        err.abs() <= a.alpha.u95_pct_per_c,
         "{label}: error {err:.5} outside U95 {:.5}",
-        a.alpha_u95_pct_per_c
+        a.alpha.u95_pct_per_c
     );
 }
 
@@ -109,14 +109,14 @@ fn alpha_is_recovered_across_materials_ramp_rates_and_lags() {
         let (a, _, model) = measure(magnet, tau, cycle(top, rate, 240.0), 11 + i as u64);
         let label = format!("{magnet} at {rate} °C/min, τ {tau} s");
         check_alpha(&a, &model, &label);
-        let est = a.lag_time_constant_s.unwrap();
+        let est = a.lag.time_constant_s.unwrap();
         assert!(
             (est - tau).abs() < 0.15 * tau + 3.0,
             "{label}: lag {est:.1} s"
         );
-        let loss = a.irreversible_loss_pct.unwrap();
+        let loss = a.loss.pct.unwrap();
         assert!(
-            loss.abs() <= 0.1 && loss.abs() <= a.irreversible_loss_u95_pct.unwrap() + 1e-9,
+            loss.abs() <= 0.1 && loss.abs() <= a.loss.u95_pct.unwrap() + 1e-9,
             "{label}: loss {loss}"
         );
     }
@@ -135,8 +135,8 @@ fn irreversible_loss_is_recovered_with_its_uncertainty() {
             want > 1.0,
             "{magnet}: the exposure should damage it (truth {want:.2} %)"
         );
-        let got = a.irreversible_loss_pct.unwrap();
-        let u = a.irreversible_loss_u95_pct.unwrap();
+        let got = a.loss.pct.unwrap();
+        let u = a.loss.u95_pct.unwrap();
         assert!(
             (got - want).abs() <= 0.1,
             "{magnet}: loss {got:.3} % vs truth {want:.3} %"
@@ -149,11 +149,11 @@ fn irreversible_loss_is_recovered_with_its_uncertainty() {
         // taken above its rating on purpose: the loss is the grade's exposure loss at that
         // temperature, not damage found in the part
         assert!(
-            !a.heat_damaged,
+            !a.judgement.heat_damaged,
             "{magnet}: an exposure above the rating is not damage"
         );
         assert!(
-            a.quarantine.is_some(),
+            a.judgement.quarantine.is_some(),
             "{magnet}: taken beyond its safe peak: {:#?}",
             a.notes
         );
@@ -194,21 +194,25 @@ fn a_curie_sweep_finds_the_collapse_and_still_gives_alpha() {
     // the built-in destructive sweep on the demo N42 disc (model Curie point 320 °C)
     let profile = ProfileSpec::resolve("curie-sweep").unwrap();
     let (a, truth, model) = measure("RM-N42-D10x5", 45.0, profile, 21);
-    let tc = a.curie_estimate_c.expect("collapse found");
+    let tc = a.lag.curie_estimate_c.expect("collapse found");
     assert!(
         (tc - model.curie_c).abs() < 25.0,
         "collapse at {tc:.0} °C, model Curie point {} °C",
         model.curie_c
     );
-    assert!(a.material_family.contains("NdFeB"), "{}", a.material_family);
+    assert!(
+        a.judgement.material_family.contains("NdFeB"),
+        "{}",
+        a.judgement.material_family
+    );
     assert!(truth.irreversible > 0.99, "the sweep demagnetizes");
-    assert!(a.irreversible_loss_pct.unwrap() > 95.0);
+    assert!(a.loss.pct.unwrap() > 95.0);
     // this N42 also loses flux irreversibly long before the collapse, so the heating branch's α
     // is not the reversible one: the analysis must say so rather than pass it off as α(Br)
     assert!(
-        a.fit_range_c[1] <= tc - 100.0,
+        a.alpha.range_c[1] <= tc - 100.0,
         "fitted up to {:.0} °C",
-        a.fit_range_c[1]
+        a.alpha.range_c[1]
     );
     assert!(
         a.notes.iter().any(|n| n

@@ -41,14 +41,14 @@ fn soak_points_alone_give_alpha_and_say_so() {
         "gauss converted to mT"
     );
     let a = analyze(&s, &ctx()).unwrap();
-    assert_eq!(a.fit_method, "soak points");
+    assert_eq!(a.alpha.method, "soak points");
     assert!(
-        (a.alpha_pct_per_c + 0.04).abs() < 0.001,
+        (a.alpha.pct_per_c + 0.04).abs() < 0.001,
         "α {}",
-        a.alpha_pct_per_c
+        a.alpha.pct_per_c
     );
-    assert!(a.lag_time_constant_s.is_none());
-    assert!(a.irreversible_loss_pct.is_none());
+    assert!(a.lag.time_constant_s.is_none());
+    assert!(a.loss.pct.is_none());
     assert!(
         a.notes
             .iter()
@@ -56,7 +56,11 @@ fn soak_points_alone_give_alpha_and_say_so() {
         "{:?}",
         a.notes
     );
-    assert!(a.material_family.contains("SmCo5"), "{}", a.material_family);
+    assert!(
+        a.judgement.material_family.contains("SmCo5"),
+        "{}",
+        a.judgement.material_family
+    );
 }
 
 #[test]

@@ -215,7 +215,7 @@ fn a_stale_calibration_is_refused_before_anything_starts_and_uncalibrated_runs_s
         ..Default::default()
     };
     let (_, a) = remanent::jobs::load_and_analyze(&req).unwrap();
-    assert!(a.uncalibrated);
+    assert!(a.input.uncalibrated);
     // the machine-readable result says what it is about
     assert_eq!(a.provenance.magnet_id.as_deref(), Some("RM-N42-D10x5"));
     assert_eq!(a.provenance.run, "run");

@@ -319,7 +319,7 @@ fn certificate_pages_print_a_400_character_reason_whole_and_clear_of_every_other
     let reason: Vec<String> = (0..80).map(|i| format!("q{i:03}")).collect();
     let reason = reason.join(" ");
     assert_eq!(reason.len() + 1, 400);
-    a.checks[0].reason = remanent::phrase!(reason.as_str());
+    a.judgement.checks[0].reason = remanent::phrase!(reason.as_str());
     let png = std::fs::read(run.join("flux_vs_temp.png")).unwrap();
     let meta = read_meta(&run).unwrap();
     let look = remanent::report::Look::default();

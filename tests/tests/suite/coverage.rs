@@ -133,11 +133,12 @@ fn trial(k: u64) -> Covered {
     let (rows, truth) = bm::run(&c.bench, &c.magnet, &c.program);
     let a = crate::imperfect_records::analyse_rows(&rows);
     // α's truth: the two-point mean between 20 °C and the top of the fit as stated
-    let alpha_err = a.alpha_pct_per_c - c.magnet.alpha_pct(a.fit_range_c[1]);
+    let alpha_err = a.alpha.pct_per_c - c.magnet.alpha_pct(a.alpha.range_c[1]);
     let loss_true = *truth.loss_after_step_pct.last().expect("steps");
     let loss = a
-        .irreversible_loss_pct
-        .zip(a.irreversible_loss_u95_pct)
+        .loss
+        .pct
+        .zip(a.loss.u95_pct)
         .map(|(l, u)| (l - loss_true).abs() <= u);
     // the reference read once in the same fixture, with its reading's noise
     let mut d = Draw(0x0bad_cafe ^ k);
@@ -157,11 +158,11 @@ fn trial(k: u64) -> Covered {
         gap_u_mm: GAP_U_MM,
         made: Stamp(0),
     };
-    let (br, _) = reference.br_of(&c.shape, a.b20_mt, a.b20_u_mt);
+    let (br, _) = reference.br_of(&c.shape, a.alpha.b20_mt, a.alpha.b20_u_mt);
     // Br of the part as it came (B20 is the curve's value before any loss in the record)
     let br_true = c.br_t;
     Covered {
-        alpha: alpha_err.abs() <= a.alpha_u95_pct_per_c,
+        alpha: alpha_err.abs() <= a.alpha.u95_pct_per_c,
         loss,
         br: (br.br_t - br_true).abs() <= br.br_u95_t,
     }

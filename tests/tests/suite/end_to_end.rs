@@ -100,30 +100,30 @@ fn a_full_cycle_records_without_gaps_and_recovers_alpha() {
     };
     let a = analyze(&series, &ctx).unwrap();
     // truth: the demo part's model, α = −0.108 %/°C and γ = −0.00008 %/°C² (catalogue.rs)
-    let truth = -0.108 + -0.00008 * (a.fit_range_c[1] - 20.0);
+    let truth = -0.108 + -0.00008 * (a.alpha.range_c[1] - 20.0);
     assert!(
-        (a.alpha_pct_per_c - truth).abs() <= 0.003,
+        (a.alpha.pct_per_c - truth).abs() <= 0.003,
         "α {} vs truth {truth}",
-        a.alpha_pct_per_c
+        a.alpha.pct_per_c
     );
     assert!(
-        (a.alpha_pct_per_c - truth).abs() <= a.alpha_u95_pct_per_c,
+        (a.alpha.pct_per_c - truth).abs() <= a.alpha.u95_pct_per_c,
         "U95 {} does not cover",
-        a.alpha_u95_pct_per_c
+        a.alpha.u95_pct_per_c
     );
     assert!(
-        a.fit_range_c[1] > 85.0 && a.fit_range_c[0] < 27.0,
+        a.alpha.range_c[1] > 85.0 && a.alpha.range_c[0] < 27.0,
         "{:?}",
-        a.fit_range_c
+        a.alpha.range_c
     );
-    let tau = a.lag_time_constant_s.unwrap();
+    let tau = a.lag.time_constant_s.unwrap();
     assert!((tau - 45.0).abs() < 8.0, "lag {tau} s, model 45 s");
-    let loss = a.irreversible_loss_pct.unwrap();
+    let loss = a.loss.pct.unwrap();
     assert!(
         loss.abs() < 0.1,
         "loss {loss} % for a magnet heated below its onset"
     );
-    assert_eq!(a.material_family, "sintered NdFeB");
+    assert_eq!(a.judgement.material_family, "sintered NdFeB");
     // an existing run directory is never overwritten
     // the raw stream alone rebuilds the record: every sample row the same
     let replayed = dir.path().join("replayed");

@@ -145,7 +145,9 @@ fn exercise(at: &Location) {
         })
         .unwrap();
         let name = r.file_name().unwrap().to_string_lossy().into_owned();
-        want.entry(d.verdict.word()).or_default().push(name);
+        want.entry(d.judgement.verdict.word())
+            .or_default()
+            .push(name);
     }
     for v in ["pass", "fail", "indeterminate"] {
         let f = Filter {
@@ -169,9 +171,9 @@ fn exercise(at: &Location) {
     })
     .unwrap();
     let row = &by_grade[0];
-    assert_eq!(row.alpha_pct_per_c, Some(direct.alpha_pct_per_c));
-    assert_eq!(row.br_t, direct.br.as_ref().map(|b| b.br_t));
-    assert_eq!(row.loss_pct, direct.irreversible_loss_pct);
+    assert_eq!(row.alpha_pct_per_c, Some(direct.alpha.pct_per_c));
+    assert_eq!(row.br_t, direct.remanence.estimate.as_ref().map(|b| b.br_t));
+    assert_eq!(row.loss_pct, direct.loss.pct);
 
     let h = remanent::history::query::lot_history("L-2611-A", &lot_a);
     let s = h.summary.as_ref().expect("the lot's runs were analysed");
@@ -356,7 +358,7 @@ fn many_writers(at: &Location) {
                     e.run_uid = format!("writer{w}-run{k}");
                     e.inspection.lot = Some(format!("W{w}"));
                     let mut a = a.clone();
-                    a.alpha_pct_per_c += 1e-6 * f64::from(w * 25 + k);
+                    a.alpha.pct_per_c += 1e-6 * f64::from(w * 25 + k);
                     assert!(store.put_analysis(&e, &a).unwrap());
                 }
             });

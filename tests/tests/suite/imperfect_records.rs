@@ -29,14 +29,14 @@ pub fn analyse_rows(rows: &[bm::Row]) -> Analysis {
 }
 
 fn check_alpha(a: &Analysis, m: &TrueMagnet, label: &str) {
-    let truth = m.alpha_pct(a.fit_range_c[1]);
-    let err = a.alpha_pct_per_c - truth;
+    let truth = m.alpha_pct(a.alpha.range_c[1]);
+    let err = a.alpha.pct_per_c - truth;
     assert!(
-        err.abs() <= ALPHA_TOL && err.abs() <= a.alpha_u95_pct_per_c,
+        err.abs() <= ALPHA_TOL && err.abs() <= a.alpha.u95_pct_per_c,
         "{label}: α {:.4} ± {:.4} against {truth:.4} (error {err:+.4}); τ {:?}; notes {:#?}",
-        a.alpha_pct_per_c,
-        a.alpha_u95_pct_per_c,
-        a.lag_time_constant_s,
+        a.alpha.pct_per_c,
+        a.alpha.u95_pct_per_c,
+        a.lag.time_constant_s,
         a.notes
     );
 }
@@ -52,7 +52,7 @@ fn check_loss(loss: Option<(f64, f64)>, truth: f64, label: &str, a: &Analysis) {
 }
 
 fn loss_of(a: &Analysis) -> Option<(f64, f64)> {
-    a.irreversible_loss_pct.zip(a.irreversible_loss_u95_pct)
+    a.loss.pct.zip(a.loss.u95_pct)
 }
 
 #[test]
@@ -84,11 +84,12 @@ fn a_fixture_that_has_not_cooled_back_still_gives_the_loss() {
             &a,
         );
         assert!(
-            a.loss_budget
+            a.loss
+                .budget
                 .iter()
                 .any(|l| l.source.contains("reversible correction")),
             "{:?}",
-            a.loss_budget
+            a.loss.budget
         );
     }
 }
@@ -104,7 +105,7 @@ fn loss_during_heating_with_no_return_is_seen_between_the_branches() {
     let (rows, truth) = bm::run(&b, &LOSSY, &program);
     let a = analyse_rows(&rows);
     check_alpha(&a, &LOSSY, "no return");
-    assert_eq!(a.fit_method, "the lag-corrected cooling branch");
+    assert_eq!(a.alpha.method, "the lag-corrected cooling branch");
     check_loss(
         loss_of(&a),
         *truth.loss_after_step_pct.last().unwrap(),
@@ -128,7 +129,7 @@ fn a_fixture_creeping_to_its_final_setpoint_is_not_read_as_lag() {
     let a = analyse_rows(&rows);
     check_alpha(&a, &NDFEB, "creeping fixture");
     // the magnet's lag behind the thermocouple: the contact's τ less the thermocouple's own
-    let tau = a.lag_time_constant_s.expect("τ");
+    let tau = a.lag.time_constant_s.expect("τ");
     let true_tau = b.magnet_tau_s - b.tc_tau_s;
     assert!(
         (tau - true_tau).abs() < 0.2 * true_tau,
@@ -177,7 +178,7 @@ fn the_headline_loss_of_several_cycles_is_the_total_and_a_first_cycle_loss_is_ju
     assert!(total > 0.5, "the model lost {total} %");
     check_loss(loss_of(&a), total, "total over two cycles", &a);
     assert_eq!(
-        a.loss_method_code,
+        a.loss.method_code,
         Some(remanent::analysis::result::LossMethod::Cycles)
     );
     // the second cycle alone lost nothing: the old headline would have hidden the damage
@@ -187,9 +188,13 @@ fn the_headline_loss_of_several_cycles_is_the_total_and_a_first_cycle_loss_is_ju
         "{:#?}",
         a.cycles
     );
-    assert!(a.heat_damaged);
-    assert!(a.checks.iter().any(|c| c.what == "irreversible loss"
-        && c.outcome == remanent::analysis::verdict::Outcome::Fail));
+    assert!(a.judgement.heat_damaged);
+    assert!(a
+        .judgement
+        .checks
+        .iter()
+        .any(|c| c.what == "irreversible loss"
+            && c.outcome == remanent::analysis::verdict::Outcome::Fail));
 }
 
 #[test]
@@ -228,10 +233,10 @@ fn a_sm2co17_part_fitted_to_200c_is_called_sm2co17() {
     let a = analyse_rows(&rows);
     check_alpha(&a, &sm2co17, "Sm2Co17 to 200 °C");
     assert!(
-        sm2co17.alpha_pct(a.fit_range_c[1]) < -0.035,
+        sm2co17.alpha_pct(a.alpha.range_c[1]) < -0.035,
         "the wide-range α is outside the table's Sm2Co17 range (what made it SmCo5)"
     );
-    assert_eq!(a.material_family, "Sm2Co17");
+    assert_eq!(a.judgement.material_family, "Sm2Co17");
 }
 
 #[test]
@@ -250,11 +255,7 @@ fn a_loss_whose_reference_correction_would_swamp_it_is_refused_saying_by_how_muc
         &bm::cycle(b.ambient_c, 110.0, b.ambient_c + 28.0, 4.0),
     );
     let a = analyse_rows(&rows);
-    assert!(
-        a.irreversible_loss_pct.is_none(),
-        "{:?}",
-        a.irreversible_loss_pct
-    );
+    assert!(a.loss.pct.is_none(), "{:?}", a.loss.pct);
     let why = a
         .notes
         .iter()
@@ -299,7 +300,7 @@ fn a_heating_only_record_gives_alpha_and_refuses_the_loss_for_want_of_a_return()
     );
     let a = crate::messy_files::analyse_text(&bm::csv(&rows), &CsvOptions::default());
     check_alpha(&a, &NDFEB, "heating only");
-    assert!(a.irreversible_loss_pct.is_none());
+    assert!(a.loss.pct.is_none());
     crate::util::assert_noted(&a, "does not return");
 }
 
@@ -343,8 +344,12 @@ fn a_drifting_probe_zero_is_not_called_damage_and_alpha_stays_right() {
     let a = analyse_rows(&rows);
     check_alpha(&a, &NDFEB, "drifting zero");
     check_loss(loss_of(&a), 0.0, "drifting zero, no loss", &a);
-    assert!(!a.heat_damaged, "{:#?}", a.notes);
-    assert!(a.checks.iter().all(|c| c.what != "irreversible loss"));
+    assert!(!a.judgement.heat_damaged, "{:#?}", a.notes);
+    assert!(a
+        .judgement
+        .checks
+        .iter()
+        .all(|c| c.what != "irreversible loss"));
     crate::util::assert_noted(&a, "the probe's zero drifted");
 }
 
@@ -357,5 +362,5 @@ fn a_real_loss_is_still_found_under_a_drifting_probe_zero() {
     assert!(want > 0.5, "the model lost {want} %");
     check_loss(loss_of(&a), want, "drifting zero with a loss", &a);
     check_alpha(&a, &LOSSY, "drifting zero with a loss");
-    assert!(a.heat_damaged, "{:#?}", a.notes);
+    assert!(a.judgement.heat_damaged, "{:#?}", a.notes);
 }

@@ -95,7 +95,7 @@ fn a_nan_in_the_series_is_refused_naming_the_sample_and_field() {
             )
         }
         Err(e) => panic!("wrong error {e}"),
-        Ok(a) => panic!("analysed a NaN into {}", a.verdict),
+        Ok(a) => panic!("analysed a NaN into {}", a.judgement.verdict),
     }
 }
 

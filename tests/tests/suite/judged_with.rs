@@ -26,7 +26,7 @@ fn an_import_judges_a_run_with_the_reference_its_certificate_was_issued_with() {
     let r = report::run(&run, &judging, false, &Default::default()).unwrap();
     let issued = r.analysis.expect("analysed");
     assert!(
-        issued.br_referred,
+        issued.remanence.referred,
         "the certificate's Br is referred to the reference"
     );
     let kept = run.join(remanent::run_dir::REFERENCE_FILE);
@@ -45,7 +45,7 @@ fn an_import_judges_a_run_with_the_reference_its_certificate_was_issued_with() {
     let found = Store::open(&at).unwrap().find(&Filter::default()).unwrap();
     assert_eq!(
         found[0].verdict,
-        Some(issued.verdict),
+        Some(issued.judgement.verdict),
         "filed as the certificate says"
     );
     // a different reference for the same run is not taken silently
@@ -123,7 +123,12 @@ fn an_import_files_the_analysis_as_filed_and_a_reanalysis_only_beside_it() {
         .unwrap()
         .analysis
         .expect("analysed");
-    assert_eq!(filed.verdict.to_string(), "FAIL", "{:?}", filed.checks);
+    assert_eq!(
+        filed.judgement.verdict.to_string(),
+        "FAIL",
+        "{:?}",
+        filed.judgement.checks
+    );
     let at = Location::Sqlite(dir.path().join("h.sqlite"));
     let verdicts = || {
         let mut s = Store::open(&at).unwrap();

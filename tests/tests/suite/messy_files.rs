@@ -29,7 +29,7 @@ pub fn analyse_text(text: &str, opts: &CsvOptions) -> remanent::analysis::Analys
 
 fn alpha_of(text: &str, opts: &CsvOptions) -> (f64, remanent::analysis::Analysis) {
     let a = analyse_text(text, opts);
-    (a.alpha_pct_per_c, a)
+    (a.alpha.pct_per_c, a)
 }
 
 fn clean_alpha() -> f64 {
@@ -111,7 +111,7 @@ fn blank_cells_are_skipped_and_counted() {
         .count();
     let (a, an) = alpha_of(&text, &CsvOptions::default());
     assert!((a - clean_alpha()).abs() < 2e-4, "{a}");
-    assert_eq!(an.rows_left_out, expected);
+    assert_eq!(an.input.rows_left_out, expected);
     assert!(
         an.notes
             .iter()
@@ -146,7 +146,7 @@ fn thermocouple_spikes_are_rejected_and_counted() {
         .filter(|i| i % 500 == 77 || i % 500 == 301)
         .count();
     let (a, an) = alpha_of(&text, &CsvOptions::default());
-    assert_eq!(an.spikes_rejected, spikes);
+    assert_eq!(an.input.spikes_rejected, spikes);
     assert!((a - clean_alpha()).abs() < 1e-4, "{a}");
 }
 
@@ -191,7 +191,7 @@ fn column_names_as_people_write_them_are_understood_in_any_case() {
         })
         .collect();
     let (_, an) = alpha_of(&t, &CsvOptions::default());
-    assert!((an.alpha_pct_per_c - clean).abs() < 1e-12);
+    assert!((an.alpha.pct_per_c - clean).abs() < 1e-12);
     crate::util::assert_noted(
         &an,
         "`Temperature (C)` is used rather than `Sample temp (C)` (choose with `--column`)",
@@ -266,8 +266,8 @@ fn a_block_pasted_twice_is_dropped_and_named_by_its_lines() {
     let text = out.join("\n") + "\n";
     let (a, an) = alpha_of(&text, &CsvOptions::default());
     assert!((a - clean_alpha()).abs() < 1e-12, "α {a}");
-    assert_eq!(an.repairs.duplicate_rows, 50);
-    assert_eq!(an.repairs.duplicate_lines, vec![[1053, 1102]]);
+    assert_eq!(an.input.repairs.duplicate_rows, 50);
+    assert_eq!(an.input.repairs.duplicate_lines, vec![[1053, 1102]]);
     crate::util::assert_noted(
         &an,
         "50 exact copies of rows already read dropped (lines 1053–1102",
@@ -308,7 +308,7 @@ fn a_time_column_that_restarts_continues_where_it_stopped_when_the_rows_join_up(
         "α {a} against {}",
         clean_alpha()
     );
-    assert_eq!(an.repairs.restart_lines, vec![2002]);
+    assert_eq!(an.input.repairs.restart_lines, vec![2002]);
     crate::util::assert_noted(&an, "the time column restarts at line 2002");
     // --strict refuses it at its line
     let (_d, p) = write(&restarted_at(2000, 0.0));
@@ -336,14 +336,14 @@ fn two_records_joined_in_one_file_are_split_where_they_meet_and_analysed_apart()
     let joined = first.clone() + bm::csv(&second).split_once('\n').unwrap().1;
     let (_, a) = alpha_of(&joined, &CsvOptions::default());
     let line = first.lines().count() + 1;
-    assert_eq!(a.repairs.split_lines, vec![line]);
+    assert_eq!(a.input.repairs.split_lines, vec![line]);
     assert_eq!(a.cycles.len(), 2, "{:#?}", a.cycles);
     crate::util::assert_noted(&a, "analysed apart");
     // the results are the last part's: the ferrite-like second magnet
-    let want = other.alpha_pct(a.fit_range_c[1]);
+    let want = other.alpha_pct(a.alpha.range_c[1]);
     assert!(
-        (a.alpha_pct_per_c - want).abs() < 0.003,
+        (a.alpha.pct_per_c - want).abs() < 0.003,
         "α {} against {want}",
-        a.alpha_pct_per_c
+        a.alpha.pct_per_c
     );
 }

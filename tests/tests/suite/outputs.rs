@@ -4,7 +4,7 @@
 use std::time::Duration;
 
 use remanent::acceptance_plan::{accept_probability, design, Model};
-use remanent::analysis::{analyze, Context};
+use remanent::analysis::Context;
 use remanent::calibration::Calibration;
 use remanent::input::dataset;
 use remanent::jobs::record::{record, Quiet, RecordOptions};
@@ -44,7 +44,13 @@ fn simulated_run(
     out
 }
 
-fn analysed(run: &std::path::Path) -> (dataset::Series, remanent::analysis::Analysis) {
+fn analysed(
+    run: &std::path::Path,
+) -> (
+    dataset::Series,
+    remanent::analysis::Analysis,
+    remanent::analysis::Traces,
+) {
     let (s, src) = dataset::load_run(run, None).unwrap();
     let ctx = Context {
         calibration: src.calibration,
@@ -53,16 +59,16 @@ fn analysed(run: &std::path::Path) -> (dataset::Series, remanent::analysis::Anal
         default_tc_gain_pct: 0.75,
         reference: None,
     };
-    let a = analyze(&s, &ctx).unwrap();
-    (s, a)
+    let (a, t) = remanent::analysis::analyze_traced(&s, &ctx).unwrap();
+    (s, a, t)
 }
 
 #[test]
 fn the_report_carries_the_analysis_numbers_and_every_plot() {
     let dir = tempfile::tempdir().unwrap();
     let run = simulated_run(dir.path(), "RPT-1", "RM-N42SH-D10x5", 1.0, 3);
-    let (s, a) = analysed(&run);
-    let files = remanent::report::write_all(&run, &s, &a, "RPT-1", false).unwrap();
+    let (s, a, t) = analysed(&run);
+    let files = remanent::report::write_all(&run, &s, &a, &t, "RPT-1", false).unwrap();
     // six plot files (three plots, PNG and SVG), the JSON, Markdown, HTML, the certificate and
     // its seal
     assert_eq!(files.len(), 11);
@@ -78,14 +84,14 @@ fn the_report_carries_the_analysis_numbers_and_every_plot() {
     // a printed report: a place for the shipment and the signatures, blocks kept whole
     assert!(html.contains("<h2>Inspection</h2>") && html.contains("Tested by"));
     assert!(html.contains("@media print") && html.contains("break-inside:avoid"));
-    let alpha = format!("{:+.4}", a.alpha_pct_per_c);
-    let u = format!("{:.4}", a.alpha_u95_pct_per_c);
+    let alpha = format!("{:+.4}", a.alpha.pct_per_c);
+    let u = format!("{:.4}", a.alpha.u95_pct_per_c);
     for doc in [&md, &html] {
         assert!(
             doc.contains(&alpha) && doc.contains(&u),
             "α {alpha} ± {u} missing"
         );
-        assert!(doc.contains(&format!("{:.3}", a.irreversible_loss_pct.unwrap())));
+        assert!(doc.contains(&format!("{:.3}", a.loss.pct.unwrap())));
         assert!(doc.contains("IEC 61010-1"), "safety notes");
         assert!(doc.contains("RM-N42SH") || doc.contains("RPT-1"));
         assert!(doc.contains("remanent 0.1.0"), "software version");
@@ -127,8 +133,8 @@ fn the_report_carries_the_analysis_numbers_and_every_plot() {
     );
     assert_eq!(json["material_family"], "sintered NdFeB");
     // nothing is replaced without being told
-    assert!(remanent::report::write_all(&run, &s, &a, "RPT-1", false).is_err());
-    assert!(remanent::report::write_all(&run, &s, &a, "RPT-1", true).is_ok());
+    assert!(remanent::report::write_all(&run, &s, &a, &t, "RPT-1", false).is_err());
+    assert!(remanent::report::write_all(&run, &s, &a, &t, "RPT-1", true).is_ok());
 }
 
 #[test]
@@ -140,7 +146,7 @@ fn a_lot_finds_the_weak_magnet() {
     for (i, k) in scales.iter().enumerate() {
         let id = format!("LOT-{:02}", i + 1);
         let run = simulated_run(dir.path(), &id, "RM-N42SH-D10x5", *k, 100 + i as u64);
-        let (_, a) = analysed(&run);
+        let (_, a, _) = analysed(&run);
         rows.push(LotRow::new(&id, "N42SH", &a));
     }
     let s = lot::summarise(rows);

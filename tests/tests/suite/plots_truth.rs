@@ -50,10 +50,15 @@ fn residuals_near_zero_are_drawn_whether_few_or_many() {
     let (s, _) = dataset::load_run(&dir.path().join("r"), None).unwrap();
     let a = &t.analysis;
     // the data have points within ±0.01 mT of the fit …
-    let near = a.residuals_mt().iter().filter(|r| r.abs() < 0.01).count();
+    let near = t
+        .traces
+        .residuals_mt(a)
+        .iter()
+        .filter(|r| r.abs() < 0.01)
+        .count();
     assert!(near > 100, "{near}");
     // … and so does what is drawn (a long record: as its density)
-    let (marks, _) = residual_marks(&s, a);
+    let (marks, _) = residual_marks(&s, a, &t.traces);
     let drawn_near = match marks {
         ResidualMarks::Density(cells) => cells
             .iter()
@@ -70,13 +75,13 @@ fn after_a_loss_the_fit_is_drawn_on_the_cooling_branch_it_was_fitted_to() {
     let dir = tempfile::tempdir().unwrap();
     let t = run("RM-N35-D10x2", lossy(), &dir.path().join("r"));
     let a = &t.analysis;
-    assert_eq!(a.fit_method_code, "cooling_branch");
-    assert!(a.irreversible_loss_pct.unwrap() > 1.0);
+    assert_eq!(a.alpha.method_code, "cooling_branch");
+    assert!(a.loss.pct.unwrap() > 1.0);
     let (line, label) = fit_line(a, &remanent::units::DisplayUnits::SI);
     assert!(label.contains("cooling branch"), "{label}");
     // the line against the cooling samples in the fitted range: within the noise, not the loss
-    let seg = a.traces.segments.as_ref().unwrap();
-    let (tm, b) = (&a.traces.magnet_temp_c, &a.traces.flux_corrected_mt);
+    let seg = t.traces.segments.as_ref().unwrap();
+    let (tm, b) = (&t.traces.magnet_temp_c, &t.traces.flux_corrected_mt);
     let at = |t: f64| {
         let k = line.partition_point(|p| p.0 < t).min(line.len() - 1);
         line[k].1
@@ -84,7 +89,7 @@ fn after_a_loss_the_fit_is_drawn_on_the_cooling_branch_it_was_fitted_to() {
     let mut off: Vec<f64> = seg
         .cooling
         .clone()
-        .filter(|&i| tm[i] > a.fit_range_c[0] + 1.0 && tm[i] < a.fit_range_c[1] - 1.0)
+        .filter(|&i| tm[i] > a.alpha.range_c[0] + 1.0 && tm[i] < a.alpha.range_c[1] - 1.0)
         .map(|i| ((b[i] - at(tm[i])) / b[i]).abs() * 100.0)
         .collect();
     off.sort_by(f64::total_cmp);
@@ -111,9 +116,14 @@ fn lines_break_at_gaps_and_keys_and_ticks_are_clean() {
         &out,
     );
     let (s, _) = dataset::load_run(&out, None).unwrap();
-    let figs =
-        remanent::plots::run_figures(&s, &t.analysis, "test", &remanent::units::DisplayUnits::SI)
-            .unwrap();
+    let figs = remanent::plots::run_figures(
+        &s,
+        &t.analysis,
+        &t.traces,
+        "test",
+        &remanent::units::DisplayUnits::SI,
+    )
+    .unwrap();
     let svg = &figs[0].svg;
     let texts = svg_texts(svg);
     let key_x = (remanent::plots::SIZE.0 - remanent::plots::style::KEY_WIDTH) as f64;

@@ -111,8 +111,8 @@ fn br_referred_to_a_reference_is_right_across_gaps_and_probe_sensitivities() {
                 ..demo
             };
             let a = part_in(params, magnet, &reference);
-            let br = a.br.expect("Br");
-            assert!(a.br_referred);
+            let br = a.remanence.estimate.expect("Br");
+            assert!(a.remanence.referred);
             let label = format!("gap {gap} mm, sensitivity {sens} mV/mT, Br {true_br} T");
             assert!(
                 (br.br_t - true_br).abs() <= br.br_u95_t,
@@ -127,7 +127,11 @@ fn br_referred_to_a_reference_is_right_across_gaps_and_probe_sensitivities() {
             } else {
                 Outcome::Fail
             };
-            assert_eq!(a.verdict, want, "{label}: {:#?}", a.checks);
+            assert_eq!(
+                a.judgement.verdict, want,
+                "{label}: {:#?}",
+                a.judgement.checks
+            );
         }
     }
 }
@@ -195,18 +199,24 @@ fn loss_from_a_test_run_above_the_rating_is_exposure_loss_not_damage() {
         ..Default::default()
     })
     .unwrap();
-    let loss = a.irreversible_loss_pct.unwrap();
+    let loss = a.loss.pct.unwrap();
     assert!(loss > 0.1, "it lost {loss} %");
-    assert!(!a.heat_damaged);
+    assert!(!a.judgement.heat_damaged);
     assert!(
-        a.checks
+        a.judgement
+            .checks
             .iter()
             .all(|c| c.what != "irreversible loss" && c.what != "coercivity"),
         "{:#?}",
-        a.checks
+        a.judgement.checks
     );
     // beyond its safe peak (59 °C for this shape): the part is to be quarantined
-    let q = a.quarantine.as_ref().expect("quarantine").to_string();
+    let q = a
+        .judgement
+        .quarantine
+        .as_ref()
+        .expect("quarantine")
+        .to_string();
     assert!(q.contains("do not return it to stock"), "{q}");
 }
 
@@ -231,14 +241,15 @@ fn a_part_that_loses_flux_within_its_rating_fails_as_heat_damaged() {
         ..Default::default()
     })
     .unwrap();
-    assert!(a.heat_damaged, "{:#?}", a.notes);
-    assert_eq!(a.verdict, Outcome::Fail);
+    assert!(a.judgement.heat_damaged, "{:#?}", a.notes);
+    assert_eq!(a.judgement.verdict, Outcome::Fail);
     assert!(a
+        .judgement
         .checks
         .iter()
         .any(|c| c.what == "coercivity" && c.outcome == Outcome::Fail));
     assert!(
-        a.quarantine.is_none(),
+        a.judgement.quarantine.is_none(),
         "95 °C is within an N42SH's safe peak"
     );
 }

@@ -232,29 +232,30 @@ fn conforming_parts_lose_nothing_at_their_safe_peak_within_15_minutes() {
         let (t, safe_c) = inspected(id, dir.path());
         let a = &t.analysis;
         assert!(
-            a.max_magnet_temp_c <= safe_c + 1.0,
+            a.lag.max_magnet_temp_c <= safe_c + 1.0,
             "{id}: peak {}",
-            a.max_magnet_temp_c
+            a.lag.max_magnet_temp_c
         );
         assert_eq!(
             t.loss_truth_pct, 0.0,
             "{id}: the model lost flux at the safe peak"
         );
-        let (l, u) = (
-            a.irreversible_loss_pct.unwrap(),
-            a.irreversible_loss_u95_pct.unwrap(),
-        );
+        let (l, u) = (a.loss.pct.unwrap(), a.loss.u95_pct.unwrap());
         assert!(l.abs() <= u, "{id}: loss {l} ± {u} %");
         // (Br from geometry may stay open without a reference magnet; nothing fails)
         assert!(
-            a.checks
+            a.judgement
+                .checks
                 .iter()
                 .all(|c| c.outcome != remanent::analysis::verdict::Outcome::Fail),
             "{id}: {:?}",
-            a.checks
+            a.judgement.checks
         );
-        assert!(!a.checks.iter().any(|c| c.what == "coercivity"), "{id}");
-        assert!(a.quarantine.is_none(), "{id}");
+        assert!(
+            !a.judgement.checks.iter().any(|c| c.what == "coercivity"),
+            "{id}"
+        );
+        assert!(a.judgement.quarantine.is_none(), "{id}");
         assert!(
             t.fixture_s <= 15.0 * 60.0,
             "{id}: {:.0} s of fixture time",
@@ -269,6 +270,7 @@ fn a_part_whose_coercivity_is_below_its_grade_fails_at_the_safe_peak() {
     let (t, _) = inspected("RM-N42SH-D10x5-B2", dir.path());
     let a = &t.analysis;
     let c = a
+        .judgement
         .checks
         .iter()
         .find(|c| c.what == "coercivity")
@@ -279,9 +281,12 @@ fn a_part_whose_coercivity_is_below_its_grade_fails_at_the_safe_peak() {
         "{}",
         c.reason
     );
-    assert_eq!(a.verdict, remanent::analysis::verdict::Outcome::Fail);
+    assert_eq!(
+        a.judgement.verdict,
+        remanent::analysis::verdict::Outcome::Fail
+    );
     assert!(
-        a.quarantine.is_none(),
+        a.judgement.quarantine.is_none(),
         "it was tested within its grade's safe peak"
     );
 }
@@ -318,9 +323,10 @@ fn a_built_in_profile_is_held_to_the_safe_peak_and_beyond_it_needs_the_flag() {
 /// back by poppler in `certificate_pages_carry_the_quarantine_statement`, the certificate).
 fn over_rating_report(dir: &std::path::Path) -> std::path::PathBuf {
     let (t, safe_c) = tested("RM-N42-D10x5", "rapid", true, dir);
-    assert!(t.analysis.max_magnet_temp_c > safe_c + 20.0);
+    assert!(t.analysis.lag.max_magnet_temp_c > safe_c + 20.0);
     let q = t
         .analysis
+        .judgement
         .quarantine
         .as_ref()
         .expect("a quarantine statement")

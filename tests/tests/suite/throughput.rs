@@ -36,14 +36,14 @@ fn rapid_meets_the_accuracy_goal_in_under_15_minutes_and_says_why_it_ended() {
         assert_eq!(t.gap_samples, 0, "{label}");
         let err = t.alpha_error_pct_per_c.abs();
         assert!(
-            err <= goal.alpha_u95_pct_per_c && err <= a.alpha_u95_pct_per_c,
+            err <= goal.alpha_u95_pct_per_c && err <= a.alpha.u95_pct_per_c,
             "{label}: α off by {err:.5}"
         );
         assert!(
             t.meets(&goal),
             "{label}: loss off by {:?} %, U95 {:?} %",
             t.loss_error_pct,
-            a.irreversible_loss_u95_pct
+            a.loss.u95_pct
         );
         // it ended itself (or its profile ended), and the run says which
         let meta = remanent::run_dir::read_meta(&out).unwrap();

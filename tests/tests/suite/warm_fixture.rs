@@ -96,9 +96,6 @@ fn a_part_after_a_part_waits_for_a_steady_fixture_before_its_reference() {
         ..Default::default()
     };
     let (_, a) = remanent::jobs::analyze_input::load_and_analyze(&req).unwrap();
-    let (loss, u) = (
-        a.irreversible_loss_pct.unwrap(),
-        a.irreversible_loss_u95_pct.unwrap(),
-    );
+    let (loss, u) = (a.loss.pct.unwrap(), a.loss.u95_pct.unwrap());
     assert!(loss.abs() <= u.max(0.05), "loss {loss:.3} ± {u:.3} %");
 }

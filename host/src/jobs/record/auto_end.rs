@@ -119,29 +119,29 @@ impl AutoEnd {
         let a = analyze(&self.series, &self.context).ok()?;
         // only a loss between two references at rest: the branches alone cannot tell a loss
         // from a lag on a record cut short
-        if a.loss_method_code != Some(crate::analysis::result::LossMethod::References) {
+        if a.loss.method_code != Some(crate::analysis::result::LossMethod::References) {
             return None;
         }
-        let loss_u = a.irreversible_loss_u95_pct?;
-        let loss = a.irreversible_loss_pct?;
+        let loss_u = a.loss.u95_pct?;
+        let loss = a.loss.pct?;
         let t = &self.tolerance;
         // one good check could be a passing moment of the lag search: the next must agree
         let steady = self
             .last
-            .replace((a.alpha_pct_per_c, loss))
+            .replace((a.alpha.pct_per_c, loss))
             .is_some_and(|(al, lo)| {
-                (al - a.alpha_pct_per_c).abs() < AGREE_ALPHA && (lo - loss).abs() < AGREE_LOSS
+                (al - a.alpha.pct_per_c).abs() < AGREE_ALPHA && (lo - loss).abs() < AGREE_LOSS
             });
         let done = steady
-            && a.alpha_u95_pct_per_c.is_finite()
-            && a.alpha_u95_pct_per_c <= t.alpha_u95_pct_per_c
+            && a.alpha.u95_pct_per_c.is_finite()
+            && a.alpha.u95_pct_per_c <= t.alpha_u95_pct_per_c
             && loss_u.is_finite()
             && loss_u <= t.loss_u95_pct;
         done.then(|| {
             use crate::units::alpha;
             crate::phrase![
                 "ended by the analysis: α known to ±",
-                alpha(a.alpha_u95_pct_per_c, 4),
+                alpha(a.alpha.u95_pct_per_c, 4),
                 format!(" and the loss to ±{loss_u:.3} % (95 %), within ±"),
                 alpha(t.alpha_u95_pct_per_c, 4),
                 format!(" and ±{} %", t.loss_u95_pct),
