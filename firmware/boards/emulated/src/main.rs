@@ -19,11 +19,11 @@ mod uart;
 use core::cell::RefCell;
 
 use cortex_m_rt::entry;
-use remanent_firmware::device::{BoardInfo, Device};
+use remanent_firmware::device::Device;
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::heater::Heater;
 use remanent_firmware::{Clock, FirmwareConfig};
-use remanent_protocol::{HeaterDrive, MAX_DEVICE_FRAME};
+use remanent_protocol::HeaterDrive;
 use remanent_rig_model::catalogue;
 use remanent_rig_model::peripherals::{
     SimAdcBus, SimClock, SimDelay, SimHeaterEnable, SimHeaterPwm, SimThermoSpi,
@@ -44,13 +44,7 @@ fn main() -> ! {
     let part = catalogue::find("RM-N42SH-D10x5").unwrap_or(&catalogue::PARTS[0]);
     let rig = RefCell::new(Rig::new(RigParams::REFERENCE, part.magnet, 1));
     let cfg = FirmwareConfig::REFERENCE;
-    let board = BoardInfo {
-        name: "qemu-lm3s6965",
-        supply_mv: 3300,
-        ntc_series_ohm: 10_000,
-        conversion_us: 1_500,
-        drills: true,
-    };
+    let board = remanent_board_support::front_end::board_info("qemu-lm3s6965", true);
     let adc = ads1115::Ads1115::new(SimAdcBus::new(&rig), SimDelay, ads1115::DEFAULT_ADDRESS);
     let tc = max31855::Max31855::new(SimThermoSpi::new(&rig));
     let drive = HeaterDrive::Pwm { frequency_hz: 500 };
@@ -61,7 +55,6 @@ fn main() -> ! {
         drive,
     );
     let mut device = Device::new(cfg, board, adc, tc, heater, 0, boot);
-    let mut frame = [0u8; MAX_DEVICE_FRAME];
     let mut clock = SimClock(&rig);
     if let Some(core) = cortex_m::Peripherals::take() {
         safe::start_watchdog(core.SYST);
@@ -71,22 +64,20 @@ fn main() -> ! {
             let now = clock.now_ms();
             device.receive(now, &[b]);
         }
-        remanent_board_support::carry_out(device.take_drill());
-        let periods = device.periods_completed();
         let holding = !device.handshaken()
             || clock.now_ms().wrapping_sub(device.host_last_seen_ms()) >= LOCKSTEP_MS;
-        if !holding {
+        let completed = remanent_board_support::main_loop::pass(&mut device, !holding, || {
             rig.borrow_mut().advance(STEP_S);
-            device.poll(clock.now_ms());
-        }
+            clock.now_ms()
+        });
         // fed only when a whole control period completed, or while time is held for the host
-        if holding || device.periods_completed() != periods {
+        if holding || completed {
             safe::feed_watchdog();
         }
         safe::set_enable_pin(rig.borrow().enabled);
         safe::persist(device.persisted());
-        while let Some(f) = device.next_frame(&mut frame) {
-            uart.write_all(f);
-        }
+        remanent_board_support::main_loop::frames_out(&mut device, usize::MAX, |f| {
+            uart.write_all(f)
+        });
     }
 }

@@ -22,14 +22,17 @@ use defmt_rtt as _;
 use embedded_hal::digital::OutputPin;
 use embedded_hal_bus::spi::ExclusiveDevice;
 use fugit::RateExtU32;
-use remanent_firmware::device::{BoardInfo, Device};
+use remanent_firmware::device::Device;
 use remanent_firmware::drivers::{ads1115, max31855};
 use remanent_firmware::fault_log::FaultLog;
 use remanent_firmware::heater::Heater;
 use remanent_firmware::{Clock, FirmwareConfig};
-use remanent_protocol::{HeaterDrive, MAX_DEVICE_FRAME};
+use remanent_protocol::HeaterDrive;
 use rp2040_hal as hal;
 use rp2040_hal::clocks::Clock as _;
+use rp2040_hal::gpio::{
+    bank0, FunctionNull, FunctionSioOutput, FunctionSpi, Pin, PullDown, PullUp,
+};
 use rp2040_hal::pac;
 use usb_device::class_prelude::UsbBusAllocator;
 
@@ -52,8 +55,15 @@ const HEATER_DRIVE: HeaterDrive = HeaterDrive::TimeProportioning {
 };
 /// Watchdog timeout: a few control periods (the longest period is 250 ms).
 const WATCHDOG_MS: u32 = 500;
-/// One ADS1115 single-shot conversion at 860 SPS with its I2C traffic, µs.
-const CONVERSION_US: u32 = 1_500;
+
+/// A pin as the chip leaves reset.
+type ResetPin<I> = Pin<I, FunctionNull, PullDown>;
+/// SPI0's pins: MOSI GP19, MISO GP16 (pulled up), SCK GP18.
+type Spi0Pins = (
+    Pin<bank0::Gpio19, FunctionSpi, PullDown>,
+    Pin<bank0::Gpio16, FunctionSpi, PullUp>,
+    Pin<bank0::Gpio18, FunctionSpi, PullDown>,
+);
 
 /// Bytes waiting for the USB endpoint.
 type TxBuffer = heapless::Vec<u8, 512>;
@@ -98,76 +108,34 @@ fn main() -> ! {
         &mut pac.RESETS,
     );
     let timer = hal::Timer::new(pac.TIMER, &mut pac.RESETS, &clocks);
-
-    // heater: the output pin driven fully on or off, the enable pin as the second path
-    let mut enable = pins.gpio15.into_push_pull_output();
-    let _ = enable.set_low();
-    let slices = hal::pwm::Slices::new(pac.PWM, &mut pac.RESETS);
-    let mut pwm = slices.pwm7;
-    pwm.set_div_int(250);
-    pwm.set_top(999);
-    pwm.enable();
-    let mut channel = pwm.channel_a;
-    channel.output_to(pins.gpio14);
     // a board for any fixture: model-free limits until the host sends the identification
     let cfg = FirmwareConfig::UNIDENTIFIED;
-    // the enable line toggles from the main loop while heating: the board's retriggerable
-    // monostable holds the relay only while edges come (hardware-notes/safety.md)
-    let heater =
-        Heater::new(channel, enable, cfg.limits.duty_cap_pct, HEATER_DRIVE).with_toggling_enable();
-
-    // sensors
-    let sda: hal::gpio::Pin<_, hal::gpio::FunctionI2C, hal::gpio::PullUp> =
-        pins.gpio4.reconfigure();
-    let scl: hal::gpio::Pin<_, hal::gpio::FunctionI2C, hal::gpio::PullUp> =
-        pins.gpio5.reconfigure();
-    let i2c = hal::I2C::i2c0(
+    let heater = heater(pins.gpio14, pins.gpio15, pac.PWM, &mut pac.RESETS, &cfg);
+    let adc = adc(
+        pins.gpio4,
+        pins.gpio5,
         pac.I2C0,
-        sda,
-        scl,
-        400.kHz(),
         &mut pac.RESETS,
-        &clocks.system_clock,
+        &clocks,
+        timer,
     );
-    let adc = ads1115::Ads1115::new(i2c, timer, ads1115::DEFAULT_ADDRESS);
     let sck = pins.gpio18.into_function::<hal::gpio::FunctionSpi>();
-    // pulled up: with the converter absent the data line reads all ones, never a valid 0 °C
-    let miso: hal::gpio::Pin<_, hal::gpio::FunctionSpi, hal::gpio::PullUp> =
-        pins.gpio16.reconfigure();
     let mosi = pins.gpio19.into_function::<hal::gpio::FunctionSpi>();
-    let spi = hal::spi::Spi::<_, _, _, 8>::new(pac.SPI0, (mosi, miso, sck)).init(
-        &mut pac.RESETS,
-        clocks.peripheral_clock.freq(),
-        4.MHz(),
-        embedded_hal::spi::MODE_0,
-    );
     let cs = pins
         .gpio17
         .into_push_pull_output_in_state(hal::gpio::PinState::High);
-    let Ok(tc_dev) = ExclusiveDevice::new(spi, cs, timer);
-    let tc = max31855::Max31855::new(tc_dev);
-
-    // USB serial to the host, serviced from its interrupt
-    let Some(serial_buf) = cortex_m::singleton!(: [u8; 16] = [0; 16]) else {
-        panic!("serial")
-    };
-    let serial_number = usb::serial_number(serial_buf);
+    let spi_pins = (mosi, pins.gpio16.reconfigure(), sck);
+    let tc = thermocouple(spi_pins, cs, pac.SPI0, &mut pac.RESETS, &clocks, timer);
     let Some(bus) = cortex_m::singleton!(: UsbBusAllocator<hal::usb::UsbBus> = UsbBusAllocator::new(
         hal::usb::UsbBus::new(pac.USBCTRL_REGS, pac.USBCTRL_DPRAM, clocks.usb_clock, true, &mut pac.RESETS),
     )) else {
         panic!("usb bus")
     };
-    usb::start(bus, serial_number);
+    let serial_number = host_link(bus);
 
     let led = pins.gpio25.into_push_pull_output();
     let mut clock = TimerClock(timer);
-    let board = BoardInfo {
-        name: "pico",
-        supply_mv: 3300,
-        ntc_series_ohm: 10_000,
-        conversion_us: CONVERSION_US,
-        drills: cfg!(feature = "drills"),
-    };
+    let board = remanent_board_support::front_end::board_info("pico", cfg!(feature = "drills"));
     let device = Device::new(cfg, board, adc, tc, heater, clock.now_ms(), boot);
     defmt::info!(
         "Remanent firmware {} on the Pico, serial {}",
@@ -178,6 +146,74 @@ fn main() -> ! {
     watchdog.pause_on_debug(true);
     watchdog.start(fugit::MicrosDurationU32::millis(WATCHDOG_MS));
     serve(device, clock, watchdog, led, log)
+}
+
+/// The heater: the output pin (GP14) driven fully on or off by PWM slice 7, the enable pin
+/// (GP15) as the second path, toggled from the main loop while heating — the board's
+/// retriggerable monostable holds the relay only while edges come (hardware-notes/safety.md).
+fn heater(
+    out: ResetPin<bank0::Gpio14>,
+    enable: ResetPin<bank0::Gpio15>,
+    pwm: pac::PWM,
+    resets: &mut pac::RESETS,
+    cfg: &FirmwareConfig,
+) -> Heater<impl embedded_hal::pwm::SetDutyCycle, impl OutputPin> {
+    let mut enable = enable.into_push_pull_output();
+    let _ = enable.set_low();
+    let slices = hal::pwm::Slices::new(pwm, resets);
+    let mut pwm = slices.pwm7;
+    pwm.set_div_int(250);
+    pwm.set_top(999);
+    pwm.enable();
+    let mut channel = pwm.channel_a;
+    channel.output_to(out);
+    Heater::new(channel, enable, cfg.limits.duty_cap_pct, HEATER_DRIVE).with_toggling_enable()
+}
+
+/// The ADC on I2C0 (SDA GP4, SCL GP5, pulled up) at 400 kHz.
+fn adc(
+    sda: ResetPin<bank0::Gpio4>,
+    scl: ResetPin<bank0::Gpio5>,
+    i2c: pac::I2C0,
+    resets: &mut pac::RESETS,
+    clocks: &hal::clocks::ClocksManager,
+    timer: hal::Timer,
+) -> impl remanent_firmware::Adc {
+    let sda: Pin<_, hal::gpio::FunctionI2C, PullUp> = sda.reconfigure();
+    let scl: Pin<_, hal::gpio::FunctionI2C, PullUp> = scl.reconfigure();
+    let i2c = hal::I2C::i2c0(i2c, sda, scl, 400.kHz(), resets, &clocks.system_clock);
+    ads1115::Ads1115::new(i2c, timer, ads1115::DEFAULT_ADDRESS)
+}
+
+/// The thermocouple converter on SPI0 at 4 MHz, mode 0, chip select GP17. MISO (GP16) is
+/// pulled up: with the converter absent the data line reads all ones, never a valid 0 °C.
+fn thermocouple(
+    (mosi, miso, sck): Spi0Pins,
+    cs: Pin<bank0::Gpio17, FunctionSioOutput, PullDown>,
+    spi: pac::SPI0,
+    resets: &mut pac::RESETS,
+    clocks: &hal::clocks::ClocksManager,
+    timer: hal::Timer,
+) -> impl remanent_firmware::Thermocouple {
+    let spi = hal::spi::Spi::<_, _, _, 8>::new(spi, (mosi, miso, sck)).init(
+        resets,
+        clocks.peripheral_clock.freq(),
+        4.MHz(),
+        embedded_hal::spi::MODE_0,
+    );
+    let Ok(dev) = ExclusiveDevice::new(spi, cs, timer);
+    max31855::Max31855::new(dev)
+}
+
+/// USB serial to the host (CDC-ACM on the Pico's own port, the flash id as serial number),
+/// serviced from its interrupt; returns the serial number.
+fn host_link(bus: &'static UsbBusAllocator<hal::usb::UsbBus>) -> &'static str {
+    let Some(serial_buf) = cortex_m::singleton!(: [u8; 16] = [0; 16]) else {
+        panic!("serial")
+    };
+    let serial_number = usb::serial_number(serial_buf);
+    usb::start(bus, serial_number);
+    serial_number
 }
 
 /// The main loop: bytes from the host in, the control period, the latch kept, frames out. Only
@@ -197,16 +233,12 @@ where
 {
     let mut rx = [0u8; 64];
     let mut tx = TxBuffer::new();
-    let mut frame = [0u8; MAX_DEVICE_FRAME];
     loop {
         let n = usb::read(&mut rx);
         if n > 0 {
             device.receive(clock.now_ms(), &rx[..n]);
         }
-        remanent_board_support::carry_out(device.take_drill());
-        let periods = device.periods_completed();
-        device.poll(clock.now_ms());
-        if device.periods_completed() != periods {
+        if remanent_board_support::main_loop::pass(&mut device, true, || clock.now_ms()) {
             watchdog.feed(); // only a whole control period feeds it
         }
         let kept = device.persisted();
@@ -215,14 +247,10 @@ where
             keep_in_flash(&mut log, kept, &mut watchdog);
         }
         // move frames into the buffer while whole frames fit; never block on the host
-        while tx.capacity() - tx.len() >= MAX_DEVICE_FRAME {
-            match device.next_frame(&mut frame) {
-                Some(f) => {
-                    let _ = tx.extend_from_slice(f);
-                }
-                None => break,
-            }
-        }
+        let room = tx.capacity() - tx.len();
+        remanent_board_support::main_loop::frames_out(&mut device, room, |f| {
+            let _ = tx.extend_from_slice(f);
+        });
         if !tx.is_empty() {
             let n = usb::write(&tx);
             let rest = tx.len() - n;

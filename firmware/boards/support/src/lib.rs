@@ -1,4 +1,6 @@
-//! Board support shared by the Remanent board crates: the stack guard and the fault drills.
+//! Board support shared by the Remanent board crates: the front end every board carries
+//! ([`front_end`]), one pass of the main loop and the frames out ([`main_loop`]), the stack guard
+//! and the fault drills.
 //!
 //! The stack grows down from the top of RAM toward the statics. Without a guard an overflow
 //! silently overwrites them — the interlock state among them. [`guard_stack`] puts a no-access
@@ -6,6 +8,9 @@
 //! turns into the safe state and a reset. The MPU stays off for the hard-fault handler itself
 //! (`HFNMIENA` = 0), so that handler can still stack its frame and run.
 #![no_std]
+
+pub mod front_end;
+pub mod main_loop;
 
 use core::ptr::{read_volatile, write_volatile};
 
