@@ -28,6 +28,7 @@ pub mod rig_time;
 pub mod run_dir;
 pub mod safe_peak;
 pub mod specs;
+pub mod survey_rank;
 pub mod test_plan;
 pub mod timestamps;
 pub mod units;

@@ -1,11 +1,11 @@
 //! The rig calibration: every constant that turns raw codes into °C and mT, with the standard
 //! uncertainties the analysis's uncertainty budget needs, stored as TOML; and beside it in this
-//! room when each step was done ([`dates`]), whether a bench may measure with it ([`policy`]),
-//! and the steps that make it ([`procedure`]).
+//! room when each step was done ([`dates`]) and whether a bench may measure with it
+//! ([`policy`]). The steps that make it talk to a bench, so they are a workflow:
+//! `jobs::calibrate::procedure`.
 
 pub mod dates;
 pub mod policy;
-pub mod procedure;
 
 use std::path::Path;
 

@@ -5,10 +5,10 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 use std::time::Instant;
 
-use remanent::calibration::procedure::reading::Raw;
-use remanent::calibration::procedure::setup::Person;
-use remanent::calibration::procedure::steps::{Coil, Pressure, Reference};
-use remanent::calibration::procedure::{Options, Progress, Step, VirtualSetup};
+use remanent::jobs::calibrate::procedure::reading::Raw;
+use remanent::jobs::calibrate::procedure::setup::Person;
+use remanent::jobs::calibrate::procedure::steps::{Coil, Pressure, Reference};
+use remanent::jobs::calibrate::procedure::{Options, Progress, Step, VirtualSetup};
 use remanent::jobs::calibrate::{self, Files};
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 
@@ -98,7 +98,7 @@ pub struct Args {
     /// Fixture step: the hot pass's top, °C — with the first step's identification in force
     /// the block is heated toward it and left to cool, which shows how the heater's effect
     /// falls as it warms (use your hottest profile's peak).
-    #[arg(long, default_value_t = remanent::calibration::procedure::fixture::HOT_C, value_parser = parse_finite, conflicts_with = "no_hot_pass")]
+    #[arg(long, default_value_t = remanent::jobs::calibrate::procedure::fixture::HOT_C, value_parser = parse_finite, conflicts_with = "no_hot_pass")]
     pub(super) hot_c: f64,
     /// Fixture step: no hot pass (the fall with temperature is then taken as none).
     #[arg(long)]

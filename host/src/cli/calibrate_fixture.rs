@@ -4,7 +4,7 @@
 use std::process::ExitCode;
 use std::time::Instant;
 
-use remanent::calibration::procedure::fixture::{Phase, Plan, Progress};
+use remanent::jobs::calibrate::procedure::fixture::{Phase, Plan, Progress};
 use remanent::jobs::calibrate::{self, Files};
 use remanent::units::{temp_q, DisplayUnits};
 use remanent::virtual_rig::{FixtureFile, SimulatedPort, VirtualRigOptions};

@@ -4,9 +4,9 @@
 
 use serde::Serialize;
 
-use crate::jobs::survey::Ranked;
 use crate::lot::LotSummary;
 use crate::master::AgainstMaster;
+use crate::survey_rank::Ranked;
 
 /// The per-magnet table as CSV (quoted where a field needs it).
 pub fn lot_csv(s: &LotSummary) -> String {

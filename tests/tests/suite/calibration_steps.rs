@@ -3,10 +3,10 @@
 //! Coil field: the Helmholtz formula (checked against its worked value in `remanent-physics`);
 //! boiling point: IAPWS-IF97 (checked against its verification values there).
 
-use remanent::calibration::procedure::reading::{Raw, Stillness};
-use remanent::calibration::procedure::steps::{Coil, Pressure, Reference};
-use remanent::calibration::procedure::{self, Options, Progress, Step, VirtualSetup};
 use remanent::calibration::Calibration;
+use remanent::jobs::calibrate::procedure::reading::{Raw, Stillness};
+use remanent::jobs::calibrate::procedure::steps::{Coil, Pressure, Reference};
+use remanent::jobs::calibrate::procedure::{self, Options, Progress, Step, VirtualSetup};
 use remanent::virtual_rig::{SimulatedPort, VirtualRigOptions};
 use remanent_physics::HallSensor;
 use remanent_rig_model::catalogue;

@@ -6,7 +6,7 @@
 //! within the expanded uncertainty it states (k = 2); the device then
 //! takes it and lifts its model-free limits.
 
-use remanent::calibration::procedure::fixture::{Phase, Plan, Progress};
+use remanent::jobs::calibrate::procedure::fixture::{Phase, Plan, Progress};
 use remanent::jobs::calibrate::{identify_fixture, Files};
 use remanent::virtual_rig::{FixtureFile, SimulatedPort, VirtualRigOptions};
 

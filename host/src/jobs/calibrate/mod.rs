@@ -6,10 +6,12 @@
 use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 
-use crate::calibration::procedure::steps::Found;
-use crate::calibration::procedure::{self, CalibrateError, Options, Progress, Setup, Step};
+pub mod procedure;
+
 use crate::calibration::{Calibration, CalibrationError};
 use crate::output::{self, OutputError};
+use procedure::steps::Found;
+use procedure::{CalibrateError, Options, Progress, Setup, Step};
 use remanent_rig_model::RigParams;
 
 /// The calibrate workflow failed.
@@ -94,16 +96,16 @@ pub fn run<P: Read + Write>(
 pub fn identify_fixture<P: Read + Write>(
     port: P,
     files: &Files,
-    plan: &crate::calibration::procedure::fixture::Plan,
-    progress: &mut dyn crate::calibration::procedure::fixture::Progress,
+    plan: &crate::jobs::calibrate::procedure::fixture::Plan,
+    progress: &mut dyn crate::jobs::calibrate::procedure::fixture::Progress,
 ) -> Result<
     (
         Calibration,
-        crate::calibration::procedure::fixture_fit::Fitted,
+        crate::jobs::calibrate::procedure::fixture_fit::Fitted,
     ),
     CalibrateJobError,
 > {
-    use crate::calibration::procedure::fixture;
+    use crate::jobs::calibrate::procedure::fixture;
     let mut cal = starting_point(files.from.as_deref())?;
     output::refuse_existing([files.out.clone()], files.force)?;
     let (found, fitted) = fixture::identify(port, &cal, plan, progress).map_err(|source| {
