@@ -4,7 +4,7 @@
 use super::context::Context;
 use super::geometry::{self, BrEstimate};
 use super::loss_verdict;
-use super::result::BudgetLine;
+use super::result::{BudgetLine, Judgement, Remanence};
 use super::verdict::{self, Check, Outcome};
 use crate::families;
 use crate::safe_peak::{self, SafePeak};
@@ -35,6 +35,28 @@ pub struct Judged {
     pub quarantine: Option<Phrase>,
     /// How Br was found, and its budget (relative standard uncertainties, %).
     pub br_budget: Vec<BudgetLine>,
+}
+
+impl Judged {
+    /// The result's two groups this step made: Br (`referred`: to the fixture's reference
+    /// magnet) and the judgement, its verdict the checks' overall one.
+    pub fn into_parts(self, referred: bool) -> (Remanence, Judgement) {
+        let remanence = Remanence {
+            estimate: self.br,
+            budget: self.br_budget,
+            referred: referred && self.br.is_some(),
+        };
+        let judgement = Judgement {
+            material_family: self.material_family,
+            verdict: super::verdict::overall(&self.checks),
+            grade: self.grade,
+            checks: self.checks,
+            heat_damaged: self.heat_damaged,
+            safe_peak: self.safe_peak,
+            quarantine: self.quarantine,
+        };
+        (remanence, judgement)
+    }
 }
 
 /// The measured quantities the judge step needs.

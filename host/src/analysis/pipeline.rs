@@ -2,12 +2,9 @@
 
 use super::context::{AnalysisError, Context};
 use super::prepare::{Prepared, LOSSY};
-use super::result::{
-    AlphaFit, Analysis, CycleResult, InputFacts, Judgement, LagFacts, LossFacts, LossMethod,
-    Remanence, Traces,
-};
+use super::result::{AlphaFit, Analysis, CycleResult, InputFacts, LagFacts, LossFacts, Traces};
 use super::segments::MIN_SPAN_K;
-use super::{alpha, curie, cycles, fit_data, judge, lag_estimate, model, segments, verdict};
+use super::{alpha, curie, cycles, fit_data, judge, lag_estimate, model, segments};
 use super::{drift, loss_verdict};
 use crate::input::clean;
 use crate::input::dataset::Series;
@@ -229,6 +226,7 @@ fn analyze_cycle_with(
     };
     let judged = judge::judge(&measured, ctx, &mut notes);
     fit_notes(lagged.loss > LOSSY, a.range_c[1], &mut notes);
+    let (remanence, judgement) = judged.into_parts(ctx.reference.is_some());
     let analysis = Analysis {
         schema_version: super::result::SCHEMA_VERSION,
         provenance: Default::default(),
@@ -245,47 +243,10 @@ fn analyze_cycle_with(
             max_magnet_temp_c: lagged.tm[lagged.seg.peak],
             curie_estimate_c: lagged.curie_c,
         },
-        alpha: AlphaFit {
-            pct_per_c: a.alpha,
-            u95_pct_per_c: a.u95(),
-            fit_se_pct_per_c: a.u_fit,
-            at_20c_pct_per_c: a.model.alpha_at_reference_pct_per_c(),
-            gamma_pct_per_c2: a.model.gamma_pct_per_c2(),
-            b20_mt: a.model.b0_mt,
-            b20_u_mt: measured.b20_u_mt,
-            range_c: a.range_c,
-            residual_sd_mt: a.fit.residual_sd,
-            points: a.fit.n,
-            method: data.method.into(),
-            method_code: data.code,
-            budget: a.budget,
-            model: a.model,
-        },
-        loss: LossFacts {
-            pct: loss.as_ref().map(|l| l.loss_pct),
-            u95_pct: loss.as_ref().map(|l| l.u95_pct),
-            method_code: loss.as_ref().map(|_| match by_references {
-                true => LossMethod::References,
-                false => LossMethod::Branches,
-            }),
-            reference_c: loss.as_ref().map(|l| l.ref_c),
-            reference_probe_c: loss.as_ref().and_then(|l| l.ref_probe_c),
-            budget: loss.map(|l| l.budget).unwrap_or_default(),
-        },
-        remanence: Remanence {
-            estimate: judged.br,
-            budget: judged.br_budget,
-            referred: ctx.reference.is_some() && judged.br.is_some(),
-        },
-        judgement: Judgement {
-            material_family: judged.material_family,
-            verdict: verdict::overall(&judged.checks),
-            grade: judged.grade,
-            checks: judged.checks,
-            heat_damaged: judged.heat_damaged,
-            safe_peak: judged.safe_peak,
-            quarantine: judged.quarantine,
-        },
+        alpha: AlphaFit::of(a, &data, measured.b20_u_mt),
+        loss: LossFacts::of(loss, by_references),
+        remanence,
+        judgement,
         cycles: Vec::new(),
         notes,
     };

@@ -245,6 +245,54 @@ pub struct Traces {
     pub flux_corrected_mt: Vec<f64>,
 }
 
+impl AlphaFit {
+    /// The α step's result `a`, fitted to the points `data` chose; `b20_u_mt`: B20's standard
+    /// uncertainty from the fit.
+    pub fn of(
+        a: super::alpha::AlphaResult,
+        data: &super::fit_data::FitData,
+        b20_u_mt: f64,
+    ) -> Self {
+        AlphaFit {
+            pct_per_c: a.alpha,
+            u95_pct_per_c: a.u95(),
+            fit_se_pct_per_c: a.u_fit,
+            at_20c_pct_per_c: a.model.alpha_at_reference_pct_per_c(),
+            gamma_pct_per_c2: a.model.gamma_pct_per_c2(),
+            b20_mt: a.model.b0_mt,
+            b20_u_mt,
+            range_c: a.range_c,
+            residual_sd_mt: a.fit.residual_sd,
+            points: a.fit.n,
+            method: data.method.into(),
+            method_code: data.code,
+            budget: a.budget,
+            model: a.model,
+        }
+    }
+}
+
+impl LossFacts {
+    /// The loss step's result (none: no return to compare with); `by_references`: found from
+    /// the references at rest, else from the branches.
+    pub fn of(loss: Option<super::loss::LossResult>, by_references: bool) -> Self {
+        let Some(l) = loss else {
+            return LossFacts::default();
+        };
+        LossFacts {
+            pct: Some(l.loss_pct),
+            u95_pct: Some(l.u95_pct),
+            method_code: Some(match by_references {
+                true => LossMethod::References,
+                false => LossMethod::Branches,
+            }),
+            reference_c: Some(l.ref_c),
+            reference_probe_c: l.ref_probe_c,
+            budget: l.budget,
+        }
+    }
+}
+
 impl Analysis {
     /// The fitted reversible B at `t_c`, mT.
     pub fn fitted_mt(&self, t_c: f64) -> f64 {
