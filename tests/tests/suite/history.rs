@@ -50,8 +50,9 @@ fn shipment(lot: &str, supplier: &str) -> Inspection {
 
 /// Import the three runs (two shipments), then check every search, the lot summary, the
 /// trend and the export; a second import changes nothing.
-fn exercise(at: &Location) {
-    let runs = recorded();
+/// Import the runs in two shipments, then all of them again: the second import adds and
+/// changes nothing, and the export reads back with its documented header.
+fn import_twice(at: &Location, runs: &[std::path::PathBuf]) -> Store {
     let judging = Judging::default();
     let a = import(
         at,
@@ -87,6 +88,31 @@ fn exercise(at: &Location) {
     assert_eq!(csv_before, csv_after, "a second import changes nothing");
     assert_eq!(store.counts().unwrap(), (3, 3));
 
+    // exported with the documented header, one row per run, readable by a CSV reader
+    let mut rdr = csv::Reader::from_reader(csv_after.as_bytes());
+    assert_eq!(
+        rdr.headers().unwrap().iter().collect::<Vec<_>>(),
+        remanent::history::export::HEADER
+    );
+    assert_eq!(rdr.records().count(), 3);
+    store
+}
+
+/// The stored figures of `row` are the analysis's own of `run`.
+fn stored_as_analysed(row: &remanent::history::Found, run: &std::path::Path) {
+    let (_, direct) = load_and_analyze(&InputRequest {
+        input: run.to_path_buf(),
+        ..Default::default()
+    })
+    .unwrap();
+    assert_eq!(row.alpha_pct_per_c, Some(direct.alpha.pct_per_c));
+    assert_eq!(row.br_t, direct.remanence.estimate.as_ref().map(|b| b.br_t));
+    assert_eq!(row.loss_pct, direct.loss.pct);
+}
+
+fn exercise(at: &Location) {
+    let runs = recorded();
+    let mut store = import_twice(at, runs);
     let find = |store: &mut Store, f: Filter| store.find(&f).unwrap();
     let lot_a = find(
         &mut store,
@@ -164,16 +190,7 @@ fn exercise(at: &Location) {
         assert_eq!(got, expect, "runs with verdict {v}");
     }
 
-    // the stored figures are the analysis's own
-    let (_, direct) = load_and_analyze(&InputRequest {
-        input: runs[2].clone(),
-        ..Default::default()
-    })
-    .unwrap();
-    let row = &by_grade[0];
-    assert_eq!(row.alpha_pct_per_c, Some(direct.alpha.pct_per_c));
-    assert_eq!(row.br_t, direct.remanence.estimate.as_ref().map(|b| b.br_t));
-    assert_eq!(row.loss_pct, direct.loss.pct);
+    stored_as_analysed(&by_grade[0], &runs[2]);
 
     let h = remanent::history::query::lot_history("L-2611-A", &lot_a);
     let s = h.summary.as_ref().expect("the lot's runs were analysed");
@@ -207,13 +224,6 @@ fn exercise(at: &Location) {
             .collect::<Vec<_>>(),
         alphas
     );
-    // exported with the documented header, one row per run, readable by a CSV reader
-    let mut rdr = csv::Reader::from_reader(csv_after.as_bytes());
-    assert_eq!(
-        rdr.headers().unwrap().iter().collect::<Vec<_>>(),
-        remanent::history::export::HEADER
-    );
-    assert_eq!(rdr.records().count(), 3);
 }
 
 #[test]

@@ -65,7 +65,15 @@ struct Scenario {
     cause: fn(&mut Bench),
 }
 
+/// Every fault path.
 fn scenarios() -> Vec<Scenario> {
+    let mut all = sensor_scenarios();
+    all.extend(heating_scenarios());
+    all
+}
+
+/// The sensor's faults: each one the converter or the bus reports, or a stuck word.
+fn sensor_scenarios() -> Vec<Scenario> {
     let cfg = bench_config();
     let period = STEP_MS;
     vec![
@@ -119,6 +127,15 @@ fn scenarios() -> Vec<Scenario> {
             // stuck a kelvin above the setpoint: the controller backs off and never sees it
             cause: |b| b.plant.borrow_mut().stuck_tc_counts = Some(61 * 4),
         },
+    ]
+}
+
+/// The heating's faults: readings physics forbids, heat where none or none where some should
+/// be, a lost host, a failed drive.
+fn heating_scenarios() -> Vec<Scenario> {
+    let cfg = bench_config();
+    let period = STEP_MS;
+    vec![
         Scenario {
             holding: false,
             name: "a reading above the run limit",
