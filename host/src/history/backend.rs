@@ -80,14 +80,27 @@ impl From<Option<String>> for Value {
 /// A row as the engine returned it.
 pub type Row = Vec<Value>;
 
-/// The cell `name` of `row`, selected as `columns` (comma-separated, in order) name them; NULL
-/// when no column has that name.
-pub fn cell(columns: &str, row: &Row, name: &str) -> Value {
-    columns
-        .split(',')
-        .position(|c| c.trim() == name)
-        .and_then(|i| row.get(i).cloned())
-        .unwrap_or(Value::Null)
+/// A SELECT list's column names (comma-separated, in order), split once per query, to read a
+/// row's cells by name.
+pub struct Columns<'a>(Vec<&'a str>);
+
+/// What a cell no column names reads as.
+static NULL: Value = Value::Null;
+
+impl<'a> Columns<'a> {
+    /// The names of the SELECT list `list`.
+    pub fn new(list: &'a str) -> Self {
+        Columns(list.split(',').map(str::trim).collect())
+    }
+
+    /// The cell `name` of `row`; NULL when no column has that name.
+    pub fn cell<'r>(&self, row: &'r Row, name: &str) -> &'r Value {
+        self.0
+            .iter()
+            .position(|c| *c == name)
+            .and_then(|i| row.get(i))
+            .unwrap_or(&NULL)
+    }
 }
 
 /// What both engines do for the store.

@@ -84,7 +84,8 @@ impl Store {
             &[number.into()],
         )?;
         Ok(rows.first().map(|r| {
-            let cell = |name: &str| super::backend::cell(COLUMNS, r, name).text();
+            let columns = super::backend::Columns::new(COLUMNS);
+            let cell = |name: &str| columns.cell(r, name).text();
             let t = |name: &str| cell(name).unwrap_or_default();
             CertificateEntry {
                 number: t("number"),

@@ -72,7 +72,8 @@ impl Store {
             &[lot.into()],
         )?;
         Ok(rows.first().map(|r| {
-            let cell = |name: &str| super::backend::cell(COLUMNS, r, name);
+            let columns = super::backend::Columns::new(COLUMNS);
+            let cell = |name: &str| columns.cell(r, name);
             let n = |name: &str| cell(name).int().unwrap_or(0).max(0) as u64;
             let t = |name: &str| cell(name).text().unwrap_or_default();
             LotDecision {

@@ -2,7 +2,7 @@
 //! its latest analysis), a lot's summary, a supplier's trend, and CSV export. The same SQL
 //! runs on both engines.
 
-use super::backend::Value;
+use super::backend::{Columns, Value};
 use super::error::StoreError;
 use super::store::Store;
 use crate::analysis::verdict::Outcome;
@@ -122,8 +122,8 @@ const FOUND_COLUMNS: &str = "r.run_uid, r.run_name, r.location, r.host, r.magnet
 const FOUND_FROM: &str =
     " FROM runs r LEFT JOIN analyses a ON a.analysis_uid = r.latest_analysis_uid";
 
-fn found(row: &super::backend::Row) -> Found {
-    let cell = |name: &str| super::backend::cell(FOUND_COLUMNS, row, name);
+fn found(columns: &Columns, row: &super::backend::Row) -> Found {
+    let cell = |name: &str| columns.cell(row, name);
     let t = |name: &str| cell(name).text();
     let f = |name: &str| cell(name).real();
     Found {
@@ -201,7 +201,13 @@ impl Store {
             ),
             None => format!("SELECT {FOUND_COLUMNS}{FOUND_FROM}{clause} ORDER BY {when}, r.run_uid"),
         };
-        let mut rows: Vec<Found> = self.db().query(&sql, &vals)?.iter().map(found).collect();
+        let columns = Columns::new(FOUND_COLUMNS);
+        let mut rows: Vec<Found> = self
+            .db()
+            .query(&sql, &vals)?
+            .iter()
+            .map(|r| found(&columns, r))
+            .collect();
         if filter.limit.is_some() {
             rows.reverse();
         }
@@ -237,12 +243,13 @@ impl Store {
             vals.push(Value::Text(g.into()));
         }
         sql.push_str(" ORDER BY r.supplier, r.started_utc, r.run_uid");
+        let columns = Columns::new(COLUMNS);
         Ok(self
             .db()
             .query(&sql, &vals)?
             .into_iter()
             .map(|r| {
-                let cell = |name: &str| super::backend::cell(COLUMNS, &r, name);
+                let cell = |name: &str| columns.cell(&r, name);
                 TrendPoint {
                     when_utc: cell("r.started_utc").text().unwrap_or_default(),
                     magnet_id: cell("r.magnet_id").text(),
