@@ -11,6 +11,7 @@ mod display_units;
 mod end_to_end;
 mod foreign_commands;
 mod history;
+mod house;
 mod identification;
 mod imperfect_records;
 mod impossible_values;
