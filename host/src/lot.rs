@@ -39,7 +39,7 @@ pub struct LotRow {
     #[serde(skip)]
     pub heat_damaged: bool,
     /// Robust outlier in α, loss or room-temperature flux.
-    pub outlier: Vec<String>,
+    pub outlier: Vec<Outlier>,
 }
 
 impl LotRow {
@@ -59,6 +59,27 @@ impl LotRow {
             outlier: Vec::new(),
         }
     }
+}
+
+/// A quantity in which a magnet stands out from its lot.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum OutlierIn {
+    /// α(Br).
+    Alpha,
+    /// The irreversible loss.
+    Loss,
+    /// The room-temperature flux.
+    RoomFlux,
+}
+
+/// A robust outlier: the quantity and its modified z-score M (words: `report::lot`).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Outlier {
+    /// Where it stands out.
+    pub quantity: OutlierIn,
+    /// Its modified z-score against the lot.
+    pub m: f64,
 }
 
 /// Centre and spread of one quantity.
@@ -173,7 +194,10 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
         .enumerate()
     {
         if z.abs() > OUTLIER_Z && (rows[i].alpha - alpha_med).abs() > rows[i].alpha_u95 {
-            rows[i].outlier.push(format!("α (M = {z:+.1})"));
+            rows[i].outlier.push(Outlier {
+                quantity: OutlierIn::Alpha,
+                m: z,
+            });
         }
     }
     let b20_med = median(&b20);
@@ -181,9 +205,10 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
     for (i, z) in modified_z_resolved(&b20, b20_u).into_iter().enumerate() {
         let real = (rows[i].b20_mt - b20_med).abs() > FLUX_RESOLUTION * b20_med.abs();
         if z.abs() > OUTLIER_Z && real {
-            rows[i]
-                .outlier
-                .push(format!("room-temperature flux (M = {z:+.1})"));
+            rows[i].outlier.push(Outlier {
+                quantity: OutlierIn::RoomFlux,
+                m: z,
+            });
         }
     }
     let with_loss: Vec<(usize, f64)> = rows
@@ -201,7 +226,10 @@ pub fn summarise(mut rows: Vec<LotRow>) -> LotSummary {
     ) / 2.0;
     for ((i, l), z) in with_loss.iter().zip(modified_z_resolved(&losses, loss_u)) {
         if z.abs() > OUTLIER_Z && (l - loss_med).abs() > rows[*i].loss_u95_pct.unwrap_or(0.0) {
-            rows[*i].outlier.push(format!("loss (M = {z:+.1})"));
+            rows[*i].outlier.push(Outlier {
+                quantity: OutlierIn::Loss,
+                m: z,
+            });
         }
     }
     let brs: Vec<f64> = rows.iter().filter_map(|r| r.br_t).collect();
@@ -252,9 +280,8 @@ mod tests {
         let c = s.rows.iter().find(|r| r.id == "c").unwrap();
         // the MAD is 0: without a floor there is no score at all (and a digit apart, a score
         // of thousands); with it, 0.6745·0.005/(0.6745·0.0008) = 6.25
-        assert_eq!(
-            c.outlier,
-            vec!["α (M = +6.2)".to_string()],
+        assert!(
+            matches!(&c.outlier[..], [o] if o.quantity == OutlierIn::Alpha && (o.m - 6.25).abs() < 1e-9),
             "{:?}",
             c.outlier
         );

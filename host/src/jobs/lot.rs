@@ -40,37 +40,65 @@ pub struct LotOutcome {
     pub skipped: Vec<(PathBuf, String)>,
     /// Files written.
     pub written: Vec<PathBuf>,
-    /// Things the user should know (duplicate runs or magnets).
-    pub warnings: Vec<String>,
+    /// Things the user should know (duplicate runs or magnets, a master that cannot judge).
+    pub warnings: Vec<LotWarning>,
     /// Each part against the master sample, when one was given.
     pub against_master: Vec<crate::master::AgainstMaster>,
     /// Each analysed run with its analysis (for the history).
     pub analyses: Vec<(PathBuf, crate::analysis::Analysis)>,
 }
 
+/// What the user should know about a lot's analysis (none stops it).
+#[derive(Debug, Clone, PartialEq)]
+pub enum LotWarning {
+    /// The same run given twice.
+    SameRun(PathBuf, PathBuf),
+    /// One magnet id in two runs.
+    SameMagnet(String, PathBuf, PathBuf),
+    /// The lot's grade is not in the spec table, so nothing is judged against the master.
+    GradeNotInTable,
+    /// This part is not the master's shape: its field is not compared with the master's.
+    NotMastersShape(String),
+}
+
+impl std::fmt::Display for LotWarning {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            LotWarning::SameRun(a, b) => {
+                write!(f, "{} and {} are the same run", a.display(), b.display())
+            }
+            LotWarning::SameMagnet(id, a, b) => write!(
+                f,
+                "magnet {id} appears twice ({} and {})",
+                a.display(),
+                b.display()
+            ),
+            LotWarning::GradeNotInTable => f.write_str(
+                "the lot's grade is not in the spec table: it cannot be judged against the master",
+            ),
+            LotWarning::NotMastersShape(id) => write!(
+                f,
+                "{id} is not the master's shape: its field cannot be compared with the master's"
+            ),
+        }
+    }
+}
+
 /// Warnings for the same run given twice, or the same magnet id in two runs.
-fn duplicates(runs: &[PathBuf], ids: &[(PathBuf, String)]) -> Vec<String> {
+fn duplicates(runs: &[PathBuf], ids: &[(PathBuf, String)]) -> Vec<LotWarning> {
     let mut out = Vec::new();
     let mut seen = std::collections::BTreeMap::new();
     for r in runs {
         let key = std::fs::canonicalize(r).unwrap_or_else(|_| r.clone());
         if let Some(first) = seen.insert(key, r.clone()) {
-            out.push(format!(
-                "{} and {} are the same run",
-                first.display(),
-                r.display()
-            ));
+            out.push(LotWarning::SameRun(first, r.clone()));
         }
     }
     let mut by_id = std::collections::BTreeMap::new();
     for (r, id) in ids {
         if let Some(first) = by_id.insert(id.clone(), r.clone()) {
             if std::fs::canonicalize(&first).ok() != std::fs::canonicalize(r).ok() {
-                out.push(format!(
-                    "magnet {id} appears twice ({} and {})",
-                    first.display(),
-                    r.display()
-                ));
+                out.push(LotWarning::SameMagnet(id.clone(), first, r.clone()));
             }
         }
     }
@@ -147,10 +175,7 @@ pub fn run(
             Some(rows)
         }
         (Some(_), None) => {
-            warnings.push(
-                "the lot's grade is not in the spec table: it cannot be judged against the master"
-                    .into(),
-            );
+            warnings.push(LotWarning::GradeNotInTable);
             None
         }
         _ => None,
@@ -180,7 +205,7 @@ fn against_master(
     judging: &Judging,
     parts: &[(crate::magnets::MagnetInfo, crate::analysis::Analysis)],
     spec: &crate::specs::GradeSpec,
-) -> Result<(Vec<crate::master::AgainstMaster>, Vec<String>), LotError> {
+) -> Result<(Vec<crate::master::AgainstMaster>, Vec<LotWarning>), LotError> {
     let req = InputRequest {
         input: m.to_path_buf(),
         specs: judging.specs.clone(),
@@ -197,10 +222,7 @@ fn against_master(
     for (pi, pa) in parts {
         match crate::master::compare(&master, pi, pa, spec) {
             Some(r) => rows.push(r),
-            None => warnings.push(format!(
-                "{} is not the master's shape: its field cannot be compared with the master's",
-                pi.id
-            )),
+            None => warnings.push(LotWarning::NotMastersShape(pi.id.clone())),
         }
     }
     Ok((rows, warnings))

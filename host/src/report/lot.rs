@@ -6,12 +6,33 @@ use std::fmt::Write as _;
 
 use super::page::{esc, Page};
 use super::tables;
-use crate::lot::{LotSummary, Spread};
+use crate::lot::{LotSummary, Outlier, OutlierIn, Spread};
 use crate::master::AgainstMaster;
 use crate::output::Produced;
 use crate::plots::{self, Figure, PlotError};
 use crate::specs::GradeSpec;
 use crate::units::{temp_q, DisplayUnits};
+
+/// An outlier in words: `α (M = +3.6)`.
+impl std::fmt::Display for Outlier {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let what = match self.quantity {
+            OutlierIn::Alpha => "α",
+            OutlierIn::Loss => "loss",
+            OutlierIn::RoomFlux => "room-temperature flux",
+        };
+        write!(f, "{what} (M = {:+.1})", self.m)
+    }
+}
+
+/// A row's outliers in words, `; ` between them (empty: none).
+pub fn outliers_text(outliers: &[Outlier]) -> String {
+    outliers
+        .iter()
+        .map(Outlier::to_string)
+        .collect::<Vec<_>>()
+        .join("; ")
+}
 
 /// Every output of a lot, rendered in memory: the table and page in the display units `u` (the
 /// CSV files in SI-based units); `master.csv` when the lot was compared with a master sample.
@@ -78,7 +99,7 @@ pub fn lot_html(s: &LotSummary, title: &str, figure: &Figure, u: &DisplayUnits) 
             r.loss_u95_pct.map(|x| format!("{x:.3}")).unwrap_or_default(),
             r.b20_mt * flux,
             r.verdict,
-            esc(&r.outlier.join("; "))
+            esc(&outliers_text(&r.outlier))
         ));
     }
     page.raw(&t)
@@ -146,7 +167,7 @@ pub fn lot_text(s: &LotSummary, u: &crate::units::DisplayUnits) -> String {
                 .unwrap_or_default(),
             r.b20_mt * flux,
             r.verdict.word(),
-            r.outlier.join("; ")
+            outliers_text(&r.outlier)
         );
     }
     out

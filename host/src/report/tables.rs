@@ -21,7 +21,7 @@ pub fn lot_csv(s: &LotSummary) -> String {
             loss_u95_pct: opt(r.loss_u95_pct, 4),
             b20: format!("{:.3}", r.b20_mt),
             verdict: r.verdict.word(),
-            outlier: r.outlier.join("; "),
+            outlier: super::lot::outliers_text(&r.outlier),
         };
         // writing into memory cannot fail
         let _ = w.serialize(row);
@@ -132,12 +132,23 @@ mod tests {
             br_t: None,
             verdict: crate::analysis::verdict::Outcome::Pass,
             heat_damaged: false,
-            outlier: vec!["flux".into(), "α".into()],
+            outlier: vec![
+                crate::lot::Outlier {
+                    quantity: crate::lot::OutlierIn::RoomFlux,
+                    m: -4.2,
+                },
+                crate::lot::Outlier {
+                    quantity: crate::lot::OutlierIn::Alpha,
+                    m: 3.9,
+                },
+            ],
         };
         let csv = lot_csv(&crate::lot::summarise(vec![row]));
         let mut r = csv::Reader::from_reader(csv.as_bytes());
         let rec = r.records().next().unwrap().unwrap();
         assert_eq!(&rec[0], "RM,7");
+        // the outliers in words, in the order found
+        assert_eq!(&rec[8], "room-temperature flux (M = -4.2); α (M = +3.9)");
         assert_eq!(rec.len(), 9);
     }
 }

@@ -89,7 +89,9 @@ fn a_lot_is_one_grade_unless_told_and_duplicates_and_unreadable_runs_are_reporte
     )
     .unwrap();
     assert!(
-        done.warnings.iter().any(|w| w.contains("same run")),
+        done.warnings
+            .iter()
+            .any(|w| w.to_string().contains("same run")),
         "{:?}",
         done.warnings
     );

@@ -154,7 +154,7 @@ fn a_lot_finds_the_weak_magnet() {
     assert!(
         weak.outlier
             .iter()
-            .any(|o| o.contains("room-temperature flux")),
+            .any(|o| o.to_string().contains("room-temperature flux")),
         "{:?}",
         weak.outlier
     );

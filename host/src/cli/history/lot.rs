@@ -81,7 +81,11 @@ pub fn run(a: Args, u: &remanent::units::DisplayUnits) -> anyhow::Result<ExitCod
     }
     for r in s.iter().flat_map(|s| &s.rows) {
         if !r.outlier.is_empty() {
-            println!("  {:<22} outlier: {}", r.id, r.outlier.join("; "));
+            println!(
+                "  {:<22} outlier: {}",
+                r.id,
+                remanent::report::lot::outliers_text(&r.outlier)
+            );
         }
     }
     Ok(ExitCode::SUCCESS)
