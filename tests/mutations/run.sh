@@ -50,11 +50,11 @@ mutate "judge: touching a limit from outside fails" $V \
   'value + u95 < min' 'value + u95 <= min' -p remanent --lib analysis::verdict
 mutate "judge: a NaN uncertainty decides" $V \
   'u95.is_finite() && u95 >= 0.0' 'true' -p remanent --lib analysis::verdict
-P=host/src/analysis/pipeline.rs
-mutate "alpha U95 with k = 1" $P 'alpha_u95_pct_per_c: a.u95(),' \
-  'alpha_u95_pct_per_c: a.u95() / 2.0,' -p remanent-tests --test suite coverage::
-mutate "alpha U95 ten times too large" $P 'alpha_u95_pct_per_c: a.u95(),' \
-  'alpha_u95_pct_per_c: a.u95() * 10.0,' -p remanent-tests --test suite coverage::
+P=host/src/analysis/result.rs
+mutate "alpha U95 with k = 1" $P 'u95_pct_per_c: a.u95(),' \
+  'u95_pct_per_c: a.u95() / 2.0,' -p remanent-tests --test suite coverage::
+mutate "alpha U95 ten times too large" $P 'u95_pct_per_c: a.u95(),' \
+  'u95_pct_per_c: a.u95() * 10.0,' -p remanent-tests --test suite coverage::
 L=host/src/analysis/loss.rs
 mutate "loss U95 with k = 1" $L 'u95_pct: BudgetLine::expanded(&budget),' \
   'u95_pct: BudgetLine::expanded(&budget) / 2.0,' -p remanent --lib analysis::loss
@@ -63,7 +63,7 @@ mutate "loss sign flipped" $L 'let loss = (b0 - b1 * ratio) / b0;' \
 mutate "two-point alpha referred to 25 C" host/src/analysis/model.rs \
   'let x_top = top_c - REFERENCE_C;' 'let x_top = top_c - 25.0;' \
   -p remanent --lib analysis::model
-mutate "rectangular terms expanded as normal" host/src/analysis/result.rs \
+mutate "rectangular terms expanded as normal" host/src/analysis/budget.rs \
   'super::coverage::half_width(normal, &rect)' \
   'super::coverage::half_width(normal.hypot(rect.iter().fold(0.0, |a: f64, b| a.hypot(*b))), &[])' \
   -p remanent-tests --test suite coverage::
