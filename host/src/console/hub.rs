@@ -48,12 +48,24 @@ pub enum Phase {
 /// The outcome of a part, for the screen.
 #[derive(Debug, Clone, PartialEq, Serialize, Default)]
 pub struct Outcome {
-    /// PASS, FAIL, INDETERMINATE, or none when the record came to no verdict.
-    pub verdict: Option<String>,
+    /// The verdict (shown as PASS, FAIL, INDETERMINATE), or none when the record came to none.
+    #[serde(serialize_with = "in_words")]
+    pub verdict: Option<crate::analysis::verdict::Outcome>,
     /// Why, in words (the checks, or how the record ended).
     pub reasons: Vec<String>,
     /// The certificate's number, when one was written.
     pub certificate: Option<String>,
+}
+
+/// A verdict as the page shows it: its word in capitals (null for none).
+fn in_words<S: serde::Serializer>(
+    v: &Option<crate::analysis::verdict::Outcome>,
+    s: S,
+) -> Result<S::Ok, S::Error> {
+    match v {
+        Some(o) => s.collect_str(o),
+        None => s.serialize_none(),
+    }
 }
 
 /// The live state of one rig.
@@ -158,5 +170,27 @@ impl Progress for HubProgress<'_> {
             l.points.push(p);
             l.samples = l.points.len();
         });
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::verdict::Outcome as Verdict;
+
+    #[test]
+    fn the_page_gets_a_verdict_as_its_word_in_capitals() {
+        let json = |verdict| {
+            serde_json::to_value(Outcome {
+                verdict,
+                ..Default::default()
+            })
+        };
+        assert_eq!(json(Some(Verdict::Pass)).unwrap()["verdict"], "PASS");
+        assert_eq!(
+            json(Some(Verdict::Indeterminate)).unwrap()["verdict"],
+            "INDETERMINATE"
+        );
+        assert!(json(None).unwrap()["verdict"].is_null());
     }
 }

@@ -173,7 +173,7 @@ impl Rig {
                     .unwrap_or_default()
                     .display()
                     .to_string(),
-                verdict: outcome.verdict.as_deref().and_then(|w| w.parse().ok()),
+                verdict: outcome.verdict,
                 note: outcome
                     .certificate
                     .clone()
@@ -229,7 +229,7 @@ fn run_part(hub: &Hub, port: &str, bench: &Bench, opts: RecordOptions) -> Outcom
         .ok()
         .map(|(s, _)| s.number);
     Outcome {
-        verdict: Some(a.judgement.verdict.to_string()),
+        verdict: Some(a.judgement.verdict),
         reasons: a
             .judgement
             .checks
