@@ -90,7 +90,9 @@ pub fn store_reported(
     use crate::report::seal;
     let entry = entry_for(input, a)?;
     let mut store = Store::open(at)?;
-    let new = store.put_analysis(&entry, a)?;
+    // one row, stored and then named by the certificate
+    let row = crate::history::entry::analysis_row(&entry.run_uid, a);
+    let (_, new) = store.put_filed(&entry, &row)?;
     let Some(file) = written.iter().find(|f| f.ends_with(seal::SEAL_FILE)) else {
         return Ok(new);
     };
@@ -102,7 +104,7 @@ pub fn store_reported(
     store.put_certificate(&crate::history::CertificateEntry {
         number: s.number,
         run_uid: entry.run_uid.clone(),
-        analysis_uid: crate::history::entry::analysis_row(&entry.run_uid, a)
+        analysis_uid: row
             .values
             .first()
             .and_then(crate::history::Value::text)
