@@ -247,7 +247,7 @@ fn heats<P: Read + Write>(p: &mut Probe<P>, t0: f64) -> Result<(Step, f64), Link
                 format!(
                     ") after {:.0} s at {:.0} % duty",
                     s.time_s - started_s,
-                    f64::from(s.sample.duty) / 2.55
+                    remanent_physics::wire::duty_pct(s.sample.duty)
                 ),
             ],
             None => crate::phrase![

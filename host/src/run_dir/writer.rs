@@ -163,7 +163,7 @@ impl RunWriter {
             hall_code: s.hall_code,
             probe_code: s.probe_code,
             thermo_word: s.thermo,
-            heater_duty_pct: f64::from(s.duty) / 255.0 * 100.0,
+            heater_duty_pct: remanent_physics::wire::duty_pct(s.duty),
             heater_on: u8::from(s.status.heater_enabled()),
             fault_latched: u8::from(s.status.fault_latched()),
             tc_fault: tc_fault.into(),

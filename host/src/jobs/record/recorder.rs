@@ -181,7 +181,7 @@ impl Recorder {
             } => {
                 self.status.samples = w.meta.counts.samples;
                 self.status.gap_samples += missing_before;
-                let duty = f64::from(placed.sample.duty) / 2.55;
+                let duty = remanent_physics::wire::duty_pct(placed.sample.duty);
                 if let (Some(a), true) = (self.auto.as_mut(), self.start == Start::Running) {
                     a.push(
                         placed.device_time_s,
