@@ -62,6 +62,12 @@ pub const ONSET_SHIFT_C_PER_LD: f64 = 50.0;
 pub const IRREVERSIBLE_TAU_S: f64 = 120.0;
 
 impl Magnet {
+    /// Its true mean α between 20 °C and `top_c` (the standards' two-point form), %/°C: with
+    /// Br(T) = Br20·(1 + α(T − 20) + γ(T − 20)²), (Br(top) − Br20)/(Br20·(top − 20)).
+    pub fn mean_alpha_pct_per_c(&self, top_c: f64) -> f64 {
+        self.alpha_pct_per_c + self.gamma_pct_per_c2 * (top_c - 20.0)
+    }
+
     /// The irreversible onset for this magnet's shape, °C.
     pub fn effective_onset_c(&self) -> f64 {
         let shift = (ONSET_SHIFT_C_PER_LD * (self.shape.l_over_d() - 0.7)).clamp(-40.0, 40.0);

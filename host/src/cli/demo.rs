@@ -95,8 +95,7 @@ pub fn run(a: Args, u: &DisplayUnits) -> anyhow::Result<ExitCode> {
         "{}",
         remanent::report::summary::text(analysis, &done.title, u)
     );
-    let true_alpha =
-        p.model.alpha_pct_per_c + p.model.gamma_pct_per_c2 * (analysis.alpha.range_c[1] - 20.0);
+    let true_alpha = p.model.mean_alpha_pct_per_c(analysis.alpha.range_c[1]);
     println!(
         "  (the virtual rig's truth: α = {} over the same range, loss {:.3} %)",
         Qty::one(Kind::Alpha, true_alpha, 4).signed().render(u),

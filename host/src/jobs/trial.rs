@@ -115,7 +115,7 @@ pub fn run(spec: &TrialSpec, out: &Path) -> Result<Trial, TrialError> {
     let t = &loaded.series.time_s;
     let fixture_s = t.last().copied().unwrap_or(0.0) - t.first().copied().unwrap_or(0.0);
     let top = analysis.alpha.range_c[1];
-    let alpha_truth = model.alpha_pct_per_c + model.gamma_pct_per_c2 * (top - 20.0);
+    let alpha_truth = model.mean_alpha_pct_per_c(top);
     let loss_truth_pct = truth.irreversible * 100.0;
     Ok(Trial {
         alpha_error_pct_per_c: analysis.alpha.pct_per_c - alpha_truth,
