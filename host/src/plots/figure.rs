@@ -55,9 +55,14 @@ pub struct Figure {
 impl Figure {
     /// Its two files, PNG then SVG, as outputs.
     pub fn files(&self) -> [Produced; 2] {
+        self.files_named(&self.name)
+    }
+
+    /// Its two files under the stem `name`.
+    pub fn files_named(&self, name: &str) -> [Produced; 2] {
         [
-            Produced::new(format!("{}.png", self.name), self.png.clone()),
-            Produced::new(format!("{}.svg", self.name), self.svg.as_bytes()),
+            Produced::new(format!("{name}.png"), self.png.clone()),
+            Produced::new(format!("{name}.svg"), self.svg.as_bytes()),
         ]
     }
 

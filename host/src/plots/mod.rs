@@ -101,10 +101,6 @@ pub fn write_figure(
         .file_stem()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
-    let files = Figure {
-        name,
-        ..figure.clone()
-    }
-    .files();
+    let files = figure.files_named(&name);
     Ok(crate::output::write_set(dir, &files, force)?)
 }

@@ -160,11 +160,11 @@ pub fn run_outputs(
     )?;
     let mut files: Vec<Produced> = figures.iter().flat_map(Figure::files).collect();
     files.extend([
+        Produced::new(JSON_FILE, json),
         Produced::new(MD_FILE, markdown(a, meta, title, u)),
         Produced::new(HTML_FILE, run_page::html(a, meta, title, &figures, u)),
         Produced::new(certificate::CERTIFICATE_FILE, pdf),
     ]);
-    files.insert(figures.len() * 2, Produced::new(JSON_FILE, json));
     if let Some(s) = &sealed {
         let text = toml::to_string(s).expect("a seal serializes");
         files.push(Produced::new(seal::SEAL_FILE, text));
