@@ -186,12 +186,11 @@ fn loss_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &LotSummary)
         .collect();
     let lmax = losses.iter().map(|l| l.1 + l.2).fold(0.5f64, f64::max) * 1.15;
     let lmin = losses.iter().map(|l| l.1 - l.2).fold(-0.1f64, f64::min) * 1.15;
-    let caption = format!(
-        "Loss with U95 bars; red: heat damage (above {HEAT_DAMAGE_PCT} % by more than its U95)"
-    );
+    // short enough for its panel: the whole rule is in the report's notes
+    let caption = format!("Loss ± U95; red: heat damage (loss − U95 > {HEAT_DAMAGE_PCT} %)");
     let axes = Axes {
         caption: &caption,
-        caption_size: 20,
+        caption_size: 18,
         x_desc: "magnet",
         y_desc: "loss, %",
     };

@@ -226,3 +226,56 @@ fn a_timeline_without_a_heater_column_has_no_heater_panel() {
     s.duty_pct = Some(vec![40.0; 600]);
     assert!(draw(&s, "recorded").contains("heater duty"));
 }
+
+/// Centred texts of an SVG: (centre x, font size, the text).
+fn centred_texts(svg: &str) -> Vec<(f64, f64, String)> {
+    let attr = |t: &str, k: &str| -> Option<f64> {
+        t.split(&format!(" {k}=\""))
+            .nth(1)?
+            .split('"')
+            .next()?
+            .parse()
+            .ok()
+    };
+    svg.split("<text")
+        .skip(1)
+        .filter(|t| t.contains("text-anchor=\"middle\"") && !t.contains("rotate("))
+        .filter_map(|t| {
+            let body = t.split('>').nth(1)?.split('<').next()?.trim().to_string();
+            Some((attr(t, "x")?, attr(t, "font-size")?, body))
+        })
+        .collect()
+}
+
+#[test]
+fn every_caption_of_a_lot_plot_fits_inside_the_figure() {
+    // a lot with a loss, so every panel is drawn; its loss caption once ran off the left edge
+    let row = |id: &str, loss: f64| remanent::lot::LotRow {
+        id: id.into(),
+        grade: "N42SH".into(),
+        alpha: -0.116,
+        alpha_u95: 0.0015,
+        loss_pct: Some(loss),
+        loss_u95_pct: Some(0.03),
+        b20_mt: 218.4,
+        br_t: None,
+        verdict: remanent::analysis::verdict::Outcome::Pass,
+        heat_damaged: false,
+        outlier: Vec::new(),
+    };
+    let s = remanent::lot::summarise(vec![row("a", 0.0), row("b", 0.01), row("c", 3.2)]);
+    let spec = remanent::specs::SpecTable::builtin().find("N42SH").cloned();
+    let f = remanent::plots::lot_figure("lot", &s, spec.as_ref(), "test lot", &Default::default())
+        .unwrap();
+    let width = f64::from(remanent::plots::SIZE.0);
+    // DejaVu Sans averages a little over half an em a character (common practice: 0.55 em)
+    for (x, size, text) in centred_texts(&f.svg) {
+        let half = text.chars().count() as f64 * size * 0.55 / 2.0;
+        assert!(
+            x - half >= 0.0 && x + half <= width,
+            "`{text}` spans {:.0}…{:.0} px of {width}",
+            x - half,
+            x + half
+        );
+    }
+}
